@@ -1,0 +1,35 @@
+# Two set-up commands for a fresh machine: `make demo` and `make test`.
+PY      ?= python3
+VENV    := .venv
+BIN     := $(VENV)/bin
+STAMP   := $(VENV)/.installed
+OUT     ?= out
+
+.PHONY: demo test bench clean syslibs
+
+$(STAMP): pyproject.toml
+	$(MAKE) syslibs
+	$(PY) -m venv $(VENV)
+	$(BIN)/pip install --quiet --upgrade pip
+	$(BIN)/pip install --quiet -e '.[test]'
+	touch $(STAMP)
+
+# WeasyPrint needs Pango; install it from the distribution when it is missing and we may.
+syslibs:
+	@if ! ldconfig -p 2>/dev/null | grep -q 'libpango-1.0.so.0'; then \
+	  if [ "$$(id -u)" = 0 ] && command -v apt-get >/dev/null; then \
+	    apt-get update -qq && apt-get install -y -qq libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core; \
+	  else echo "windsheet: WeasyPrint needs Pango (libpango-1.0-0); ask your administrator to install it" >&2; exit 1; fi; \
+	fi
+
+demo: $(STAMP)
+	$(BIN)/windsheet demo --out $(OUT)
+
+test: $(STAMP)
+	$(BIN)/python -m pytest
+
+bench: $(STAMP)
+	$(BIN)/python -m windsheet.bench
+
+clean:
+	rm -rf $(VENV) $(OUT) build *.egg-info
