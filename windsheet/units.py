@@ -20,6 +20,7 @@ DIMENSIONS = {
     "temperature": ("[temperature]", "degC", "25 degC"),
     "inductance_factor": ("[mass] * [length] ** 2 / [time] ** 2 / [current] ** 2", "H", "2.2 uH"),
     "mass": ("[mass]", "kg", "12 g"),
+    "angle": ("", "radian", "30 deg"),
 }
 
 
@@ -65,10 +66,12 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
         raise InputError(path, f"{expected}; could not convert {value!r}") from None
     if not math.isfinite(si):
         raise InputError(path, f"{expected}; {value!r} is not a finite number")
+    if dimension == "angle" and str(q.units) not in ("degree", "radian", "arcminute"):
+        raise InputError(path, f"{expected}; got {value!r}")
     if dimension != "temperature":
         if si < 0 and not allow_negative:
             raise InputError(path, f"must be positive, got {value!r}")
-        if si == 0 and not allow_zero:
+        if si == 0 and not allow_zero and dimension != "angle":
             raise InputError(path, f"must be greater than zero, got {value!r}")
     elif si < -273.15:
         raise InputError(path, f"is below absolute zero: {value!r}")

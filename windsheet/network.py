@@ -1,0 +1,263 @@
+"""Hookup network: how the strand ends are joined, and what the terminals see.
+
+Any hookup of up to four strands is a list of joins (groups of strand ends
+tied together) and two terminals.  The named hookups are shorthands for it.
+The network is solved by modified nodal analysis with the strands as coupled
+branches, ``V_start - V_finish = (R + jwL) i``, so parallel strands share
+current by impedance and any mix of series, parallel and reversed strands is
+handled the same way.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+STRAND_IDS = "ABCD"
+NAMED_HOOKUPS = ("single", "series-aiding", "series-opposing", "parallel", "separate")
+
+
+class HookupError(ValueError):
+    """A hookup that cannot be wired as written; ``where`` is the offending part."""
+
+    def __init__(self, where: str, message: str):
+        self.where = where
+        super().__init__(message)
+
+
+@dataclass(frozen=True)
+class NetworkResult:
+    """Terminal values of a hookup, and how current and voltage share out.
+
+    Attributes
+    ----------
+    inductance : float
+        Terminal inductance at the evaluation frequency. [H]
+    resistance : float
+        Terminal DC resistance (from the strand resistances given). [ohm]
+    strand_current : ndarray of complex
+        Current in each strand, start to finish, for 1 A into terminal 1. [A]
+    end_potential : ndarray of complex, shape (strands, 2)
+        Potential of each strand's start and finish for 1 V across the
+        terminals, terminal 2 at 0 V. [V]
+    """
+
+    hookup: str
+    joins: list
+    terminals: list
+    inductance: float
+    resistance: float
+    strand_current: np.ndarray
+    end_potential: np.ndarray
+
+
+def named_hookup(name: str, strands: int):
+    """Joins and terminals of a named hookup for ``strands`` strands.
+
+    ``series-aiding`` chains every strand finish-to-start; ``series-opposing``
+    (two strands) joins the finishes so the fields cancel; ``parallel`` ties
+    all starts and all finishes; ``separate`` leaves each strand its own winding.
+    """
+    ids = STRAND_IDS[:strands]
+    if name == "single":
+        if strands != 1:
+            raise HookupError("hookup", f"'single' is for one strand; this winding has {strands}")
+        return [], ["A.start", "A.finish"]
+    if strands < 2 and name != "separate":
+        raise HookupError("hookup", f"'{name}' needs at least two strands; winding.strands is 1")
+    if name == "series-aiding":
+        return [[f"{a}.finish", f"{b}.start"] for a, b in zip(ids, ids[1:])], [f"{ids[0]}.start", f"{ids[-1]}.finish"]
+    if name == "series-opposing":
+        if strands != 2:
+            raise HookupError("hookup", "'series-opposing' is for two strands; "
+                              "write other hookups as {joins: ..., terminals: ...}")
+        return [["A.finish", "B.finish"]], ["A.start", "B.start"]
+    if name == "parallel":
+        return [[f"{s}.start" for s in ids], [f"{s}.finish" for s in ids]], ["A.start", "A.finish"]
+    if name == "separate":
+        return [], ["A.start", "A.finish"]
+    raise HookupError("hookup", f"unknown hookup {name!r}; expected one of {', '.join(NAMED_HOOKUPS)} "
+                      "or {joins: [[A.finish, B.start]], terminals: [A.start, B.finish]}")
+
+
+def _end_index(end: str, strands: int, where: str) -> int:
+    """Map ``"B.finish"`` to node slot 2*1+1."""
+    if not isinstance(end, str) or "." not in end:
+        raise HookupError(where, f"expected a strand end like 'A.start' or 'B.finish', got {end!r}")
+    sid, _, which = end.partition(".")
+    sid = sid.strip().upper()
+    which = which.strip().lower()
+    if sid not in STRAND_IDS[:strands] or len(sid) != 1:
+        raise HookupError(where, f"strand {sid!r} does not exist; this winding has strands "
+                          f"{', '.join(STRAND_IDS[:strands])}")
+    if which not in ("start", "finish"):
+        raise HookupError(where, f"a strand end is 'start' or 'finish', got {which!r}")
+    return 2 * STRAND_IDS.index(sid) + (which == "finish")
+
+
+def _nodes(joins, terminals, strands):
+    """Union the joined ends into nodes; return node of each end and the terminal nodes."""
+    parent = list(range(2 * strands))
+
+    def find(x):
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    for g, group in enumerate(joins):
+        if not isinstance(group, (list, tuple)) or len(group) < 2:
+            raise HookupError(f"hookup.joins[{g}]", "a join lists two or more strand ends, like [A.finish, B.start]")
+        idx = [_end_index(e, strands, f"hookup.joins[{g}][{k}]") for k, e in enumerate(group)]
+        for k in idx[1:]:
+            parent[find(k)] = find(idx[0])
+    if not isinstance(terminals, (list, tuple)) or len(terminals) != 2:
+        raise HookupError("hookup.terminals", "expected exactly two strand ends, like [A.start, B.finish]")
+    t = [_end_index(e, strands, f"hookup.terminals[{k}]") for k, e in enumerate(terminals)]
+    roots = sorted({find(i) for i in range(2 * strands)})
+    node_of = np.array([roots.index(find(i)) for i in range(2 * strands)])
+    return node_of, node_of[t[0]], node_of[t[1]], len(roots)
+
+
+def check_hookup(joins, terminals, strands):
+    """Refuse hookups that cannot work: shorted terminals or strands, floating strands."""
+    node_of, t1, t2, n = _nodes(joins, terminals, strands)
+    if t1 == t2:
+        raise HookupError("hookup.terminals", "the two terminals are joined to each other: a short circuit")
+    for s in range(strands):
+        if node_of[2 * s] == node_of[2 * s + 1]:
+            raise HookupError("hookup.joins", f"strand {STRAND_IDS[s]}'s start and finish are joined: "
+                              "the strand is shorted out")
+    degree = np.bincount(node_of, minlength=n)
+    for s in range(strands):
+        for end, name in ((2 * s, "start"), (2 * s + 1, "finish")):
+            nd = node_of[end]
+            if degree[nd] < 2 and nd not in (t1, t2):
+                raise HookupError("hookup", f"strand {STRAND_IDS[s]} {name} is left unconnected: "
+                                  "the strand would float; join it or name it a terminal")
+    # Every strand must lie in the terminals' connected piece.
+    adj = {i: set() for i in range(n)}
+    for s in range(strands):
+        a, b = node_of[2 * s], node_of[2 * s + 1]
+        adj[a].add(b); adj[b].add(a)
+    seen, stack = {t1}, [t1]
+    while stack:
+        for m in adj[stack.pop()] - seen:
+            seen.add(m); stack.append(m)
+    if t2 not in seen:
+        raise HookupError("hookup", "no path joins the two terminals through the strands")
+    for s in range(strands):
+        if node_of[2 * s] not in seen:
+            raise HookupError("hookup", f"strand {STRAND_IDS[s]} is not connected to the terminals")
+    return node_of, t1, t2, n
+
+
+def _solve(L, R, node_of, t1, t2, n, omega):
+    """MNA: node potentials (t2 grounded) and branch currents for 1 A into t1."""
+    S = len(R)
+    Z = np.diag(R).astype(complex) + 1j * omega * np.asarray(L, dtype=float)
+    keep = [k for k in range(n) if k != t2]
+    col = {k: i for i, k in enumerate(keep)}
+    nv = len(keep)
+    A = np.zeros((nv + S, nv + S), dtype=complex)
+    b = np.zeros(nv + S, dtype=complex)
+    for s in range(S):
+        a_node, f_node = node_of[2 * s], node_of[2 * s + 1]
+        # Branch equation: V_a - V_f - Z i = 0
+        row = nv + s
+        if a_node in col:
+            A[row, col[a_node]] += 1
+            A[col[a_node], nv + s] += 1   # KCL: current leaves a_node
+        if f_node in col:
+            A[row, col[f_node]] -= 1
+            A[col[f_node], nv + s] -= 1   # and enters f_node
+        A[row, nv:] -= Z[s]
+    b[col[t1]] = 1.0
+    x = np.linalg.solve(A, b)
+    v = np.zeros(n, dtype=complex)
+    for k, i in col.items():
+        v[k] = x[i]
+    return v, x[nv:]
+
+
+def solve_network(L, R, joins, terminals, frequency, hookup="custom") -> NetworkResult:
+    """Terminal inductance and resistance of a strand hookup.
+
+    Parameters
+    ----------
+    L : ndarray, shape (S, S)
+        Strand inductance matrix. [H]
+    R : ndarray, shape (S,)
+        Strand resistances. [ohm]
+    joins : list of list of str
+        Groups of strand ends tied together, e.g. ``[["A.finish", "B.start"]]``.
+    terminals : list of str
+        The two terminal ends, e.g. ``["A.start", "B.finish"]``.
+    frequency : float
+        Frequency at which the terminal inductance and the current sharing
+        are evaluated; 0 for DC. [Hz]
+
+    Returns
+    -------
+    NetworkResult
+
+    References
+    ----------
+    .. [1] C.-W. Ho, A. E. Ruehli, P. A. Brennan, "The modified nodal approach
+       to network analysis", IEEE Trans. Circuits Syst. 22(6), 504-509, 1975.
+    """
+    R = np.asarray(R, dtype=float)
+    S = len(R)
+    node_of, t1, t2, n = check_hookup(joins, terminals, S)
+    v_dc, _ = _solve(L, R, node_of, t1, t2, n, 0.0)
+    # The inductance an LCR meter reads needs a nonzero frequency; 1 kHz if DC.
+    f_eval = frequency if frequency > 0 else 1e3
+    omega = 2 * np.pi * f_eval
+    v_ac, i_ac = _solve(L, R, node_of, t1, t2, n, omega)
+    z = v_ac[t1]
+    v_duty, i_duty = (v_ac, i_ac) if frequency > 0 else _solve(L, R, node_of, t1, t2, n, 0.0)
+    z_duty = v_duty[t1]
+    ends = np.array([[v_duty[node_of[2 * s]], v_duty[node_of[2 * s + 1]]] for s in range(S)]) / z_duty
+    return NetworkResult(hookup=hookup, joins=[list(j) for j in joins], terminals=list(terminals),
+                         inductance=float(z.imag / omega), resistance=float(v_dc[t1].real),
+                         strand_current=i_duty, end_potential=ends)
+
+
+def separate_windings(L, R) -> NetworkResult:
+    """Each strand its own winding: report strand A at the terminals; every strand
+    is driven start 0 V to finish 1 V (they are assumed in phase)."""
+    S = len(R)
+    ends = np.tile(np.array([0.0, 1.0], dtype=complex), (S, 1))
+    cur = np.zeros(S, dtype=complex); cur[0] = 1.0
+    return NetworkResult(hookup="separate", joins=[], terminals=["A.start", "A.finish"],
+                         inductance=float(np.asarray(L)[0, 0]), resistance=float(R[0]),
+                         strand_current=cur, end_potential=ends)
+
+
+def alternative_hookups(L, R, frequency):
+    """What the terminals would read if the strands were wired the other common ways.
+
+    Used by sign-off to recognise wiring mistakes.  For more than two strands,
+    "one strand reversed" chains all strands with the last one reversed.
+    """
+    S = len(R)
+    if S < 2:
+        return {}
+    ids = STRAND_IDS[:S]
+    out = {}
+    variants = {
+        "series-aiding": named_hookup("series-aiding", S),
+        "parallel": named_hookup("parallel", S),
+    }
+    if S == 2:
+        variants["series-opposing"] = named_hookup("series-opposing", 2)
+    else:
+        joins = [[f"{a}.finish", f"{b}.start"] for a, b in zip(ids[:-2], ids[1:-1])]
+        joins.append([f"{ids[-2]}.finish", f"{ids[-1]}.finish"])
+        variants["one strand reversed"] = (joins, [f"{ids[0]}.start", f"{ids[-1]}.start"])
+    for name, (joins, terms) in variants.items():
+        res = solve_network(L, R, joins, terms, frequency, hookup=name)
+        out[name] = {"inductance_H": res.inductance, "resistance_ohm": res.resistance}
+    out["single strand"] = {"inductance_H": float(np.asarray(L)[0, 0]), "resistance_ohm": float(R[0])}
+    return out

@@ -1,0 +1,365 @@
+"""The order: one YAML file per job, parsed once into SI values.
+
+This is the only place units are read.  Every fault raises
+:class:`~windsheet.errors.InputError` naming the YAML path of the field and
+what was expected.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import hashlib
+import math
+import os
+import re
+from pathlib import Path
+from typing import Annotated, Any, Literal, Optional, Union
+
+import yaml
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
+
+from .errors import InputError, join_path
+from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup
+from .units import parse_percent, parse_quantity
+
+#: Orders are small; anything larger is not an order. [bytes]
+MAX_ORDER_BYTES = 256 * 1024
+MAX_DEPTH = 24
+
+
+# ---------------------------------------------------------------- YAML, safely
+class _GuardedLoader(yaml.SafeLoader):
+    """Safe loading that also refuses aliases and deep nesting.
+
+    Aliases are the vehicle of "billion laughs" documents and an order never
+    needs them; depth is bounded so no document can exhaust the stack.
+    """
+
+    def __init__(self, stream):
+        super().__init__(stream)
+        self._depth = 0
+
+    def compose_node(self, parent, index):
+        if self.check_event(yaml.AliasEvent):
+            mark = self.peek_event().start_mark
+            raise InputError(f"line {mark.line + 1}", "YAML aliases (*name) are not accepted; write the value out")
+        self._depth += 1
+        if self._depth > MAX_DEPTH:
+            mark = self.peek_event().start_mark
+            raise InputError(f"line {mark.line + 1}", f"document nested deeper than {MAX_DEPTH} levels")
+        try:
+            return super().compose_node(parent, index)
+        finally:
+            self._depth -= 1
+
+
+def read_yaml_bytes(data: bytes, what: str = "order", max_bytes: int = MAX_ORDER_BYTES):
+    """Parse YAML bytes into plain Python data, refusing anything hostile."""
+    if len(data) > max_bytes:
+        raise InputError("", f"{what} file is {len(data)} bytes; the limit is {max_bytes} bytes")
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError:
+        raise InputError("", f"{what} file is not UTF-8 text") from None
+    if "\x00" in text:
+        raise InputError("", f"{what} file holds binary data, not YAML text")
+    try:
+        doc = yaml.load(text, Loader=_GuardedLoader)  # noqa: S506 - a SafeLoader subclass
+    except InputError:
+        raise
+    except yaml.YAMLError as exc:
+        mark = getattr(exc, "problem_mark", None)
+        where = f"line {mark.line + 1}" if mark else ""
+        problem = getattr(exc, "problem", None) or str(exc).splitlines()[0]
+        raise InputError(where, f"not valid YAML: {problem}") from None
+    except RecursionError:
+        raise InputError("", f"{what} file is nested too deeply") from None
+    if not isinstance(doc, dict):
+        raise InputError("", f"expected the {what} to be a YAML mapping of sections, got {type(doc).__name__}")
+    return doc
+
+
+def read_file(path) -> bytes:
+    p = Path(path)
+    try:
+        if p.stat().st_size > MAX_ORDER_BYTES * 4:
+            raise InputError(str(path), f"file is larger than {MAX_ORDER_BYTES * 4} bytes")
+        return p.read_bytes()
+    except FileNotFoundError:
+        raise InputError(str(path), "file not found") from None
+    except IsADirectoryError:
+        raise InputError(str(path), "is a folder, expected a YAML file") from None
+    except PermissionError:
+        raise InputError(str(path), "cannot be read (permission denied)") from None
+    except OSError as exc:
+        raise InputError(str(path), f"cannot be read: {exc.strerror}") from None
+
+
+# ---------------------------------------------------------------- field types
+def _q(dimension, **kw):
+    def conv(v):
+        try:
+            return parse_quantity(v, dimension, "", **kw)
+        except InputError as e:
+            raise ValueError(e.message) from None
+    return BeforeValidator(conv)
+
+
+def _pct(v):
+    try:
+        return parse_percent(v, "")
+    except InputError as e:
+        raise ValueError(e.message) from None
+
+
+Length = Annotated[float, _q("length")]
+Length0 = Annotated[float, _q("length", allow_zero=True)]
+Inductance = Annotated[float, _q("inductance")]
+Voltage = Annotated[float, _q("voltage")]
+Voltage0 = Annotated[float, _q("voltage", allow_zero=True)]
+Current = Annotated[float, _q("current", allow_zero=True)]
+Frequency0 = Annotated[float, _q("frequency", allow_zero=True)]
+Frequency = Annotated[float, _q("frequency")]
+Temperature = Annotated[float, _q("temperature")]
+Angle = Annotated[float, _q("angle")]
+Fraction = Annotated[float, BeforeValidator(_pct)]
+Text = Annotated[str, Field(max_length=200)]
+
+
+def _alnum(v):
+    if not isinstance(v, (str, int)) or isinstance(v, bool):
+        raise ValueError("expected text")
+    v = str(v).strip()
+    if not v or not re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9._/-]{0,39}", v):
+        raise ValueError("expected letters, digits and . _ / - only (up to 40), like 'HL-0412'")
+    return v
+
+
+Ident = Annotated[str, BeforeValidator(_alnum)]
+
+
+class _M(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+
+
+class Job(_M):
+    number: Ident
+    part: Text
+    customer: Text = ""
+    quantity: Annotated[int, Field(ge=1, le=1000)] = 1
+    revision: Ident = "A"
+    issued_by: Text = ""
+    issue_date: Optional[_dt.date] = None
+    units: Optional[list[Ident]] = None
+    notes: Annotated[str, Field(max_length=2000)] = ""
+
+
+class CylinderForm(_M):
+    kind: Literal["cylinder"]
+    diameter: Length
+    traverse: Length
+    max_build: Optional[Length] = None
+    material: Text = "non-magnetic former"
+
+
+class ToroidForm(_M):
+    kind: Literal["toroid"]
+    inner_diameter: Length
+    outer_diameter: Length
+    height: Length
+    al: Optional[Inductance] = None
+    permeability: Optional[Annotated[float, Field(gt=0, le=1e6, allow_inf_nan=False)]] = None
+    gap: Angle = math.radians(30.0)
+    material: Text = "toroidal core"
+
+
+class BobbinForm(_M):
+    kind: Literal["bobbin"]
+    al: Inductance
+    width: Length
+    height: Length
+    diameter: Optional[Length] = None
+    mean_turn_length: Optional[Length] = None
+    material: Text = "bobbin on core"
+
+
+Form = Annotated[Union[CylinderForm, ToroidForm, BobbinForm], Field(discriminator="kind")]
+
+
+class WireSpec(_M):
+    size: Annotated[str, Field(max_length=40)]
+    grade: Literal[1, 2, 3] = 2
+    thermal_class: Literal[105, 120, 130, 155, 180, 200, 220, 240] = 155
+    overall_diameter: Optional[Length] = None
+    breakdown: Optional[Voltage] = None
+    catalog: Optional[Annotated[str, Field(max_length=400)]] = None
+    permittivity: Annotated[float, Field(ge=1.0, le=20.0, allow_inf_nan=False)] = 3.5
+
+
+class LayerTape(_M):
+    thickness: Length
+    rating: Optional[Voltage] = None
+    material: Text = "polyester tape"
+
+
+class Winding(_M):
+    strands: Annotated[int, Field(ge=1, le=4)] = 1
+    turns: Optional[Annotated[int, Field(ge=1, le=100_000)]] = None
+    target_inductance: Optional[Inductance] = None
+    layers: Union[Annotated[int, Field(ge=1, le=200)], Literal["auto"]] = "auto"
+    pitch: Optional[Length] = None
+    layer_tape: Optional[Union[Length, LayerTape]] = None
+    lead_length: Length0 = 0.15
+    scrap_allowance: Fraction = 0.10
+    identification: Optional[dict[Literal["A", "B", "C", "D"], Text]] = None
+    coupling: Annotated[float, Field(ge=0.0, le=1.0, allow_inf_nan=False)] = 1.0
+
+
+class Duty(_M):
+    voltage: Voltage0
+    frequency: Frequency0 = 0.0
+    current: Current = 0.0
+    ambient: Temperature = 25.0
+    operating_temperature: Optional[Temperature] = None
+
+
+class Tolerances(_M):
+    inductance: Fraction = 0.10
+    resistance: Fraction = 0.05
+
+
+class Insulation(_M):
+    derating: Fraction = 0.25
+    pdiv: Voltage = 500.0
+    hot_pdiv_derating: Fraction = 0.25
+
+
+class Test(_M):
+    frequency: Frequency = 1e3
+
+
+class OrderDoc(_M):
+    job: Job
+    form: Form
+    wire: WireSpec
+    winding: Winding
+    hookup: Any
+    duty: Duty
+    tolerances: Tolerances = Tolerances()
+    insulation: Insulation = Insulation()
+    test: Test = Test()
+
+
+# ---------------------------------------------------------------- the order
+class Order:
+    """A validated order: the parsed document plus derived, checked pieces."""
+
+    def __init__(self, doc: OrderDoc, source: bytes, path: str | None):
+        self.doc = doc
+        self.source = source
+        self.path = path
+        self.sha256 = hashlib.sha256(source).hexdigest()
+        self.hookup_name, self.joins, self.terminals = _hookup(doc.hookup, doc.winding.strands)
+        w = doc.winding
+        if (w.turns is None) == (w.target_inductance is None):
+            raise InputError("winding", "give either turns (per strand) or target_inductance, not both or neither")
+        if isinstance(w.layer_tape, LayerTape):
+            self.tape, self.tape_rating, self.tape_material = (w.layer_tape.thickness, w.layer_tape.rating,
+                                                               w.layer_tape.material)
+        else:
+            self.tape, self.tape_rating, self.tape_material = (w.layer_tape or 0.0), None, "polyester tape"
+        f = doc.form
+        if isinstance(f, ToroidForm):
+            if f.outer_diameter <= f.inner_diameter:
+                raise InputError("form.outer_diameter", "must be larger than form.inner_diameter")
+            if (f.al is None) == (f.permeability is None):
+                raise InputError("form", "a toroid needs either al (like '2.2 uH', per turn squared) or permeability")
+            if not 0 <= math.degrees(f.gap) < 180:
+                raise InputError("form.gap", "expected an angle between 0 deg and 180 deg, like '30 deg'")
+        if isinstance(f, BobbinForm) and (f.diameter is None) == (f.mean_turn_length is None):
+            raise InputError("form", "a bobbin needs either diameter or mean_turn_length")
+        job = doc.job
+        if job.units is not None and len(job.units) != job.quantity:
+            raise InputError("job.units", f"lists {len(job.units)} serial numbers for a quantity of {job.quantity}")
+        if job.units is not None and len(set(job.units)) != len(job.units):
+            raise InputError("job.units", "serial numbers must be unique")
+
+    @property
+    def units(self) -> list[str]:
+        j = self.doc.job
+        return list(j.units) if j.units else [f"{j.number}-{k:02d}" for k in range(1, j.quantity + 1)]
+
+    @property
+    def strand_ids(self) -> list[str]:
+        return list(STRAND_IDS[: self.doc.winding.strands])
+
+
+def _hookup(raw, strands):
+    try:
+        if isinstance(raw, str):
+            name = raw.strip().lower()
+            if name not in NAMED_HOOKUPS:
+                raise HookupError("hookup", f"unknown hookup {raw!r}; expected one of {', '.join(NAMED_HOOKUPS)} "
+                                  "or a mapping {joins: [[A.finish, B.start]], terminals: [A.start, B.finish]}")
+            joins, terms = named_hookup(name, strands)
+            if name != "separate":
+                check_hookup(joins, terms, strands)
+            return name, joins, terms
+        if isinstance(raw, dict):
+            extra = set(raw) - {"joins", "terminals"}
+            if extra:
+                raise HookupError(f"hookup.{sorted(map(str, extra))[0]}", "unknown field; a hookup has joins and terminals")
+            if "terminals" not in raw:
+                raise HookupError("hookup.terminals", "is required: the two strand ends brought out, like [A.start, B.finish]")
+            joins = raw.get("joins") or []
+            if not isinstance(joins, list):
+                raise HookupError("hookup.joins", "expected a list of joins, like [[A.finish, B.start]]")
+            terms = raw["terminals"]
+            check_hookup(joins, terms, strands)
+            norm = lambda e: f"{e.split('.')[0].strip().upper()}.{e.split('.')[1].strip().lower()}"  # noqa: E731
+            return "custom", [[norm(e) for e in j] for j in joins], [norm(e) for e in terms]
+        raise HookupError("hookup", f"expected one of {', '.join(NAMED_HOOKUPS)} or a mapping with joins and terminals")
+    except HookupError as exc:
+        raise InputError(exc.where, str(exc)) from None
+
+
+_FRIENDLY = {
+    "missing": "is required",
+    "extra_forbidden": "is not a known field",
+}
+
+
+def _validation_to_input_error(exc: ValidationError) -> InputError:
+    err = exc.errors()[0]
+    loc = [p for p in err["loc"] if p not in ("cylinder", "toroid", "bobbin")
+           and not (isinstance(p, str) and p.startswith(("function-", "int", "literal", "LayerTape", "constrained")))]
+    loc = [p for p in loc if p not in ("float", "str", "bool")]
+    path = join_path(*loc)
+    kind = err["type"]
+    msg = _FRIENDLY.get(kind) or err["msg"]
+    if msg.startswith("Value error, "):
+        msg = msg[len("Value error, "):]
+    if kind == "union_tag_invalid" or kind == "union_tag_not_found":
+        msg = "expected kind: cylinder, toroid or bobbin"
+        path = path or "form"
+        if not path.endswith("kind"):
+            path = f"{path}.kind"
+    if kind == "extra_forbidden":
+        msg = "is not a known field (check the spelling)"
+    return InputError(path, msg)
+
+
+def parse_order(data: bytes, path: str | None = None) -> Order:
+    """Validate an order from the bytes of its YAML file."""
+    raw = read_yaml_bytes(data, "order")
+    raw = {str(k): v for k, v in raw.items()}
+    try:
+        doc = OrderDoc.model_validate(raw)
+    except ValidationError as exc:
+        raise _validation_to_input_error(exc) from None
+    return Order(doc, data, path)
+
+
+def load_order(path) -> Order:
+    """Read and validate the order at ``path``."""
+    return parse_order(read_file(path), os.fspath(path))
