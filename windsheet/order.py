@@ -363,3 +363,63 @@ def parse_order(data: bytes, path: str | None = None) -> Order:
 def load_order(path) -> Order:
     """Read and validate the order at ``path``."""
     return parse_order(read_file(path), os.fspath(path))
+
+
+# ---------------------------------------------------------------- the wire
+_AWG = re.compile(r"^\s*(\d{1,2}|0{1,4}|[1-4]/0)\s*AWG\s*$", re.IGNORECASE)
+
+
+def _awg_number(text: str) -> int:
+    if "/" in text:
+        return 1 - int(text.split("/")[0])
+    if set(text) == {"0"} and len(text) > 1:
+        return 1 - len(text)
+    return int(text)
+
+
+def resolve_wire(order: Order):
+    """The order's wire as a :class:`windsheet.wire.Wire` (SI), from AWG,
+    a metric nominal diameter, or a shop catalog, with datasheet overrides."""
+    from . import wire as wires
+
+    spec = order.doc.wire
+    size = spec.size.strip()
+    if spec.catalog:
+        base = Path(order.path).parent if order.path else Path.cwd()
+        cat_path = (base / spec.catalog) if not os.path.isabs(spec.catalog) else Path(spec.catalog)
+        try:
+            catalog = wires.load_catalog(cat_path)
+        except FileNotFoundError:
+            raise InputError("wire.catalog", f"catalog file {spec.catalog!r} not found") from None
+        except (OSError, UnicodeDecodeError):
+            raise InputError("wire.catalog", f"catalog file {spec.catalog!r} cannot be read as CSV text") from None
+        except ValueError as exc:
+            raise InputError("wire.catalog", f"{spec.catalog}: {exc}") from None
+        if size not in catalog:
+            raise InputError("wire.size", f"{size!r} is not in catalog {spec.catalog!r}")
+        w = catalog[size]
+        if not (0 < w.copper_diameter < w.overall_diameter < 0.01 and w.breakdown > 0):
+            raise InputError("wire.catalog", f"row {size!r} needs 0 < copper < overall diameter < 10 mm and breakdown > 0")
+        return w
+    m = _AWG.match(size)
+    if m:
+        gauge = _awg_number(m.group(1))
+        if not -3 <= gauge <= 46:
+            raise InputError("wire.size", f"AWG sizes run from 4/0 to 46; got {size!r}")
+        nominal = wires.awg_diameter(gauge)
+        label = f"{m.group(1)} AWG ({nominal * 1e3:.4f} mm) {wires.GRADE_NAMES[spec.grade]}"
+        standard = "ASTM B258 size; enamel build per IEC 60317-0-1 grade (NEMA MW 1000 builds are close, not identical)"
+    else:
+        try:
+            nominal = parse_quantity(size, "length", "wire.size")
+        except InputError:
+            raise InputError("wire.size", f"expected a nominal copper diameter like '0.50 mm' or a gauge like "
+                             f"'22 AWG'{' or a catalog name' if spec.catalog else ''}; got {size!r}") from None
+        label = f"{nominal * 1e3:.3f} mm {wires.GRADE_NAMES[spec.grade]}"
+        standard = "IEC 60317-0-1"
+    if not 0.02e-3 <= nominal <= 6e-3:
+        raise InputError("wire.size", f"magnet wire runs from 0.02 mm to 6 mm copper diameter; got {size!r}")
+    if spec.overall_diameter is not None and spec.overall_diameter <= nominal:
+        raise InputError("wire.overall_diameter", f"must exceed the copper diameter {nominal * 1e3:.3f} mm")
+    return wires.standard_wire(nominal, spec.grade, thermal_class=spec.thermal_class, label=label,
+                               standard=standard, overall_d=spec.overall_diameter, breakdown=spec.breakdown)

@@ -1,0 +1,130 @@
+"""Command line: ``windsheet size | traveller | signoff | register | demo``.
+
+Results go to stdout, diagnostics to stderr.  A fault in the user's input is
+one line on stderr and exit status 2; nothing is written.
+"""
+
+from __future__ import annotations
+
+import functools
+import json
+import sys
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from .errors import InputError
+
+app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False)
+
+
+@app.callback()
+def _root():
+    """Job sheets for coil winding: size an order, print its traveller, sign off the units."""
+
+
+def guarded(fn):
+    """Turn an InputError into one line on stderr and exit status 2."""
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        try:
+            return fn(*args, **kwargs)
+        except InputError as exc:
+            typer.echo(f"windsheet: {exc}", err=True)
+            raise typer.Exit(2) from None
+    return wrapper
+
+
+# ---------------------------------------------------------------- formatting
+_PREFIX = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p")]
+
+
+def eng(value, unit: str, digits: int = 4) -> str:
+    """A number with an SI prefix: ``eng(6.12e-5, 'H') == '61.20 µH'``."""
+    if value is None:
+        return "—"
+    if value == 0:
+        return f"0 {unit}"
+    if value != value or value in (float("inf"), float("-inf")):
+        return f"{value} {unit}"
+    mag = abs(value)
+    for scale, prefix in _PREFIX:
+        if mag >= scale * 0.99995:
+            break
+    x = value / scale
+    decimals = max(0, digits - 1 - (len(str(int(abs(x)))) - 1))
+    return f"{x:.{decimals}f} {prefix}{unit}"
+
+
+def summary_lines(p: dict) -> list[str]:
+    """The readable, aligned summary of a prediction."""
+    rows = []
+
+    def row(label, value):
+        rows.append((label, value))
+
+    j = p["job"]
+    row("Job", f"{j['number']} rev {j['revision']} — {j['part']} (qty {j['quantity']})")
+    row("Wire", p["wire"]["label"] + f", overall {eng(p['wire']['overall_diameter_m'], 'm')}")
+    w = p["winding"]
+    row("Winding", f"{w['strands']} strand(s) × {w['turns_per_strand']} turns, {w['layers']} layer(s) "
+        f"{w['turns_in_layer']}, pitch {eng(w['pitch_m'], 'm')}")
+    if w.get("target"):
+        t = w["target"]
+        row("Target", f"{eng(t['inductance_H'], 'H')} → {t['turns_exact']:.2f} turns exact, "
+            f"{t['turns_chosen']} chosen give {eng(t['inductance_at_chosen_H'], 'H')} ({t['error'] * 100:+.2f} %)")
+    fit = p["fit"]
+    row("Fit", f"{fit['slots_per_layer']} slots per layer, traverse used {eng(fit['traverse_used_m'], 'm')}"
+        + (f" of {eng(fit['traverse_m'], 'm')}" if fit.get("traverse_m") else "")
+        + f", build {eng(fit['build_m'], 'm')}")
+    row("Hookup", f"{p['hookup']['name']}: joins {p['hookup']['joins'] or 'none'}, terminals {p['hookup']['terminals']}")
+    for s in p["strands"]:
+        row(f"Strand {s['id']}", f"{eng(s['inductance_H'], 'H')}, {eng(s['resistance_20C_ohm'], 'Ω')} at 20 °C, "
+            f"{s['wire_length_m']:.2f} m ({s['wire_length_with_scrap_m']:.2f} m with scrap), "
+            f"{s['mass_kg'] * 1e3:.1f} g")
+    t = p["terminal"]
+    row("Terminals", f"L {eng(t['inductance_H'], 'H')} (accept {eng(t['accept']['inductance_min_H'], 'H')} … "
+        f"{eng(t['accept']['inductance_max_H'], 'H')}), R {eng(t['resistance_ohm'], 'Ω')} at 20 °C, "
+        f"{eng(t['resistance_hot_ohm'], 'Ω')} at {p['duty']['operating_temperature_C']:.0f} °C")
+    row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
+    if p.get("current_sheet_inductance_H"):
+        row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "
+            f"correction {eng(p['current_sheet_rosa_corrected_H'], 'H')} (strand A)")
+    wa = p["worst_adjacent"]
+    row("Worst adjacent", f"{eng(wa['voltage_Vpk'], 'V')} peak — {wa['where']}")
+    ins = p["insulation"]
+    row("Insulation", f"{ins['verdict'].upper()}" + "".join(f"\n{'':16}  {r}" for r in ins["reasons"]))
+    row("Hipot", f"{eng(p['hipot']['voltage_V'], 'V')} for {p['hipot']['duration_s']:.0f} s — {p['hipot']['basis']}")
+    for wtext in p["warnings"]:
+        row("Note", wtext)
+    width = max(len(k) for k, _ in rows)
+    return [f"{k:<{width}}  {v}" for k, v in rows]
+
+
+def _to_json(obj) -> str:
+    return json.dumps(obj, indent=2, ensure_ascii=False, allow_nan=False, default=str)
+
+
+# ---------------------------------------------------------------- commands
+@app.command()
+@guarded
+def size(order: Path = typer.Argument(..., help="The order, a YAML file."),
+         as_json: bool = typer.Option(False, "--json", help="Print the whole prediction as JSON (SI units).")):
+    """Size a coil order: turns, layers, fit, wire, resistance, inductance, stress."""
+    from .order import load_order
+    from .predict import predict
+
+    p = predict(load_order(order))
+    if as_json:
+        typer.echo(_to_json(p))
+    else:
+        typer.echo("\n".join(summary_lines(p)))
+
+
+def main():  # console-script entry point
+    app()
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,273 @@
+"""From a validated order to the one Prediction every consumer reads.
+
+This module only composes the physics modules; it holds no model of its
+own.  The result is a plain JSON-ready dict in SI units (see README, "The
+prediction").  Rendering and sign-off read it and never recompute physics.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+
+import numpy as np
+
+from . import inductance as ind
+from . import layout as lay
+from . import stress
+from .errors import InputError
+from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
+from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
+from .wire import copper_mass, dc_resistance
+
+HOOKUP_TEXT = {
+    "single": "one strand between the two terminals",
+    "series-aiding": "strands in series, each finish joined to the next start: fields add",
+    "series-opposing": "two strands in series with both finishes joined (hairpin): fields cancel, "
+                       "non-inductive",
+    "parallel": "strands in parallel: all starts joined, all finishes joined",
+    "separate": "each strand a winding of its own, brought out on its own leads",
+    "custom": "joins and terminals as listed in the order",
+}
+
+
+def _layout(order: Order, wire, turns: int):
+    f, w = order.doc.form, order.doc.winding
+    layers = None if w.layers == "auto" else w.layers
+    args = dict(copper_diameter=wire.copper_diameter, overall_diameter=wire.overall_diameter,
+                strands=w.strands, turns=turns, layers=layers, pitch=w.pitch, tape=order.tape)
+    try:
+        if isinstance(f, CylinderForm):
+            if wire.overall_diameter * 2 > f.diameter and f.diameter < 1e-3:
+                raise lay.WindingDoesNotFit("the wire is thicker than the form")
+            return lay.cylinder_layout(f.diameter, f.traverse, max_build=f.max_build, **args)
+        if isinstance(f, ToroidForm):
+            return lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height,
+                                     gap_deg=math.degrees(f.gap), **args)
+        return lay.bobbin_layout(f.width, f.height, diameter=f.diameter,
+                                 mean_turn_length=f.mean_turn_length, **args)
+    except lay.WindingDoesNotFit as exc:
+        raise InputError("winding.turns" if order.doc.winding.turns else "winding.target_inductance",
+                         f"does not fit: {exc}") from None
+
+
+def _al(order: Order):
+    f = order.doc.form
+    if isinstance(f, ToroidForm):
+        if f.al is not None:
+            return f.al
+        return float(ind.toroid_al(f.permeability, f.inner_diameter, f.outer_diameter, f.height))
+    if isinstance(f, BobbinForm):
+        return f.al
+    return None
+
+
+def _strand_lengths(order: Order, layout):
+    """Wire per strand: its turns plus two leads. [m]"""
+    return layout.strand_length() + 2 * order.doc.winding.lead_length
+
+
+def _inductance_matrix(order: Order, wire, layout):
+    al = _al(order)
+    if al is None:
+        return ind.strand_matrix(layout)
+    S = layout.strands
+    L = ind.cored_strand_matrix([layout.turns_per_strand] * S, al, order.doc.winding.coupling)
+    if S > 1:
+        # Leakage between side-by-side strands on a core: the two-wire line
+        # inductance along the strand, split between the pair (common practice).
+        lp = float(ind.two_wire_inductance_per_length(wire.overall_diameter, wire.copper_diameter))
+        L = L + np.eye(S) * lp * layout.strand_length() / 2
+    return L
+
+
+def _network(order: Order, L, R, frequency):
+    if order.hookup_name == "separate":
+        return separate_windings(L, R)
+    return solve_network(L, R, order.joins, order.terminals, frequency, hookup=order.hookup_name)
+
+
+def _terminal_inductance(order, wire, turns):
+    layout = _layout(order, wire, turns)
+    L = _inductance_matrix(order, wire, layout)
+    R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter)
+    return _network(order, L, R, order.doc.test.frequency).inductance
+
+
+def solve_turns(order: Order, wire):
+    """Turns per strand for the order's target inductance.
+
+    Terminal inductance grows close to N², so Newton steps on sqrt(L) converge
+    in a few evaluations of the full engine; the nearest whole number wins.
+    """
+    target = order.doc.winding.target_inductance
+    n = 10
+    for _ in range(12):
+        got = _terminal_inductance(order, wire, n)
+        if got <= 0:
+            raise InputError("hookup", "this hookup has no net inductance; a target inductance cannot be met")
+        nxt = max(1, int(round(n * math.sqrt(target / got))))
+        if nxt == n:
+            break
+        n = nxt
+    candidates = {}
+    for k in {max(1, n - 1), n, n + 1}:
+        try:
+            candidates[k] = _terminal_inductance(order, wire, k)
+        except InputError:
+            continue
+    if not candidates:
+        _layout(order, wire, n)  # raises the does-not-fit message
+    best = min(candidates, key=lambda k: abs(math.log(candidates[k] / target)))
+    exact = best * math.sqrt(target / candidates[best])
+    return best, {"inductance_H": target, "turns_exact": exact, "turns_chosen": best,
+                  "inductance_at_chosen_H": candidates[best],
+                  "error": candidates[best] / target - 1, "fits": True}
+
+
+def _cross_section(layout, keep=6):
+    """Slots of each layer for the sketch: the first and last few."""
+    out = []
+    for lay_i in range(layout.layers):
+        sel = np.flatnonzero(layout.layer == lay_i)
+        slots = sorted(set(layout.slot[sel].tolist()))
+        shown = slots if len(slots) <= 2 * keep else slots[:keep] + slots[-keep:]
+        rows = []
+        for k in shown:
+            for t in sel[layout.slot[sel] == k]:
+                rows.append({"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]})
+        out.append({"layer": lay_i + 1, "turns": len(slots), "slots": rows,
+                    "elided": len(slots) > 2 * keep})
+    return {"layers": out, "tape_between_layers": layout.tape > 0 and layout.layers > 1,
+            "kind": layout.kind}
+
+
+def predict(order: Order, today: _dt.date | None = None) -> dict:
+    """Size an order: the complete Prediction, JSON-ready, SI units."""
+    doc = order.doc
+    wire = resolve_wire(order)
+    warnings = list(wire.warnings)
+    target = None
+    if doc.winding.target_inductance is not None:
+        turns, target = solve_turns(order, wire)
+    else:
+        turns = doc.winding.turns
+    layout = _layout(order, wire, turns)
+    warnings.extend(layout.notes)
+    S = layout.strands
+    L = _inductance_matrix(order, wire, layout)
+    length = _strand_lengths(order, layout)
+    duty = doc.duty
+    t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
+    R20 = dc_resistance(length, wire.copper_diameter)
+    Rhot = dc_resistance(length, wire.copper_diameter, t_op)
+    net = _network(order, L, R20, doc.test.frequency)
+    duty_net = _network(order, L, Rhot, duty.frequency)
+    tol = doc.tolerances
+    diag = np.sqrt(np.diag(L))
+    coupling = L / np.outer(diag, diag)
+
+    current_sheet = None
+    rosa = None
+    if isinstance(doc.form, CylinderForm) and layout.layers == 1:
+        r0 = float(layout.r[0])
+        current_sheet = float(ind.current_sheet_inductance(r0, turns * layout.pitch, turns))
+        rosa = float(ind.rosa_corrected_inductance(r0, layout.pitch, wire.copper_diameter, turns))
+
+    # Terminal current at duty: the order's current, or the voltage over the impedance.
+    w = 2 * math.pi * duty.frequency
+    z_duty = abs(complex(duty_net.resistance, w * duty_net.inductance))
+    i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
+    strand_i = np.abs(duty_net.strand_current) * i_term
+
+    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown,
+                       inductance_H=net.inductance, eps_r=doc.wire.permittivity,
+                       tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
+                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating)
+    warnings.extend(st.get("warnings", []))
+
+    ident = doc.winding.identification or {}
+    strands = []
+    for s in range(S):
+        sid = STRAND_IDS[s]
+        strands.append({
+            "id": sid, "turns": int(turns),
+            "identification": ident.get(sid, _default_ident(sid, S)),
+            "wire_length_m": float(length[s]),
+            "wire_length_with_scrap_m": float(length[s] * (1 + doc.winding.scrap_allowance)),
+            "mass_kg": float(copper_mass(length[s] * (1 + doc.winding.scrap_allowance), wire.copper_diameter)),
+            "resistance_20C_ohm": float(R20[s]),
+            "resistance_hot_ohm": float(Rhot[s]),
+            "inductance_H": float(L[s, s]),
+            "current_A": float(strand_i[s]),
+        })
+    f = doc.form
+    job = doc.job
+    energy = 0.5 * net.inductance * i_term ** 2
+    elv = 120.0 if duty.frequency == 0 else 50.0
+    return {
+        "schema": "windsheet.prediction/1",
+        "job": {"number": job.number, "part": job.part, "customer": job.customer, "quantity": job.quantity,
+                "revision": job.revision, "issued_by": job.issued_by,
+                "issue_date": (job.issue_date or today or _dt.date.today()).isoformat(),
+                "units": order.units, "notes": job.notes},
+        "order_hash": order.sha256,
+        "form": {"kind": f.kind, "material": f.material,
+                 "diameter_m": getattr(f, "diameter", None), "traverse_m": getattr(f, "traverse", None),
+                 "max_build_m": getattr(f, "max_build", None),
+                 "inner_diameter_m": getattr(f, "inner_diameter", None),
+                 "outer_diameter_m": getattr(f, "outer_diameter", None),
+                 "height_m": getattr(f, "height", None), "width_m": getattr(f, "width", None),
+                 "mean_turn_length_m": getattr(f, "mean_turn_length", None),
+                 "al_H": _al(order), "permeability": getattr(f, "permeability", None),
+                 "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None},
+        "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
+                 "overall_diameter_m": wire.overall_diameter, "grade": wire.grade,
+                 "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source},
+        "winding": {"strands": S, "turns_per_strand": int(turns), "layers": layout.layers,
+                    "turns_in_layer": list(layout.turns_in_layer), "pitch_m": layout.pitch,
+                    "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
+                    "layer_tape_rating_V": order.tape_rating,
+                    "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
+                    "close_wound": doc.winding.pitch is None, "target": target},
+        "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
+                   "description": HOOKUP_TEXT[order.hookup_name]},
+        "duty": {"voltage_V": duty.voltage, "frequency_Hz": duty.frequency, "current_A": i_term,
+                 "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
+        "test": {"frequency_Hz": doc.test.frequency},
+        "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance},
+        "fit": {"slots_per_layer": layout.slots_per_layer, "traverse_used_m": layout.traverse_used,
+                "traverse_m": getattr(f, "traverse", None) or getattr(f, "width", None),
+                "build_m": layout.build_height, "max_build_m": getattr(f, "max_build", None)
+                or (f.height if isinstance(f, BobbinForm) else None), "fits": True, "notes": list(layout.notes)},
+        "strands": strands,
+        "layers": layout.layers,
+        "inductance_matrix_H": L.tolist(),
+        "coupling_matrix": coupling.tolist(),
+        "terminal": {
+            "inductance_H": net.inductance, "resistance_ohm": net.resistance,
+            "resistance_hot_ohm": duty_net.resistance,
+            "capacitance_F": st["capacitance"]["terminal_F"],
+            "self_resonance_Hz": st["self_resonance_Hz"],
+            "accept": {"inductance_min_H": net.inductance * (1 - tol.inductance),
+                       "inductance_max_H": net.inductance * (1 + tol.inductance),
+                       "resistance_min_ohm": net.resistance * (1 - tol.resistance),
+                       "resistance_max_ohm": net.resistance * (1 + tol.resistance)},
+        },
+        "current_sheet_inductance_H": current_sheet,
+        "current_sheet_rosa_corrected_H": rosa,
+        "alternatives": alternative_hookups(L, R20, doc.test.frequency),
+        "worst_adjacent": st["worst_adjacent"],
+        "capacitance": st["capacitance"],
+        "insulation": st["insulation"],
+        "hipot": st["hipot"],
+        "energy": {"magnetic_J": energy},
+        "cautions": {"above_elv": duty.voltage > elv, "elv_limit_V": elv, "hipot": True,
+                     "stored_energy_J": energy},
+        "cross_section": _cross_section(layout),
+        "warnings": warnings,
+    }
+
+
+def _default_ident(sid: str, strands: int) -> str:
+    return "single strand" if strands == 1 else f"sleeve or tag marked {sid} on both ends"
