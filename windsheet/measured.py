@@ -24,7 +24,10 @@ Shape of the file (every quantity carries its unit)::
 
 An inductance is either read directly (``61.2 uH``, optionally as
 ``{value: 61.2 uH, test_frequency: 10 kHz}``) or rung against a known
-capacitor, ``{resonant_frequency: ..., capacitor: ...}``.  A resistance may be
+capacitor, ``{resonant_frequency: ..., capacitor: ...}`` (add
+``stray_capacitance`` when the coil's own capacitance is not negligible
+beside the capacitor; a capacitor 100 times larger keeps the error near 1 %).
+A resistance may be
 ``open`` when the meter shows no continuity.
 """
 
@@ -225,6 +228,8 @@ class InductanceReading(_Model):
     value: Optional[Annotated[float, BeforeValidator(_inductance_value)]] = None
     resonant_frequency: Optional[Frequency] = None
     capacitor: Optional[Capacitance] = None
+    #: Coil and fixture capacitance in parallel with the capacitor, if known.
+    stray_capacitance: Optional[Capacitance] = None
     test_frequency: Optional[Frequency] = None
 
     @model_validator(mode="before")
@@ -241,6 +246,7 @@ class InductanceReading(_Model):
     @model_validator(mode="after")
     def _one_method(self):
         rung = self.resonant_frequency is not None or self.capacitor is not None
+        rung = rung or self.stray_capacitance is not None
         if self.value is not None and rung:
             raise PydanticCustomError(
                 "reading", "give either a value or resonant_frequency with capacitor, not both")
@@ -262,7 +268,8 @@ class InductanceReading(_Model):
     def henries(self) -> float:
         if self.value is not None:
             return self.value
-        return resonance_inductance(self.resonant_frequency, self.capacitor)
+        return resonance_inductance(self.resonant_frequency,
+                                    self.capacitor + (self.stray_capacitance or 0.0))
 
     def frequency(self, default: Optional[float]) -> Optional[float]:
         if self.value is None:
@@ -272,7 +279,8 @@ class InductanceReading(_Model):
     def describe(self) -> dict:
         out = {"method": self.method, "inductance_H": self.henries}
         if self.value is None:
-            out.update(resonant_frequency_Hz=self.resonant_frequency, capacitor_F=self.capacitor)
+            out.update(resonant_frequency_Hz=self.resonant_frequency, capacitor_F=self.capacitor,
+                       stray_capacitance_F=self.stray_capacitance)
         return out
 
 
