@@ -287,8 +287,10 @@ def two_wire_capacitance_per_length(spacing, diameter, eps_r=1.0):
     -----
     Exact for a uniform medium.  Enamelled wires touching sit in a mixed
     medium (two enamel films plus air wedges); taking the enamel's εr
-    throughout overstates C' somewhat, which errs towards a lower
-    self-resonance.
+    throughout overstates C', which errs towards a lower self-resonance.
+    For 0.45 mm copper, 0.50 mm overall, εr 3.5 it gives 208 pF/m where
+    Massarini & Kazimierczuk's turn-to-turn model (IEEE Trans. Power
+    Electron. 12(4), 1997; memory) gives about 111 pF/m (computed).
 
     References
     ----------
