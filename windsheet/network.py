@@ -224,12 +224,17 @@ def solve_network(L, R, joins, terminals, frequency, hookup="custom") -> Network
                          strand_current=i_duty, end_potential=ends)
 
 
-def separate_windings(L, R) -> NetworkResult:
-    """Each strand its own winding: report strand A at the terminals; every strand
-    is driven start 0 V to finish 1 V (they are assumed in phase)."""
+def separate_windings(L, R, between=0.0) -> NetworkResult:
+    """Each strand its own winding; strand A is reported at the terminals.
+
+    Every winding is driven start 0 V to finish 1 V, in phase; neighbouring
+    windings (B, D) are offset by ``between`` volts per volt of winding
+    voltage, the working voltage between windings (the isolation duty).
+    """
     S = len(R)
-    ends = np.tile(np.array([0.0, 1.0], dtype=complex), (S, 1))
-    cur = np.zeros(S, dtype=complex); cur[0] = 1.0
+    ends = np.array([[0.0, 1.0]] * S, dtype=complex) + np.array([[(s % 2) * between] * 2 for s in range(S)])
+    cur = np.zeros(S, dtype=complex)
+    cur[0] = 1.0
     return NetworkResult(hookup="separate", joins=[], terminals=["A.start", "A.finish"],
                          inductance=float(np.asarray(L)[0, 0]), resistance=float(R[0]),
                          strand_current=cur, end_potential=ends)

@@ -221,6 +221,7 @@ class Duty(_M):
     current: Current = 0.0
     ambient: Temperature = 25.0
     operating_temperature: Optional[Temperature] = None
+    between_windings: Optional[Voltage0] = None
 
 
 class Tolerances(_M):

@@ -83,7 +83,9 @@ def _inductance_matrix(order: Order, wire, layout):
 
 def _network(order: Order, L, R, frequency):
     if order.hookup_name == "separate":
-        return separate_windings(L, R)
+        duty = order.doc.duty
+        between = duty.between_windings if duty.between_windings is not None else duty.voltage
+        return separate_windings(L, R, between / duty.voltage if duty.voltage > 0 else 0.0)
     return solve_network(L, R, order.joins, order.terminals, frequency, hookup=order.hookup_name)
 
 
@@ -180,10 +182,18 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
     strand_i = np.abs(duty_net.strand_current) * i_term
 
-    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown,
-                       inductance_H=net.inductance, eps_r=doc.wire.permittivity,
+    stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
                        pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating)
+    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, **stress_args)
+    if order.hookup_name == "separate" and S > 1:
+        # Capacitance and resonance belong to one winding on its own; the
+        # offset between windings only sets the insulation stress.
+        own = stress.assess(layout, separate_windings(L, Rhot), duty.voltage, duty.frequency,
+                            wire.breakdown, **stress_args)
+        st = {**st, "capacitance": {**own["capacitance"],
+                                    "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
+              "self_resonance_Hz": own["self_resonance_Hz"]}
     warnings.extend(st.get("warnings", []))
 
     ident = doc.winding.identification or {}
@@ -205,6 +215,7 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     job = doc.job
     energy = 0.5 * net.inductance * i_term ** 2
     elv = 120.0 if duty.frequency == 0 else 50.0
+    highest_V = max(duty.voltage, duty.between_windings or 0.0)
     return {
         "schema": "windsheet.prediction/1",
         "job": {"number": job.number, "part": job.part, "customer": job.customer, "quantity": job.quantity,
@@ -232,7 +243,7 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
                     "close_wound": doc.winding.pitch is None, "target": target},
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
-        "duty": {"voltage_V": duty.voltage, "frequency_Hz": duty.frequency, "current_A": i_term,
+        "duty": {"voltage_V": duty.voltage, "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
                  "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
         "test": {"frequency_Hz": doc.test.frequency},
         "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance},
@@ -260,9 +271,9 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         "worst_adjacent": st["worst_adjacent"],
         "capacitance": st["capacitance"],
         "insulation": st["insulation"],
-        "hipot": st["hipot"],
+        "hipot": {**st["hipot"], "voltage_V": stress.hipot_voltage(highest_V)},
         "energy": {"magnetic_J": energy},
-        "cautions": {"above_elv": duty.voltage > elv, "elv_limit_V": elv, "hipot": True,
+        "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
                      "stored_energy_J": energy},
         "cross_section": _cross_section(layout),
         "warnings": warnings,
