@@ -1,0 +1,282 @@
+"""SVG sketches for the traveller: the wiring diagram and the winding cross-section.
+
+Both are drawn from what the engine returns (the hookup's joins and terminals,
+the cross-section's slot map); nothing here knows any physics.  Elements carry
+machine-readable ``data-*`` attributes so the drawings can be checked by
+parsing them:
+
+* ``data-strand="A"`` on each strand's group,
+* ``data-end="A.start"`` on the circle marking each wire end,
+* ``data-join="A.finish B.start"`` on the group of lines drawing one joint,
+* ``data-terminal="T1"`` (with ``data-connects="A.start"``) on each terminal.
+"""
+
+from __future__ import annotations
+
+import xml.etree.ElementTree as ET
+
+SVG_NS = "http://www.w3.org/2000/svg"
+
+# Wiring-diagram geometry, in SVG user units (drawn at 1 unit = 1 px, scaled by CSS).
+_ROW_H = 64.0
+_TOP = 40.0
+_START_X = 150.0
+_FINISH_X = 370.0
+_COIL_X0 = 205.0
+_COIL_X1 = 315.0
+_LANE_GAP = 13.0
+_TERMINAL_PAD = 26.0
+
+#: Grey fills told apart in monochrome print; the letter in each circle is the real key.
+STRAND_FILLS = {"A": "#ffffff", "B": "#c8c8c8", "C": "#8c8c8c", "D": "#4a4a4a"}
+STRAND_TEXT = {"A": "#000000", "B": "#000000", "C": "#ffffff", "D": "#ffffff"}
+
+
+def _el(parent, tag, **attrs):
+    attrs = {k.replace("_", "-"): str(v) for k, v in attrs.items() if v is not None}
+    return ET.SubElement(parent, tag, attrs)
+
+
+def _text(parent, x, y, text, **attrs):
+    t = _el(parent, "text", x=f"{x:.1f}", y=f"{y:.1f}", **attrs)
+    t.text = text
+    return t
+
+
+def _line(parent, x1, y1, x2, y2, **attrs):
+    return _el(parent, "line", x1=f"{x1:.1f}", y1=f"{y1:.1f}", x2=f"{x2:.1f}", y2=f"{y2:.1f}",
+               **attrs)
+
+
+def _svg_root(width, height, label):
+    ET.register_namespace("", SVG_NS)
+    root = ET.Element("svg", {
+        "xmlns": SVG_NS, "viewBox": f"0 0 {width:.0f} {height:.0f}",
+        "width": f"{width:.0f}", "height": f"{height:.0f}",
+        "role": "img", "aria-label": label,
+        "font-family": "DejaVu Sans, sans-serif", "font-size": "11",
+    })
+    return root
+
+
+def _to_string(root) -> str:
+    return ET.tostring(root, encoding="unicode", short_empty_elements=True)
+
+
+def parse_end(end: str) -> tuple[str, str]:
+    """Split ``"A.finish"`` into ``("A", "finish")``."""
+    strand, _, which = str(end).partition(".")
+    if which not in ("start", "finish") or not strand:
+        raise ValueError(f"not a strand end: {end!r} (expected like 'A.start')")
+    return strand, which
+
+
+def _coil_path(x0, x1, y, bumps=5):
+    """A row of half-circle bumps, the usual inductor symbol."""
+    w = (x1 - x0) / bumps
+    d = [f"M {x0:.1f} {y:.1f}"]
+    for _ in range(bumps):
+        d.append(f"a {w / 2:.2f} {w / 2:.2f} 0 0 1 {w:.2f} 0")
+    return " ".join(d)
+
+
+def _nets(hookup):
+    """Each joint as a tuple of ends, in the order the hookup lists them."""
+    return [tuple(str(e) for e in join) for join in hookup.get("joins") or [] if len(join) >= 2]
+
+
+def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
+    """Wiring diagram of a hookup as an SVG string.
+
+    Every strand is a coil symbol on its own row, start on the left (with the
+    polarity dot), finish on the right.  Each joint is drawn as its own lane of
+    lines linking the named ends; the terminals are labelled T1, T2, … in the
+    order the hookup lists them.  Works for any joins/terminals of up to four
+    strands (or more), not just the named hookups.
+
+    Parameters
+    ----------
+    hookup : dict
+        ``{"name", "joins": [["A.finish", "B.start"], ...], "terminals": ["A.start", ...]}``
+    strand_ids : sequence of str
+        Strand identifiers in row order, e.g. ``["A", "B"]``.
+    labels : dict, optional
+        Strand id -> how to tell it apart (``"red enamel"``), printed beside the coil.
+    """
+    ids = [str(s) for s in strand_ids]
+    labels = labels or {}
+    row_y = {s: _TOP + i * _ROW_H for i, s in enumerate(ids)}
+    end_xy = {}
+    for s in ids:
+        end_xy[f"{s}.start"] = (_START_X, row_y[s])
+        end_xy[f"{s}.finish"] = (_FINISH_X, row_y[s])
+
+    nets = _nets(hookup)
+    for net in nets:
+        for end in net:
+            if end not in end_xy:
+                raise ValueError(f"joint names {end!r}, which is not an end of strands {ids}")
+    terminals = [str(t) for t in hookup.get("terminals") or []]
+    for t in terminals:
+        if t not in end_xy:
+            raise ValueError(f"terminal names {t!r}, which is not an end of strands {ids}")
+
+    # Nets touching only starts route on the left, all others on the right.
+    left_nets = [n for n in nets if all(parse_end(e)[1] == "start" for e in n)]
+    right_nets = [n for n in nets if n not in left_nets]
+    lane_x = {}
+    for k, n in enumerate(left_nets):
+        lane_x[n] = _START_X - 22.0 - k * _LANE_GAP
+    for k, n in enumerate(right_nets):
+        lane_x[n] = _FINISH_X + 22.0 + k * _LANE_GAP
+    left_edge = min([_START_X - 22.0] + [x for x in lane_x.values() if x < _START_X]) - _TERMINAL_PAD
+    right_edge = max([_FINISH_X + 22.0] + [x for x in lane_x.values() if x > _FINISH_X]) + _TERMINAL_PAD
+    shift = 40.0 - left_edge  # keep the left terminals inside the viewBox
+    width = right_edge + shift + 40.0
+    height = _TOP + len(ids) * _ROW_H - 10.0
+
+    root = _svg_root(width, height, f"Wiring diagram, hookup {hookup.get('name', '')}")
+    top = _el(root, "g", transform=f"translate({shift:.1f},0)")
+
+    for s in ids:
+        y = row_y[s]
+        g = _el(top, "g", data_strand=s)
+        _line(g, _START_X, y, _COIL_X0, y, stroke="#000", stroke_width="1.6")
+        _el(g, "path", d=_coil_path(_COIL_X0, _COIL_X1, y), fill="none", stroke="#000",
+            stroke_width="2")
+        _line(g, _COIL_X1, y, _FINISH_X, y, stroke="#000", stroke_width="1.6")
+        # Polarity dot beside the first bump marks where the strand starts.
+        _el(g, "circle", cx=f"{_COIL_X0 + 4:.1f}", cy=f"{y - 17:.1f}", r="3.6", fill="#000",
+            data_polarity=f"{s}.start")
+        name = s if not labels.get(s) else f"{s} — {labels[s]}"
+        _text(g, (_COIL_X0 + _COIL_X1) / 2, y + 19, name, text_anchor="middle",
+              font_weight="bold")
+        for which, x in (("start", _START_X), ("finish", _FINISH_X)):
+            end = f"{s}.{which}"
+            _el(g, "circle", cx=f"{x:.1f}", cy=f"{y:.1f}", r="4", fill="#fff", stroke="#000",
+                stroke_width="1.4", data_end=end)
+            anchor = "start" if which == "start" else "end"
+            dx = 6 if which == "start" else -6
+            _text(g, x + dx, y - 8, f"{s} {which}", text_anchor=anchor, font_size="9.5")
+
+    for n_i, net in enumerate(nets):
+        _draw_net(top, net, lane_x[net], end_xy, row_y, ids, n_i)
+
+    for t_i, end in enumerate(terminals):
+        _draw_terminal(top, f"T{t_i + 1}", end, end_xy, left_edge, right_edge)
+    return _to_string(root)
+
+
+def _draw_net(parent, net, x_lane, end_xy, row_y, ids, n_i):
+    """Lines from every end of one joint to its lane, and the lane itself."""
+    g = _el(parent, "g", data_join=" ".join(net), stroke="#000", stroke_width="1.6",
+            stroke_dasharray=None)
+    on_left = x_lane < _START_X
+    ys = []
+    for end in net:
+        x, y = end_xy[end]
+        same_side = (x == _START_X) == on_left
+        if same_side:
+            _line(g, x, y, x_lane, y)
+            ys.append(y)
+        else:
+            # Cross over in the gap above the row, clear of the coil symbol.
+            y_ch = y - _ROW_H / 2 + 6.0 + 5.0 * (n_i % 4)
+            _line(g, x, y, x, y_ch)
+            _line(g, x, y_ch, x_lane, y_ch)
+            ys.append(y_ch)
+    _line(g, x_lane, min(ys), x_lane, max(ys))
+    for y in ys:
+        _el(g, "circle", cx=f"{x_lane:.1f}", cy=f"{y:.1f}", r="2.6", fill="#000", stroke="none")
+    return g
+
+
+def _draw_terminal(parent, label, end, end_xy, left_edge, right_edge):
+    x, y = end_xy[end]
+    tx = left_edge if x == _START_X else right_edge
+    g = _el(parent, "g", data_terminal=label, data_connects=end)
+    # Drawn a little below the wire end so the lead does not merge with a joint's lane.
+    ty = y + 14.0
+    _line(g, x, y, x, ty, stroke="#000", stroke_width="1.6")
+    _line(g, x, ty, tx, ty, stroke="#000", stroke_width="1.6")
+    _el(g, "rect", x=f"{tx - 13:.1f}", y=f"{ty - 9:.1f}", width="26", height="18",
+        fill="#fff", stroke="#000", stroke_width="1.8", data_terminal_box=label)
+    _text(g, tx, ty + 4, label, text_anchor="middle", font_weight="bold")
+    return g
+
+
+# --- cross-section ------------------------------------------------------------
+
+def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
+    """Sketch of the winding in section: layers, the strand in each slot, layer tape.
+
+    ``cross_section["layers"]`` lists, per layer from the form outwards, the
+    slots the engine chose to show (``{"slot": k, "strand": "A"}``); where the
+    listed slot numbers jump, the slots in between are drawn as an ellipsis.
+    """
+    layers = cross_section.get("layers") or []
+    tape = bool(cross_section.get("tape_between_layers"))
+    cell = 20.0
+    gap_w = 26.0
+    tape_h = 6.0 if tape else 0.0
+    runs = [_with_gaps(layer) for layer in layers]
+    width_cells = max([_run_width(r, cell, gap_w) for r in runs] + [cell * 4])
+    margin_l, margin_r = 64.0, 16.0
+    width = margin_l + width_cells + margin_r
+    base_y = 30.0 + len(layers) * (cell + tape_h) + 14.0
+    height = base_y + 34.0
+    label = "Winding cross-section" + (" (toroid, inside wall)" if kind == "toroid" else "")
+    root = _svg_root(width, height, label)
+
+    surface = "core wall" if kind == "toroid" else "form surface"
+    _el(root, "rect", x=f"{margin_l - 6:.1f}", y=f"{base_y:.1f}", width=f"{width_cells + 12:.1f}",
+        height="10", fill="#e0e0e0", stroke="#000", stroke_width="1",
+        data_surface=surface)
+    _text(root, margin_l, base_y + 24, surface, font_size="9.5")
+
+    for lay, run in enumerate(runs):
+        y = base_y - tape_h * lay - cell * lay - cell / 2 - 2.0
+        g = _el(root, "g", data_layer=str(lay + 1))
+        _text(g, 6, y + 4, f"L{lay + 1}", font_weight="bold")
+        direction = "→" if lay % 2 == 0 else "←"
+        _text(g, 30, y + 4, direction)
+        x = margin_l
+        for item in run:
+            if item is None:
+                _text(g, x + gap_w / 2, y + 4, "…", text_anchor="middle", data_elided="1")
+                x += gap_w
+                continue
+            s = str(item["strand"])
+            _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r=f"{cell / 2 - 1:.1f}",
+                fill=STRAND_FILLS.get(s, "#ffffff"), stroke="#000", stroke_width="1.2",
+                data_slot=str(item["slot"]), data_strand=s)
+            _text(g, x + cell / 2, y + 4, s, text_anchor="middle", font_weight="bold",
+                  fill=STRAND_TEXT.get(s, "#000000"))
+            x += cell
+        if tape and lay < len(runs) - 1:
+            ty = y - cell / 2 - tape_h / 2
+            _el(root, "rect", x=f"{margin_l - 4:.1f}", y=f"{ty - (tape_h - 2) / 2:.1f}",
+                width=f"{width_cells + 8:.1f}", height=f"{tape_h - 2:.1f}", fill="#ffffff",
+                stroke="#000", stroke_width="1", stroke_dasharray="4 2",
+                data_tape=f"{lay + 1}/{lay + 2}")
+    _text(root, margin_l + width_cells, 14, "start end at left", text_anchor="end",
+          font_size="9.5")
+    return _to_string(root)
+
+
+def _with_gaps(layer_slots):
+    """Slots in drawing order with ``None`` where listed slot numbers skip."""
+    out = []
+    items = sorted(layer_slots, key=lambda it: (int(it["slot"]), str(it["strand"])))
+    prev = None
+    for it in items:
+        slot = int(it["slot"])
+        if prev is not None and slot > prev + 1:
+            out.append(None)
+        out.append(it)
+        prev = slot
+    return out
+
+
+def _run_width(run, cell, gap_w):
+    return sum(gap_w if it is None else cell for it in run)

@@ -1,0 +1,631 @@
+"""The printable traveller: HTML from Jinja2 templates, PDF by WeasyPrint.
+
+Rendering shows what the prediction dict (``windsheet.predict.predict``) says
+and computes no physics.  It does choose words and layout: which procedure
+steps a job needs, which cautions its duty calls for, how numbers are written
+for people (``61.20 µH``, ``1.234 Ω``, ``12.30 m``).
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+from urllib.parse import unquote, urlsplit
+
+import jinja2
+from markupsafe import Markup
+
+from .diagrams import cross_section_svg, parse_end, wiring_svg
+from .errors import InputError
+
+TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
+
+#: Page sizes by the CLI's ``--paper`` word; CSS ``@page size`` keywords.
+PAPER_SIZES = {"a4": "A4", "letter": "letter"}
+
+#: Section headings in job-flow order; the tests look for each in the PDF text.
+SECTIONS = (
+    "1 Specification",
+    "2 Predictions",
+    "3 Materials pick list",
+    "4 Procedure",
+    "5 Wiring diagram and cross-section",
+    "6 Insulation check",
+    "7 Cautions",
+    "8 QC record",
+)
+
+#: Extra-low voltage band, IEC 61140: 50 V a.c. rms, 120 V ripple-free d.c.
+ELV_AC_V = 50.0
+ELV_DC_V = 120.0
+
+#: Stored energy above which the sheet prints a boxed caution.  350 mJ is the
+#: discharge-energy limit of IEC 60335-1 §8.1.4 (seen in a secondary copy);
+#: used only to decide when to draw attention, never as a safe level.
+STORED_ENERGY_CAUTION_J = 0.35
+
+#: Units (serial numbers) per QC table; more units continue in further tables.
+UNITS_PER_QC_TABLE = 4
+
+DEFERRAL = ("These notes do not replace local electrical codes, the applicable "
+            "product standard or licensed practice; where they differ, those govern.")
+
+_PREFIXES = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
+_NBSP = "\u00a0"
+OHM = "Ω"
+
+
+# --- number formatting for people ------------------------------------------------
+
+def eng(value, unit: str = "", sig: int = 4, trim: bool = False) -> str:
+    """Write ``value`` in engineering notation with an SI prefix: ``61.20 µH``.
+
+    ``sig`` significant figures; ``trim`` drops trailing zeros (for duty
+    values a customer wrote: ``230 V``, ``50 Hz``).  ``None`` prints as a dash.
+    """
+    if value is None:
+        return "—"
+    v = float(value)
+    if not math.isfinite(v):
+        return "∞" + (_NBSP + unit if unit else "") if v > 0 else "—"
+    if v == 0:
+        return "0" + (_NBSP + unit if unit else "")
+    exp3 = int(math.floor(math.log10(abs(v)) / 3.0) * 3)
+    exp3 = max(-12, min(9, exp3))
+    mant = v / 10.0 ** exp3
+    text = _sig_text(mant, sig)
+    if abs(float(text)) >= 1000.0 and exp3 < 9:
+        exp3 += 3
+        text = _sig_text(v / 10.0 ** exp3, sig)
+    if trim and "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return text + _NBSP + _PREFIXES[exp3] + unit if unit or _PREFIXES[exp3] else text
+
+
+def _sig_text(x: float, sig: int) -> str:
+    if x == 0:
+        return "0"
+    decimals = max(0, sig - 1 - int(math.floor(math.log10(abs(x)))))
+    text = f"{x:.{decimals}f}"
+    # Rounding up can add a digit (999.96 -> 1000.0); keep the figure count.
+    if decimals and len(text.replace("-", "").replace(".", "").lstrip("0")) > sig:
+        text = f"{x:.{decimals - 1}f}"
+    return text
+
+
+def length(value_m, sig: int = 4) -> str:
+    """A length as the shop writes it: millimetres below a metre, metres above."""
+    if value_m is None:
+        return "—"
+    v = float(value_m)
+    if abs(v) >= 1.0:
+        return _sig_text(v, sig) + _NBSP + "m"
+    return _sig_text(v * 1e3, sig) + _NBSP + "mm"
+
+
+def mass(value_kg, sig: int = 3) -> str:
+    """A mass in grams (kilograms above 1 kg)."""
+    if value_kg is None:
+        return "—"
+    v = float(value_kg)
+    if abs(v) >= 1.0:
+        return _sig_text(v, sig) + _NBSP + "kg"
+    return _sig_text(v * 1e3, sig) + _NBSP + "g"
+
+
+def percent(fraction, sig: int = 3) -> str:
+    if fraction is None:
+        return "—"
+    text = _sig_text(float(fraction) * 100.0, sig)
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return text + _NBSP + "%"
+
+
+def celsius(value) -> str:
+    if value is None:
+        return "—"
+    text = f"{float(value):.1f}".rstrip("0").rstrip(".")
+    return text + _NBSP + "°C"
+
+
+def henry(v):
+    return eng(v, "H")
+
+
+def ohm(v):
+    return eng(v, OHM)
+
+
+def farad(v):
+    return eng(v, "F", sig=3)
+
+
+def hertz(v):
+    return eng(v, "Hz", sig=3)
+
+
+def volt(v, sig=3):
+    return eng(v, "V", sig=sig)
+
+
+def joule(v):
+    return eng(v, "J", sig=3)
+
+
+def band(lo, hi, fmt) -> str:
+    """An accept band ``55.08 – 67.32 µH``, written with one formatter."""
+    if lo is None and hi is None:
+        return "—"
+    return f"{fmt(lo)} – {fmt(hi)}"
+
+
+FILTERS = {
+    "eng": eng, "distance": length, "mass": mass, "percent": percent, "celsius": celsius,
+    "henry": henry, "ohm": ohm, "farad": farad, "hertz": hertz, "volt": volt, "joule": joule,
+}
+
+
+# --- the Jinja2 environment and WeasyPrint ---------------------------------------
+
+def environment(templates_dir: Path = TEMPLATES_DIR) -> jinja2.Environment:
+    """Jinja2 with autoescape on for every template: order text prints as text."""
+    env = jinja2.Environment(
+        loader=jinja2.FileSystemLoader(str(templates_dir)),
+        autoescape=True,
+        undefined=jinja2.StrictUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+    )
+    env.filters.update(FILTERS)
+    return env
+
+
+def _weasyprint():
+    import weasyprint  # noqa: deferred: Pango loads on first use only
+
+    return weasyprint
+
+
+def templates_only_fetcher(templates_dir: Path = TEMPLATES_DIR):
+    """A WeasyPrint URL fetcher that serves files under ``templates_dir`` only.
+
+    The network, and every file outside the templates folder, is refused; a
+    ``data:`` URL (content already in the document) is passed through.
+    """
+    urls = _weasyprint().urls
+    root = Path(templates_dir).resolve()
+
+    class TemplatesOnlyFetcher(urls.URLFetcher):
+        def fetch(self, url, headers=None):
+            scheme = urlsplit(url).scheme.lower()
+            if scheme == "data":
+                return super().fetch(url, headers)
+            if scheme != "file":
+                raise ValueError(f"refused to fetch {url!r}: the traveller loads no network resources")
+            path = Path(unquote(urlsplit(url).path)).resolve()
+            if not path.is_relative_to(root) or not path.is_file():
+                raise ValueError(f"refused to fetch {url!r}: outside the templates folder")
+            return urls.URLFetcherResponse(url, path.read_bytes())
+
+    return TemplatesOnlyFetcher()
+
+
+def render_pdf(html: str, templates_dir: Path = TEMPLATES_DIR) -> bytes:
+    """Render traveller HTML to PDF bytes with WeasyPrint."""
+    wp = _weasyprint()
+    doc = wp.HTML(string=html, base_url=str(Path(templates_dir).resolve()) + "/",
+                  url_fetcher=templates_only_fetcher(templates_dir))
+    return doc.write_pdf()
+
+
+def _stylesheet(templates_dir: Path) -> Markup:
+    # Inlined so the HTML file stands alone; it is our own file, not order text.
+    return Markup((Path(templates_dir) / "print.css").read_text(encoding="utf-8"))
+
+
+def _page_size(paper: str) -> str:
+    key = str(paper).strip().lower()
+    if key not in PAPER_SIZES:
+        raise InputError("--paper", f"expected one of {', '.join(PAPER_SIZES)}, got {paper!r}")
+    return PAPER_SIZES[key]
+
+
+# --- issuing -------------------------------------------------------------------------
+
+def check_issuable(prediction: dict, force: bool = False) -> None:
+    """Refuse to issue a traveller whose insulation check fails, unless forced."""
+    ins = prediction.get("insulation") or {}
+    if ins.get("verdict") == "fail" and not force:
+        why = "; ".join(str(r) for r in ins.get("reasons") or []) or "see the insulation check"
+        raise InputError("insulation", f"insulation check fails ({why}); "
+                         "not issued — fix the order, or issue with --force")
+
+
+def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = False,
+                          templates_dir: Path = TEMPLATES_DIR) -> str:
+    """The traveller for one order as a standalone HTML document.
+
+    Parameters
+    ----------
+    prediction : dict
+        What ``windsheet.predict.predict`` returns.
+    paper : {"a4", "letter"}
+    forced : bool
+        The sheet was issued with ``--force`` over a failing insulation check;
+        printed prominently on the first page.
+    """
+    env = environment(templates_dir)
+    ctx = traveller_context(prediction, forced=forced)
+    ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
+               stylesheet=_stylesheet(templates_dir), sections=SECTIONS)
+    return env.get_template("traveller.html.j2").render(**ctx)
+
+
+def traveller(prediction: dict, paper: str = "a4", forced: bool = False) -> tuple[str, bytes]:
+    """HTML and PDF of one traveller."""
+    html = render_traveller_html(prediction, paper=paper, forced=forced)
+    return html, render_pdf(html)
+
+
+# --- what goes on the sheet ----------------------------------------------------------
+
+def traveller_context(p: dict, forced: bool = False) -> dict:
+    """Everything the template shows, arranged for it; values straight from ``p``."""
+    strands = p.get("strands") or []
+    ids = [s["id"] for s in strands]
+    hookup = p.get("hookup") or {}
+    labels = {s["id"]: s.get("identification") for s in strands}
+    ins = p.get("insulation") or {}
+    return {
+        "p": p,
+        "job": p.get("job") or {},
+        "forced": bool(forced),
+        "verdict": ins.get("verdict") or "unknown",
+        "strand_ids": ids,
+        "terminal_names": terminal_names(hookup),
+        "joins_text": [" + ".join(j) for j in hookup.get("joins") or []],
+        "wiring_svg": Markup(wiring_svg(hookup, ids, labels)),
+        "cross_section_svg": Markup(cross_section_svg(p.get("cross_section") or {},
+                                                      (p.get("form") or {}).get("kind") or "")),
+        "form_rows": form_rows(p.get("form") or {}),
+        "duty_rows": duty_rows(p.get("duty") or {}),
+        "picks": pick_list(p),
+        "steps": procedure_steps(p),
+        "cautions": cautions(p),
+        "deferral": DEFERRAL,
+        "qc_items": qc_items(p),
+        "unit_tables": unit_tables((p.get("job") or {}).get("units") or []),
+        "insulation_rows": insulation_rows(ins),
+    }
+
+
+def terminal_names(hookup: dict) -> list[tuple[str, str]]:
+    return [(f"T{i + 1}", str(t)) for i, t in enumerate(hookup.get("terminals") or [])]
+
+
+def form_rows(form: dict) -> list[tuple[str, str]]:
+    rows = [("Kind", form.get("kind") or "—")]
+    if form.get("description"):
+        rows.append(("Description", form["description"]))
+    for key, label in (("diameter_m", "Winding diameter"), ("traverse_m", "Traverse"),
+                       ("max_build_m", "Maximum build"), ("inner_diameter_m", "Inner diameter"),
+                       ("outer_diameter_m", "Outer diameter"), ("height_m", "Height")):
+        if form.get(key) is not None:
+            rows.append((label, length(form[key])))
+    if form.get("al_H") is not None:
+        rows.append(("AL", eng(form["al_H"], "H/turn²", sig=3)))
+    if form.get("permeability") is not None:
+        rows.append(("Relative permeability", f"{float(form['permeability']):g}"))
+    return rows
+
+
+def is_dc(duty: dict) -> bool:
+    return not duty.get("frequency_Hz")
+
+
+def duty_rows(duty: dict) -> list[tuple[str, str]]:
+    dc = is_dc(duty)
+    rows = [("Voltage", eng(duty.get("voltage_V"), "V", trim=True) + (" d.c." if dc else " rms")),
+            ("Frequency", "d.c." if dc else eng(duty.get("frequency_Hz"), "Hz", trim=True)),
+            ("Current", eng(duty.get("current_A"), "A", trim=True) + ("" if dc else " rms")),
+            ("Ambient", celsius(duty.get("ambient_C")))]
+    if duty.get("operating_temperature_C") is not None:
+        rows.append(("Operating temperature", celsius(duty["operating_temperature_C"])))
+    return rows
+
+
+def insulation_rows(ins: dict) -> list[tuple[str, str]]:
+    """The check's figures, in the order a reader follows the argument."""
+    rows = []
+
+    def add(label, key, fmt):
+        if ins.get(key) is not None:
+            rows.append((label, fmt(ins[key])))
+
+    add("Worst adjacent voltage", "worst_adjacent_Vpk", lambda v: volt(v) + " peak")
+    add("Enamel breakdown (minimum, grade)", "breakdown_V", volt)
+    add("Derating applied", "derating", lambda v: f"{float(v):g}")
+    add("Allowed between adjacent turns", "allowed_Vpk", lambda v: volt(v) + " peak")
+    add("Margin (allowed ÷ worst)", "margin", lambda v: f"{float(v):.2f}")
+    add("Paschen minimum, air", "paschen_min_Vpk", lambda v: volt(v) + " peak")
+    add("Partial-discharge inception (assumed)", "pdiv_Vpk", lambda v: volt(v) + " peak")
+    add("Worst layer-to-layer voltage", "layer_Vpk", lambda v: volt(v) + " peak")
+    add("Layer tape rating", "tape_rating_V", volt)
+    return rows
+
+
+def pick_list(p: dict) -> list[dict]:
+    """Materials to draw from stores, one row each, with the quantity to pick."""
+    wire = p.get("wire") or {}
+    w = p.get("winding") or {}
+    form = p.get("form") or {}
+    hookup = p.get("hookup") or {}
+    job = p.get("job") or {}
+    qty = int(job.get("quantity") or len(job.get("units") or []) or 1)
+    picks = [{"item": "Form / core", "spec": form.get("description") or form.get("kind") or "—",
+              "qty": f"{qty}"}]
+    for s in p.get("strands") or []:
+        per_unit = s.get("wire_length_with_scrap_m")
+        picks.append({
+            "item": f"Wire, strand {s['id']}",
+            "spec": f"{wire.get('label', '—')}; {s.get('identification') or 'no marking'}",
+            "qty": f"{length(per_unit)} per unit (incl. {percent(w.get('scrap_allowance'))} scrap), "
+                   f"{mass(s.get('mass_kg'))} per unit",
+        })
+    layers = int(p.get("layers") or w.get("layers") or 1)
+    if (w.get("layer_tape_m") or 0) > 0 and layers > 1:
+        picks.append({"item": "Layer tape",
+                      "spec": f"{length(w['layer_tape_m'])} thick, full traverse width",
+                      "qty": f"{layers - 1} wrap(s) per unit"})
+    ends = 2 * len(p.get("strands") or [])
+    picks.append({"item": "Sleeving",
+                  "spec": "over every joint and lead, rated for the duty and thermal class "
+                          f"{(wire.get('thermal_class_C') or '—')} °C",
+                  "qty": f"{len(hookup.get('joins') or [])} joint(s) + "
+                         f"{len(hookup.get('terminals') or [])} lead(s) per unit"})
+    if w.get("lead_length_m"):
+        picks.append({"item": "Leads", "spec": f"{length(w['lead_length_m'])} left at each of "
+                                              f"{ends} wire ends (included in wire length)",
+                      "qty": f"{ends} ends per unit"})
+    picks.append({"item": "Unit labels", "spec": "serial numbers " + _serial_span(job),
+                  "qty": f"{qty}"})
+    return picks
+
+
+def _serial_span(job: dict) -> str:
+    units = job.get("units") or []
+    if not units:
+        return "—"
+    return units[0] if len(units) == 1 else f"{units[0]} … {units[-1]}"
+
+
+# --- the procedure ------------------------------------------------------------------
+
+def _step(title, detail="", record=()):
+    return {"title": title, "detail": detail, "record": list(record)}
+
+
+def _strand_list(ids):
+    if len(ids) <= 1:
+        return "".join(ids)
+    return ", ".join(ids[:-1]) + " and " + ids[-1]
+
+
+def procedure_steps(p: dict) -> list[dict]:
+    """The winding procedure for this order, step by step, from its own fields.
+
+    Which steps appear depends on the order: strand count, layers and layer
+    tape, toroid or cylinder, whether the hookup has joints, the duty.
+    """
+    form = p.get("form") or {}
+    wire = p.get("wire") or {}
+    w = p.get("winding") or {}
+    hookup = p.get("hookup") or {}
+    strands = p.get("strands") or []
+    ids = [s["id"] for s in strands]
+    kind = form.get("kind") or "cylinder"
+    toroid = kind == "toroid"
+    n = len(ids)
+    joins = hookup.get("joins") or []
+    turns_in_layer = list(w.get("turns_in_layer") or [])
+    layers = len(turns_in_layer) or int(p.get("layers") or 1)
+    tape = (w.get("layer_tape_m") or 0) > 0 and layers > 1
+    lead = length(w.get("lead_length_m")) if w.get("lead_length_m") else "the lead length in the pick list"
+    steps = []
+
+    inspect = (f"Check it against the specification ({', '.join(v for _, v in form_rows(form)[1:]) or kind}). "
+               "No burrs, cracks or sharp edges where wire will lie.")
+    if toroid:
+        inspect += " Break or cover sharp core edges; the coating must be whole."
+    steps.append(_step("Prepare and inspect the form", inspect, ["form OK"]))
+    steps.append(_step(
+        "Check the wire against the pick list",
+        f"{wire.get('label', '—')}: expect overall Ø {length(wire.get('overall_diameter_m'))}, "
+        f"copper Ø {length(wire.get('copper_diameter_m'))}. Measure the overall diameter.",
+        ["overall Ø measured"]))
+
+    if n == 1:
+        start_text = (f"Anchor the start of strand {ids[0]} leaving {lead}; "
+                      f"tag it \"{ids[0]} start\".")
+    else:
+        marks = "; ".join(f"{s['id']}: {s.get('identification') or 'tag it'}" for s in strands)
+        start_text = (f"Anchor the starts of strands {_strand_list(ids)} side by side, "
+                      f"in that order from the start end, each leaving {lead}. "
+                      f"Tag every start (\"A start\", …). Telling the strands apart: {marks}.")
+    if toroid:
+        start_text += (" Mark the start position on the core; the finish must stop short of it "
+                       "by the gap shown below.")
+    steps.append(_step("Anchor and label the start" + ("s" if n > 1 else ""), start_text))
+
+    for lay in range(layers):
+        t = turns_in_layer[lay] if lay < len(turns_in_layer) else w.get("turns_per_strand")
+        direction = "from the start end" if lay % 2 == 0 else "back towards the start end"
+        if toroid:
+            direction = "round the core in the winding direction"
+        together = ("" if n == 1 else
+                    f", strands {_strand_list(ids)} side by side in every turn (never crossed)")
+        pitch = ("close-wound, turns touching" if w.get("close_wound")
+                 else f"pitch {length(w.get('pitch_m'))} per turn")
+        title = "Wind" if layers == 1 else f"Wind layer {lay + 1} of {layers}"
+        steps.append(_step(title, f"{t} turn(s) per strand {direction}{together}; {pitch}.",
+                           ["turns counted"]))
+        if tape and lay < layers - 1:
+            steps.append(_step(f"Tape over layer {lay + 1}",
+                               f"One wrap of layer tape, {length(w['layer_tape_m'])} thick, over "
+                               f"the full traverse, overlapping at the seam; no wire visible."))
+    if toroid:
+        from .layout import TOROID_GAP_DEG
+        steps.append(_step("Leave the start/finish gap",
+                           f"Stop so that about {TOROID_GAP_DEG:g}° of the core stays bare between "
+                           "the first start and the last finish (common practice: 20–30°); start "
+                           "and finish leads must not touch."))
+    steps.append(_step("Secure the finish" + ("es" if n > 1 else ""),
+                       f"Tape or tie the finish{'es' if n > 1 else ''} leaving {lead}; "
+                       f"tag every finish (\"A finish\", …)."))
+
+    if n == 1:
+        steps.append(_step("Continuity check",
+                           f"{ids[0]} start to {ids[0]} finish must be continuous.", ["✓"]))
+    else:
+        steps.append(_step(
+            "Identify every end by continuity, before any joint",
+            "Each strand's start to its own finish: continuous. Every pair of strands: open "
+            "(no continuity). Correct any tag that does not agree.",
+            [f"{s} ✓" for s in ids]))
+    steps.append(_step("Measure each strand alone",
+                       f"Inductance and DC resistance of strand{'s' if n > 1 else ''} "
+                       f"{_strand_list(ids)}, with the ambient temperature; record in the QC record.",
+                       ["ambient °C"]))
+    alternatives = p.get("alternatives") or {}
+    if joins and n >= 2:
+        expect = []
+        for name in ("series-aiding", "series-opposing"):
+            if name in alternatives:
+                expect.append(f"{name} ≈ {henry(alternatives[name].get('inductance_H'))}")
+        steps.append(_step(
+            "Measure series-aiding and series-opposing before joining",
+            f"Temporarily link {ids[0]} finish to {ids[1]} start and measure (series-aiding), then "
+            f"{ids[0]} finish to {ids[1]} finish (series-opposing). Remove the links. "
+            + (f"Expect {'; '.join(expect)}." if expect else ""),
+            ["aiding", "opposing"]))
+        for j in joins:
+            steps.append(_step(f"Make the joint {' + '.join(j)}",
+                               "Per the wiring diagram: strip the enamel, twist, solder; "
+                               "sleeve the joint.", ["joined"]))
+    sleeve = ", ".join(f"{t} = {end}" for t, end in terminal_names(hookup))
+    steps.append(_step("Sleeve and terminate",
+                       f"Sleeve every lead; terminate and mark the terminals: {sleeve}.",
+                       ["marked"]))
+    cau = p.get("cautions") or {}
+    hipot = p.get("hipot") or {}
+    if cau.get("hipot") and hipot.get("voltage_V"):
+        dur = hipot.get("duration_s")
+        where = "between the winding and the core/form" + (
+            " and between the separate windings" if hookup.get("name") == "separate" else "")
+        steps.append(_step(
+            "Hipot test (authorised tester only)",
+            f"{volt(hipot['voltage_V'])}{f' for {float(dur):g} s' if dur else ''} {where}. "
+            f"Basis: {hipot.get('basis', '—')}. See the cautions.",
+            ["leakage", "result"]))
+    steps.append(_step("Final measurements",
+                       "Terminal inductance and DC resistance at the terminals "
+                       f"{' – '.join(t for t, _ in terminal_names(hookup))}; insulation resistance; "
+                       "record against each serial number in the QC record.", ["recorded"]))
+    for i, s in enumerate(steps):
+        s["number"] = i + 1
+    return steps
+
+
+# --- cautions -------------------------------------------------------------------------
+
+def cautions(p: dict) -> list[dict]:
+    """Cautions the duty calls for; each ends by deferring to the governing rules."""
+    duty = p.get("duty") or {}
+    cau = p.get("cautions") or {}
+    hipot = p.get("hipot") or {}
+    out = []
+    v = duty.get("voltage_V")
+    if cau.get("above_elv"):
+        limit = cau.get("elv_limit_V") or (ELV_DC_V if is_dc(duty) else ELV_AC_V)
+        out.append({"level": "warning", "title": "Above extra-low voltage",
+                    "text": f"The duty, {eng(v, 'V', trim=True)}{' d.c.' if is_dc(duty) else ' rms'}, "
+                            f"exceeds the extra-low-voltage limit of {eng(limit, 'V', trim=True)} "
+                            f"(IEC 61140: 50 V a.c. rms, 120 V ripple-free d.c.). Treat the "
+                            "finished coil and its leads as hazardous live when energised."})
+    if cau.get("hipot"):
+        out.append({"level": "warning", "title": "Hipot test",
+                    "text": f"Test voltage {volt(hipot.get('voltage_V'))}: only trained, authorised "
+                            "staff, in a marked test area, with an interlocked tester; one hand rule; "
+                            "discharge and earth the winding after the test before touching it."})
+    energy = cau.get("stored_energy_J")
+    if energy is None:
+        energy = (p.get("energy") or {}).get("magnetic_J")
+    if energy is not None and energy >= STORED_ENERGY_CAUTION_J:
+        out.append({"level": "warning", "title": "Stored magnetic energy",
+                    "text": f"At the duty current the coil stores {joule(energy)} (½LI²). Opening "
+                            "the circuit while current flows drives a high voltage across the "
+                            "break: de-energise before disconnecting."})
+    elif energy is not None:
+        out.append({"level": "note", "title": "Stored magnetic energy",
+                    "text": f"{joule(energy)} at the duty current (½LI²)."})
+    out.append({"level": "note", "title": "Ring-test fixtures",
+                "text": "The capacitor of a ring (resonance) test fixture holds charge after the "
+                        "test: discharge it through a resistor before handling (energy ½CV²)."})
+    return out
+
+
+# --- QC record -------------------------------------------------------------------------
+
+def qc_items(p: dict) -> list[dict]:
+    """What the inspector measures on every unit, with what it should read.
+
+    ``judged`` items get pass/fail boxes; the others are only recorded (they
+    feed the sign-off's diagnosis or corrections).
+    """
+    term = p.get("terminal") or {}
+    acc = term.get("accept") or {}
+    tol = p.get("tolerances") or {}
+
+    def item(key, label, predicted="", accept="record", judged=True):
+        return {"key": key, "label": label, "predicted": predicted, "band": accept,
+                "judged": judged}
+
+    items = [
+        item("terminal.inductance", "Terminal inductance", henry(term.get("inductance_H")),
+             band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
+        item("terminal.resistance", "Terminal DC resistance (at 20 °C)",
+             ohm(term.get("resistance_ohm")),
+             band(acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm"), ohm)),
+    ]
+    strands = p.get("strands") or []
+    if len(strands) > 1:
+        for s in strands:
+            items.append(item(f"strand.{s['id']}.inductance", f"Strand {s['id']} inductance",
+                              henry(s.get("inductance_H")), f"± {percent(tol.get('inductance'))}"))
+            items.append(item(f"strand.{s['id']}.resistance", f"Strand {s['id']} DC resistance (20 °C)",
+                              ohm(s.get("resistance_20C_ohm")), f"± {percent(tol.get('resistance'))}"))
+    alts = p.get("alternatives") or {}
+    if (p.get("hookup") or {}).get("joins") and len(strands) >= 2:
+        for name in ("series-aiding", "series-opposing"):
+            if name in alts:
+                items.append(item(f"prejoint.{name}", f"Before joint: {name}",
+                                  henry(alts[name].get("inductance_H")), judged=False))
+    where = "strand–strand and to core" if len(strands) > 1 else "to core/form"
+    items.append(item("insulation_resistance", f"Insulation resistance, {where}", "",
+                      "record (MΩ)"))
+    if (p.get("cautions") or {}).get("hipot"):
+        items.append(item("hipot", "Hipot " + volt((p.get("hipot") or {}).get("voltage_V")), "",
+                          "no breakdown; leakage"))
+    items.append(item("ambient", "Ambient temperature", "", "record (°C)", judged=False))
+    return items
+
+
+def unit_tables(units: list[str]) -> list[list[str]]:
+    """Serial numbers in groups, one QC table per group."""
+    units = [str(u) for u in units] or ["—"]
+    return [units[i:i + UNITS_PER_QC_TABLE] for i in range(0, len(units), UNITS_PER_QC_TABLE)]
+
+
+__all__ = ["render_traveller_html", "render_pdf", "traveller", "check_issuable", "eng",
+           "SECTIONS", "PAPER_SIZES", "procedure_steps", "cautions", "qc_items", "parse_end"]
