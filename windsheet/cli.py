@@ -122,6 +122,72 @@ def size(order: Path = typer.Argument(..., help="The order, a YAML file."),
         typer.echo("\n".join(summary_lines(p)))
 
 
+@app.command()
+@guarded
+def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
+            measured: Path = typer.Argument(..., help="The bench readings, a YAML file (see samples/*.measured.yaml)."),
+            as_json: bool = typer.Option(False, "--json", help="Print the sign-off as JSON (SI units)."),
+            register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
+                                                   "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
+            inspector: Optional[str] = typer.Option(None, "--inspector", help="Who signs the units off.")):
+    """Sign off measured units against the issued traveller; exit 0 all pass, 1 any fail, 2 bad input."""
+    from .measured import load_measured
+    from .order import load_order
+    from .register import open_register
+    from .signoff import evaluate_signoff, exit_status
+    from .signoff import summary_lines as signoff_lines
+
+    o = load_order(order)
+    readings = load_measured(measured)
+    who = (inspector or "").strip() or readings.inspector
+    if not who:
+        raise InputError("inspector", "name the inspector with --inspector or 'inspector:' in the measured file")
+    job = o.doc.job
+    with open_register(register, create=False) as reg:
+        _, issued = reg.find_issue(job.number, job.revision, o.sha256)
+        result = evaluate_signoff(issued, readings, inspector=who)
+        reg.record_signoff(result, o.sha256, who,
+                           measured_units=[u.model_dump(mode="json") for u in readings.units])
+    typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
+    raise typer.Exit(exit_status(result))
+
+
+@app.command("register")
+@guarded
+def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: show its history."),
+                 register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
+                                                        "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
+                 issue: Optional[Path] = typer.Option(None, "--issue", help="Record ORDER.yaml as issued "
+                                                      "(the traveller command does this when it prints)."),
+                 as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
+    """List jobs in the register with their state (issued, passed, failed), or one job's history."""
+    from .register import open_register
+    from .signoff import history_lines, register_lines
+
+    issued = None
+    if issue is not None:
+        from .order import load_order
+        from .predict import predict
+
+        o = load_order(issue)
+        p = predict(o)
+    from .register import resolve_register_path
+
+    if issue is None and not resolve_register_path(register).exists():
+        typer.echo(f"(no register yet at {resolve_register_path(register)})")
+        return
+    with open_register(register, create=issue is not None) as reg:
+        if issue is not None:
+            issued = reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
+            typer.echo(f"issued {p['job']['number']} rev {p['job']['revision']} (issue {issued})", err=True)
+        if job:
+            h = reg.job_history(job)
+            typer.echo(_to_json(h) if as_json else "\n".join(history_lines(h)))
+        else:
+            jobs = reg.list_jobs()
+            typer.echo(_to_json(jobs) if as_json else "\n".join(register_lines(jobs)))
+
+
 def main():  # console-script entry point
     app()
 

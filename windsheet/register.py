@@ -292,7 +292,7 @@ class Register:
                          (number,)).fetchall()
         if not rows:
             raise InputError("job.number", f"job {number} has no traveller issued in register {self.label}; "
-                                           "issue the traveller first")
+                                           "issue the traveller first (or: windsheet register --issue ORDER.yaml)")
         same_rev = [r for r in rows if r[1] == revision]
         match = [r for r in same_rev if r[2] == order_sha256]
         if match:
@@ -304,6 +304,14 @@ class Register:
         issued = ", ".join(sorted({r[1] for r in rows}))
         raise InputError("job.revision", f"revision {revision} of job {number} has not been issued "
                                          f"(issued: {issued}); issue its traveller first")
+
+    def find_issue(self, number: str, revision: Optional[str], order_sha256: str) -> tuple[int, dict]:
+        """The issue a sign-off of this order belongs to, and its recorded predictions.
+
+        Raises the same refusals as :meth:`record_signoff`.
+        """
+        issue_id = self._issue_for(self.conn, number, str(revision or "-"), order_sha256)
+        return issue_id, self.issued_predictions(issue_id)
 
     def record_signoff(self, result: dict, order_sha256: Optional[str] = None,
                        inspector: Optional[str] = None, measured_units: Optional[list] = None) -> int:
@@ -433,7 +441,8 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
     label = str(p)
     if not p.exists():
         if not create:
-            raise InputError(label, "no register here yet")
+            raise InputError(label, "no register here yet; issue the job's traveller first "
+                                    "(or: windsheet register --issue ORDER.yaml)")
         _create(p, label)
     _check_header(_read_header(p, label), label)
     try:

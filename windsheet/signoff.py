@@ -572,3 +572,65 @@ def evaluate_signoff(prediction: dict, measured: MeasuredFile, inspector: Option
 def exit_status(result: dict) -> int:
     """0 when every unit passes, 1 when any fails (the CLI's contract)."""
     return 0 if result["verdict"] == "pass" else 1
+
+
+# --- Text summary for the terminal ----------------------------------------------------
+
+def summary_lines(result: dict, eng) -> list[str]:
+    """Readable lines of a sign-off; ``eng(value, unit)`` formats a number (the CLI's)."""
+    out = [f"Sign-off {result['job']} rev {result['revision']} — {result.get('part') or ''}".rstrip(" —"),
+           f"Inspector {result.get('inspector') or '—'}, {result.get('date') or 'undated'}: "
+           f"{result['units_passed']} passed, {result['units_failed']} failed"
+           + (f", not signed: {', '.join(result['units_not_signed'])}" if result['units_not_signed'] else "")]
+    shown_unit = {"ohm": "Ω"}
+    for u in result["units"]:
+        out.append(f"{u['serial']}: {u['verdict'].upper()}")
+        for line in u["lines"]:
+            if line["measured"] is None:
+                value = line.get("note") or "—"
+            elif line["unit"] in ("", "turns"):
+                value = f"{line['measured']:.4g}" if isinstance(line["measured"], float) else str(line["measured"])
+            else:
+                value = eng(line["measured"], shown_unit.get(line["unit"], line["unit"]))
+            band = ""
+            if line["min"] is not None or line["max"] is not None:
+                u_ = shown_unit.get(line["unit"], line["unit"]) if line["unit"] not in ("", "turns") else ""
+                lo = eng(line["min"], u_) if u_ else (f"{line['min']:.4g}" if line["min"] is not None else "")
+                hi = eng(line["max"], u_) if u_ else (f"{line['max']:.4g}" if line["max"] is not None else "")
+                band = f"  [{lo or '—'} … {hi or '—'}]"
+            mark = {"pass": "ok", "fail": "FAIL", "info": ""}[line["result"]]
+            out.append(f"  {mark:<4} {line['item']:<44} {value}{band}")
+        for d in u["diagnosis"]:
+            out.append(f"  -> {d['finding']}")
+    for c in result.get("cautions") or []:
+        out.append(f"Caution: {c}")
+    out.append(f"Verdict: {result['verdict'].upper()}")
+    return out
+
+
+def register_lines(jobs: list[dict]) -> list[str]:
+    """One line per job for ``windsheet register``."""
+    if not jobs:
+        return ["(register is empty)"]
+    out = []
+    for j in jobs:
+        n_units = len(j["units"])
+        out.append(f"{j['number']:<12} rev {j['revision']:<4} {j['state']:<7} "
+                   f"{len(j['units_passed'])}/{n_units} passed  {j.get('part') or ''}")
+    return out
+
+
+def history_lines(history: dict) -> list[str]:
+    """A job's events, oldest first, for ``windsheet register JOB``."""
+    st = history["state"]
+    out = [f"{history['number']}: {st['state']} (rev {st['revision']}, "
+           f"{len(st['units_passed'])}/{len(st['units'])} units passed)"]
+    for e in history["events"]:
+        if e["event"] == "issued":
+            out.append(f"  {e['at']}  issued rev {e['revision']}  sha256 {e['order_sha256'][:12]}…"
+                       + (f"  by {e['by']}" if e.get("by") else ""))
+        else:
+            units = ", ".join(f"{u['serial']} {u['verdict']}" for u in e["units"])
+            out.append(f"  {e['at']}  signed off rev {e['revision']}: {e['verdict']}  by {e.get('by') or '—'}"
+                       f"  ({units})")
+    return out
