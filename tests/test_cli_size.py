@@ -54,10 +54,12 @@ def test_bifilar_sample_values():
 def test_readable_summary_is_aligned():
     res = runner.invoke(app, ["size", str(BIFILAR)])
     assert res.exit_code == 0
-    lines = [ln for ln in res.stdout.splitlines() if ln and not ln.startswith(" ")]
-    cols = {ln.index("  ", len(ln.split("  ")[0])) for ln in lines if "  " in ln}
-    assert "Terminals" in res.stdout and "Worst adjacent" in res.stdout
-    assert len({ln[:16].rstrip() != "" for ln in lines}) == 1 and cols
+    labelled = [ln for ln in res.stdout.splitlines() if ln and not ln.startswith(" ")]
+    starts = {len(ln) - len(ln[ln.index("  "):].lstrip()) for ln in labelled}
+    # Every value starts in the same column, after the widest label.
+    assert len(starts) == 1
+    assert {"Terminals", "Worst adjacent", "Insulation", "Strand A", "Strand B"} <= {
+        ln.split("  ")[0] for ln in labelled}
 
 
 def write_variant(tmp_path, **changes):
