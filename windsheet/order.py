@@ -15,10 +15,10 @@ import re
 from pathlib import Path
 from typing import Annotated, Any, Literal, Optional, Union
 
-import yaml
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
 
 from .errors import InputError, join_path
+from .fileio import parse_yaml_bytes
 from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup
 from .units import parse_percent, parse_quantity
 
@@ -28,62 +28,19 @@ MAX_DEPTH = 24
 
 
 # ---------------------------------------------------------------- YAML, safely
-class _GuardedLoader(yaml.SafeLoader):
-    """Safe loading that also refuses aliases and deep nesting.
-
-    Aliases are the vehicle of "billion laughs" documents and an order never
-    needs them; depth is bounded so no document can exhaust the stack.
-    """
-
-    def __init__(self, stream):
-        super().__init__(stream)
-        self._depth = 0
-
-    def compose_node(self, parent, index):
-        if self.check_event(yaml.AliasEvent):
-            mark = self.peek_event().start_mark
-            raise InputError(f"line {mark.line + 1}", "YAML aliases (*name) are not accepted; write the value out")
-        self._depth += 1
-        if self._depth > MAX_DEPTH:
-            mark = self.peek_event().start_mark
-            raise InputError(f"line {mark.line + 1}", f"document nested deeper than {MAX_DEPTH} levels")
-        try:
-            return super().compose_node(parent, index)
-        finally:
-            self._depth -= 1
-
-
-def read_yaml_bytes(data: bytes, what: str = "order", max_bytes: int = MAX_ORDER_BYTES):
-    """Parse YAML bytes into plain Python data, refusing anything hostile."""
-    if len(data) > max_bytes:
-        raise InputError("", f"{what} file is {len(data)} bytes; the limit is {max_bytes} bytes")
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError:
-        raise InputError("", f"{what} file is not UTF-8 text") from None
-    if "\x00" in text:
-        raise InputError("", f"{what} file holds binary data, not YAML text")
-    try:
-        doc = yaml.load(text, Loader=_GuardedLoader)  # noqa: S506 - a SafeLoader subclass
-    except InputError:
-        raise
-    except yaml.YAMLError as exc:
-        mark = getattr(exc, "problem_mark", None)
-        where = f"line {mark.line + 1}" if mark else ""
-        problem = getattr(exc, "problem", None) or str(exc).splitlines()[0]
-        raise InputError(where, f"not valid YAML: {problem}") from None
-    except RecursionError:
-        raise InputError("", f"{what} file is nested too deeply") from None
+def read_yaml_bytes(data: bytes, what: str = "order", max_bytes: int = MAX_ORDER_BYTES, label: str = ""):
+    """Parse YAML bytes into a mapping, refusing anything hostile (see :mod:`windsheet.fileio`)."""
+    doc = parse_yaml_bytes(data, label or what, max_bytes=max_bytes, max_depth=MAX_DEPTH)
     if not isinstance(doc, dict):
-        raise InputError("", f"expected the {what} to be a YAML mapping of sections, got {type(doc).__name__}")
+        raise InputError(label, f"expected the {what} to be a YAML mapping of sections, got {type(doc).__name__}")
     return doc
 
 
 def read_file(path) -> bytes:
     p = Path(path)
     try:
-        if p.stat().st_size > MAX_ORDER_BYTES * 4:
-            raise InputError(str(path), f"file is larger than {MAX_ORDER_BYTES * 4} bytes")
+        if p.stat().st_size > MAX_ORDER_BYTES:
+            raise InputError(str(path), f"file is larger than {MAX_ORDER_BYTES // 1024} kB; not an order")
         return p.read_bytes()
     except FileNotFoundError:
         raise InputError(str(path), "file not found") from None
@@ -352,7 +309,7 @@ def _validation_to_input_error(exc: ValidationError) -> InputError:
 
 def parse_order(data: bytes, path: str | None = None) -> Order:
     """Validate an order from the bytes of its YAML file."""
-    raw = read_yaml_bytes(data, "order")
+    raw = read_yaml_bytes(data, "order", label=path or "order")
     raw = {str(k): v for k, v in raw.items()}
     try:
         doc = OrderDoc.model_validate(raw)
