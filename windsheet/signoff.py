@@ -159,8 +159,15 @@ def _gauge_hypotheses(ordered: dict):
 
 
 def _rank(measured: dict, ordered: dict, hypotheses: list[dict]):
+    """Hypotheses nearest first.  The turn count is fitted (a free parameter) and
+    can mimic a wiring fault -- one strand alone reads like half the turns -- so a
+    fixed hypothesis that matches clearly is put ahead of it."""
     scored = [(_log_distance(measured, h["expected"]), h) for h in hypotheses]
     scored.sort(key=lambda t: t[0])
+    fixed = [t for t in scored if t[1]["basis"] != "turns"]
+    if fixed and fixed[0][0] <= CLEAR_MATCH and scored[0][1]["basis"] == "turns":
+        scored.remove(fixed[0])
+        scored.insert(0, fixed[0])
     d_ordered = _log_distance(measured, ordered)
     return scored, d_ordered
 
