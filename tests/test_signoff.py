@@ -151,6 +151,17 @@ def test_ringing_reading_is_converted():
     assert line["reading"]["method"] == "ringing"
 
 
+def test_ringing_counts_the_stray_capacitance():
+    p = bifilar_prediction()
+    u = readings_as_predicted(p)
+    # Standard circuit theory: 9 nF + 1 nF stray = 10 nF rung at 159.155 kHz -> 100 uH.
+    u["strands"]["A"]["inductance"] = {"resonant_frequency": "159.1549 kHz", "capacitor": "9 nF",
+                                       "stray_capacitance": "1 nF"}
+    r = evaluate(p, u)
+    line = next(x for x in r["units"][0]["lines"] if x["key"] == "strand.A.inductance")
+    assert line["measured"] == pytest.approx(100e-6, rel=2e-6)
+
+
 def test_spread_of_units_mean_and_range():
     p = bifilar_prediction()
     units = []
