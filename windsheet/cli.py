@@ -188,6 +188,71 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
             typer.echo(_to_json(jobs) if as_json else "\n".join(register_lines(jobs)))
 
 
+@app.command("traveller")
+@guarded
+def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), or a folder of orders."),
+                  out: Path = typer.Option(..., "-o", "--out", help="Output file; for a folder of orders, "
+                                           "an output folder (one traveller per order)."),
+                  html: bool = typer.Option(False, "--html", help="Write HTML instead of PDF."),
+                  paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
+                  force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
+                                             "fails; the sheet then says FORCED."),
+                  register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
+                                                         "$WINDSHEET_REGISTER, else ./windsheet-register.db).")):
+    """Print the traveller (job sheet) of an order, and record the issue in the job register."""
+    from .fileio import atomic_write_bytes
+    from .order import load_order
+    from .predict import predict
+    from .register import open_register
+    from .render import check_issuable, order_files, render_pdf, render_traveller_html
+
+    files = order_files(order)
+    many = Path(order).is_dir()
+    if many and not out.is_dir():
+        if out.exists():
+            raise InputError(str(out), "a folder of orders needs an output folder, not a file")
+        out.mkdir(parents=True)
+    # Everything is sized, checked and rendered before anything is written or recorded.
+    jobs = []
+    for f in files:
+        o = load_order(f)
+        p = predict(o)
+        check_issuable(p, force)
+        forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
+        page = render_traveller_html(p, paper=paper, forced=forced)
+        data = page.encode("utf-8") if html else render_pdf(page)
+        target = out / f"{f.stem}.{'html' if html else 'pdf'}" if many else out
+        jobs.append((o, p, forced, target, data))
+    with open_register(register) as reg:
+        for o, p, forced, target, data in jobs:
+            reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
+            atomic_write_bytes(target, data)
+            note = " — FORCED over a failing insulation check" if forced else ""
+            typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=bool(forced))
+
+
+@app.command("demo")
+@guarded
+def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the demo sheets."),
+             samples: Optional[Path] = typer.Option(None, "--samples", help="Folder of sample orders "
+                                                    "(default: the project's samples/).")):
+    """Render every sample order's traveller to PDF and HTML (nothing is recorded)."""
+    from .fileio import atomic_write_bytes
+    from .order import load_order
+    from .predict import predict
+    from .render import order_files, render_pdf, render_traveller_html
+
+    folder = samples or Path(__file__).resolve().parent.parent / "samples"
+    files = order_files(folder)
+    out.mkdir(parents=True, exist_ok=True)
+    for f in files:
+        p = predict(load_order(f))
+        page = render_traveller_html(p)
+        atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
+        atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))
+    typer.echo(f"{len(files)} travellers (PDF and HTML) written to {out.resolve()}")
+
+
 def main():  # console-script entry point
     app()
 

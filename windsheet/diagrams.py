@@ -80,6 +80,22 @@ def _coil_path(x0, x1, y, bumps=5):
     return " ".join(d)
 
 
+def winding_terminals(hookup: dict, strand_ids) -> list[str]:
+    """The ends brought out as terminals, in T1, T2, … order.
+
+    A ``separate`` hookup lists only the first winding's pair; every strand
+    there is its own winding, so each strand's start and finish follow as
+    T3/T4, T5/T6, ….
+    """
+    terminals = [str(t) for t in hookup.get("terminals") or []]
+    if hookup.get("name") == "separate":
+        for s in strand_ids:
+            for end in (f"{s}.start", f"{s}.finish"):
+                if end not in terminals:
+                    terminals.append(end)
+    return terminals
+
+
 def _nets(hookup):
     """Each joint as a tuple of ends, in the order the hookup lists them."""
     return [tuple(str(e) for e in join) for join in hookup.get("joins") or [] if len(join) >= 2]
@@ -116,7 +132,7 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
         for end in net:
             if end not in end_xy:
                 raise ValueError(f"joint names {end!r}, which is not an end of strands {ids}")
-    terminals = [str(t) for t in hookup.get("terminals") or []]
+    terminals = winding_terminals(hookup, ids)
     for t in terminals:
         if t not in end_xy:
             raise ValueError(f"terminal names {t!r}, which is not an end of strands {ids}")
@@ -214,7 +230,8 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
     slots the engine chose to show (``{"slot": k, "strand": "A"}``); where the
     listed slot numbers jump, the slots in between are drawn as an ellipsis.
     """
-    layers = cross_section.get("layers") or []
+    layers = [layer.get("slots") or [] if isinstance(layer, dict) else layer
+              for layer in cross_section.get("layers") or []]
     tape = bool(cross_section.get("tape_between_layers"))
     cell = 20.0
     gap_w = 26.0

@@ -15,7 +15,7 @@ from urllib.parse import unquote, urlsplit
 import jinja2
 from markupsafe import Markup
 
-from .diagrams import cross_section_svg, parse_end, wiring_svg
+from .diagrams import cross_section_svg, parse_end, winding_terminals, wiring_svg
 from .errors import InputError
 
 TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
@@ -262,6 +262,24 @@ def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = Fa
     return env.get_template("traveller.html.j2").render(**ctx)
 
 
+def order_files(path) -> list[Path]:
+    """The order files a path names: the file itself, or a folder's ``*.yaml`` orders.
+
+    Measured-values files (``*.measured.yaml``) in the folder are not orders.
+    """
+    path = Path(path)
+    if path.is_dir():
+        found = sorted(q for q in path.iterdir()
+                       if q.suffix.lower() in (".yaml", ".yml") and q.is_file()
+                       and not q.name.lower().endswith((".measured.yaml", ".measured.yml")))
+        if not found:
+            raise InputError(str(path), "no order files (*.yaml) in this folder")
+        return found
+    if not path.is_file():
+        raise InputError(str(path), "no such order file or folder")
+    return [path]
+
+
 def traveller(prediction: dict, paper: str = "a4", forced: bool = False) -> tuple[str, bytes]:
     """HTML and PDF of one traveller."""
     html = render_traveller_html(prediction, paper=paper, forced=forced)
@@ -283,11 +301,12 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "forced": bool(forced),
         "verdict": ins.get("verdict") or "unknown",
         "strand_ids": ids,
-        "terminal_names": terminal_names(hookup),
+        "terminal_names": terminal_names(hookup, ids),
         "joins_text": [" + ".join(j) for j in hookup.get("joins") or []],
         "wiring_svg": Markup(wiring_svg(hookup, ids, labels)),
         "cross_section_svg": Markup(cross_section_svg(p.get("cross_section") or {},
                                                       (p.get("form") or {}).get("kind") or "")),
+        "section_wide": _widest_layer(p.get("cross_section") or {}) > 14,
         "form_rows": form_rows(p.get("form") or {}),
         "duty_rows": duty_rows(p.get("duty") or {}),
         "picks": pick_list(p),
@@ -300,23 +319,33 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
     }
 
 
-def terminal_names(hookup: dict) -> list[tuple[str, str]]:
-    return [(f"T{i + 1}", str(t)) for i, t in enumerate(hookup.get("terminals") or [])]
+def _widest_layer(cross_section: dict) -> int:
+    layers = cross_section.get("layers") or []
+    return max([len(l.get("slots") or [] if isinstance(l, dict) else l) for l in layers] + [0])
+
+
+def terminal_names(hookup: dict, strand_ids=()) -> list[tuple[str, str]]:
+    """``[("T1", "A.start"), ...]``, numbered as on the wiring diagram."""
+    return [(f"T{i + 1}", t) for i, t in enumerate(winding_terminals(hookup, strand_ids))]
 
 
 def form_rows(form: dict) -> list[tuple[str, str]]:
     rows = [("Kind", form.get("kind") or "—")]
-    if form.get("description"):
-        rows.append(("Description", form["description"]))
+    what = form.get("material") or form.get("description")
+    if what:
+        rows.append(("Material", what))
     for key, label in (("diameter_m", "Winding diameter"), ("traverse_m", "Traverse"),
                        ("max_build_m", "Maximum build"), ("inner_diameter_m", "Inner diameter"),
-                       ("outer_diameter_m", "Outer diameter"), ("height_m", "Height")):
+                       ("outer_diameter_m", "Outer diameter"), ("height_m", "Height"),
+                       ("width_m", "Window width"), ("mean_turn_length_m", "Mean turn length")):
         if form.get(key) is not None:
             rows.append((label, length(form[key])))
     if form.get("al_H") is not None:
         rows.append(("AL", eng(form["al_H"], "H/turn²", sig=3)))
     if form.get("permeability") is not None:
         rows.append(("Relative permeability", f"{float(form['permeability']):g}"))
+    if form.get("gap_deg") is not None:
+        rows.append(("Start–finish gap", f"{float(form['gap_deg']):.0f}°"))
     return rows
 
 
@@ -326,7 +355,12 @@ def is_dc(duty: dict) -> bool:
 
 def duty_rows(duty: dict) -> list[tuple[str, str]]:
     dc = is_dc(duty)
-    rows = [("Voltage", eng(duty.get("voltage_V"), "V", trim=True) + (" d.c." if dc else " rms")),
+    rows = [("Voltage", eng(duty.get("voltage_V"), "V", trim=True) + (" d.c." if dc else " rms")
+             + (" per winding" if duty.get("between_windings_V") is not None else ""))]
+    if duty.get("between_windings_V") is not None:
+        rows.append(("Between windings", eng(duty["between_windings_V"], "V", trim=True)
+                     + (" d.c." if dc else " rms")))
+    rows += [
             ("Frequency", "d.c." if dc else eng(duty.get("frequency_Hz"), "Hz", trim=True)),
             ("Current", eng(duty.get("current_A"), "A", trim=True) + ("" if dc else " rms")),
             ("Ambient", celsius(duty.get("ambient_C")))]
@@ -349,7 +383,8 @@ def insulation_rows(ins: dict) -> list[tuple[str, str]]:
     add("Allowed between adjacent turns", "allowed_Vpk", lambda v: volt(v) + " peak")
     add("Margin (allowed ÷ worst)", "margin", lambda v: f"{float(v):.2f}")
     add("Paschen minimum, air", "paschen_min_Vpk", lambda v: volt(v) + " peak")
-    add("Partial-discharge inception (assumed)", "pdiv_Vpk", lambda v: volt(v) + " peak")
+    add("Partial-discharge inception, 20 °C (assumed)", "pdiv_Vpk", lambda v: volt(v) + " peak")
+    add("Partial-discharge inception, hot (assumed)", "pdiv_hot_Vpk", lambda v: volt(v) + " peak")
     add("Worst layer-to-layer voltage", "layer_Vpk", lambda v: volt(v) + " peak")
     add("Layer tape rating", "tape_rating_V", volt)
     return rows
@@ -363,7 +398,8 @@ def pick_list(p: dict) -> list[dict]:
     hookup = p.get("hookup") or {}
     job = p.get("job") or {}
     qty = int(job.get("quantity") or len(job.get("units") or []) or 1)
-    picks = [{"item": "Form / core", "spec": form.get("description") or form.get("kind") or "—",
+    picks = [{"item": "Form / core",
+              "spec": form.get("material") or form.get("description") or form.get("kind") or "—",
               "qty": f"{qty}"}]
     for s in p.get("strands") or []:
         per_unit = s.get("wire_length_with_scrap_m")
@@ -375,8 +411,11 @@ def pick_list(p: dict) -> list[dict]:
         })
     layers = int(p.get("layers") or w.get("layers") or 1)
     if (w.get("layer_tape_m") or 0) > 0 and layers > 1:
+        rating = w.get("layer_tape_rating_V")
         picks.append({"item": "Layer tape",
-                      "spec": f"{length(w['layer_tape_m'])} thick, full traverse width",
+                      "spec": f"{w.get('layer_tape_material') or 'insulating tape'}, "
+                              f"{length(w['layer_tape_m'])} thick"
+                              + (f", rated {volt(rating)}" if rating else "") + ", full traverse width",
                       "qty": f"{layers - 1} wrap(s) per unit"})
     ends = 2 * len(p.get("strands") or [])
     picks.append({"item": "Sleeving",
@@ -468,18 +507,21 @@ def procedure_steps(p: dict) -> list[dict]:
         pitch = ("close-wound, turns touching" if w.get("close_wound")
                  else f"pitch {length(w.get('pitch_m'))} per turn")
         title = "Wind" if layers == 1 else f"Wind layer {lay + 1} of {layers}"
-        steps.append(_step(title, f"{t} turn(s) per strand {direction}{together}; {pitch}.",
+        per = " per strand" if n > 1 else ""
+        steps.append(_step(title, f"{t} turns{per} {direction}{together}; {pitch}.",
                            ["turns counted"]))
         if tape and lay < layers - 1:
             steps.append(_step(f"Tape over layer {lay + 1}",
-                               f"One wrap of layer tape, {length(w['layer_tape_m'])} thick, over "
+                               f"One wrap of {w.get('layer_tape_material') or 'layer tape'}, "
+                               f"{length(w['layer_tape_m'])} thick, over "
                                f"the full traverse, overlapping at the seam; no wire visible."))
     if toroid:
-        from .layout import TOROID_GAP_DEG
+        gap = form.get("gap_deg")
+        gap_text = f"about {float(gap):.0f}°" if gap is not None else "the gap in the specification"
         steps.append(_step("Leave the start/finish gap",
-                           f"Stop so that about {TOROID_GAP_DEG:g}° of the core stays bare between "
-                           "the first start and the last finish (common practice: 20–30°); start "
-                           "and finish leads must not touch."))
+                           f"Stop so that {gap_text} of the core stays bare between the starts and "
+                           "the finishes (common practice: 20–30°); start and finish leads must "
+                           "not touch or cross.", ["gap checked"]))
     steps.append(_step("Secure the finish" + ("es" if n > 1 else ""),
                        f"Tape or tie the finish{'es' if n > 1 else ''} leaving {lead}; "
                        f"tag every finish (\"A finish\", …)."))
@@ -499,21 +541,25 @@ def procedure_steps(p: dict) -> list[dict]:
                        ["ambient °C"]))
     alternatives = p.get("alternatives") or {}
     if joins and n >= 2:
-        expect = []
-        for name in ("series-aiding", "series-opposing"):
-            if name in alternatives:
-                expect.append(f"{name} ≈ {henry(alternatives[name].get('inductance_H'))}")
+        pairs = list(zip(ids, ids[1:]))
+        expect = ""
+        if n == 2:
+            got = [f"{name} ≈ {henry(alternatives[name].get('inductance_H'))}"
+                   for name in ("series-aiding", "series-opposing") if name in alternatives]
+            expect = f" Expect {'; '.join(got)}." if got else ""
+        how = "; ".join(f"{a} finish to {b} start (aiding), then {a} finish to {b} finish (opposing)"
+                        for a, b in pairs)
         steps.append(_step(
             "Measure series-aiding and series-opposing before joining",
-            f"Temporarily link {ids[0]} finish to {ids[1]} start and measure (series-aiding), then "
-            f"{ids[0]} finish to {ids[1]} finish (series-opposing). Remove the links. "
-            + (f"Expect {'; '.join(expect)}." if expect else ""),
-            ["aiding", "opposing"]))
+            f"Link temporarily and measure at the test frequency, pair by pair: {how}. Remove the "
+            f"links.{expect} Aiding must read well above opposing; if not, a start and finish "
+            "are swapped in the tags.",
+            [f"{a}+{b} aiding / opposing" for a, b in pairs]))
         for j in joins:
             steps.append(_step(f"Make the joint {' + '.join(j)}",
                                "Per the wiring diagram: strip the enamel, twist, solder; "
                                "sleeve the joint.", ["joined"]))
-    sleeve = ", ".join(f"{t} = {end}" for t, end in terminal_names(hookup))
+    sleeve = ", ".join(f"{t} = {end}" for t, end in terminal_names(hookup, ids))
     steps.append(_step("Sleeve and terminate",
                        f"Sleeve every lead; terminate and mark the terminals: {sleeve}.",
                        ["marked"]))
@@ -530,7 +576,7 @@ def procedure_steps(p: dict) -> list[dict]:
             ["leakage", "result"]))
     steps.append(_step("Final measurements",
                        "Terminal inductance and DC resistance at the terminals "
-                       f"{' – '.join(t for t, _ in terminal_names(hookup))}; insulation resistance; "
+                       f"{' – '.join(t for t, _ in terminal_names(hookup, ids))}; insulation resistance; "
                        "record against each serial number in the QC record.", ["recorded"]))
     for i, s in enumerate(steps):
         s["number"] = i + 1
@@ -545,11 +591,12 @@ def cautions(p: dict) -> list[dict]:
     cau = p.get("cautions") or {}
     hipot = p.get("hipot") or {}
     out = []
-    v = duty.get("voltage_V")
+    v = cau.get("highest_V") if cau.get("highest_V") is not None else duty.get("voltage_V")
     if cau.get("above_elv"):
         limit = cau.get("elv_limit_V") or (ELV_DC_V if is_dc(duty) else ELV_AC_V)
         out.append({"level": "warning", "title": "Above extra-low voltage",
-                    "text": f"The duty, {eng(v, 'V', trim=True)}{' d.c.' if is_dc(duty) else ' rms'}, "
+                    "text": f"The highest working voltage, {eng(v, 'V', trim=True)}"
+                            f"{' d.c.' if is_dc(duty) else ' rms'}, "
                             f"exceeds the extra-low-voltage limit of {eng(limit, 'V', trim=True)} "
                             f"(IEC 61140: 50 V a.c. rms, 120 V ripple-free d.c.). Treat the "
                             "finished coil and its leads as hazardous live when energised."})
@@ -577,47 +624,77 @@ def cautions(p: dict) -> list[dict]:
 
 # --- QC record -------------------------------------------------------------------------
 
+def _tol_band(value, tol, fmt) -> str:
+    # Same arithmetic as the sign-off's band: predicted x (1 -/+ tolerance).
+    if value is None or tol is None:
+        return "—"
+    return band(value * (1 - tol), value * (1 + tol), fmt)
+
+
 def qc_items(p: dict) -> list[dict]:
     """What the inspector measures on every unit, with what it should read.
 
-    ``judged`` items get pass/fail boxes; the others are only recorded (they
-    feed the sign-off's diagnosis or corrections).
+    Keys follow the sign-off's line keys.  ``judged`` items get pass/fail
+    boxes; the others are only recorded (they feed the sign-off's diagnosis).
     """
+    from .signoff import DEFAULT_MIN_INSULATION_OHM
+
     term = p.get("terminal") or {}
     acc = term.get("accept") or {}
     tol = p.get("tolerances") or {}
+    tol_L, tol_R = tol.get("inductance"), tol.get("resistance")
+    strands = p.get("strands") or []
+    ids = [s["id"] for s in strands]
+    ins = p.get("insulation") or {}
 
     def item(key, label, predicted="", accept="record", judged=True):
         return {"key": key, "label": label, "predicted": predicted, "band": accept,
                 "judged": judged}
 
-    items = [
-        item("terminal.inductance", "Terminal inductance", henry(term.get("inductance_H")),
+    items = []
+    # One strand alone is what the terminals read; its own rows would repeat them.
+    for s in strands if len(strands) > 1 else []:
+        sid = s["id"]
+        alone = " alone" if len(strands) > 1 else ""
+        items.append(item(f"strand.{sid}.inductance", f"Inductance, strand {sid}{alone}",
+                          henry(s.get("inductance_H")), _tol_band(s.get("inductance_H"), tol_L, henry)))
+        items.append(item(f"strand.{sid}.resistance", f"DC resistance, strand {sid} (at 20 °C)",
+                          ohm(s.get("resistance_20C_ohm")),
+                          _tol_band(s.get("resistance_20C_ohm"), tol_R, ohm)))
+    if (p.get("hookup") or {}).get("joins") and len(strands) >= 2:
+        alts = p.get("alternatives") or {}
+        for a, b in zip(ids, ids[1:]):
+            aid = (alts.get("series-aiding") or {}).get("inductance_H") if len(ids) == 2 else None
+            opp = (alts.get("series-opposing") or {}).get("inductance_H") if len(ids) == 2 else None
+            items.append(item(f"pair.{a}-{b}.series_aiding", f"Before joint: {a}+{b} series-aiding",
+                              henry(aid) if aid else "", _tol_band(aid, tol_L, henry) if aid else "record",
+                              judged=bool(aid)))
+            items.append(item(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
+                              henry(opp) if opp else "", "record (leakage)", judged=False))
+    items += [
+        item("terminal.inductance", "Inductance at the terminals", henry(term.get("inductance_H")),
              band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
-        item("terminal.resistance", "Terminal DC resistance (at 20 °C)",
+        item("terminal.resistance", "DC resistance at the terminals (at 20 °C)",
              ohm(term.get("resistance_ohm")),
              band(acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm"), ohm)),
     ]
-    strands = p.get("strands") or []
+    turns = strands[0].get("turns") if strands else None
+    items.append(item("strand.turns", "Turns counted (where checked)", f"{turns}" if turns else "",
+                      f"{turns} per strand" if turns else "record"))
+    ir_min = ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM
     if len(strands) > 1:
-        for s in strands:
-            items.append(item(f"strand.{s['id']}.inductance", f"Strand {s['id']} inductance",
-                              henry(s.get("inductance_H")), f"± {percent(tol.get('inductance'))}"))
-            items.append(item(f"strand.{s['id']}.resistance", f"Strand {s['id']} DC resistance (20 °C)",
-                              ohm(s.get("resistance_20C_ohm")), f"± {percent(tol.get('resistance'))}"))
-    alts = p.get("alternatives") or {}
-    if (p.get("hookup") or {}).get("joins") and len(strands) >= 2:
-        for name in ("series-aiding", "series-opposing"):
-            if name in alts:
-                items.append(item(f"prejoint.{name}", f"Before joint: {name}",
-                                  henry(alts[name].get("inductance_H")), judged=False))
-    where = "strand–strand and to core" if len(strands) > 1 else "to core/form"
-    items.append(item("insulation_resistance", f"Insulation resistance, {where}", "",
-                      "record (MΩ)"))
-    if (p.get("cautions") or {}).get("hipot"):
-        items.append(item("hipot", "Hipot " + volt((p.get("hipot") or {}).get("voltage_V")), "",
-                          "no breakdown; leakage"))
-    items.append(item("ambient", "Ambient temperature", "", "record (°C)", judged=False))
+        items.append(item("continuity.strand_to_strand", "Continuity between strands", "open", "open"))
+        items.append(item("insulation.strand_to_strand", "Insulation resistance, strand to strand", "",
+                          f"≥ {eng(ir_min, OHM, sig=3, trim=True)}"))
+    items.append(item("insulation.to_core", "Insulation resistance to core/form", "",
+                      f"≥ {eng(ir_min, OHM, sig=3, trim=True)}"))
+    hipot = p.get("hipot") or {}
+    if (p.get("cautions") or {}).get("hipot") and hipot.get("voltage_V"):
+        dur = hipot.get("duration_s")
+        items.append(item("hipot.result", f"Hipot {volt(hipot['voltage_V'])}"
+                          + (f", {float(dur):g} s" if dur else "") + ": leakage, withstand",
+                          "", "withstands"))
+    items.append(item("ambient", "Ambient temperature at test", "", "record (°C)", judged=False))
     return items
 
 
