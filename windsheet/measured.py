@@ -45,9 +45,11 @@ from pydantic_core import PydanticCustomError
 from .errors import InputError, join_path
 from .fileio import read_yaml_file
 from .units import parse_quantity
+from .wire import copper
+from .wire import resistance_to_20C as resistance_at_20C  # noqa: F401 - re-exported for sign-off
 
 #: Temperature coefficient of resistance of annealed copper at 20 degC [1/K], IEC 60028.
-ALPHA_COPPER_20C = 0.00393
+ALPHA_COPPER_20C = copper()["temperature_coefficient_20C"]
 
 STRAND_ID = re.compile(r"^[A-Z]$")
 PAIR_ID = re.compile(r"^([A-Z])-([A-Z])$")
@@ -79,31 +81,6 @@ def resonance_inductance(resonant_frequency, capacitance):
     """
     omega = 2.0 * math.pi * resonant_frequency
     return 1.0 / (omega * omega * capacitance)
-
-
-def resistance_at_20C(resistance, temperature_C, alpha=ALPHA_COPPER_20C):
-    """Correct a copper resistance read at ``temperature_C`` to 20 degC.
-
-    Parameters
-    ----------
-    resistance : float or ndarray
-        Resistance measured at ``temperature_C``. [ohm]
-    temperature_C : float or ndarray
-        Temperature of the winding (the ambient after it has settled). [degC]
-    alpha : float
-        Temperature coefficient at 20 degC. [1/K]  Default 0.00393, annealed copper.
-
-    Returns
-    -------
-    R20 : float or ndarray
-        ``R / (1 + alpha (t - 20))``. [ohm]
-
-    References
-    ----------
-    .. [1] IEC 60028:1925, International standard of resistance for copper
-       (alpha_20 = 0.00393 /K for 100 % IACS annealed copper).
-    """
-    return resistance / (1.0 + alpha * (temperature_C - 20.0))
 
 
 def mutual_from_series(series_aiding, series_opposing):

@@ -42,7 +42,8 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
     in degrees Celsius, the shop's unit, not kelvin.
     """
     pint_dim, si_unit, example = DIMENSIONS[dimension]
-    expected = f"expected a {dimension.replace('_', ' ')} with a unit, like '{example}'"
+    name = dimension.replace("_", " ")
+    expected = f"expected {'an' if name[0] in 'aeiou' else 'a'} {name} with a unit, like '{example}'"
     if isinstance(value, bool) or value is None:
         raise InputError(path, expected)
     if isinstance(value, (int, float)):
