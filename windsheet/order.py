@@ -188,6 +188,8 @@ class Tolerances(_M):
 
 class Insulation(_M):
     derating: Fraction = 0.25
+    #: Least insulation resistance accepted strand to strand and to core (100 MΩ: common practice).
+    min_resistance: Annotated[float, _q("resistance")] = 100e6
     pdiv: Voltage = 500.0
     hot_pdiv_derating: Fraction = 0.25
 

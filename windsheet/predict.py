@@ -270,7 +270,7 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         "alternatives": alternative_hookups(L, R20, doc.test.frequency),
         "worst_adjacent": st["worst_adjacent"],
         "capacitance": st["capacitance"],
-        "insulation": st["insulation"],
+        "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
         "hipot": {**st["hipot"], "voltage_V": stress.hipot_voltage(highest_V)},
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
