@@ -1,0 +1,518 @@
+"""The printable traveller: sections, numbers as the engine gave them, diagrams, paper, escaping."""
+
+from __future__ import annotations
+
+import copy
+import io
+import re
+import unicodedata
+import xml.etree.ElementTree as ET
+from functools import lru_cache
+from pathlib import Path
+
+import pypdf
+import pytest
+from typer.testing import CliRunner
+
+from windsheet import render
+from windsheet.cli import app
+from windsheet.diagrams import cross_section_svg, wiring_svg
+from windsheet.errors import InputError
+from windsheet.order import load_order
+from windsheet.predict import predict
+
+SVG = "{http://www.w3.org/2000/svg}"
+
+# --- the real engine on the samples --------------------------------------------------
+
+ROOT = Path(__file__).resolve().parent.parent
+SAMPLES = sorted(p for p in (ROOT / "samples").glob("*.yaml") if not p.name.endswith(".measured.yaml"))
+SAMPLE_IDS = [p.stem for p in SAMPLES]
+
+
+@lru_cache(maxsize=None)
+def sample_prediction(stem: str) -> dict:
+    return predict(load_order(ROOT / "samples" / f"{stem}.yaml"))
+
+
+@lru_cache(maxsize=None)
+def sample_sheet(stem: str, paper: str = "a4") -> tuple[str, bytes]:
+    html = render.render_traveller_html(sample_prediction(stem), paper=paper)
+    return html, render.render_pdf(html)
+
+
+def order_yaml(tmp_path, name, text) -> Path:
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+# An invented order whose series-aiding strands sit 1500 V rms apart on grade 1 enamel.
+FAILING_ORDER = """\
+job: {number: HL-0499, part: "Test coil", customer: "Invented Ltd", quantity: 2, revision: A, issued_by: "T. Test"}
+form: {kind: cylinder, diameter: 30 mm, traverse: 60 mm}
+wire: {size: 0.315 mm, grade: 1}
+winding: {strands: 2, turns: 80, layers: 1}
+hookup: series-aiding
+duty: {voltage: 3000 V, frequency: 50 Hz, current: 0.05 A, ambient: 25 degC}
+tolerances: {inductance: 10 %, resistance: 5 %}
+"""
+
+# Three strands in an unusual series: A, then C, then B backwards.
+THREE_STRAND_ORDER = """\
+job: {number: HL-0430, part: "Tapped coil", customer: "Invented Ltd", quantity: 1, revision: A}
+form: {kind: cylinder, diameter: 30 mm, traverse: 60 mm}
+wire: {size: 0.315 mm, grade: 2}
+winding: {strands: 3, turns: 20, layers: 1}
+hookup: {joins: [[A.finish, C.start], [C.finish, B.finish]], terminals: [A.start, B.start]}
+duty: {voltage: 10 V, frequency: 1 kHz, current: 0.05 A, ambient: 25 degC}
+tolerances: {inductance: 10 %, resistance: 5 %}
+"""
+
+
+def bifilar_prediction() -> dict:
+    """A fresh copy of the two-strand series-aiding sample's prediction, to alter in a test."""
+    return copy.deepcopy(sample_prediction("hl-0412-bifilar-aiding"))
+
+
+def failing(p: dict) -> dict:
+    p["insulation"]["verdict"] = "fail"
+    p["insulation"]["reasons"] = ["worst adjacent voltage over the allowed value"]
+    return p
+
+
+
+
+def pdf_pages_text(pdf: bytes) -> list[str]:
+    reader = pypdf.PdfReader(io.BytesIO(pdf))
+    return [normalise(p.extract_text()) for p in reader.pages]
+
+
+def normalise(text: str) -> str:
+    # NFKC folds the micro sign and no-break spaces the sheet uses into plain forms.
+    return re.sub(r"\s+", " ", unicodedata.normalize("NFKC", text)).strip()
+
+
+def test_there_are_samples_of_every_kind():
+    kinds = {sample_prediction(s)["form"]["kind"] for s in SAMPLE_IDS}
+    hookups = {sample_prediction(s)["hookup"]["name"] for s in SAMPLE_IDS}
+    assert {"cylinder", "toroid"} <= kinds
+    assert {"single", "series-aiding", "series-opposing"} <= hookups
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_every_section_is_in_the_pdf_in_job_flow_order(stem):
+    text = " ".join(pdf_pages_text(sample_sheet(stem)[1]))
+    positions = [text.find(normalise(h)) for h in render.SECTIONS]
+    assert -1 not in positions, [h for h, at in zip(render.SECTIONS, positions) if at < 0]
+    assert positions == sorted(positions)
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_job_number_revision_and_page_x_of_y_on_every_page(stem):
+    p = sample_prediction(stem)
+    pages = pdf_pages_text(sample_sheet(stem)[1])
+    job = p["job"]
+    for k, page in enumerate(pages, start=1):
+        assert job["number"] in page
+        assert f"Rev {job['revision']}" in page
+        assert f"Qty {job['quantity']}" in page
+        assert f"Issued {job['issue_date']}" in page
+        assert f"Page {k} of {len(pages)}" in page
+        assert "Issued by:" in page
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_html_is_standalone_and_carries_the_same_sections(stem):
+    html = sample_sheet(stem)[0]
+    assert html.lstrip().lower().startswith("<!doctype html>")
+    # The stylesheet is inlined: the HTML file needs nothing beside it.
+    assert "<link" not in html and "@page" in html
+    for heading in render.SECTIONS:
+        assert heading in html
+
+
+def _printed_values(p):
+    """The engine's numbers as the sheet must print them."""
+    t = p["terminal"]
+    values = [render.henry(t["inductance_H"]), render.ohm(t["resistance_ohm"]),
+              render.ohm(t["resistance_hot_ohm"]), render.farad(t["capacitance_F"]),
+              render.hertz(t["self_resonance_Hz"]),
+              render.henry(t["accept"]["inductance_min_H"]), render.henry(t["accept"]["inductance_max_H"]),
+              render.ohm(t["accept"]["resistance_min_ohm"]), render.ohm(t["accept"]["resistance_max_ohm"]),
+              render.volt(p["worst_adjacent"]["voltage_Vpk"])]
+    for s in p["strands"]:
+        values += [render.henry(s["inductance_H"]), render.ohm(s["resistance_20C_ohm"]),
+                   render.ohm(s["resistance_hot_ohm"]), render.length(s["wire_length_m"]),
+                   render.length(s["wire_length_with_scrap_m"]), render.mass(s["mass_kg"])]
+    return values
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_printed_predictions_equal_the_engines(stem):
+    p = sample_prediction(stem)
+    text = " ".join(pdf_pages_text(sample_sheet(stem)[1]))
+    missing = [v for v in _printed_values(p) if normalise(v) not in text]
+    assert not missing
+    assert normalise(p["worst_adjacent"]["where"]) in text
+    assert p["insulation"]["verdict"].upper() in text
+
+
+_SI = {"p": 1e-12, "n": 1e-9, "µ": 1e-6, "μ": 1e-6, "m": 1e-3, "": 1.0, "k": 1e3, "M": 1e6, "G": 1e9}
+
+
+def parse_printed(text: str, unit: str) -> float:
+    """Read a printed value back, independently of the formatter."""
+    m = re.fullmatch(rf"(-?[0-9.]+)\s*([pnµμmkMG]?){re.escape(unit)}", normalise(text))
+    assert m, text
+    return float(m.group(1)) * _SI[m.group(2)]
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_printed_terminal_values_read_back_to_the_engines_within_rounding(stem):
+    t = sample_prediction(stem)["terminal"]
+    # Four significant figures: rounding moves a value by at most half a unit in the 4th digit.
+    for value, fmt, unit in ((t["inductance_H"], render.henry, "H"),
+                             (t["resistance_ohm"], render.ohm, "Ω"),
+                             (t["accept"]["inductance_min_H"], render.henry, "H"),
+                             (t["accept"]["resistance_max_ohm"], render.ohm, "Ω")):
+        assert parse_printed(fmt(value), normalise(unit)) == pytest.approx(value, rel=5e-4)
+
+
+# SI prefixes as the SI Brochure (BIPM, 9th ed., table 7) defines them; 4 significant figures.
+@pytest.mark.parametrize("value, unit, expected", [
+    (61.2e-6, "H", "61.20 µH"),
+    (1.234, "Ω", "1.234 Ω"),
+    (0.8538, "Ω", "853.8 mΩ"),
+    (13.4e6, "Hz", "13.40 MHz"),
+    (2.31e-12, "F", "2.310 pF"),
+    (999.96, "V", "1.000 kV"),
+    (0.0, "A", "0 A"),
+    (-0.5e-3, "A", "-500.0 µA"),
+])
+def test_engineering_notation(value, unit, expected):
+    assert normalise(render.eng(value, unit)) == normalise(expected)
+
+
+def test_lengths_print_in_millimetres_below_a_metre():
+    # Shop practice (common practice): wire and form sizes in mm, wire lengths in m.
+    assert normalise(render.length(0.000578)) == "0.5780 mm"
+    assert normalise(render.length(12.3)) == "12.30 m"
+    assert normalise(render.mass(0.01699)) == "17.0 g"
+
+
+@pytest.mark.parametrize("paper, size", [("a4", (595, 842)), ("letter", (612, 792))])
+def test_paper_sizes(paper, size):
+    # ISO 216 A4 is 210 x 297 mm = 595 x 842 pt; US Letter is 8.5 x 11 in = 612 x 792 pt.
+    pdf = sample_sheet(SAMPLE_IDS[0], paper)[1]
+    reader = pypdf.PdfReader(io.BytesIO(pdf))
+    for page in reader.pages:
+        box = page.mediabox
+        assert (round(float(box.width)), round(float(box.height))) == size
+
+
+def test_unknown_paper_is_a_located_input_error():
+    with pytest.raises(InputError) as err:
+        render.render_traveller_html(bifilar_prediction(), paper="A5")
+    assert err.value.path == "--paper"
+
+
+# --- wiring diagram ------------------------------------------------------------------
+
+def parse_wiring(svg: str):
+    root = ET.fromstring(svg)
+    assert root.tag == f"{SVG}svg"
+    ends = {}
+    for el in root.iter(f"{SVG}circle"):
+        if el.get("data-end"):
+            ends[el.get("data-end")] = (float(el.get("cx")), float(el.get("cy")))
+    joins = {}
+    for g in root.iter(f"{SVG}g"):
+        if g.get("data-join"):
+            segs = [((float(ln.get("x1")), float(ln.get("y1"))), (float(ln.get("x2")), float(ln.get("y2"))))
+                    for ln in g.iter(f"{SVG}line")]
+            joins[g.get("data-join")] = segs
+    terminals = {g.get("data-terminal"): g.get("data-connects")
+                 for g in root.iter(f"{SVG}g") if g.get("data-terminal")}
+    strands = [g.get("data-strand") for g in root.iter(f"{SVG}g") if g.get("data-strand")]
+    dots = {el.get("data-polarity") for el in root.iter(f"{SVG}circle") if el.get("data-polarity")}
+    return ends, joins, terminals, strands, dots
+
+
+def _on_segment(pt, seg, eps=1e-6):
+    (x1, y1), (x2, y2) = seg
+    x, y = pt
+    if abs((x2 - x1) * (y - y1) - (y2 - y1) * (x - x1)) > eps:
+        return False
+    return min(x1, x2) - eps <= x <= max(x1, x2) + eps and min(y1, y2) - eps <= y <= max(y1, y2) + eps
+
+
+def drawn_connected(points, segs) -> bool:
+    """Do the drawn segments join all ``points`` into one piece?"""
+    n = len(segs)
+    parent = list(range(n))
+
+    def find(i):
+        while parent[i] != i:
+            parent[i] = parent[parent[i]]
+            i = parent[i]
+        return i
+
+    for i in range(n):
+        for j in range(i + 1, n):
+            if any(_on_segment(e, segs[j]) for e in segs[i]) or any(_on_segment(e, segs[i]) for e in segs[j]):
+                parent[find(i)] = find(j)
+    touching = []
+    for pt in points:
+        hit = [i for i in range(n) if _on_segment(pt, segs[i])]
+        if not hit:
+            return False
+        touching.append(find(hit[0]))
+    return len(set(touching)) == 1
+
+
+def check_wiring_against_hookup(svg, hookup, ids):
+    ends, joins, terminals, strands, dots = parse_wiring(svg)
+    assert strands == list(ids)
+    assert set(ends) == {f"{s}.{w}" for s in ids for w in ("start", "finish")}
+    assert dots == {f"{s}.start" for s in ids}
+    assert {frozenset(k.split()) for k in joins} == {frozenset(j) for j in hookup["joins"]}
+    for key, segs in joins.items():
+        assert drawn_connected([ends[e] for e in key.split()], segs), key
+    # Two different joints never share a drawn point (they would read as one node).
+    pts = {k: {pt for seg in segs for pt in seg} for k, segs in joins.items()}
+    keys = list(pts)
+    for i, a in enumerate(keys):
+        for b in keys[i + 1:]:
+            assert not any(_on_segment(pt, seg) for pt in pts[a] for seg in joins[b])
+    for k, end in enumerate(hookup["terminals"], start=1):
+        assert terminals[f"T{k}"] == end
+    return terminals
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_wiring_diagram_of_each_sample_matches_its_hookup(stem):
+    p = sample_prediction(stem)
+    ids = [s["id"] for s in p["strands"]]
+    svg = wiring_svg(p["hookup"], ids)
+    terminals = check_wiring_against_hookup(svg, p["hookup"], ids)
+    if p["hookup"]["name"] == "separate":
+        # Each winding of a separate hookup brings out both of its ends.
+        assert set(terminals.values()) == {f"{s}.{w}" for s in ids for w in ("start", "finish")}
+    else:
+        assert len(terminals) == 2
+
+
+def test_wiring_diagram_of_a_three_strand_custom_hookup(tmp_path):
+    p = predict(load_order(order_yaml(tmp_path, "c3.yaml", THREE_STRAND_ORDER)))
+    assert p["hookup"]["name"] == "custom"
+    svg = wiring_svg(p["hookup"], ["A", "B", "C"])
+    check_wiring_against_hookup(svg, {"joins": [["A.finish", "C.start"], ["C.finish", "B.finish"]],
+                                      "terminals": ["A.start", "B.start"]}, ["A", "B", "C"])
+    html = render.render_traveller_html(p)
+    assert 'data-join="A.finish C.start"' in html and 'data-join="C.finish B.finish"' in html
+
+
+@pytest.mark.parametrize("hookup", [
+    # four strands in series, one reversed; three-end star joint; parallel pair in series with a third
+    {"name": "custom", "joins": [["A.finish", "B.start"], ["B.finish", "D.finish"], ["D.start", "C.start"]],
+     "terminals": ["A.start", "C.finish"]},
+    {"name": "custom", "joins": [["A.finish", "B.finish", "C.finish"]], "terminals": ["A.start", "B.start"]},
+    {"name": "custom", "joins": [["A.start", "B.start"], ["A.finish", "B.finish", "C.start"]],
+     "terminals": ["A.start", "C.finish"]},
+    {"name": "parallel", "joins": [["A.start", "B.start"], ["A.finish", "B.finish"]],
+     "terminals": ["A.start", "A.finish"]},
+])
+def test_wiring_diagram_of_unusual_hookups(hookup):
+    ids = sorted({e.split(".")[0] for j in hookup["joins"] for e in j} | {t.split(".")[0] for t in hookup["terminals"]})
+    check_wiring_against_hookup(wiring_svg(hookup, ids), hookup, ids)
+
+
+def test_wiring_diagram_refuses_an_end_of_a_missing_strand():
+    with pytest.raises(ValueError):
+        wiring_svg({"joins": [["A.finish", "C.start"]], "terminals": ["A.start", "C.finish"]}, ["A", "B"])
+
+
+# --- cross-section -------------------------------------------------------------------
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_cross_section_shows_every_listed_slot_and_the_layer_tape(stem):
+    cs = sample_prediction(stem)["cross_section"]
+    root = ET.fromstring(cross_section_svg(cs, sample_prediction(stem)["form"]["kind"]))
+    layers = [g for g in root.iter(f"{SVG}g") if g.get("data-layer")]
+    assert len(layers) == len(cs["layers"])
+    for g, layer in zip(layers, cs["layers"]):
+        drawn = sorted((int(c.get("data-slot")), c.get("data-strand")) for c in g.iter(f"{SVG}circle"))
+        listed = sorted((s["slot"], s["strand"]) for s in layer["slots"])
+        assert drawn == listed
+    tapes = [r for r in root.iter(f"{SVG}rect") if r.get("data-tape")]
+    assert len(tapes) == (len(cs["layers"]) - 1 if cs["tape_between_layers"] else 0)
+
+
+# --- procedure follows the order -------------------------------------------------------
+
+def _titles(stem):
+    return [s["title"] for s in render.procedure_steps(sample_prediction(stem))]
+
+
+def _stem_where(cond):
+    return next(s for s in SAMPLE_IDS if cond(sample_prediction(s)))
+
+
+def test_procedure_depends_on_the_order():
+    single = _stem_where(lambda p: p["winding"]["strands"] == 1 and p["layers"] == 1)
+    bifilar = _stem_where(lambda p: p["hookup"]["joins"] and p["winding"]["strands"] == 2)
+    taped = _stem_where(lambda p: p["cross_section"]["tape_between_layers"])
+    toroid = _stem_where(lambda p: p["form"]["kind"] == "toroid")
+    sep = [t.lower() for t in _titles(single)]
+    assert not any("series-aiding" in t or "joint" in t or "tape" in t or "gap" in t for t in sep)
+    bif = [t.lower() for t in _titles(bifilar)]
+    assert any("series-aiding" in t for t in bif)
+    assert bif.index(next(t for t in bif if "identify every end" in t)) < bif.index(
+        next(t for t in bif if "series-aiding" in t)) < bif.index(next(t for t in bif if t.startswith("make the joint")))
+    layers = sample_prediction(taped)["layers"]
+    assert sum(t.startswith("Tape over layer") for t in _titles(taped)) == layers - 1
+    assert sum(t.startswith("Wind layer") for t in _titles(taped)) == layers
+    tor = [t.lower() for t in _titles(toroid)]
+    assert any("gap" in t for t in tor)
+    # Every step gets a tick box and an initials blank on the sheet.
+    html = sample_sheet(bifilar)[0]
+    assert html.count('<td class="tick"><span class="box"></span></td><td class="init"></td>') == len(bif)
+
+
+# --- QC record -----------------------------------------------------------------------
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_qc_record_has_a_column_for_every_serial_number(stem):
+    p = sample_prediction(stem)
+    html = sample_sheet(stem)[0]
+    units = p["job"]["units"]
+    assert len(units) == p["job"]["quantity"]
+    cols = re.findall(r'<th class="unit" data-unit="([^"]+)">', html)
+    assert cols == units
+    text = " ".join(pdf_pages_text(sample_sheet(stem)[1]))
+    for u in units:
+        assert u in text
+    assert "Inspector" in text and "Date" in text
+
+
+# --- escaping and the URL fetcher ---------------------------------------------------------
+
+def test_markup_in_the_customer_name_prints_as_text():
+    p = bifilar_prediction()
+    p["job"]["customer"] = '<b>Bold</b> & <script>alert(1)</script><img src="http://example.com/x.png">'
+    p["hookup"]["description"] = "<i>italic</i>"
+    html = render.render_traveller_html(p)
+    assert "<script>" not in html and "<img" not in html and "<i>italic" not in html
+    assert "&lt;b&gt;Bold&lt;/b&gt; &amp; &lt;script&gt;" in html
+    text = " ".join(pdf_pages_text(render.render_pdf(html)))
+    assert "<b>Bold</b> & <script>alert(1)</script>" in text
+
+
+def test_fetcher_refuses_the_network_and_files_outside_the_templates(tmp_path):
+    fetcher = render.templates_only_fetcher()
+    for url in ("http://example.com/x.css", "https://example.com/y.png", "ftp://example.com/z",
+                (tmp_path / "secret.txt").as_uri(), "file:///etc/passwd",
+                (render.TEMPLATES_DIR / ".." / "pyproject.toml").as_uri()):
+        with pytest.raises(ValueError):
+            fetcher.fetch(url)
+    ok = fetcher.fetch((render.TEMPLATES_DIR / "print.css").as_uri())
+    assert b"@page" in ok.read()
+    ok.close()
+
+
+def test_a_document_asking_for_outside_resources_still_renders_without_them(tmp_path):
+    secret = tmp_path / "secret.png"
+    secret.write_bytes(b"not an image")
+    html = (f'<html><body><p>HL-0412</p><img src="{secret.as_uri()}">'
+            '<img src="http://example.com/x.png"></body></html>')
+    pdf = render.render_pdf(html)
+    assert "HL-0412" in pdf_pages_text(pdf)[0]
+
+
+# --- insulation verdict and issuing ------------------------------------------------------
+
+def test_failing_check_prints_prominently_and_is_refused_unless_forced():
+    p = failing(bifilar_prediction())
+    with pytest.raises(InputError) as err:
+        render.check_issuable(p)
+    assert err.value.path == "insulation"
+    render.check_issuable(p, force=True)
+    plain = render.render_traveller_html(p)
+    assert 'data-banner="fail"' in plain and 'data-verdict="fail"' in plain
+    forced_text = " ".join(pdf_pages_text(render.render_pdf(render.render_traveller_html(p, forced=True))))
+    assert "FORCED ISSUE" in forced_text.split("1 Specification")[0]
+
+
+def test_passing_check_has_no_banner():
+    html = render.render_traveller_html(bifilar_prediction())
+    assert "data-banner" not in html
+
+
+def test_cautions_follow_the_duty_and_always_defer():
+    hv = bifilar_prediction()
+    low = copy.deepcopy(hv)
+    low["cautions"] = {"above_elv": False, "highest_V": 12.0, "elv_limit_V": 50.0, "hipot": False,
+                       "stored_energy_J": 2.0}
+    titles_hv = [c["title"] for c in render.cautions(hv)]
+    titles_low = [c["title"] for c in render.cautions(low)]
+    assert "Above extra-low voltage" in titles_hv and "Above extra-low voltage" not in titles_low
+    assert "Hipot test" in titles_hv and "Hipot test" not in titles_low
+    stored = next(c for c in render.cautions(low) if c["title"] == "Stored magnetic energy")
+    assert stored["level"] == "warning"
+    text = " ".join(pdf_pages_text(render.render_pdf(render.render_traveller_html(hv))))
+    # IEC 61140 extra-low-voltage band: 50 V a.c. rms, 120 V ripple-free d.c.
+    assert "50 V a.c. rms, 120 V ripple-free d.c." in text
+    assert normalise(render.DEFERRAL) in text
+
+
+# --- the command ---------------------------------------------------------------------
+
+
+
+def test_cli_refuses_a_failing_insulation_check_without_force(tmp_path):
+    order = order_yaml(tmp_path, "fail.yaml", FAILING_ORDER)
+    out = tmp_path / "fail.pdf"
+    reg = tmp_path / "reg.db"
+    res = CliRunner().invoke(app, ["traveller", str(order), "-o", str(out), "--register", str(reg)])
+    assert res.exit_code == 2
+    lines = [ln for ln in res.stderr.splitlines() if ln.strip()]
+    assert len(lines) == 1 and "insulation" in lines[0] and "--force" in lines[0]
+    assert not out.exists()
+    assert not reg.exists() or "HL-0499" not in CliRunner().invoke(
+        app, ["register", "--register", str(reg)]).stdout
+
+    res = CliRunner().invoke(app, ["traveller", str(order), "-o", str(out), "--force", "--register", str(reg)])
+    assert res.exit_code == 0, res.output
+    text = " ".join(pdf_pages_text(out.read_bytes()))
+    assert "FORCED ISSUE" in text and "FAIL" in text
+
+
+def test_cli_renders_a_folder_of_orders_and_records_the_issues(tmp_path):
+    folder = tmp_path / "orders"
+    folder.mkdir()
+    for src in SAMPLES[:2]:
+        (folder / src.name).write_bytes(src.read_bytes())
+    (folder / "x.measured.yaml").write_text("not an order", encoding="utf-8")
+    out = tmp_path / "out"
+    reg = tmp_path / "reg.db"
+    res = CliRunner().invoke(app, ["traveller", str(folder), "-o", str(out), "--html", "--paper", "letter",
+                                   "--register", str(reg)])
+    assert res.exit_code == 0, res.output
+    written = sorted(p.name for p in out.iterdir())
+    assert written == sorted(f"{s.stem}.html" for s in SAMPLES[:2])
+    listing = CliRunner().invoke(app, ["register", "--register", str(reg)]).stdout
+    for src in SAMPLES[:2]:
+        number = sample_prediction(src.stem)["job"]["number"]
+        assert number in listing
+        assert "size: letter" in (out / f"{src.stem}.html").read_text(encoding="utf-8")
+
+
+def test_cli_demo_renders_every_sample(tmp_path):
+    out = tmp_path / "demo"
+    res = CliRunner().invoke(app, ["demo", "--out", str(out)])
+    assert res.exit_code == 0, res.output
+    assert str(out.resolve()) in res.stdout
+    for stem in SAMPLE_IDS:
+        assert (out / f"{stem}.pdf").read_bytes().startswith(b"%PDF")
+        assert "<!DOCTYPE html>" in (out / f"{stem}.html").read_text(encoding="utf-8")
