@@ -18,14 +18,15 @@ import xml.etree.ElementTree as ET
 SVG_NS = "http://www.w3.org/2000/svg"
 
 # Wiring-diagram geometry, in SVG user units (drawn at 1 unit = 1 px, scaled by CSS).
-_ROW_H = 64.0
+_ROW_H = 78.0
 _TOP = 40.0
 _START_X = 150.0
 _FINISH_X = 370.0
 _COIL_X0 = 205.0
 _COIL_X1 = 315.0
 _LANE_GAP = 13.0
-_TERMINAL_PAD = 26.0
+_TERMINAL_PAD = 8.0
+_TERMINAL_DROP = 12.0
 
 #: Grey fills told apart in monochrome print; the letter in each circle is the real key.
 STRAND_FILLS = {"A": "#ffffff", "B": "#c8c8c8", "C": "#8c8c8c", "D": "#4a4a4a"}
@@ -69,6 +70,10 @@ def parse_end(end: str) -> tuple[str, str]:
     if which not in ("start", "finish") or not strand:
         raise ValueError(f"not a strand end: {end!r} (expected like 'A.start')")
     return strand, which
+
+
+def _clip(text: str, n: int) -> str:
+    return text if len(text) <= n else text[: n - 1] + "…"
 
 
 def _coil_path(x0, x1, y, bumps=5):
@@ -149,7 +154,7 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
     right_edge = max([_FINISH_X + 22.0] + [x for x in lane_x.values() if x > _FINISH_X]) + _TERMINAL_PAD
     shift = 40.0 - left_edge  # keep the left terminals inside the viewBox
     width = right_edge + shift + 40.0
-    height = _TOP + len(ids) * _ROW_H - 10.0
+    height = _TOP + (len(ids) - 1) * _ROW_H + _TERMINAL_DROP + 17.0 + 12.0
 
     root = _svg_root(width, height, f"Wiring diagram, hookup {hookup.get('name', '')}")
     top = _el(root, "g", transform=f"translate({shift:.1f},0)")
@@ -164,9 +169,11 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
         # Polarity dot beside the first bump marks where the strand starts.
         _el(g, "circle", cx=f"{_COIL_X0 + 4:.1f}", cy=f"{y - 17:.1f}", r="3.6", fill="#000",
             data_polarity=f"{s}.start")
-        name = s if not labels.get(s) else f"{s} — {labels[s]}"
-        _text(g, (_COIL_X0 + _COIL_X1) / 2, y + 19, name, text_anchor="middle",
-              font_weight="bold")
+        mid = (_COIL_X0 + _COIL_X1) / 2
+        _text(g, mid, y + 19, s, text_anchor="middle", font_weight="bold", font_size="12")
+        if labels.get(s):
+            # Kept narrow and central, clear of the terminal boxes hung below the ends.
+            _text(g, mid, y + 31, _clip(str(labels[s]), 34), text_anchor="middle", font_size="8.5")
         for which, x in (("start", _START_X), ("finish", _FINISH_X)):
             end = f"{s}.{which}"
             _el(g, "circle", cx=f"{x:.1f}", cy=f"{y:.1f}", r="4", fill="#fff", stroke="#000",
@@ -179,7 +186,7 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
         _draw_net(top, net, lane_x[net], end_xy, row_y, ids, n_i)
 
     for t_i, end in enumerate(terminals):
-        _draw_terminal(top, f"T{t_i + 1}", end, end_xy, left_edge, right_edge)
+        _draw_terminal(top, f"T{t_i + 1}", end, end_xy)
     return _to_string(root)
 
 
@@ -197,7 +204,7 @@ def _draw_net(parent, net, x_lane, end_xy, row_y, ids, n_i):
             ys.append(y)
         else:
             # Cross over in the gap above the row, clear of the coil symbol.
-            y_ch = y - _ROW_H / 2 + 6.0 + 5.0 * (n_i % 4)
+            y_ch = y - _ROW_H / 2 + 6.0 + 4.0 * (n_i % 4)
             _line(g, x, y, x, y_ch)
             _line(g, x, y_ch, x_lane, y_ch)
             ys.append(y_ch)
@@ -207,17 +214,19 @@ def _draw_net(parent, net, x_lane, end_xy, row_y, ids, n_i):
     return g
 
 
-def _draw_terminal(parent, label, end, end_xy, left_edge, right_edge):
+def _draw_terminal(parent, label, end, end_xy):
+    """A labelled terminal box hung straight below its wire end.
+
+    Dropping it vertically keeps its lead clear of every joint's lane, so no
+    line crosses a lane without a junction dot.
+    """
     x, y = end_xy[end]
-    tx = left_edge if x == _START_X else right_edge
     g = _el(parent, "g", data_terminal=label, data_connects=end)
-    # Drawn a little below the wire end so the lead does not merge with a joint's lane.
-    ty = y + 14.0
-    _line(g, x, y, x, ty, stroke="#000", stroke_width="1.6")
-    _line(g, x, ty, tx, ty, stroke="#000", stroke_width="1.6")
-    _el(g, "rect", x=f"{tx - 13:.1f}", y=f"{ty - 9:.1f}", width="26", height="18",
+    top = y + _TERMINAL_DROP
+    _line(g, x, y, x, top, stroke="#000", stroke_width="1.6")
+    _el(g, "rect", x=f"{x - 14:.1f}", y=f"{top:.1f}", width="28", height="17",
         fill="#fff", stroke="#000", stroke_width="1.8", data_terminal_box=label)
-    _text(g, tx, ty + 4, label, text_anchor="middle", font_weight="bold")
+    _text(g, x, top + 12.5, label, text_anchor="middle", font_weight="bold")
     return g
 
 
