@@ -24,6 +24,28 @@ DIMENSIONS = {
 }
 
 
+# Plausible magnitudes for a coil-shop document (SI, outside zero).  Far wider
+# than any real order; they keep absurd values (1e300 A) from overflowing the
+# engine into inf/NaN and say so at the field instead.
+SANE_RANGE = {
+    "length": (1e-7, 1e3),
+    "inductance": (1e-12, 1e4),
+    "inductance_factor": (1e-12, 1e4),
+    "capacitance": (1e-15, 1.0),
+    "voltage": (1e-6, 1e7),
+    "current": (1e-9, 1e5),
+    "frequency": (1e-3, 1e11),
+    "resistance": (1e-9, 1e18),
+    "time": (1e-6, 1e7),
+    "temperature": (-273.15, 1000.0),
+    "mass": (1e-9, 1e4),
+}
+
+
+def _si_text(x: float, unit: str) -> str:
+    return f"{x:g} {unit}"
+
+
 @lru_cache(maxsize=1)
 def ureg():
     import pint
@@ -76,6 +98,12 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
             raise InputError(path, f"must be greater than zero, got {value!r}")
     elif si < -273.15:
         raise InputError(path, f"is below absolute zero: {value!r}")
+    lo, hi = SANE_RANGE.get(dimension, (0.0, math.inf))
+    if abs(si) > hi:
+        raise InputError(path, f"must be at most {_si_text(hi, si_unit)}, got {value!r}")
+    if si != 0 and abs(si) < lo and dimension != "temperature":
+        zero = " or zero" if allow_zero else ""
+        raise InputError(path, f"must be at least {_si_text(lo, si_unit)}{zero}, got {value!r}")
     return si
 
 
