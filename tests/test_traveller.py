@@ -516,3 +516,45 @@ def test_cli_demo_renders_every_sample(tmp_path):
     for stem in SAMPLE_IDS:
         assert (out / f"{stem}.pdf").read_bytes().startswith(b"%PDF")
         assert "<!DOCTYPE html>" in (out / f"{stem}.html").read_text(encoding="utf-8")
+
+
+# --- sign-off sheet --------------------------------------------------------------------
+
+def _signoff(measured_name: str):
+    from windsheet.measured import load_measured
+    from windsheet.signoff import evaluate_signoff
+
+    p = sample_prediction("hl-0412-bifilar-aiding")
+    return p, evaluate_signoff(p, load_measured(ROOT / "samples" / measured_name))
+
+
+@pytest.mark.parametrize("measured_name", ["HL-0412.measured.yaml", "HL-0412-reversed.measured.yaml"])
+def test_signoff_sheet_prints_every_units_readings_and_the_diagnosis(measured_name):
+    p, result = _signoff(measured_name)
+    html = render.render_signoff_html(p, result, paper="letter")
+    pdf = render.render_pdf(html)
+    pages = pdf_pages_text(pdf)
+    text = " ".join(pages)
+    for heading in render.SIGNOFF_SECTIONS:
+        assert normalise(heading) in text
+    for k, page in enumerate(pages, start=1):
+        assert p["job"]["number"] in page and f"Page {k} of {len(pages)}" in page
+    assert result["verdict"].upper() in text
+    for unit in result["units"]:
+        assert unit["serial"] in text
+        for line in unit["lines"]:
+            if line["measured"] is not None:
+                assert normalise(render.measured_text(line["measured"], line["unit"])) in text
+        for finding in unit["diagnosis"]:
+            assert normalise(finding["finding"]) in text
+    # US Letter, 8.5 x 11 in.
+    box = pypdf.PdfReader(io.BytesIO(pdf)).pages[0].mediabox
+    assert (round(float(box.width)), round(float(box.height))) == (612, 792)
+
+
+def test_signoff_sheet_marks_failing_lines():
+    p, result = _signoff("HL-0412-reversed.measured.yaml")
+    html = render.render_signoff_html(p, result)
+    failed = [(u["serial"], ln["key"]) for u in result["units"] for ln in u["lines"] if ln["result"] == "fail"]
+    assert failed  # the reversed strand sample has at least one failing reading
+    assert html.count('class="fail"><td>') == len(failed)
