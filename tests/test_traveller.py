@@ -402,8 +402,11 @@ def test_markup_in_the_customer_name_prints_as_text():
     p = bifilar_prediction()
     p["job"]["customer"] = '<b>Bold</b> & <script>alert(1)</script><img src="http://example.com/x.png">'
     p["hookup"]["description"] = "<i>italic</i>"
+    p["strands"][0]["identification"] = "<u>red</u> sleeve"
     html = render.render_traveller_html(p)
     assert "<script>" not in html and "<img" not in html and "<i>italic" not in html
+    # Also inside the wiring diagram's SVG, which is built outside Jinja.
+    assert "<u>" not in html and "&lt;u&gt;red&lt;/u&gt; sleeve" in html
     assert "&lt;b&gt;Bold&lt;/b&gt; &amp; &lt;script&gt;" in html
     text = " ".join(pdf_pages_text(render.render_pdf(html)))
     assert "<b>Bold</b> & <script>alert(1)</script>" in text
@@ -558,3 +561,19 @@ def test_signoff_sheet_marks_failing_lines():
     failed = [(u["serial"], ln["key"]) for u in result["units"] for ln in u["lines"] if ln["result"] == "fail"]
     assert failed  # the reversed strand sample has at least one failing reading
     assert html.count('class="fail"><td>') == len(failed)
+
+
+def test_cli_missing_output_folder_is_one_line_and_records_nothing(tmp_path):
+    reg = tmp_path / "reg.db"
+    res = CliRunner().invoke(app, ["traveller", str(SAMPLES[0]), "-o", str(tmp_path / "nope" / "x.pdf"),
+                                   "--register", str(reg)])
+    assert res.exit_code == 2
+    assert len([ln for ln in res.stderr.splitlines() if ln.strip()]) == 1
+    assert not reg.exists()
+
+
+def test_cli_bad_paper_is_refused(tmp_path):
+    res = CliRunner().invoke(app, ["traveller", str(SAMPLES[0]), "-o", str(tmp_path / "x.pdf"),
+                                   "--paper", "A5", "--register", str(tmp_path / "reg.db")])
+    assert res.exit_code == 2 and "--paper" in res.stderr
+    assert not (tmp_path / "x.pdf").exists()

@@ -208,10 +208,11 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
 
     files = order_files(order)
     many = Path(order).is_dir()
-    if many and not out.is_dir():
-        if out.exists():
-            raise InputError(str(out), "a folder of orders needs an output folder, not a file")
-        out.mkdir(parents=True)
+    into_folder = many or out.is_dir()
+    if many and out.exists() and not out.is_dir():
+        raise InputError(str(out), "a folder of orders needs an output folder, not a file")
+    if not into_folder and not (out.parent if str(out.parent) else Path(".")).is_dir():
+        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
     # Everything is sized, checked and rendered before anything is written or recorded.
     jobs = []
     for f in files:
@@ -221,8 +222,10 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
         forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
         page = render_traveller_html(p, paper=paper, forced=forced)
         data = page.encode("utf-8") if html else render_pdf(page)
-        target = out / f"{f.stem}.{'html' if html else 'pdf'}" if many else out
+        target = out / f"{f.stem}.{'html' if html else 'pdf'}" if into_folder else out
         jobs.append((o, p, forced, target, data))
+    if many:
+        out.mkdir(parents=True, exist_ok=True)
     with open_register(register) as reg:
         for o, p, forced, target, data in jobs:
             reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
