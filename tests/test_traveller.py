@@ -443,8 +443,10 @@ def test_failing_check_prints_prominently_and_is_refused_unless_forced():
     render.check_issuable(p, force=True)
     plain = render.render_traveller_html(p)
     assert 'data-banner="fail"' in plain and 'data-verdict="fail"' in plain
-    forced_text = " ".join(pdf_pages_text(render.render_pdf(render.render_traveller_html(p, forced=True))))
-    assert "FORCED ISSUE" in forced_text.split("1 Specification")[0]
+    forced_pages = pdf_pages_text(render.render_pdf(render.render_traveller_html(p, forced=True)))
+    assert "FORCED ISSUE" in forced_pages[0].split("1 Specification")[0]
+    assert all("FORCED ISSUE" in page for page in forced_pages)
+    assert not any("FORCED" in page for page in pdf_pages_text(render.render_pdf(plain)))
 
 
 def test_passing_check_has_no_banner():
