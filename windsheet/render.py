@@ -15,7 +15,7 @@ from urllib.parse import unquote, urlsplit
 import jinja2
 from markupsafe import Markup
 
-from .diagrams import cross_section_svg, parse_end, winding_terminals, wiring_svg
+from .diagrams import cross_section_svg, winding_terminals, wiring_svg
 from .errors import InputError
 
 TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
@@ -783,4 +783,4 @@ def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4
 
 
 __all__ = ["render_signoff_html", "SIGNOFF_SECTIONS", "render_traveller_html", "render_pdf", "traveller", "check_issuable", "eng",
-           "SECTIONS", "PAPER_SIZES", "procedure_steps", "cautions", "qc_items", "parse_end"]
+           "SECTIONS", "PAPER_SIZES", "procedure_steps", "cautions", "qc_items"]
