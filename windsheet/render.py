@@ -782,5 +782,6 @@ def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4
     return env.get_template("signoff.html.j2").render(**ctx)
 
 
-__all__ = ["render_signoff_html", "SIGNOFF_SECTIONS", "render_traveller_html", "render_pdf", "traveller", "check_issuable", "eng",
-           "SECTIONS", "PAPER_SIZES", "procedure_steps", "cautions", "qc_items"]
+__all__ = ["render_traveller_html", "render_signoff_html", "render_pdf", "traveller",
+           "check_issuable", "order_files", "eng", "SECTIONS", "SIGNOFF_SECTIONS", "PAPER_SIZES",
+           "procedure_steps", "cautions", "qc_items"]
