@@ -103,7 +103,7 @@ class Job(_M):
     number: Ident
     part: Text
     customer: Text = ""
-    quantity: Annotated[int, Field(ge=1, le=1000)] = 1
+    quantity: Annotated[int, Field(ge=1, le=1000, strict=True)] = 1
     revision: Ident = "A"
     issued_by: Text = ""
     issue_date: Optional[_dt.date] = None
@@ -160,10 +160,11 @@ class LayerTape(_M):
 
 
 class Winding(_M):
-    strands: Annotated[int, Field(ge=1, le=4)] = 1
-    turns: Optional[Annotated[int, Field(ge=1, le=100_000)]] = None
+    # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
+    strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
+    turns: Optional[Annotated[int, Field(ge=1, le=100_000, strict=True)]] = None
     target_inductance: Optional[Inductance] = None
-    layers: Union[Annotated[int, Field(ge=1, le=200)], Literal["auto"]] = "auto"
+    layers: Union[Annotated[int, Field(ge=1, le=200, strict=True)], Literal["auto"]] = "auto"
     pitch: Optional[Length] = None
     layer_tape: Optional[Union[Length, LayerTape]] = None
     lead_length: Length0 = 0.15
@@ -268,7 +269,8 @@ def _hookup(raw, strands):
         if isinstance(raw, dict):
             extra = set(raw) - {"joins", "terminals"}
             if extra:
-                raise HookupError(f"hookup.{sorted(map(str, extra))[0]}", "unknown field; a hookup has joins and terminals")
+                raise HookupError(f"hookup.{_field_name(sorted(map(str, extra))[0])}",
+                                  "unknown field; a hookup has joins and terminals")
             if "terminals" not in raw:
                 raise HookupError("hookup.terminals", "is required: the two strand ends brought out, like [A.start, B.finish]")
             joins = raw.get("joins") or []
@@ -286,7 +288,22 @@ def _hookup(raw, strands):
 _FRIENDLY = {
     "missing": "is required",
     "extra_forbidden": "is not a known field",
+    "model_type": "expected a section of fields (name: value)",
+    "model_attributes_type": "expected a section of fields (name: value)",
+    "dict_type": "expected a mapping (name: value)",
+    "string_type": "expected text",
+    "list_type": "expected a list",
+    "int_type": "expected a whole number, like 60",
+    "int_from_float": "expected a whole number, like 60",
+    "int_parsing": "expected a whole number, like 60",
 }
+
+
+def _field_name(part):
+    """A key as it can appear in a one-line message: odd keys quoted, newlines escaped."""
+    if isinstance(part, str) and not re.fullmatch(r"[\w.-]{1,40}", part):
+        return repr(part[:40])
+    return part
 
 
 def _validation_to_input_error(exc: ValidationError) -> InputError:
@@ -294,7 +311,7 @@ def _validation_to_input_error(exc: ValidationError) -> InputError:
     loc = [p for p in err["loc"] if p not in ("cylinder", "toroid", "bobbin")
            and not (isinstance(p, str) and p.startswith(("function-", "int", "literal", "LayerTape", "constrained")))]
     loc = [p for p in loc if p not in ("float", "str", "bool")]
-    path = join_path(*loc)
+    path = join_path(*map(_field_name, loc))
     kind = err["type"]
     msg = _FRIENDLY.get(kind) or err["msg"]
     if msg.startswith("Value error, "):
