@@ -27,8 +27,17 @@ BULGE_ALLOWANCE = 1.10
 TOROID_GAP_DEG = 30.0
 
 
+#: Most layers laid out when the order says ``layers: auto``, the same bound as
+#: an explicit layer count; beyond it the engine's work grows as layers squared.
+MAX_LAYERS = 200
+
+
 class WindingDoesNotFit(ValueError):
     """The turns asked for do not fit on the form; the message says by how much."""
+
+
+class FormTooSmall(WindingDoesNotFit):
+    """The wire cannot go on (or through) the form at all, whatever the turns."""
 
 
 @dataclass(frozen=True)
@@ -112,6 +121,11 @@ def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
     if layers in (None, "auto"):
         n_layers = math.ceil(turns / slots_max)
         per = slots_max
+        if n_layers > MAX_LAYERS:
+            raise WindingDoesNotFit(
+                f"{turns} turns at {slots_max} per layer need {n_layers} layers, more than the "
+                f"{MAX_LAYERS} windsheet lays out: short by {turns - MAX_LAYERS * slots_max} turn(s) "
+                "(give the form a max_build, a longer traverse or a finer wire)")
     else:
         n_layers = int(layers)
         per = math.ceil(turns / n_layers)
@@ -294,8 +308,9 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
         return inner_diameter / 2 - d / 2 - lay * (d + tape)
 
     if rho(0) <= d:
-        raise WindingDoesNotFit(
-            f"wire of {d * 1e3:.3f} mm does not pass through a {inner_diameter * 1e3:.2f} mm hole")
+        raise FormTooSmall(
+            f"wire of {d * 1e3:.3f} mm does not pass through a {inner_diameter * 1e3:.2f} mm hole "
+            f"with room to wind: the hole needs more than {3 * d * 1e3:.3f} mm (three wire diameters)")
     slots0 = _slots_across(2 * math.pi * rho(0) * usable, strands, d, pitch)
     plan = _layer_plan(turns, slots0, layers)
     # Inner layers have a shorter circumference: check each one.
