@@ -310,7 +310,7 @@ def _validation_to_input_error(exc: ValidationError) -> InputError:
     err = exc.errors()[0]
     loc = [p for p in err["loc"] if p not in ("cylinder", "toroid", "bobbin")
            and not (isinstance(p, str) and p.startswith(("function-", "int", "literal", "LayerTape", "constrained")))]
-    loc = [p for p in loc if p not in ("float", "str", "bool")]
+    loc = [p for p in loc if p not in ("float", "str", "bool", "[key]")]
     path = join_path(*map(_field_name, loc))
     kind = err["type"]
     msg = _FRIENDLY.get(kind) or err["msg"]
