@@ -18,7 +18,10 @@ from . import stress
 from .errors import InputError
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
-from .wire import copper_mass, dc_resistance
+from .wire import copper_mass, dc_resistance, enamel_build
+
+#: Most turns per strand sized, as for an order's winding.turns.
+MAX_TURNS = 100_000
 
 HOOKUP_TEXT = {
     "single": "one strand between the two terminals",
@@ -38,14 +41,20 @@ def _layout(order: Order, wire, turns: int):
                 strands=w.strands, turns=turns, layers=layers, pitch=w.pitch, tape=order.tape)
     try:
         if isinstance(f, CylinderForm):
-            if wire.overall_diameter * 2 > f.diameter and f.diameter < 1e-3:
-                raise lay.WindingDoesNotFit("the wire is thicker than the form")
+            # Enamel is only proven to survive a mandrel of the wire's own diameter
+            # (IEC 60851-3 mandrel winding test, memory); a thinner form is refused.
+            if f.diameter < wire.overall_diameter:
+                raise lay.FormTooSmall(
+                    f"{f.diameter * 1e3:.3f} mm is smaller than the wire's {wire.overall_diameter * 1e3:.3f} mm "
+                    "overall diameter: the wire is thicker than the form")
             return lay.cylinder_layout(f.diameter, f.traverse, max_build=f.max_build, **args)
         if isinstance(f, ToroidForm):
             return lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height,
                                      gap_deg=math.degrees(f.gap), **args)
         return lay.bobbin_layout(f.width, f.height, diameter=f.diameter,
                                  mean_turn_length=f.mean_turn_length, **args)
+    except lay.FormTooSmall as exc:
+        raise InputError("form.inner_diameter" if isinstance(f, ToroidForm) else "form.diameter", str(exc)) from None
     except lay.WindingDoesNotFit as exc:
         raise InputError("winding.turns" if order.doc.winding.turns else "winding.target_inductance",
                          f"does not fit: {exc}") from None
@@ -109,6 +118,9 @@ def solve_turns(order: Order, wire):
         if got <= 0:
             raise InputError("hookup", "this hookup has no net inductance; a target inductance cannot be met")
         nxt = max(1, int(round(n * math.sqrt(target / got))))
+        if nxt > MAX_TURNS:
+            raise InputError("winding.target_inductance", f"needs about {nxt} turns per strand, more than the "
+                             f"{MAX_TURNS} windsheet sizes: choose a larger form, a core, or a smaller target")
         if nxt == n:
             break
         n = nxt
@@ -125,6 +137,61 @@ def solve_turns(order: Order, wire):
     return best, {"inductance_H": target, "turns_exact": exact, "turns_chosen": best,
                   "inductance_at_chosen_H": candidates[best],
                   "error": candidates[best] / target - 1, "fits": True}
+
+
+def _hz(x):
+    for scale, unit in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")):
+        if x >= scale:
+            return f"{x / scale:.3g} {unit}"
+    return f"{x:.3g} Hz"
+
+
+def _refuse_above_self_resonance(duty, srf):
+    """At or above its self-resonance a winding is capacitive: not the inductor ordered."""
+    if duty.frequency > 0 and srf is not None and duty.frequency >= srf:
+        raise InputError("duty.frequency", f"{_hz(duty.frequency)} is at or above the winding's predicted "
+                         f"self-resonance {_hz(srf)}: there the coil is not an inductor; lower the frequency, "
+                         "or use fewer turns or a construction with less capacitance")
+
+
+def _grade_advice(insulation, wire, derating):
+    """Say whether any enamel grade of this copper size would hold the turn-to-turn voltage.
+
+    The verdict judges the wire chosen; a shop also needs to know whether a heavier
+    build is the cure or whether the construction itself must change.
+    """
+    worst = insulation["worst_adjacent_Vpk"]
+    allowed = {g: derating * enamel_build(wire.copper_diameter, g)[1] for g in (1, 2, 3)}
+    holds = worst <= max(allowed[3], insulation["allowed_Vpk"])
+    out = {**insulation, "any_grade_holds": bool(holds),
+           "grade_allowed_Vpk": {str(g): float(a) for g, a in allowed.items()}}
+    if insulation["verdict"] != "fail" or worst <= insulation["allowed_Vpk"]:
+        return out
+    if not holds:
+        reason = (f"No enamel grade holds {worst:.0f} V peak between neighbours: even grade 3 (triple build) "
+                  f"at this size allows {allowed[3]:.0f} V peak ({derating:.0%} of its breakdown). Change the "
+                  "hookup or the construction (fewer volts per turn, sectioned or layer-insulated winding).")
+    else:
+        g = min(k for k in (1, 2, 3) if allowed[k] >= worst)
+        reason = (f"Grade {g} enamel at this size would allow {allowed[g]:.0f} V peak "
+                  f"({derating:.0%} of its breakdown), enough for the turn-to-turn voltage.")
+    out["reasons"] = list(insulation["reasons"]) + [reason]
+    return out
+
+
+def _pairs(L, R, frequency):
+    """What each pair of strands reads linked series-aiding and series-opposing before the joint."""
+    out = {}
+    S = len(R)
+    for i in range(S):
+        for j in range(i + 1, S):
+            sub_L, sub_R = L[np.ix_([i, j], [i, j])], R[[i, j]]
+            aid = solve_network(sub_L, sub_R, [["A.finish", "B.start"]], ["A.start", "B.finish"], frequency)
+            opp = solve_network(sub_L, sub_R, [["A.finish", "B.finish"]], ["A.start", "B.start"], frequency)
+            out[f"{STRAND_IDS[i]}-{STRAND_IDS[j]}"] = {
+                "series_aiding_H": aid.inductance, "series_opposing_H": opp.inductance,
+                "mutual_H": float(L[i, j]), "coupling": float(L[i, j] / math.sqrt(L[i, i] * L[j, j]))}
+    return out
 
 
 def _cross_section(layout, keep=6):
@@ -194,6 +261,7 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
               "self_resonance_Hz": own["self_resonance_Hz"]}
+    _refuse_above_self_resonance(duty, st["self_resonance_Hz"])
     warnings.extend(st.get("warnings", []))
 
     ident = doc.winding.identification or {}
@@ -268,9 +336,11 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         "current_sheet_inductance_H": current_sheet,
         "current_sheet_rosa_corrected_H": rosa,
         "alternatives": alternative_hookups(L, R20, doc.test.frequency),
+        "pairs": _pairs(L, R20, doc.test.frequency),
         "worst_adjacent": st["worst_adjacent"],
         "capacitance": st["capacitance"],
-        "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
+        "insulation": {**_grade_advice(st["insulation"], wire, doc.insulation.derating),
+                       "ir_min_ohm": doc.insulation.min_resistance},
         "hipot": {**st["hipot"], "voltage_V": stress.hipot_voltage(highest_V)},
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
