@@ -82,6 +82,8 @@ def bifilar_prediction(hookup="series-aiding", L1=100e-6, k=0.988, R1=0.8633, tu
                                 "resistance_min_ohm": term["resistance_ohm"] * (1 - tol_R),
                                 "resistance_max_ohm": term["resistance_ohm"] * (1 + tol_R)}},
         "alternatives": alts,
+        "pairs": {"A-B": {"series_aiding_H": 2 * (L1 + M), "series_opposing_H": 2 * (L1 - M),
+                          "mutual_H": M, "coupling": k}},
         "hipot": {"voltage_V": 1460.0, "duration_s": 60.0},
         "insulation": {},
     }

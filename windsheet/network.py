@@ -233,8 +233,8 @@ def separate_windings(L, R, between=0.0) -> NetworkResult:
     """
     S = len(R)
     ends = np.array([[0.0, 1.0]] * S, dtype=complex) + np.array([[(s % 2) * between] * 2 for s in range(S)])
-    cur = np.zeros(S, dtype=complex)
-    cur[0] = 1.0
+    # Each winding carries the duty current of its own circuit.
+    cur = np.ones(S, dtype=complex)
     return NetworkResult(hookup="separate", joins=[], terminals=["A.start", "A.finish"],
                          inductance=float(np.asarray(L)[0, 0]), resistance=float(R[0]),
                          strand_current=cur, end_potential=ends)

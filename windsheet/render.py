@@ -662,10 +662,10 @@ def qc_items(p: dict) -> list[dict]:
                           ohm(s.get("resistance_20C_ohm")),
                           _tol_band(s.get("resistance_20C_ohm"), tol_R, ohm)))
     if (p.get("hookup") or {}).get("joins") and len(strands) >= 2:
-        alts = p.get("alternatives") or {}
+        pairs = p.get("pairs") or {}
         for a, b in zip(ids, ids[1:]):
-            aid = (alts.get("series-aiding") or {}).get("inductance_H") if len(ids) == 2 else None
-            opp = (alts.get("series-opposing") or {}).get("inductance_H") if len(ids) == 2 else None
+            aid = (pairs.get(f"{a}-{b}") or {}).get("series_aiding_H")
+            opp = (pairs.get(f"{a}-{b}") or {}).get("series_opposing_H")
             items.append(item(f"pair.{a}-{b}.series_aiding", f"Before joint: {a}+{b} series-aiding",
                               henry(aid) if aid else "", _tol_band(aid, tol_L, henry) if aid else "record",
                               judged=bool(aid)))

@@ -357,8 +357,6 @@ def evaluate_unit(prediction: dict, measured: MeasuredFile, unit: UnitReadings, 
 
 def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
     lines, findings = [], []
-    Lm = prediction.get("inductance_matrix_H")
-    km = prediction.get("coupling_matrix")
     for key, pr in unit.before_joint.items():
         path = join_path(base, "before_joint", key)
         a, b = _pair_strands(key)
@@ -369,12 +367,8 @@ def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
         j, sb = strands[b]
         ra = _inductance_reading(pr.series_aiding, f_default)
         ro = _inductance_reading(pr.series_opposing, f_default)
-        La_p = Lo_p = k_p = None
-        if Lm:
-            La_p = Lm[i][i] + Lm[j][j] + 2 * Lm[i][j]
-            Lo_p = Lm[i][i] + Lm[j][j] - 2 * Lm[i][j]
-        if km:
-            k_p = km[i][j]
+        pp = (prediction.get("pairs") or {}).get("-".join(sorted((a, b)))) or {}
+        La_p, Lo_p, k_p = pp.get("series_aiding_H"), pp.get("series_opposing_H"), pp.get("coupling")
         lo, hi = _band(La_p, tol_L) if La_p else (None, None)
         lines.append(_line(f"pair.{key}.series_aiding", f"Series-aiding {a}+{b}, before joint", "H",
                            ra["inductance_H"], La_p, lo, hi, reading=ra, note=_freq_note(ra)))
@@ -387,7 +381,7 @@ def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
         k = coupling_coefficient(M, L1, L2)
         src = "measured" if a in strand_L and b in strand_L else "predicted"
         lines.append(_line(f"pair.{key}.mutual", f"Mutual inductance {a}-{b}, (La - Lo)/4", "H", M,
-                           Lm[i][j] if Lm else None))
+                           pp.get("mutual_H")))
         k_lo = k_p * (1 - tol_L) if k_p is not None else None
         lines.append(_line(f"pair.{key}.coupling", f"Coupling {a}-{b}, M/sqrt(L{a} L{b})", "", k, k_p,
                            k_lo, None, note=f"strand inductances {src}"))
