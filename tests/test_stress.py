@@ -120,6 +120,120 @@ def test_two_wire_line_thin_wire_limit():
     assert c == pytest.approx(3.660e-12, rel=1e-3)
 
 
+# IEC 60317-0-1 rows (references.md, seen): nominal copper Ø and max overall Ø, grades 1 and 3 [mm].
+IEC_WIRES = [(0.315, 0.349), (0.315, 0.384), (0.508, 0.554), (0.508, 0.601), (1.016, 1.080),
+             (1.016, 1.144), (0.45, 0.50)]
+EPS0 = mpmath.mpf("8.8541878128e-12")  # CODATA 2018 (memory)
+
+
+def piecewise_cell_integral(cu, ov, eps_r):
+    # The model's own definition, integrated numerically: per unit angle the
+    # smaller of enamel (εr / ln(1+t/r)) and air wedge (1 / (1 - cos θ)), θ = 0 … π/6.
+    lnr = mpmath.log(mpmath.mpf(ov) / cu)
+    th = mpmath.acos(1 - lnr / eps_r) if lnr / eps_r < 1 - mpmath.cos(mpmath.pi / 6) else None
+    f = lambda t: eps_r / lnr if 1 - mpmath.cos(t) <= lnr / eps_r else 1 / (1 - mpmath.cos(t))  # noqa: E731
+    pts = [0, th, mpmath.pi / 6] if th is not None else [0, mpmath.pi / 6]
+    return float(EPS0 * mpmath.quad(f, pts))
+
+
+def series_cell_integral(cu, ov, eps_r):
+    # Same flux tubes with enamel and air wedge in series (no piecewise cut).
+    lnr = mpmath.log(mpmath.mpf(ov) / cu)
+    return float(EPS0 * mpmath.quad(lambda t: eps_r / (lnr + eps_r * (1 - mpmath.cos(t))),
+                                    [0, mpmath.pi / 6]))
+
+
+@pytest.mark.parametrize("eps_r", [1.0, 3.5])
+@pytest.mark.parametrize("cu_mm,ov_mm", IEC_WIRES)
+def test_turn_to_turn_matches_its_cell_integral(cu_mm, ov_mm, eps_r):
+    cu, ov = cu_mm * 1e-3, ov_mm * 1e-3
+    # Massarini & Kazimierczuk 1997 (expression seen in a third-party copy): the closed form
+    # is the piecewise enamel/air integral over ±30°; checked by quadrature. Grade 3 at εr 1
+    # passes θ* = π/6 and exercises the all-enamel cap.
+    assert stress.turn_to_turn_capacitance_per_length(cu, ov, eps_r) == pytest.approx(
+        piecewise_cell_integral(cu, ov, eps_r), rel=1e-9)
+
+
+@pytest.mark.parametrize("cu_mm,ov_mm", IEC_WIRES)
+def test_turn_to_turn_bounded_by_series_integral(cu_mm, ov_mm):
+    cu, ov = cu_mm * 1e-3, ov_mm * 1e-3
+    c = stress.turn_to_turn_capacitance_per_length(cu, ov, 3.5)
+    exact_series = series_cell_integral(cu, ov, 3.5)
+    # Derived: min(a, b) lies between the series value ab/(a+b) and twice it.
+    assert exact_series < c < 2 * exact_series
+
+
+def test_turn_to_turn_touching_045_050_about_111_pf_per_m():
+    # Computed (quadrature of the model), 111 pF/m as the colleague's figure; the uniform-εr
+    # two-wire line gives 208 pF/m for the same pair (memory formula, computed).
+    c = stress.turn_to_turn_capacitance_per_length(0.45e-3, 0.50e-3, 3.5)
+    assert c == pytest.approx(piecewise_cell_integral(0.45e-3, 0.50e-3, 3.5), rel=1e-9)
+    assert c == pytest.approx(110.9e-12, rel=1e-3)
+    assert stress.two_wire_capacitance_per_length(0.50e-3, 0.45e-3, 3.5) == pytest.approx(
+        208.4e-12, rel=1e-3)
+
+
+@pytest.mark.parametrize("eps_r", [1.0, 3.5])
+def test_turn_to_turn_thin_film_limit(eps_r):
+    # Derived: as t/r → 0, θ* ≈ √(2x) with x = ln(1+t/r)/εr, and
+    # C'/ε0 → 2√(2/x) − cot(π/12) + O(√x); cot(π/12) = 2 + √3 (exact).
+    cu = 1e-3
+    ov = cu * (1 + 1e-8)
+    x = math.log1p(1e-8) / eps_r
+    expected = (2 * math.sqrt(2 / x) - (2 + math.sqrt(3))) * float(EPS0)
+    assert stress.turn_to_turn_capacitance_per_length(cu, ov, eps_r) == pytest.approx(expected, rel=1e-6)
+
+
+def test_turn_to_turn_needs_enamel():
+    # Derived: with no film, ln(1 + t/r) = 0 and the model has no meaning (bare turns short).
+    with pytest.raises(ValueError):
+        stress.turn_to_turn_capacitance_per_length(0.5e-3, 0.5e-3)
+
+
+@pytest.mark.parametrize("ratio", [1.5, 3.0, 20.0])
+def test_enamelled_line_limits(ratio):
+    cu, ov = 0.45e-3, 0.50e-3
+    # Two-wire line (memory): with εr → ∞ the films vanish and the line is in air at Ø_o.
+    assert stress.enamelled_two_wire_capacitance_per_length(ratio * ov, cu, ov, 1e12) == pytest.approx(
+        stress.two_wire_capacitance_per_length(ratio * ov, ov, 1.0), rel=1e-9)
+    # Coaxial films in series with the air line (derived): 1/C' adds ln(Do/d)/(π ε0 εr).
+    c = stress.enamelled_two_wire_capacitance_per_length(ratio * ov, cu, ov, 3.5)
+    assert 1 / c == pytest.approx(1 / stress.two_wire_capacitance_per_length(ratio * ov, ov, 1.0)
+                                  + math.log(ov / cu) / (math.pi * float(EPS0) * 3.5), rel=1e-9)
+
+
+def test_side_by_side_touching_is_turn_to_turn_and_falls_with_spacing():
+    cu, ov = 0.50e-3, 0.5694e-3
+    mk = stress.turn_to_turn_capacitance_per_length(cu, ov)
+    spacing = ov * np.linspace(1.0, 4.0, 30001)
+    c = stress.side_by_side_capacitance_per_length(spacing, cu, ov)
+    # Massarini & Kazimierczuk 1997: touching turns.
+    assert c[0] == pytest.approx(mk, rel=1e-12)
+    # Physics: capacitance never rises as the turns part; no step at the hand-over.
+    assert np.all(np.diff(c) <= 1e-18)
+    assert np.max(np.abs(np.diff(c))) < 0.01 * mk
+    # Derived: well apart it is the two-wire line with air beyond the enamel.
+    assert c[-1] == pytest.approx(stress.enamelled_two_wire_capacitance_per_length(4 * ov, cu, ov),
+                                  rel=1e-12)
+    # Enamel's εr taken throughout (the old model) overstates at every spacing.
+    assert np.all(c < stress.two_wire_capacitance_per_length(spacing, cu, stress.ENAMEL_EPS_R))
+
+
+def test_pair_capacitances_touching_and_spaced_turns():
+    close = one_layer(1, 20)
+    i, j, kind, c, _ = stress.pair_capacitances(close)
+    length = 0.5 * (close.turn_length[i] + close.turn_length[j])
+    # Massarini & Kazimierczuk 1997: close-wound turns touch, C = C' × mean turn length.
+    assert c == pytest.approx(stress.turn_to_turn_capacitance_per_length(D_CU, D_OV) * length,
+                              rel=1e-12)
+    spaced = cylinder_layout(0.02, 0.3, D_CU, D_OV, 1, 20, layers=1, pitch=2 * D_OV)
+    i, j, kind, c, _ = stress.pair_capacitances(spaced)
+    length = 0.5 * (spaced.turn_length[i] + spaced.turn_length[j])
+    # Derived: at twice the overall diameter, the enamelled two-wire line.
+    assert c == pytest.approx(stress.enamelled_two_wire_capacitance_per_length(
+        2 * D_OV, D_CU, D_OV) * length, rel=1e-9)
+
+
 def strand_to_strand(lay, i, j, kind, c):
     sel = (kind == "side") & (lay.strand[i] != lay.strand[j])
     return c[sel].sum()
@@ -229,6 +343,15 @@ def test_verdict_fail_over_derated_breakdown():
     # Common practice: work enamel at no more than a quarter of its published breakdown.
     assert out["verdict"] == "fail" and "1150 V peak" in out["reasons"][0]
     assert out["margin"] == pytest.approx(1150.0 / 1200.0)
+
+
+@pytest.mark.parametrize("worst,text", [(4.366, "4.37 V peak"), (0.5, "0.500 V peak"),
+                                        (12.34, "12.3 V peak"), (162.6, "163 V peak")])
+def test_verdict_prints_voltages_to_three_figures(worst, text):
+    out = verdict(worst)
+    # Common practice: three significant figures, so a few volts do not print as "0 V".
+    assert text in out["reasons"][0]
+    assert "within the allowed 1150 V peak" in out["reasons"][0]
 
 
 def test_verdict_fail_over_tape_rating():
