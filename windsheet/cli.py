@@ -129,7 +129,11 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
             as_json: bool = typer.Option(False, "--json", help="Print the sign-off as JSON (SI units)."),
             register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
                                                    "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
-            inspector: Optional[str] = typer.Option(None, "--inspector", help="Who signs the units off.")):
+            inspector: Optional[str] = typer.Option(None, "--inspector", help="Who signs the units off."),
+            out: Optional[Path] = typer.Option(None, "-o", "--out", help="Also write the sign-off sheet here "
+                                               "(PDF, or HTML with --html)."),
+            html: bool = typer.Option(False, "--html", help="Write the sheet as HTML instead of PDF."),
+            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
     """Sign off measured units against the issued traveller; exit 0 all pass, 1 any fail, 2 bad input."""
     from .measured import load_measured
     from .order import load_order
@@ -143,13 +147,27 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
     if not who:
         raise InputError("inspector", "name the inspector with --inspector or 'inspector:' in the measured file")
     job = o.doc.job
+    if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
+        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
     with open_register(register, create=False) as reg:
         _, issued = reg.find_issue(job.number, job.revision, o.sha256)
         result = evaluate_signoff(issued, readings, inspector=who)
+        sheet = _signoff_sheet(issued, result, html, paper) if out is not None else None
         reg.record_signoff(result, o.sha256, who,
                            measured_units=[u.model_dump(mode="json") for u in readings.units])
+    if sheet is not None:
+        from .fileio import atomic_write_bytes
+
+        atomic_write_bytes(out, sheet)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
+
+
+def _signoff_sheet(prediction, result, html, paper) -> bytes:
+    from .render import render_pdf, render_signoff_html
+
+    page = render_signoff_html(prediction, result, paper=paper)
+    return page.encode("utf-8") if html else render_pdf(page)
 
 
 @app.command("register")
@@ -239,21 +257,39 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
 def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the demo sheets."),
              samples: Optional[Path] = typer.Option(None, "--samples", help="Folder of sample orders "
                                                     "(default: the project's samples/).")):
-    """Render every sample order's traveller to PDF and HTML (nothing is recorded)."""
+    """Render every sample order's traveller, and the sample measurements' sign-off sheets, to PDF and HTML (nothing is recorded)."""
     from .fileio import atomic_write_bytes
     from .order import load_order
     from .predict import predict
+    from .measured import load_measured
     from .render import order_files, render_pdf, render_traveller_html
+    from .signoff import evaluate_signoff
 
     folder = samples or Path(__file__).resolve().parent.parent / "samples"
     files = order_files(folder)
     out.mkdir(parents=True, exist_ok=True)
+    predictions = {}
     for f in files:
         p = predict(load_order(f))
+        predictions[p["job"]["number"]] = p
         page = render_traveller_html(p)
         atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
         atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))
     typer.echo(f"{len(files)} travellers (PDF and HTML) written to {out.resolve()}")
+    sheets = 0
+    for m in sorted(folder.glob("*.measured.yaml")):
+        readings = load_measured(m)
+        p = predictions.get(readings.job)
+        if p is None:
+            continue
+        result = evaluate_signoff(p, readings, inspector=readings.inspector)
+        stem = m.name[: -len(".measured.yaml")] + "-signoff"
+        atomic_write_bytes(out / f"{stem}.html", _signoff_sheet(p, result, True, "a4"))
+        atomic_write_bytes(out / f"{stem}.pdf", _signoff_sheet(p, result, False, "a4"))
+        sheets += 1
+        typer.echo(f"  sign-off {m.name}: {result['verdict'].upper()}")
+    if sheets:
+        typer.echo(f"{sheets} sign-off sheets (PDF and HTML) written to {out.resolve()}")
 
 
 def main():  # console-script entry point

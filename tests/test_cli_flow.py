@@ -1,0 +1,54 @@
+"""The whole job through the command line: issue, sign off with a sheet, read the register."""
+
+import io
+
+from pypdf import PdfReader
+from typer.testing import CliRunner
+
+from windsheet.cli import app
+
+from conftest import SAMPLES
+
+runner = CliRunner()
+ORDER = SAMPLES / "hl-0412-bifilar-aiding.yaml"
+
+
+def pdf_text(path):
+    return "\n".join(p.extract_text() for p in PdfReader(io.BytesIO(path.read_bytes())).pages)
+
+
+def test_issue_signoff_sheet_and_register(tmp_path):
+    reg = str(tmp_path / "reg.db")
+    res = runner.invoke(app, ["traveller", str(ORDER), "-o", str(tmp_path / "t.pdf"), "--register", reg])
+    assert res.exit_code == 0, res.output
+    sheet = tmp_path / "reversed.pdf"
+    res = runner.invoke(app, ["signoff", str(ORDER), str(SAMPLES / "HL-0412-reversed.measured.yaml"),
+                              "--register", reg, "-o", str(sheet)])
+    # Exit status 1: a unit failed (sample HL-0412-02 was built with strand B reversed).
+    assert res.exit_code == 1, res.output
+    text = pdf_text(sheet)
+    assert "HL-0412-02" in text and "FAIL" in text and "reversed" in text
+    res = runner.invoke(app, ["register", "--register", reg])
+    assert res.exit_code == 0 and "failed" in res.stdout and "HL-0412" in res.stdout
+
+
+def test_signoff_sheet_into_missing_folder_records_nothing(tmp_path):
+    reg = str(tmp_path / "reg.db")
+    assert runner.invoke(app, ["register", "--issue", str(ORDER), "--register", reg]).exit_code == 0
+    res = runner.invoke(app, ["signoff", str(ORDER), str(SAMPLES / "HL-0412.measured.yaml"),
+                              "--register", reg, "-o", str(tmp_path / "nowhere" / "s.pdf")])
+    assert res.exit_code == 2 and "does not exist" in res.stderr
+    res = runner.invoke(app, ["register", "HL-0412", "--register", reg])
+    assert "signed off" not in res.stdout
+
+
+def test_demo_renders_travellers_and_signoff_sheets(tmp_path):
+    out = tmp_path / "demo"
+    res = runner.invoke(app, ["demo", "--out", str(out)])
+    assert res.exit_code == 0, res.output
+    orders = [p for p in SAMPLES.glob("*.yaml") if not p.name.endswith(".measured.yaml")]
+    for o in orders:
+        assert (out / f"{o.stem}.pdf").read_bytes().startswith(b"%PDF")
+        assert (out / f"{o.stem}.html").read_text().lstrip().lower().startswith("<!doctype html")
+    assert (out / "HL-0412-signoff.pdf").exists() and (out / "HL-0412-reversed-signoff.html").exists()
+    assert str(out) in res.stdout
