@@ -32,8 +32,20 @@ def read_yaml_bytes(data: bytes, what: str = "order", max_bytes: int = MAX_ORDER
     """Parse YAML bytes into a mapping, refusing anything hostile (see :mod:`windsheet.fileio`)."""
     doc = parse_yaml_bytes(data, label or what, max_bytes=max_bytes, max_depth=MAX_DEPTH)
     if not isinstance(doc, dict):
-        raise InputError(label, f"expected the {what} to be a YAML mapping of sections, got {type(doc).__name__}")
+        raise InputError(label, f"expected the {what} to be a YAML mapping of sections, got {_yaml_kind(doc)}")
     return doc
+
+
+def _yaml_kind(doc) -> str:
+    if doc is None:
+        return "nothing (the file is empty)"
+    if isinstance(doc, list):
+        return "a list"
+    if isinstance(doc, str):
+        return "a single piece of text"
+    if isinstance(doc, (int, float)):
+        return "a single number"
+    return f"a single {type(doc).__name__} value"
 
 
 def read_file(path) -> bytes:
