@@ -1,0 +1,113 @@
+"""Hostile YAML is refused quickly, in one line, by a real ``windsheet`` process.
+
+Each case runs the command in a subprocess with a generous timeout: a hang
+shows as ``TimeoutExpired`` instead of a stuck suite, and no wall time is
+asserted.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pytest
+
+from conftest import SAMPLES
+
+SINGLE = (SAMPLES / "hl-0410-single.yaml").read_text(encoding="utf-8")
+
+BILLION_LAUGHS = "\n".join(
+    ["a0: &a0 [lol, lol, lol, lol, lol, lol, lol, lol, lol, lol]"]
+    + [f"a{k}: &a{k} [{', '.join([f'*a{k - 1}'] * 10)}]" for k in range(1, 10)]
+) + "\n"
+
+# Each case: file bytes and words the one-line refusal must contain.
+HOSTILE = {
+    "billion-laughs": (BILLION_LAUGHS.encode(), "aliases"),
+    "alias-in-order": (SINGLE.replace("wire: {size: 0.50 mm, grade: 2}",
+                                      "wire: &w {size: 0.50 mm, grade: 2}\nx: *w").encode(), "aliases"),
+    "deep-flow-nesting": (b"job: " + b"[" * 50_000 + b"]" * 50_000 + b"\n", "nested"),
+    "deep-block-nesting": ("".join(f"{'  ' * k}k{k}:\n" for k in range(200)).encode() + b"  " * 200 + b"x: 1\n",
+                           "nested"),
+    "multi-megabyte": ((SINGLE + "# padding\n" * 400_000).encode(), "larger than"),
+    "long-scalar": (SINGLE.replace('"Pickup loop, 40 t on 50 mm"', '"' + "x" * 300_000 + '"').encode(),
+                    "larger than"),
+    "binary-junk": (bytes(range(256)) * 64, "UTF-8"),
+    "nul-bytes": (SINGLE.encode() + b"\x00\x00\x00", "NUL"),
+    "invalid-utf8": (SINGLE.encode().replace(b"PTFE", b"PT\xff\xfeE"), "UTF-8"),
+    "python-object-apply": (b"job: !!python/object/apply:os.system ['echo pwned > /tmp/ws-pwned']\n",
+                            "not valid YAML"),
+    "python-name": (b"job: !!python/name:os.system\n", "not valid YAML"),
+    "python-object-new": (b"job: !!python/object/new:subprocess.Popen [['true']]\n", "not valid YAML"),
+    "just-a-scalar": (b"42\n", "mapping"),
+    "just-a-string": (b"HL-0412 please wind 60 turns\n", "mapping"),
+    "empty-file": (b"", "the file is empty"),
+    "a-list": (b"- job\n- form\n", "mapping"),
+    "two-documents": ((SINGLE + "\n---\n" + SINGLE).encode(), "not valid YAML"),
+    "unhashable-key": (b"? [a, b]\n: 1\n", "YAML"),
+    "tab-indent": (SINGLE.replace("  number:", "\tnumber:").encode(), "not valid YAML"),
+    "repeated-section": ((SINGLE + "duty: {voltage: 400 V}\n").encode(), "twice"),
+}
+
+
+def _run(tmp_path, *args, timeout=60):
+    return subprocess.run([sys.executable, "-m", "windsheet.cli", *args], capture_output=True, text=True,
+                          timeout=timeout, cwd=tmp_path)
+
+
+def _assert_one_line_refusal(res, words):
+    assert res.returncode == 2, (res.returncode, res.stdout[:500], res.stderr[:2000])
+    assert res.stdout == ""
+    lines = res.stderr.splitlines()
+    assert len(lines) == 1, res.stderr[:2000]
+    assert lines[0].startswith("windsheet: ") and "Traceback" not in res.stderr
+    assert words in lines[0], lines[0]
+    # One line a person can read, not the document echoed back.
+    assert len(lines[0]) < 400, lines[0][:400]
+
+
+@pytest.mark.parametrize("name", sorted(HOSTILE))
+def test_hostile_order_is_refused(tmp_path, name):
+    data, words = HOSTILE[name]
+    f = tmp_path / "order.yaml"
+    f.write_bytes(data)
+    res = _run(tmp_path, "size", str(f), "--json")
+    _assert_one_line_refusal(res, words)
+    assert not (tmp_path / "ws-pwned").exists()
+
+
+@pytest.mark.parametrize("name", ["billion-laughs", "deep-flow-nesting", "binary-junk", "python-object-apply",
+                                  "just-a-scalar", "multi-megabyte"])
+def test_hostile_measured_values_are_refused(tmp_path, name):
+    data, words = HOSTILE[name]
+    order = tmp_path / "order.yaml"
+    order.write_text(SINGLE, encoding="utf-8")
+    measured = tmp_path / "measured.yaml"
+    measured.write_bytes(data)
+    res = _run(tmp_path, "signoff", str(order), str(measured), "--inspector", "QC",
+               "--register", str(tmp_path / "register.db"))
+    expected = {"just-a-scalar": "expected a mapping"}.get(name, words)
+    _assert_one_line_refusal(res, expected)
+    # Refused before the register is touched.
+    assert not (tmp_path / "register.db").exists()
+
+
+def test_python_tag_never_runs(tmp_path):
+    f = tmp_path / "order.yaml"
+    marker = tmp_path / "ran"
+    f.write_text(f"job: !!python/object/apply:os.system ['touch {marker}']\n" + SINGLE.split("\n", 1)[1])
+    res = _run(tmp_path, "size", str(f))
+    assert res.returncode == 2
+    assert not marker.exists()
+
+
+@pytest.mark.parametrize("transform", [
+    lambda t: "\ufeff" + t,                 # a byte-order mark from a Windows editor
+    lambda t: t.replace("\n", "\r\n"),      # CRLF line ends from e-mail
+])
+def test_harmless_encodings_still_size(tmp_path, transform):
+    f = tmp_path / "order.yaml"
+    f.write_bytes(transform(SINGLE).encode("utf-8"))
+    res = _run(tmp_path, "size", str(f), "--json")
+    assert res.returncode == 0, res.stderr
+    assert '"turns_per_strand": 40' in res.stdout
