@@ -14,6 +14,7 @@ from typing import Optional
 
 import typer
 
+from . import fmt
 from .errors import InputError
 
 app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False)
@@ -37,24 +38,9 @@ def guarded(fn):
 
 
 # ---------------------------------------------------------------- formatting
-_PREFIX = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p")]
-
-
 def eng(value, unit: str, digits: int = 4) -> str:
-    """A number with an SI prefix: ``eng(6.12e-5, 'H') == '61.20 µH'``."""
-    if value is None:
-        return "—"
-    if value == 0:
-        return f"0 {unit}"
-    if value != value or value in (float("inf"), float("-inf")):
-        return f"{value} {unit}"
-    mag = abs(value)
-    for scale, prefix in _PREFIX:
-        if mag >= scale * 0.99995:
-            break
-    x = value / scale
-    decimals = max(0, digits - 1 - (len(str(int(abs(x)))) - 1))
-    return f"{x:.{decimals}f} {prefix}{unit}"
+    """A number with an SI prefix for the terminal: ``eng(6.12e-5, 'H') == '61.20 µH'``."""
+    return fmt.eng(value, unit, sig=digits, sep=" ")
 
 
 def summary_lines(p: dict) -> list[str]:

@@ -8,7 +8,6 @@ for people (``61.20 µH``, ``1.234 Ω``, ``12.30 m``).
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 from urllib.parse import unquote, urlsplit
 
@@ -50,83 +49,8 @@ UNITS_PER_QC_TABLE = 4
 DEFERRAL = ("These notes do not replace local electrical codes, the applicable "
             "product standard or licensed practice; where they differ, those govern.")
 
-_PREFIXES = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
-_NBSP = "\u00a0"
-OHM = "Ω"
-
-
-# --- number formatting for people ------------------------------------------------
-
-def eng(value, unit: str = "", sig: int = 4, trim: bool = False) -> str:
-    """Write ``value`` in engineering notation with an SI prefix: ``61.20 µH``.
-
-    ``sig`` significant figures; ``trim`` drops trailing zeros (for duty
-    values a customer wrote: ``230 V``, ``50 Hz``).  ``None`` prints as a dash.
-    """
-    if value is None:
-        return "—"
-    v = float(value)
-    if not math.isfinite(v):
-        return "∞" + (_NBSP + unit if unit else "") if v > 0 else "—"
-    if v == 0:
-        return "0" + (_NBSP + unit if unit else "")
-    exp3 = int(math.floor(math.log10(abs(v)) / 3.0) * 3)
-    exp3 = max(-12, min(9, exp3))
-    mant = v / 10.0 ** exp3
-    text = _sig_text(mant, sig)
-    if abs(float(text)) >= 1000.0 and exp3 < 9:
-        exp3 += 3
-        text = _sig_text(v / 10.0 ** exp3, sig)
-    if trim and "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return text + _NBSP + _PREFIXES[exp3] + unit if unit or _PREFIXES[exp3] else text
-
-
-def _sig_text(x: float, sig: int) -> str:
-    if x == 0:
-        return "0"
-    decimals = max(0, sig - 1 - int(math.floor(math.log10(abs(x)))))
-    text = f"{x:.{decimals}f}"
-    # Rounding up can add a digit (999.96 -> 1000.0); keep the figure count.
-    if decimals and len(text.replace("-", "").replace(".", "").lstrip("0")) > sig:
-        text = f"{x:.{decimals - 1}f}"
-    return text
-
-
-def length(value_m, sig: int = 4) -> str:
-    """A length as the shop writes it: millimetres below a metre, metres above."""
-    if value_m is None:
-        return "—"
-    v = float(value_m)
-    if abs(v) >= 1.0:
-        return _sig_text(v, sig) + _NBSP + "m"
-    return _sig_text(v * 1e3, sig) + _NBSP + "mm"
-
-
-def mass(value_kg, sig: int = 3) -> str:
-    """A mass in grams (kilograms above 1 kg)."""
-    if value_kg is None:
-        return "—"
-    v = float(value_kg)
-    if abs(v) >= 1.0:
-        return _sig_text(v, sig) + _NBSP + "kg"
-    return _sig_text(v * 1e3, sig) + _NBSP + "g"
-
-
-def percent(fraction, sig: int = 3) -> str:
-    if fraction is None:
-        return "—"
-    text = _sig_text(float(fraction) * 100.0, sig)
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return text + _NBSP + "%"
-
-
-def celsius(value) -> str:
-    if value is None:
-        return "—"
-    text = f"{float(value):.1f}".rstrip("0").rstrip(".")
-    return text + _NBSP + "°C"
+from .fmt import NBSP as _NBSP
+from .fmt import OHM, celsius, eng, length, mass, percent  # noqa: F401 - used by the templates
 
 
 def henry(v):
