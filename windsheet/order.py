@@ -256,6 +256,7 @@ class Order:
             raise InputError("job.units", f"lists {len(job.units)} serial numbers for a quantity of {job.quantity}")
         if job.units is not None and len(set(job.units)) != len(job.units):
             raise InputError("job.units", "serial numbers must be unique")
+        _check_fractions(doc)
 
     @property
     def units(self) -> list[str]:
@@ -265,6 +266,18 @@ class Order:
     @property
     def strand_ids(self) -> list[str]:
         return list(STRAND_IDS[: self.doc.winding.strands])
+
+
+def _check_fractions(doc: OrderDoc):
+    """Percentages whose meaning ends at 100 %: a 150 % tolerance accepts a negative inductance."""
+    tol, ins = doc.tolerances, doc.insulation
+    for path, value in (("tolerances.inductance", tol.inductance), ("tolerances.resistance", tol.resistance),
+                        ("insulation.hot_pdiv_derating", ins.hot_pdiv_derating)):
+        if value >= 1.0:
+            raise InputError(path, f"expected a percentage below 100 %, got {value * 100:g} %")
+    if not 0 < ins.derating <= 1.0:
+        raise InputError("insulation.derating", "expected the share of the breakdown voltage allowed in service, "
+                         f"above 0 % and at most 100 % (common practice 25 %), got {ins.derating * 100:g} %")
 
 
 def _hookup(raw, strands):
