@@ -319,6 +319,10 @@ def _refusal(scratch, doc):
     ({"winding": {"identification": {"E": "blue"}}}, "winding.identification.E", "A"),
     ({"job": {"part": "x" * 500}}, "job.part", "200"),
     ({"job": {"number": "HL 0412 ☃"}}, "job.number", "letters, digits"),
+    ({"tolerances": {"inductance": "150 %"}}, "tolerances.inductance", "below 100 %"),
+    ({"insulation": {"derating": "0 %"}}, "insulation.derating", "above 0 %"),
+    ({"insulation": {"derating": "400 %"}}, "insulation.derating", "at most 100 %"),
+    ({"insulation": {"hot_pdiv_derating": "100 %"}}, "insulation.hot_pdiv_derating", "below 100 %"),
     ({"form": "cylinder"}, "form", ""),
     ({"duty": None}, "duty", ""),
 ])
