@@ -260,7 +260,10 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
                             wire.breakdown, **stress_args)
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
-              "self_resonance_Hz": own["self_resonance_Hz"]}
+              "self_resonance_Hz": own["self_resonance_Hz"],
+              # Resonance warnings must come from the same winding as the resonance reported.
+              "warnings": [w for w in st["warnings"] if "self-resonance" not in w]
+              + [w for w in own["warnings"] if "self-resonance" in w]}
     _refuse_above_self_resonance(duty, st["self_resonance_Hz"])
     warnings.extend(st.get("warnings", []))
 
