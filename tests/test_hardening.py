@@ -256,7 +256,6 @@ def test_mutated_measured_values_load_or_refuse(data):
             assert math.isfinite(reading.henries) and reading.henries > 0
 
 
-@pytest.mark.xfail(strict=True, reason="measured.py puts a raw key into the error path; reported to its owner")
 @pytest.mark.parametrize("where", ["unit", "continuity"])
 def test_measured_key_with_a_newline_stays_one_line(where):
     doc = copy.deepcopy(MEASURED_DOCS[0])

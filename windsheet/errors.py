@@ -8,6 +8,8 @@ any other exception escaping is a bug.
 
 from __future__ import annotations
 
+import re
+
 
 class InputError(Exception):
     """A fault the user can fix, located by a YAML path such as ``wire.size``."""
@@ -18,10 +20,17 @@ class InputError(Exception):
         super().__init__(f"{path}: {message}" if path else message)
 
 
+def field_name(part):
+    """A key as it can stand in a one-line message: odd keys quoted, newlines escaped."""
+    if isinstance(part, str) and not re.fullmatch(r"[\w.\[\]-]{1,80}", part):
+        return repr(part[:40])
+    return part
+
+
 def join_path(*parts) -> str:
     """Render a location like ``winding.turns`` or ``hookup.joins[0][1]``."""
     out = ""
-    for p in parts:
+    for p in map(field_name, parts):
         if isinstance(p, int):
             out += f"[{p}]"
         elif out:

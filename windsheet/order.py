@@ -324,19 +324,12 @@ _FRIENDLY = {
 }
 
 
-def _field_name(part):
-    """A key as it can appear in a one-line message: odd keys quoted, newlines escaped."""
-    if isinstance(part, str) and not re.fullmatch(r"[\w.-]{1,40}", part):
-        return repr(part[:40])
-    return part
-
-
 def _validation_to_input_error(exc: ValidationError) -> InputError:
     err = exc.errors()[0]
     loc = [p for p in err["loc"] if p not in ("cylinder", "toroid", "bobbin")
            and not (isinstance(p, str) and p.startswith(("function-", "int", "literal", "LayerTape", "constrained")))]
     loc = [p for p in loc if p not in ("float", "str", "bool", "[key]")]
-    path = join_path(*map(_field_name, loc))
+    path = join_path(*loc)
     kind = err["type"]
     msg = _FRIENDLY.get(kind) or err["msg"]
     if msg.startswith("Value error, "):
