@@ -21,6 +21,11 @@ syslibs:
 	    apt-get update -qq && apt-get install -y -qq libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core; \
 	  else echo "windsheet: WeasyPrint needs Pango (libpango-1.0-0); ask your administrator to install it" >&2; exit 1; fi; \
 	fi
+	@# Optional: HarfBuzz's subsetter makes WeasyPrint embed only the glyphs used (smaller PDFs).
+	@if ! ldconfig -p 2>/dev/null | grep -q 'libharfbuzz-subset.so.0' && [ "$$(id -u)" = 0 ] && command -v apt-get >/dev/null; then \
+	  (apt-get install -y -qq libharfbuzz-subset0 >/dev/null 2>&1 || (apt-get update -qq && apt-get install -y -qq libharfbuzz-subset0 >/dev/null 2>&1)) \
+	    || echo "windsheet: libharfbuzz-subset0 not installed; PDFs will be larger" >&2; \
+	fi
 
 demo: $(STAMP)
 	$(BIN)/windsheet demo --out $(OUT)
