@@ -17,7 +17,8 @@ import typer
 from . import fmt
 from .errors import InputError
 
-app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False)
+app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False,
+                  rich_markup_mode=None)  # plain usage errors: a few lines, no boxes
 
 
 @app.callback()
