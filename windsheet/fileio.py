@@ -143,11 +143,16 @@ def read_yaml_file(path, *, max_bytes: int = MAX_YAML_BYTES, max_depth: int = MA
     :class:`InputError` naming the file: missing, unreadable, too large, not
     UTF-8 text, not YAML, or using features a shop file never needs.
     """
-    p = Path(path)
-    label = str(p)
+    return parse_yaml_bytes(read_limited(path, max_bytes), str(path), max_bytes=max_bytes, max_depth=max_depth)
+
+
+def read_limited(path, max_bytes: int) -> bytes:
+    """The bytes of a YAML file, reading at most one byte past ``max_bytes`` (so an
+    oversized file is noticed without reading it all); faults name the file."""
+    label = str(path)
     try:
-        with open(p, "rb") as fh:
-            raw = fh.read(max_bytes + 1)
+        with open(Path(path), "rb") as fh:
+            return fh.read(max_bytes + 1)
     except FileNotFoundError:
         raise InputError(label, "file not found") from None
     except IsADirectoryError:
@@ -156,7 +161,6 @@ def read_yaml_file(path, *, max_bytes: int = MAX_YAML_BYTES, max_depth: int = MA
         raise InputError(label, "cannot read: permission denied") from None
     except OSError as exc:
         raise InputError(label, f"cannot read: {exc.strerror or exc}") from None
-    return parse_yaml_bytes(raw, label, max_bytes=max_bytes, max_depth=max_depth)
 
 
 def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,

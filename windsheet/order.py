@@ -18,7 +18,7 @@ from typing import Annotated, Any, Literal, Optional, Union
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
 
 from .errors import InputError, join_path
-from .fileio import parse_yaml_bytes
+from .fileio import parse_yaml_bytes, read_limited
 from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup
 from .units import parse_percent, parse_quantity
 
@@ -46,22 +46,6 @@ def _yaml_kind(doc) -> str:
     if isinstance(doc, (int, float)):
         return "a single number"
     return f"a single {type(doc).__name__} value"
-
-
-def read_file(path) -> bytes:
-    p = Path(path)
-    try:
-        if p.stat().st_size > MAX_ORDER_BYTES:
-            raise InputError(str(path), f"file is larger than {MAX_ORDER_BYTES // 1024} kB; not an order")
-        return p.read_bytes()
-    except FileNotFoundError:
-        raise InputError(str(path), "file not found") from None
-    except IsADirectoryError:
-        raise InputError(str(path), "is a folder, expected a YAML file") from None
-    except PermissionError:
-        raise InputError(str(path), "cannot be read (permission denied)") from None
-    except OSError as exc:
-        raise InputError(str(path), f"cannot be read: {exc.strerror}") from None
 
 
 # ---------------------------------------------------------------- field types
@@ -357,7 +341,7 @@ def parse_order(data: bytes, path: str | None = None) -> Order:
 
 def load_order(path) -> Order:
     """Read and validate the order at ``path``."""
-    return parse_order(read_file(path), os.fspath(path))
+    return parse_order(read_limited(path, MAX_ORDER_BYTES), os.fspath(path))
 
 
 # ---------------------------------------------------------------- the wire
