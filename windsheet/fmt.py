@@ -46,24 +46,24 @@ def _sig_text(x: float, sig: int) -> str:
     return text
 
 
+def _thousandths(value, sig, big, small):
+    """``big`` units from 1 up, ``small`` (thousandths) below: 12.30 m, 569.4 mm."""
+    if value is None:
+        return "—"
+    v = float(value)
+    if abs(v) >= 1.0:
+        return _sig_text(v, sig) + NBSP + big
+    return _sig_text(v * 1e3, sig) + NBSP + small
+
+
 def length(value_m, sig: int = 4) -> str:
     """A length as the shop writes it: millimetres below a metre, metres above."""
-    if value_m is None:
-        return "—"
-    v = float(value_m)
-    if abs(v) >= 1.0:
-        return _sig_text(v, sig) + NBSP + "m"
-    return _sig_text(v * 1e3, sig) + NBSP + "mm"
+    return _thousandths(value_m, sig, "m", "mm")
 
 
 def mass(value_kg, sig: int = 3) -> str:
     """A mass in grams (kilograms above 1 kg)."""
-    if value_kg is None:
-        return "—"
-    v = float(value_kg)
-    if abs(v) >= 1.0:
-        return _sig_text(v, sig) + NBSP + "kg"
-    return _sig_text(v * 1e3, sig) + NBSP + "g"
+    return _thousandths(value_kg, sig, "kg", "g")
 
 
 def percent(fraction, sig: int = 3) -> str:
