@@ -52,3 +52,18 @@ def test_demo_renders_travellers_and_signoff_sheets(tmp_path):
         assert (out / f"{o.stem}.html").read_text().lstrip().lower().startswith("<!doctype html")
     assert (out / "HL-0412-signoff.pdf").exists() and (out / "HL-0412-reversed-signoff.html").exists()
     assert str(out) in res.stdout
+
+
+def test_refused_issue_leaves_the_old_sheet_and_no_new_one(tmp_path):
+    reg = str(tmp_path / "reg.db")
+    out = tmp_path / "t.pdf"
+    assert runner.invoke(app, ["traveller", str(ORDER), "-o", str(out), "--register", reg]).exit_code == 0
+    old = out.read_bytes()
+    # Same job and revision, different content: the register refuses it, so the sheet must not change.
+    changed = tmp_path / "changed.yaml"
+    changed.write_text(ORDER.read_text().replace("turns: 60", "turns: 58"))
+    res = runner.invoke(app, ["traveller", str(changed), "-o", str(out), "--register", reg])
+    assert res.exit_code == 2 and "\n" not in res.stderr.strip()
+    assert out.read_bytes() == old
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted(["reg.db", "t.pdf", "changed.yaml"]
+                                                                + [p.name for p in tmp_path.glob("reg.db-*")])

@@ -139,13 +139,14 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
     with open_register(register, create=False) as reg:
         _, issued = reg.find_issue(job.number, job.revision, o.sha256)
         result = evaluate_signoff(issued, readings, inspector=who)
-        sheet = _signoff_sheet(issued, result, html, paper) if out is not None else None
-        reg.record_signoff(result, o.sha256, who,
-                           measured_units=[u.model_dump(mode="json") for u in readings.units])
-    if sheet is not None:
-        from .fileio import atomic_write_bytes
+        units = [u.model_dump(mode="json") for u in readings.units]
+        if out is None:
+            reg.record_signoff(result, o.sha256, who, measured_units=units)
+        else:
+            from .fileio import staged_write
 
-        atomic_write_bytes(out, sheet)
+            with staged_write(out, _signoff_sheet(issued, result, html, paper)):
+                reg.record_signoff(result, o.sha256, who, measured_units=units)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
 
@@ -205,7 +206,7 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
                   register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
                                                          "$WINDSHEET_REGISTER, else ./windsheet-register.db).")):
     """Print the traveller (job sheet) of an order, and record the issue in the job register."""
-    from .fileio import atomic_write_bytes
+    from .fileio import staged_write
     from .order import load_order
     from .predict import predict
     from .register import open_register
@@ -233,8 +234,9 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
         out.mkdir(parents=True, exist_ok=True)
     with open_register(register) as reg:
         for o, p, forced, target, data in jobs:
-            reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
-            atomic_write_bytes(target, data)
+            # The sheet lands only if its issue is recorded, and the reverse.
+            with staged_write(target, data):
+                reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
             note = " — FORCED over a failing insulation check" if forced else ""
             typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=bool(forced))
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import os
 import tempfile
+from contextlib import contextmanager
 from pathlib import Path
 
 from .errors import InputError
@@ -23,13 +24,16 @@ def _fsync_dir(folder: Path) -> None:
         os.close(fd)
 
 
-def atomic_write_bytes(path, data: bytes) -> Path:
-    """Write ``data`` to ``path`` via a temporary file in the same folder.
+@contextmanager
+def staged_write(path, data: bytes):
+    """Write ``data`` beside ``path`` and put it in place only if the ``with`` block succeeds.
 
-    The temporary file is flushed, fsynced and renamed over the target with
-    :func:`os.replace`, which is atomic on POSIX and Windows when both names
-    are on one file system (hence the same folder).  On any failure the
-    temporary file is removed and the old target is left as it was.
+    The temporary file in the same folder is flushed, fsynced and renamed over
+    the target with :func:`os.replace`, which is atomic on POSIX and Windows
+    when both names are on one file system (hence the same folder).  On any
+    failure, in the write or in the block, the temporary file is removed and
+    the old target is left as it was.  The block is where a caller records
+    what it wrote (the register), so a record and its file stand or fall together.
 
     Raises
     ------
@@ -65,6 +69,7 @@ def atomic_write_bytes(path, data: bytes) -> Path:
             umask = os.umask(0)
             os.umask(umask)
             os.chmod(tmp_name, 0o666 & ~umask)
+        yield target
         os.replace(tmp_name, target)
     except BaseException as exc:
         try:
@@ -77,7 +82,12 @@ def atomic_write_bytes(path, data: bytes) -> Path:
             raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
         raise
     _fsync_dir(folder)
-    return target
+
+
+def atomic_write_bytes(path, data: bytes) -> Path:
+    """Write ``data`` to ``path`` atomically; see :func:`staged_write`."""
+    with staged_write(path, data) as target:
+        return target
 
 
 def atomic_write_text(path, text: str, encoding: str = "utf-8") -> Path:
