@@ -210,13 +210,13 @@ def solve_network(L, R, joins, terminals, frequency, hookup="custom") -> Network
     R = np.asarray(R, dtype=float)
     S = len(R)
     node_of, t1, t2, n = check_hookup(joins, terminals, S)
-    v_dc, _ = _solve(L, R, node_of, t1, t2, n, 0.0)
+    v_dc, i_dc = _solve(L, R, node_of, t1, t2, n, 0.0)
     # The inductance an LCR meter reads needs a nonzero frequency; 1 kHz if DC.
     f_eval = frequency if frequency > 0 else 1e3
     omega = 2 * np.pi * f_eval
     v_ac, i_ac = _solve(L, R, node_of, t1, t2, n, omega)
     z = v_ac[t1]
-    v_duty, i_duty = (v_ac, i_ac) if frequency > 0 else _solve(L, R, node_of, t1, t2, n, 0.0)
+    v_duty, i_duty = (v_ac, i_ac) if frequency > 0 else (v_dc, i_dc)
     z_duty = v_duty[t1]
     ends = np.array([[v_duty[node_of[2 * s]], v_duty[node_of[2 * s + 1]]] for s in range(S)]) / z_duty
     return NetworkResult(hookup=hookup, joins=[list(j) for j in joins], terminals=list(terminals),
