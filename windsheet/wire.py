@@ -132,6 +132,11 @@ class Wire:
         return math.pi * self.copper_diameter ** 2 / 4
 
 
+def _temperature_factor(temperature_C):
+    """R(t)/R(20 degC) of annealed copper, linear in IEC 60028's coefficient."""
+    return 1 + copper()["temperature_coefficient_20C"] * (temperature_C - 20.0)
+
+
 def dc_resistance(length, copper_d, temperature_C=20.0):
     """DC resistance of annealed copper wire.
 
@@ -154,9 +159,8 @@ def dc_resistance(length, copper_d, temperature_C=20.0):
     .. [1] IEC 60028, International standard of resistance for copper:
        1/58 ohm mm^2/m at 20 degC, temperature coefficient 0.00393 /K.
     """
-    c = copper()
-    r20 = c["resistivity_20C"] * np.asarray(length) / (math.pi * copper_d ** 2 / 4)
-    return r20 * (1 + c["temperature_coefficient_20C"] * (temperature_C - 20.0))
+    r20 = copper()["resistivity_20C"] * np.asarray(length) / (math.pi * copper_d ** 2 / 4)
+    return r20 * _temperature_factor(temperature_C)
 
 
 def resistance_to_20C(R, temperature_C):
@@ -178,7 +182,7 @@ def resistance_to_20C(R, temperature_C):
     ----------
     .. [1] IEC 60028 (temperature coefficient 0.00393 /K at 20 degC).
     """
-    return R / (1 + copper()["temperature_coefficient_20C"] * (temperature_C - 20.0))
+    return R / _temperature_factor(temperature_C)
 
 
 def copper_mass(length, copper_d):
