@@ -179,6 +179,20 @@ def _finding(scope, h, distance, d_ordered):
             "log_distance": distance, "log_distance_as_ordered": d_ordered}
 
 
+def _nearest(measured, ordered, hypotheses, turns):
+    """Add the wrong-gauge and fitted-turns hypotheses, rank them all, and return
+    ``(distance, best, distance_as_ordered)`` for the nearest, or None."""
+    hyps = list(hypotheses) + _gauge_hypotheses(ordered)
+    t = _turns_hypothesis(measured, ordered, turns) if turns else None
+    if t:
+        hyps.append(t)
+    scored, d_ordered = _rank(measured, ordered, hyps)
+    if not scored:
+        return None
+    distance, best = scored[0]
+    return distance, best, d_ordered
+
+
 def diagnose_terminals(prediction: dict, L: Optional[float], R: Optional[float], open_circuit=False):
     """Explain terminal readings that miss: nearest alternative hookup or fault.
 
@@ -213,15 +227,10 @@ def diagnose_terminals(prediction: dict, L: Optional[float], R: Optional[float],
         text = _READS_LIKE_WHEN.get((ordered_name, name), _READS_LIKE.get(name, f"wired as {name}"))
         hyps.append({"basis": f"hookup:{name}", "finding": text,
                      "expected": {"L": alt.get("inductance_H"), "R": alt.get("resistance_ohm")}})
-    hyps.extend(_gauge_hypotheses(ordered))
-    turns = _predicted_turns(prediction)
-    t = _turns_hypothesis(measured, ordered, turns) if turns else None
-    if t:
-        hyps.append(t)
-    scored, d_ordered = _rank(measured, ordered, hyps)
-    if not scored:
+    nearest = _nearest(measured, ordered, hyps, _predicted_turns(prediction))
+    if nearest is None:
         return None
-    distance, best = scored[0]
+    distance, best, d_ordered = nearest
     if d_ordered <= distance:
         return {"scope": "terminals", "basis": "as ordered", "likely": False,
                 "finding": "terminal readings lie nearest the ordered hookup; no wiring fault "
@@ -254,14 +263,10 @@ def diagnose_strand(sid: str, strand_pred: dict, L: Optional[float], R: Optional
                 "log_distance": None, "log_distance_as_ordered": None}
     ordered = {"L": strand_pred.get("inductance_H"), "R": strand_pred.get("resistance_20C_ohm")}
     measured = {"L": L, "R": R}
-    hyps = _gauge_hypotheses(ordered)
-    t = _turns_hypothesis(measured, ordered, int(strand_pred.get("turns") or 0))
-    if t:
-        hyps.append(t)
-    scored, d_ordered = _rank(measured, ordered, hyps)
-    if not scored:
+    nearest = _nearest(measured, ordered, [], int(strand_pred.get("turns") or 0))
+    if nearest is None:
         return None
-    distance, best = scored[0]
+    distance, best, d_ordered = nearest
     if d_ordered <= distance:
         return None
     f = _finding(scope, best, distance, d_ordered)
