@@ -34,7 +34,7 @@ test: $(STAMP)
 	$(BIN)/python -m pytest
 
 bench: $(STAMP)
-	$(BIN)/python -m windsheet.bench
+	$(BIN)/python benchmarks/run.py $(ONLY)
 
 clean:
 	rm -rf $(VENV) $(OUT) build *.egg-info

@@ -1,4 +1,4 @@
-"""Benchmark of the strand-matrix engine (``python -m windsheet.bench``, ``make bench``).
+"""Benchmark of the strand-matrix engine (``make bench``; ``python benchmarks/run.py engine``).
 
 Times :func:`windsheet.inductance.strand_matrix` on a 10-layer, 5,000-turn
 coil (one and two strands), then checks it against the plain double sum on a
