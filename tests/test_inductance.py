@@ -1,10 +1,13 @@
 """Checks of windsheet.inductance against published values and independent evaluations."""
 
+import dataclasses
 import math
 
 import mpmath as mp
 import numpy as np
 import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
 from scipy.integrate import quad
 
 from windsheet.inductance import (
@@ -26,7 +29,7 @@ from windsheet.inductance import (
     wheeler_multilayer,
     wheeler_single_layer,
 )
-from windsheet.layout import cylinder_layout, toroid_layout
+from windsheet.layout import WindingDoesNotFit, cylinder_layout, toroid_layout
 
 
 # ---------------------------------------------------------------------------
@@ -295,6 +298,68 @@ def test_fast_sum_equals_double_sum(strands, turns, layers, pitch_factor, tape):
                           pitch=strands * ov * pitch_factor, tape=tape)
     # The Maxwell double sum over all turn pairs (Grover 1946) is the definition the fast sum regroups.
     np.testing.assert_allclose(strand_matrix(lay), strand_matrix_bruteforce(lay), rtol=1e-10)
+
+
+def _rtol_agrees(fast, plain, rtol=1e-9):
+    # The Maxwell double sum over all turn pairs (Grover 1946) is the definition the fast sum regroups.
+    np.testing.assert_allclose(fast, plain, rtol=rtol)
+
+
+@pytest.mark.parametrize("strands, turns, layers, pitch_factor", [
+    (4, 83, 7, 1.0),             # four strands, close wound: strand offsets share kernel classes
+    (4, 60, 5, 2.0),             # pitch twice the strand band: offsets at a quarter and half pitch
+    (3, 50, 4, 1.37),            # offsets incommensurate with the pitch
+    (4, 1, 1, 1.0),              # one turn per strand
+    (2, 7, 7, 1.0),              # one slot per layer
+])
+def test_fast_sum_many_strands_and_layers(strands, turns, layers, pitch_factor):
+    ov = 0.3e-3
+    lay = cylinder_layout(0.010, 40e-3, 0.27e-3, ov, strands, turns, layers=layers,
+                          pitch=strands * ov * pitch_factor, tape=2e-5)
+    _rtol_agrees(strand_matrix(lay), strand_matrix_bruteforce(lay))
+
+
+def test_fast_sum_layers_out_of_order_and_shifted():
+    # Layers whose radii are not in winding order (nested sections) and whose turns are shifted
+    # along the axis by a fraction of the pitch: the group shape of Layout.groups() still holds.
+    lay = cylinder_layout(0.012, 9e-3, 0.35e-3, 0.4e-3, 2, 40, layers=4)
+    radius = {0: 0.0071, 1: 0.0062, 2: 0.0080, 3: 0.0066}
+    shift = {0: 0.0, 1: 0.173e-3, 2: -0.31e-3, 3: 0.5e-3}
+    r = np.array([radius[k] for k in lay.layer])
+    z = lay.z + np.array([shift[k] for k in lay.layer])
+    moved = dataclasses.replace(lay, r=r, z=z)
+    _rtol_agrees(strand_matrix(moved), strand_matrix_bruteforce(moved))
+
+
+def test_fast_sum_two_layers_on_one_radius_side_by_side():
+    # Two sections on the same radius, the second beyond the first along the axis.
+    lay = cylinder_layout(0.012, 6e-3, 0.35e-3, 0.4e-3, 1, 30, layers=2)
+    r = np.full(lay.n_turns, lay.r[0])
+    z = np.where(lay.layer == 1, lay.z + 0.02, lay.z)
+    moved = dataclasses.replace(lay, r=r, z=z)
+    _rtol_agrees(strand_matrix(moved), strand_matrix_bruteforce(moved))
+
+
+def test_fast_sum_refuses_coinciding_turns():
+    lay = cylinder_layout(0.012, 6e-3, 0.35e-3, 0.4e-3, 1, 30, layers=2)
+    # Both layers on one radius and over the same slots: some turns sit on one circle.
+    moved = dataclasses.replace(lay, r=np.full(lay.n_turns, lay.r[0]))
+    with pytest.raises(ValueError, match="coincide"):
+        strand_matrix(moved)
+
+
+@settings(max_examples=30, deadline=None)
+@given(strands=st.integers(1, 4), turns=st.integers(1, 90), layers=st.integers(1, 9),
+       pitch_factor=st.floats(1.0, 3.0), tape=st.sampled_from([0.0, 1e-5, 7.3e-5]))
+def test_fast_sum_equals_double_sum_property(strands, turns, layers, pitch_factor, tape):
+    ov = 0.25e-3
+    pitch = strands * ov * pitch_factor
+    try:
+        lay = cylinder_layout(0.008, 30 * pitch + strands * ov, 0.22e-3, ov, strands, turns,
+                              layers=layers, pitch=pitch, tape=tape)
+    except WindingDoesNotFit:
+        assume(False)
+    _rtol_agrees(strand_matrix(lay), strand_matrix_bruteforce(lay))
 
 
 def test_filament_method_refuses_toroid():

@@ -432,12 +432,101 @@ def _check_air_core(layout):
                          "matrix comes from cored_strand_matrix")
 
 
-def _offset_counts(lo_a, hi_a, lo_b, hi_b):
-    """Slot offsets ``m = s_a − s_b`` between two contiguous slot ranges
-    ``[lo_a, hi_a)`` and ``[lo_b, hi_b)``, and how many slot pairs share each."""
-    m = np.arange(lo_a - (hi_b - 1), hi_a - lo_b)
-    count = np.minimum(hi_b, hi_a - m) - np.maximum(lo_b, lo_a - m)
-    return m, count
+#: Grid on which the offset ``δ mod pitch`` between two groups is matched, as a
+#: fraction of the pitch: offsets closer than ~1e-12 pitch share their kernels.
+_OFFSET_GRID = 2 ** 40
+
+
+def _group_table(layout):
+    """The layout's (layer, strand) groups as arrays: strand, radius, z0, slot_lo, slot_hi."""
+    rows = list(layout.groups())
+    strand = np.array([g[1] for g in rows], dtype=np.int64)
+    radius = np.array([g[2] for g in rows], dtype=float)
+    z0 = np.array([g[3] for g in rows], dtype=float)
+    lo = np.array([g[4] for g in rows], dtype=np.int64)
+    hi = np.array([g[5] for g in rows], dtype=np.int64)
+    return strand, radius, z0, lo, hi
+
+
+def _aranges(start, stop):
+    """Concatenated ``arange(start[i], stop[i])`` and the segment each value belongs to."""
+    n = stop - start
+    seg = np.repeat(np.arange(n.size), n)
+    first = np.cumsum(n) - n
+    return start[seg] + np.arange(seg.size) - first[seg], seg
+
+
+def _double_prefix(values, seg_len):
+    """Second cumulative sums of each segment of ``values``, each with two leading zeros.
+
+    For a segment ``g(0..n-1)`` the result ``C2`` has ``C2[t] = Σ_{u<t} Σ_{i<u} g(i)``
+    for ``t = 0..n+1``.  Segments are padded to a common length within
+    power-of-two size buckets so that no sum runs across segments (a global
+    running sum would lose the small segments' digits to the large ones').
+
+    Returns
+    -------
+    C2 : ndarray (flat), base : ndarray of int
+        The sums and where each segment's ``C2[0]`` sits in them.
+    """
+    n_seg = seg_len.size
+    width = seg_len + 2
+    bucket = np.ceil(np.log2(np.maximum(width, 1))).astype(np.int64)
+    starts = np.cumsum(seg_len) - seg_len
+    base = np.empty(n_seg, dtype=np.int64)
+    parts, offset = [], 0
+    for b in np.unique(bucket):
+        rows = np.flatnonzero(bucket == b)
+        w = int(width[rows].max())
+        block = np.zeros((rows.size, w))
+        col, row = _aranges(np.zeros(rows.size, dtype=np.int64), seg_len[rows])
+        block[row, col + 1] = values[starts[rows][row] + col]
+        np.cumsum(block, axis=1, out=block)
+        np.cumsum(block, axis=1, out=block)
+        # Shift right by one so that C2[t] sums g below t - 1 (two leading zeros).
+        c2 = np.zeros((rows.size, w))
+        c2[:, 1:] = block[:, :-1]
+        base[rows] = offset + np.arange(rows.size) * w
+        parts.append(c2.ravel())
+        offset += c2.size
+    return np.concatenate(parts), base
+
+
+def _kernel_classes(radius, z0, ia, ib, pitch):
+    """Sort group pairs into kernel classes (radius pair, offset mod pitch).
+
+    Within a class the axial distance of every turn pair is ``|ρ + i p|`` for
+    an integer ``i``, so the class needs Maxwell's kernel on one lattice only.
+    An offset above half a pitch is folded onto ``p − ρ`` by reflection
+    (``M`` is even in ``dz``), which turns ``i`` into ``−1 − i`` and is done
+    by swapping the pair's roles.
+
+    Returns
+    -------
+    cls : ndarray of int
+        Class of each pair.
+    c : ndarray of int
+        Lattice shift: the pair's turn at slot ``x`` (first group) and ``y``
+        (second) sit at ``|ρ + (x − y + c) p|`` apart, after any swap.
+    swap : ndarray of bool
+        Whether the pair's roles were swapped by the fold.
+    keys : ndarray (n_classes, 3) of int
+        Per class: radius of the smaller and larger id, and the offset on the grid.
+    """
+    r_ids, r_of = np.unique(radius, return_inverse=True)
+    u_full = np.rint((z0[ia] - z0[ib]) / pitch * _OFFSET_GRID).astype(np.int64)
+    q = np.floor_divide(u_full, _OFFSET_GRID)
+    u = u_full - q * _OFFSET_GRID
+    swap = u > _OFFSET_GRID // 2
+    u = np.where(swap, _OFFSET_GRID - u, u)
+    c = np.where(swap, -q - 1, q)
+    ra, rb = r_of[ia], r_of[ib]
+    u_ids, u_of = np.unique(u, return_inverse=True)
+    n_r, n_u = r_ids.size, u_ids.size
+    key = (np.minimum(ra, rb) * n_r + np.maximum(ra, rb)) * n_u + u_of
+    k_ids, cls = np.unique(key, return_inverse=True)
+    keys = np.stack([k_ids // n_u // n_r, k_ids // n_u % n_r, u_ids[k_ids % n_u]], axis=1)
+    return cls.ravel(), c, swap, keys, r_ids
 
 
 def strand_matrix(layout):
@@ -448,10 +537,15 @@ def strand_matrix(layout):
     that of a round-wire loop of the copper radius (low frequency, uniform
     current); the turn-by-turn sum is gathered by strand.
 
-    Turns of one (layer, strand) group share radius and pitch, so between
-    two groups the mutual inductance depends only on the slot offset ``m``:
-    it is evaluated once per distinct offset and weighted by the number of
-    slot pairs at that offset.  Cost is O(groups² × slots), not O(turns²).
+    Turns of one (layer, strand) group share a radius and sit one pitch
+    apart over a contiguous slot range.  Between two groups the axial
+    distances therefore lie on a lattice ``|ρ + i p|`` fixed by the two
+    radii and by the groups' offset ``ρ`` modulo the pitch (strands wound
+    side by side share these classes).  Maxwell's kernel is evaluated once
+    per distinct (radius pair, offset class, ``|dz|``), in one vectorised
+    call; each group pair's sum over its two slot ranges is then four
+    look-ups in the lattice's second cumulative sum.  Cost is
+    O(layers × turns per strand × strands) kernels plus O(groups²) look-ups.
 
     Parameters
     ----------
@@ -470,30 +564,77 @@ def strand_matrix(layout):
        art. 701 (1873).
     .. [2] F. W. Grover, Inductance Calculations (1946): summation of
        mutual inductances of the turns of a coil.
+
+    Examples
+    --------
+    Ten turns of 0.8 mm wire at 1 mm pitch on a 10 mm radius; Rosa's
+    round-wire correction gives 1999.2 nH for this coil (see
+    :func:`rosa_corrected_inductance`):
+
+    >>> from windsheet.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.0192, 0.0099, 0.0008, 0.0008, 1, 10, pitch=0.001)
+    >>> print(f"{strand_matrix(lay)[0, 0] * 1e9:.1f} nH")
+    1998.5 nH
     """
     _check_air_core(layout)
-    groups = list(layout.groups())
-    p = layout.pitch
-    a_cu = layout.copper_diameter / 2
-    L = np.zeros((layout.strands, layout.strands))
-    for ia, (_, sa, ra, za, lo_a, hi_a) in enumerate(groups):
-        for ib in range(ia, len(groups)):
-            _, sb, rb, zb, lo_b, hi_b = groups[ib]
-            m, count = _offset_counts(lo_a, hi_a, lo_b, hi_b)
-            dz = za - zb + m * p
-            if ia == ib:
-                # The zero offset of a group with itself is each turn's own inductance.
-                off = m != 0
-                total = (count[off] @ maxwell_mutual(ra, rb, dz[off])
-                         + count[~off].sum() * loop_self_inductance(ra, a_cu))
-            else:
-                kernel = maxwell_mutual(ra, rb, dz)
-                if not np.all(np.isfinite(kernel)):
-                    raise ValueError("two turns of the layout coincide")
-                total = count @ kernel
-            L[sa, sb] += total
-            if ia != ib:
-                L[sb, sa] += total
+    S, p = layout.strands, layout.pitch
+    strand, radius, z0, lo, hi = _group_table(layout)
+    ia, ib = np.triu_indices(strand.size)
+    cls, c, swap, keys, r_ids = _kernel_classes(radius, z0, ia, ib, p)
+    # After a swap the pair's second group plays the first (x) role.
+    x0, x1 = np.where(swap, lo[ib], lo[ia]), np.where(swap, hi[ib], hi[ia])
+    y0, y1 = np.where(swap, lo[ia], lo[ib]), np.where(swap, hi[ia], hi[ib])
+    i_lo, i_hi = x0 - (y1 - 1) + c, (x1 - 1) - y0 + c           # lattice range of each pair
+    n_cls = keys.shape[0]
+    lat_lo = np.full(n_cls, np.iinfo(np.int64).max)
+    lat_hi = np.full(n_cls, np.iinfo(np.int64).min)
+    np.minimum.at(lat_lo, cls, i_lo)
+    np.maximum.at(lat_hi, cls, i_hi)
+
+    # A class is symmetric when ρ = 0 (i ↔ −i) or ρ = p/2 (i ↔ −1 − i): fold it
+    # and evaluate each |dz| once.
+    u = keys[:, 2]
+    half = u == _OFFSET_GRID // 2
+    sym = (u == 0) | half
+
+    def fold(i, k):
+        return np.where(sym[k] & (i < 0), np.where(half[k], -1 - i, -i), i)
+
+    f_lo, f_hi = fold(lat_lo, np.arange(n_cls)), fold(lat_hi, np.arange(n_cls))
+    crosses = sym & (lat_lo < 0) & (lat_hi >= 0)
+    e_lo = np.where(crosses, 0, np.minimum(f_lo, f_hi))
+    e_hi = np.maximum(f_lo, f_hi)
+    j, j_cls = _aranges(e_lo, e_hi + 1)
+    rho = u[j_cls] * (p / _OFFSET_GRID)
+    ra, rb = r_ids[keys[j_cls, 0]], r_ids[keys[j_cls, 1]]
+    dz = rho + j * p
+    same_circle = (keys[j_cls, 0] == keys[j_cls, 1]) & (dz == 0.0)
+    kernel = np.zeros(j.size)
+    kernel[~same_circle] = maxwell_mutual(ra[~same_circle], rb[~same_circle], dz[~same_circle])
+    e_base = np.cumsum(e_hi - e_lo + 1) - (e_hi - e_lo + 1)
+
+    # Unfold onto each class's full lattice and take its double prefix sums.
+    i, i_cls = _aranges(lat_lo, lat_hi + 1)
+    g = kernel[e_base[i_cls] + fold(i, i_cls) - e_lo[i_cls]]
+    C2, base = _double_prefix(g, lat_hi - lat_lo + 1)
+
+    def c2(t):
+        return C2[base[cls] + t - lat_lo[cls]]
+
+    # Σ_{x∈[x0,x1), y∈[y0,y1)} g(x − y + c) by inclusion–exclusion on C2.
+    total = c2(x1 - y0 + c + 1) - c2(x0 - y0 + c + 1) - c2(x1 - y1 + c + 1) + c2(x0 - y1 + c + 1)
+
+    # Pairs of turns at dz = 0 on one circle: a turn's own inductance, or a fault.
+    zero_cls = (keys[cls, 0] == keys[cls, 1]) & (u[cls] == 0)
+    coincide = np.where(zero_cls, np.maximum(0, np.minimum(x1, y1 - c) - np.maximum(x0, y0 - c)), 0)
+    if np.any(coincide[ia != ib] > 0):
+        raise ValueError("two turns of the layout coincide")
+    own = ia == ib
+    total[own] += (hi - lo)[ia[own]] * loop_self_inductance(radius[ia[own]], layout.copper_diameter / 2)
+
+    sa, sb = strand[ia], strand[ib]
+    L = np.bincount(sa * S + sb, weights=total, minlength=S * S).reshape(S, S)
+    L += np.bincount(sb * S + sa, weights=np.where(own, 0.0, total), minlength=S * S).reshape(S, S)
     return L
 
 
