@@ -129,6 +129,9 @@ def test_maxwell_matches_neumann_integral(r1, r2, dz):
     (0.01, 0.0100001, 0.0),
     (0.01, 0.01, 1.0),       # k → 0: cancellation in the usual form
     (0.01, 0.003, 0.02),
+    (0.01, 0.01, 1e-11),     # k′ ~ 1e-9: the mean takes its most steps
+    (0.02, 0.03, 10.0),
+    (1e-4, 1.0, 0.0),        # very unequal radii
 ])
 def test_maxwell_precise_at_both_ends(r1, r2, dz):
     # DLMF §19.34 form µ0√(r1r2)[(2/k − k)K − (2/k)E] in 40-digit arithmetic (mpmath takes m = k²).
