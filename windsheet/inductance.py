@@ -483,6 +483,9 @@ def _check_air_core(layout):
 #: Grid on which the offset ``δ mod pitch`` between two groups is matched, as a
 #: fraction of the pitch: offsets closer than ~1e-12 pitch share their kernels.
 _OFFSET_GRID = 2 ** 40
+_HALF = _OFFSET_GRID // 2
+#: Lattice points handled at once; bounds the engine's working memory (~100 MB).
+_CHUNK = 1 << 18
 
 
 def _group_table(layout):
@@ -517,26 +520,22 @@ def _double_prefix(values, seg_len):
     C2 : ndarray (flat), base : ndarray of int
         The sums and where each segment's ``C2[0]`` sits in them.
     """
-    n_seg = seg_len.size
     width = seg_len + 2
-    bucket = np.ceil(np.log2(np.maximum(width, 1))).astype(np.int64)
+    bucket = np.ceil(np.log2(width)).astype(np.int64)
     starts = np.cumsum(seg_len) - seg_len
-    base = np.empty(n_seg, dtype=np.int64)
+    base = np.empty(seg_len.size, dtype=np.int64)
     parts, offset = [], 0
     for b in np.unique(bucket):
         rows = np.flatnonzero(bucket == b)
         w = int(width[rows].max())
         block = np.zeros((rows.size, w))
         col, row = _aranges(np.zeros(rows.size, dtype=np.int64), seg_len[rows])
-        block[row, col + 1] = values[starts[rows][row] + col]
+        block[row, col + 2] = values[starts[rows][row] + col]
         np.cumsum(block, axis=1, out=block)
         np.cumsum(block, axis=1, out=block)
-        # Shift right by one so that C2[t] sums g below t - 1 (two leading zeros).
-        c2 = np.zeros((rows.size, w))
-        c2[:, 1:] = block[:, :-1]
         base[rows] = offset + np.arange(rows.size) * w
-        parts.append(c2.ravel())
-        offset += c2.size
+        parts.append(block.ravel())
+        offset += block.size
     return np.concatenate(parts), base
 
 
@@ -555,17 +554,17 @@ def _kernel_classes(radius, z0, ia, ib, pitch):
         Class of each pair.
     c : ndarray of int
         Lattice shift: the pair's turn at slot ``x`` (first group) and ``y``
-        (second) sit at ``|ρ + (x − y + c) p|`` apart, after any swap.
+        (second) sit ``|ρ + (x − y + c) p|`` apart, after any swap.
     swap : ndarray of bool
         Whether the pair's roles were swapped by the fold.
-    keys : ndarray (n_classes, 3) of int
-        Per class: radius of the smaller and larger id, and the offset on the grid.
+    r_lo, r_hi, u : ndarray
+        Per class: the two radii [m] and the offset ρ on the grid [p / 2⁴⁰].
     """
     r_ids, r_of = np.unique(radius, return_inverse=True)
     u_full = np.rint((z0[ia] - z0[ib]) / pitch * _OFFSET_GRID).astype(np.int64)
     q = np.floor_divide(u_full, _OFFSET_GRID)
     u = u_full - q * _OFFSET_GRID
-    swap = u > _OFFSET_GRID // 2
+    swap = u > _HALF
     u = np.where(swap, _OFFSET_GRID - u, u)
     c = np.where(swap, -q - 1, q)
     ra, rb = r_of[ia], r_of[ib]
@@ -573,8 +572,43 @@ def _kernel_classes(radius, z0, ia, ib, pitch):
     n_r, n_u = r_ids.size, u_ids.size
     key = (np.minimum(ra, rb) * n_r + np.maximum(ra, rb)) * n_u + u_of
     k_ids, cls = np.unique(key, return_inverse=True)
-    keys = np.stack([k_ids // n_u // n_r, k_ids // n_u % n_r, u_ids[k_ids % n_u]], axis=1)
-    return cls.ravel(), c, swap, keys, r_ids
+    return (cls.ravel(), c, swap, r_ids[k_ids // n_u // n_r], r_ids[k_ids // n_u % n_r],
+            u_ids[k_ids % n_u])
+
+
+def _fold(i, u):
+    """Index of the lattice point at the same ``|dz|`` with ``i ≥ 0`` where the
+    class is symmetric: ``ρ = 0`` (``i ↔ −i``) or ``ρ = p/2`` (``i ↔ −1 − i``)."""
+    return np.where(i < 0, np.where(u == 0, -i, np.where(u == _HALF, -1 - i, i)), i)
+
+
+def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch):
+    """Double prefix sums of Maxwell's kernel on each class's lattice.
+
+    Each distinct ``|dz|`` of a class is evaluated once.  The point where two
+    turns share one circle (``r_lo = r_hi``, ``dz = 0``) is left at zero: it
+    is a turn's own inductance, added by the caller.
+    """
+    lo_f, hi_f = _fold(lat_lo, u), _fold(lat_hi, u)
+    crosses = ((u == 0) | (u == _HALF)) & (lat_lo < 0) & (lat_hi >= 0)
+    e_lo = np.where(crosses, 0, np.minimum(lo_f, hi_f))
+    e_hi = np.maximum(lo_f, hi_f)
+    j, k = _aranges(e_lo, e_hi + 1)
+    dz = u[k] * (pitch / _OFFSET_GRID) + j * pitch
+    kernel = np.zeros(j.size)
+    live = (r_lo[k] != r_hi[k]) | (dz != 0.0)
+    kernel[live] = maxwell_mutual(r_lo[k][live], r_hi[k][live], dz[live])
+    e_base = np.cumsum(e_hi - e_lo + 1) - (e_hi - e_lo + 1)
+    i, k = _aranges(lat_lo, lat_hi + 1)
+    return _double_prefix(kernel[e_base[k] + _fold(i, u[k]) - e_lo[k]], lat_hi - lat_lo + 1)
+
+
+def _class_chunks(length):
+    """Split classes (in order) into runs of about ``_CHUNK`` lattice points."""
+    ends = np.searchsorted(np.cumsum(length), np.arange(_CHUNK, length.sum() + _CHUNK, _CHUNK),
+                           side="right")
+    edges = np.unique(np.concatenate([[0], np.maximum(ends, 1), [length.size]]))
+    return zip(edges[:-1], edges[1:])
 
 
 def strand_matrix(layout):
@@ -628,56 +662,37 @@ def strand_matrix(layout):
     S, p = layout.strands, layout.pitch
     strand, radius, z0, lo, hi = _group_table(layout)
     ia, ib = np.triu_indices(strand.size)
-    cls, c, swap, keys, r_ids = _kernel_classes(radius, z0, ia, ib, p)
+    cls, c, swap, r_lo, r_hi, u = _kernel_classes(radius, z0, ia, ib, p)
     # After a swap the pair's second group plays the first (x) role.
     x0, x1 = np.where(swap, lo[ib], lo[ia]), np.where(swap, hi[ib], hi[ia])
     y0, y1 = np.where(swap, lo[ia], lo[ib]), np.where(swap, hi[ia], hi[ib])
-    i_lo, i_hi = x0 - (y1 - 1) + c, (x1 - 1) - y0 + c           # lattice range of each pair
-    n_cls = keys.shape[0]
+    n_cls = r_lo.size
     lat_lo = np.full(n_cls, np.iinfo(np.int64).max)
     lat_hi = np.full(n_cls, np.iinfo(np.int64).min)
-    np.minimum.at(lat_lo, cls, i_lo)
-    np.maximum.at(lat_hi, cls, i_hi)
+    np.minimum.at(lat_lo, cls, x0 - (y1 - 1) + c)               # each class's lattice range
+    np.maximum.at(lat_hi, cls, (x1 - 1) - y0 + c)
 
-    # A class is symmetric when ρ = 0 (i ↔ −i) or ρ = p/2 (i ↔ −1 − i): fold it
-    # and evaluate each |dz| once.
-    u = keys[:, 2]
-    half = u == _OFFSET_GRID // 2
-    sym = (u == 0) | half
+    by_cls = np.argsort(cls, kind="stable")
+    first_pair = np.searchsorted(cls[by_cls], np.arange(n_cls + 1))
+    total = np.empty(cls.size)
+    for k0, k1 in _class_chunks(lat_hi - lat_lo + 1):
+        C2, base = _lattice_sums(r_lo[k0:k1], r_hi[k0:k1], u[k0:k1], lat_lo[k0:k1], lat_hi[k0:k1], p)
+        sel = by_cls[first_pair[k0]:first_pair[k1]]
+        kk = cls[sel] - k0
 
-    def fold(i, k):
-        return np.where(sym[k] & (i < 0), np.where(half[k], -1 - i, -i), i)
+        def c2(t):
+            return C2[base[kk] + t - lat_lo[k0:k1][kk]]
 
-    f_lo, f_hi = fold(lat_lo, np.arange(n_cls)), fold(lat_hi, np.arange(n_cls))
-    crosses = sym & (lat_lo < 0) & (lat_hi >= 0)
-    e_lo = np.where(crosses, 0, np.minimum(f_lo, f_hi))
-    e_hi = np.maximum(f_lo, f_hi)
-    j, j_cls = _aranges(e_lo, e_hi + 1)
-    rho = u[j_cls] * (p / _OFFSET_GRID)
-    ra, rb = r_ids[keys[j_cls, 0]], r_ids[keys[j_cls, 1]]
-    dz = rho + j * p
-    same_circle = (keys[j_cls, 0] == keys[j_cls, 1]) & (dz == 0.0)
-    kernel = np.zeros(j.size)
-    kernel[~same_circle] = maxwell_mutual(ra[~same_circle], rb[~same_circle], dz[~same_circle])
-    e_base = np.cumsum(e_hi - e_lo + 1) - (e_hi - e_lo + 1)
-
-    # Unfold onto each class's full lattice and take its double prefix sums.
-    i, i_cls = _aranges(lat_lo, lat_hi + 1)
-    g = kernel[e_base[i_cls] + fold(i, i_cls) - e_lo[i_cls]]
-    C2, base = _double_prefix(g, lat_hi - lat_lo + 1)
-
-    def c2(t):
-        return C2[base[cls] + t - lat_lo[cls]]
-
-    # Σ_{x∈[x0,x1), y∈[y0,y1)} g(x − y + c) by inclusion–exclusion on C2.
-    total = c2(x1 - y0 + c + 1) - c2(x0 - y0 + c + 1) - c2(x1 - y1 + c + 1) + c2(x0 - y1 + c + 1)
+        xa, xb, ya, yb, cc = x0[sel], x1[sel], y0[sel], y1[sel], c[sel]
+        # Σ_{x∈[xa,xb), y∈[ya,yb)} g(x − y + c) by inclusion–exclusion on C2.
+        total[sel] = c2(xb - ya + cc + 1) - c2(xa - ya + cc + 1) - c2(xb - yb + cc + 1) + c2(xa - yb + cc + 1)
 
     # Pairs of turns at dz = 0 on one circle: a turn's own inductance, or a fault.
-    zero_cls = (keys[cls, 0] == keys[cls, 1]) & (u[cls] == 0)
-    coincide = np.where(zero_cls, np.maximum(0, np.minimum(x1, y1 - c) - np.maximum(x0, y0 - c)), 0)
-    if np.any(coincide[ia != ib] > 0):
-        raise ValueError("two turns of the layout coincide")
+    on_circle = (r_lo[cls] == r_hi[cls]) & (u[cls] == 0)
+    meet = np.where(on_circle, np.maximum(0, np.minimum(x1, y1 - c) - np.maximum(x0, y0 - c)), 0)
     own = ia == ib
+    if np.any(meet[~own] > 0):
+        raise ValueError("two turns of the layout coincide")
     total[own] += (hi - lo)[ia[own]] * loop_self_inductance(radius[ia[own]], layout.copper_diameter / 2)
 
     sa, sb = strand[ia], strand[ib]
