@@ -16,7 +16,7 @@ from . import inductance as ind
 from . import layout as lay
 from . import fmt, stress
 from .errors import InputError
-from .limits import check_engine_work
+from .limits import check_engine_work, check_turns_in_all
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
 from .wire import copper_mass, dc_resistance, enamel_build
@@ -36,10 +36,11 @@ HOOKUP_TEXT = {
 
 
 def _layout(order: Order, wire, turns: int):
-    """The order's layout at ``turns`` per strand, within the engine's work budget."""
+    """The order's layout at ``turns`` per strand, within the work budgets (windsheet.limits)."""
+    field = "winding.turns" if order.doc.winding.turns else "winding.target_inductance"
+    check_turns_in_all(turns, order.doc.winding.strands, field)
     layout = _place_turns(order, wire, turns)
-    check_engine_work(layout.turns_per_strand, layout.layers, layout.strands,
-                      "winding.turns" if order.doc.winding.turns else "winding.target_inductance")
+    check_engine_work(layout.turns_per_strand, layout.layers, layout.strands, field)
     return layout
 
 
