@@ -390,6 +390,24 @@ def test_fast_sum_evaluates_each_distinct_kernel_once(monkeypatch, strands, turn
     assert sum(evaluated) == _distinct_kernels(lay)
 
 
+def test_kernel_cache_shared_between_turn_counts(monkeypatch):
+    import windsheet.inductance as ind
+    evaluated = []
+    real = ind.maxwell_mutual
+    monkeypatch.setattr(ind, "maxwell_mutual", lambda r1, r2, dz: evaluated.append(np.size(dz)) or real(r1, r2, dz))
+    cache = {}
+    for turns, new_layer in ((300, True), (301, True), (290, False), (340, True)):
+        lay = cylinder_layout(0.010, 12e-3, 0.27e-3, 0.3e-3, 2, turns, pitch=0.6e-3, tape=2e-5)
+        evaluated.clear()
+        shared = ind.strand_matrix(lay, cache)
+        # A count that adds no layer needs no kernel the cache lacks; one that adds a layer
+        # needs only the new layer's pairs, far fewer than all distinct kernels (brute-force count).
+        assert sum(evaluated) <= (_distinct_kernels(lay) / 5 if turns != 300 else _distinct_kernels(lay))
+        assert (sum(evaluated) > 0) == new_layer
+        # The Maxwell double sum over all turn pairs (Grover 1946), uncached.
+        _rtol_agrees(shared, strand_matrix_bruteforce(lay), rtol=1e-9)
+
+
 def test_long_single_layer_approaches_rosa():
     a, p, d, N = 0.01, 0.5e-3, 0.4e-3, 100_000
     lay = _single_layer(a, p, d, d, N)

@@ -582,22 +582,54 @@ def _fold(i, u):
     return np.where(i < 0, np.where(u == 0, -i, np.where(u == _HALF, -1 - i, i)), i)
 
 
-def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch):
-    """Double prefix sums of Maxwell's kernel on each class's lattice.
+def _kernel_lattice(r_lo, r_hi, u, e_lo, e_hi, pitch):
+    """Maxwell's kernel at ``dz = ρ + j p`` for ``j`` in ``[e_lo, e_hi]`` of each class, flat.
 
-    Each distinct ``|dz|`` of a class is evaluated once.  The point where two
-    turns share one circle (``r_lo = r_hi``, ``dz = 0``) is left at zero: it
-    is a turn's own inductance, added by the caller.
+    The point where two turns share one circle (``r_lo = r_hi``, ``dz = 0``)
+    is left at zero: it is a turn's own inductance, added by the caller.
     """
-    lo_f, hi_f = _fold(lat_lo, u), _fold(lat_hi, u)
-    crosses = ((u == 0) | (u == _HALF)) & (lat_lo < 0) & (lat_hi >= 0)
-    e_lo = np.where(crosses, 0, np.minimum(lo_f, hi_f))
-    e_hi = np.maximum(lo_f, hi_f)
     j, k = _aranges(e_lo, e_hi + 1)
     dz = u[k] * (pitch / _OFFSET_GRID) + j * pitch
     kernel = np.zeros(j.size)
     live = (r_lo[k] != r_hi[k]) | (dz != 0.0)
     kernel[live] = maxwell_mutual(r_lo[k][live], r_hi[k][live], dz[live])
+    return kernel
+
+
+def _cached_kernel_lattice(r_lo, r_hi, u, e_lo, e_hi, pitch, cache):
+    """As :func:`_kernel_lattice`, taking what ``cache`` already holds and adding the rest."""
+    keys = list(zip(r_lo.tolist(), r_hi.tolist(), u.tolist()))
+    got = [cache.get((pitch,) + key) for key in keys]
+    miss = np.array([g is None or g[0] > a or g[1] < b for g, a, b in zip(got, e_lo.tolist(), e_hi.tolist())],
+                    dtype=bool)
+    if miss.any():
+        # Widen each missed class to cover what the cache held, so it is evaluated once more at most.
+        lo_m, hi_m = e_lo[miss].copy(), e_hi[miss].copy()
+        for n, idx in enumerate(np.flatnonzero(miss)):
+            if got[idx] is not None:
+                lo_m[n], hi_m[n] = min(lo_m[n], got[idx][0]), max(hi_m[n], got[idx][1])
+        fresh = _kernel_lattice(r_lo[miss], r_hi[miss], u[miss], lo_m, hi_m, pitch)
+        ends = np.cumsum(hi_m - lo_m + 1)
+        for n, idx in enumerate(np.flatnonzero(miss)):
+            got[idx] = cache[(pitch,) + keys[idx]] = (int(lo_m[n]), int(hi_m[n]),
+                                                      fresh[ends[n] - (hi_m[n] - lo_m[n] + 1):ends[n]])
+    return np.concatenate([g[2][a - g[0]:b - g[0] + 1] for g, a, b in zip(got, e_lo.tolist(), e_hi.tolist())])
+
+
+def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch, cache=None):
+    """Double prefix sums of Maxwell's kernel on each class's lattice.
+
+    Each distinct ``|dz|`` of a class is evaluated once (and, with a
+    ``cache`` shared between calls, once across them).
+    """
+    lo_f, hi_f = _fold(lat_lo, u), _fold(lat_hi, u)
+    crosses = ((u == 0) | (u == _HALF)) & (lat_lo < 0) & (lat_hi >= 0)
+    e_lo = np.where(crosses, 0, np.minimum(lo_f, hi_f))
+    e_hi = np.maximum(lo_f, hi_f)
+    if cache is None:
+        kernel = _kernel_lattice(r_lo, r_hi, u, e_lo, e_hi, pitch)
+    else:
+        kernel = _cached_kernel_lattice(r_lo, r_hi, u, e_lo, e_hi, pitch, cache)
     e_base = np.cumsum(e_hi - e_lo + 1) - (e_hi - e_lo + 1)
     i, k = _aranges(lat_lo, lat_hi + 1)
     return _double_prefix(kernel[e_base[k] + _fold(i, u[k]) - e_lo[k]], lat_hi - lat_lo + 1)
@@ -611,7 +643,7 @@ def _class_chunks(length):
     return zip(edges[:-1], edges[1:])
 
 
-def strand_matrix(layout):
+def strand_matrix(layout, kernels=None):
     """Air-core inductance matrix between the strands of a layer winding.
 
     Filament method: every turn is a coaxial circle at its wire centre; the
@@ -633,6 +665,11 @@ def strand_matrix(layout):
     ----------
     layout : windsheet.layout.Layout
         A cylinder or bobbin layout (coaxial turns).
+    kernels : dict, optional
+        A cache of kernel values to share between calls, e.g. across the
+        steps of a search over turn counts on one form: layouts that differ
+        in a few turns then evaluate only the kernels new to them.  Keys
+        hold the radii and pitch, so any layouts may share it.
 
     Returns
     -------
@@ -676,7 +713,7 @@ def strand_matrix(layout):
     first_pair = np.searchsorted(cls[by_cls], np.arange(n_cls + 1))
     total = np.empty(cls.size)
     for k0, k1 in _class_chunks(lat_hi - lat_lo + 1):
-        C2, base = _lattice_sums(r_lo[k0:k1], r_hi[k0:k1], u[k0:k1], lat_lo[k0:k1], lat_hi[k0:k1], p)
+        C2, base = _lattice_sums(r_lo[k0:k1], r_hi[k0:k1], u[k0:k1], lat_lo[k0:k1], lat_hi[k0:k1], p, kernels)
         sel = by_cls[first_pair[k0]:first_pair[k1]]
         kk = cls[sel] - k0
 

@@ -86,10 +86,10 @@ def _strand_lengths(order: Order, layout):
     return layout.strand_length() + 2 * order.doc.winding.lead_length
 
 
-def _inductance_matrix(order: Order, wire, layout):
+def _inductance_matrix(order: Order, wire, layout, kernels=None):
     al = _al(order)
     if al is None:
-        return ind.strand_matrix(layout)
+        return ind.strand_matrix(layout, kernels)
     S = layout.strands
     L = ind.cored_strand_matrix([layout.turns_per_strand] * S, al, order.doc.winding.coupling)
     if S > 1:
@@ -108,36 +108,30 @@ def _network(order: Order, L, R, frequency):
     return solve_network(L, R, order.joins, order.terminals, frequency, hookup=order.hookup_name)
 
 
-def _terminal_inductance(order, wire, turns):
+def _terminal_inductance(order, wire, turns, kernels=None):
     layout = _layout(order, wire, turns)
-    L = _inductance_matrix(order, wire, layout)
+    L = _inductance_matrix(order, wire, layout, kernels)
     R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter)
     return _network(order, L, R, order.doc.test.frequency).inductance
 
 
-def _estimate_turns(values, lo, hi, target):
+def _estimate_turns(values, target):
     """Turns per strand estimated to give the target, from the counts sized so far.
 
     ``values`` maps counts tried to their terminal inductance (``None``: not
     sized).  Terminal inductance grows about as a power of the turns, so the
-    estimate interpolates (or extrapolates) log L against log N between the
-    nearest sized counts either side of the target; with one point only the
-    power is taken as 2.
+    estimate is a secant on log L against log N through the two sized counts
+    nearest the target; with one count only the power is taken as 2.
     """
-    sized = sorted(n for n, v in values.items() if v is not None)
-    below = [n for n in sized if lo is not None and n <= lo]
-    above = [n for n in sized if hi is not None and n >= hi]
-    if below and above:
-        a, b = below[-1], above[0]
-    elif not above:
-        a, b = below[-2:] if len(below) >= 2 else (below[-1], below[-1])
-    else:
-        a, b = above[:2] if len(above) >= 2 else (above[0], above[0])
+    sized = sorted((n for n, v in values.items() if v is not None),
+                   key=lambda n: abs(math.log(values[n] / target)))
+    a = sized[0]
     power = 2.0
-    if a != b and values[b] > values[a]:
-        power = min(4.0, max(0.5, math.log(values[b] / values[a]) / math.log(b / a)))
-    ref = a if below else b
-    return ref * (target / values[ref]) ** (1.0 / power)
+    if len(sized) > 1:
+        b = sized[1]
+        if values[b] != values[a]:
+            power = min(4.0, max(0.5, math.log(values[b] / values[a]) / math.log(b / a)))
+    return a * (target / values[a]) ** (1.0 / power)
 
 
 def _bracket_turns(inductance_at, target, start=10, max_turns=MAX_TURNS):
@@ -147,8 +141,8 @@ def _bracket_turns(inductance_at, target, start=10, max_turns=MAX_TURNS):
     strand, or ``None`` when ``n`` turns cannot be sized (they do not fit,
     or exceed the work budget).  Inductance rises with the turns, so counts
     that overshoot and counts that cannot be sized bound the search from
-    above.  Log-log interpolation takes a handful of evaluations; after
-    eight the search halves the bracket instead.
+    above.  A secant in log-log takes a handful of evaluations, each kept
+    inside the bracket; after eight the search halves the bracket instead.
 
     Returns
     -------
@@ -174,7 +168,7 @@ def _bracket_turns(inductance_at, target, start=10, max_turns=MAX_TURNS):
         if all(x is None for x in values.values()):
             n = max(1, hi // 2)                       # nothing sized yet: look lower
             continue
-        guess = _estimate_turns(values, lo, hi, target)
+        guess = _estimate_turns(values, target)
         if (hi is None and guess > max_turns) or (hi is not None and values[hi] is None and guess >= hi):
             return lo, hi, values, guess
         if step >= 8 and lo is not None and hi is not None:
@@ -191,17 +185,19 @@ def solve_turns(order: Order, wire):
     """Turns per strand for the order's target inductance.
 
     Brackets the target between two adjacent whole turn counts (a few
-    evaluations of the engine) and takes the nearer by log error.  A target
+    evaluations of the engine, sharing their kernels) and takes the nearer
+    by log error.  A target
     that no whole count meets within the order's inductance tolerance is
     refused, naming the nearest counts and what they give.
     """
     target = order.doc.winding.target_inductance
     tol = order.doc.tolerances.inductance
     errors = {}
+    kernels = {}                 # one form and wire throughout: steps share their kernels
 
     def inductance_at(n):
         try:
-            got = _terminal_inductance(order, wire, n)
+            got = _terminal_inductance(order, wire, n, kernels)
         except InputError as exc:
             errors[n] = exc
             return None
@@ -218,8 +214,8 @@ def solve_turns(order: Order, wire):
         raise errors[hi]                                   # not even one turn can be sized
     best = min(candidates, key=lambda k: abs(math.log(candidates[k] / target)))
     if abs(candidates[best] / target - 1) > tol:
-        if hi in errors:
-            raise errors[hi]                               # the turns needed cannot be sized
+        if hi in errors:                                   # the turns needed cannot be sized
+            raise InputError(errors[hi].path, f"needs {hi} or more turns per strand: {errors[hi].message}")
         raise InputError("winding.target_inductance", _unreachable(target, tol, lo, hi, values))
     exact = best * math.sqrt(target / candidates[best])
     return best, {"inductance_H": target, "turns_exact": exact, "turns_chosen": best,
