@@ -387,3 +387,46 @@ def listing(standard: str | None = None, grade: int | None = None, lo: float = 0
         out += [r for r in nema_table()["rows"].values()]
     out = [r for r in out if (grade is None or r.grade == grade) and lo - 0.5e-6 <= r.nominal <= hi + 0.5e-6]
     return sorted(out, key=lambda r: (r.standard, r.nominal, r.grade))
+
+
+_SURENESS_ORDER = ("memory", "computed", "seen")
+
+
+def row_record(row: EnamelRow) -> dict:
+    """A row as plain JSON-ready data (SI units), with each value's source and sureness."""
+    sure = [s for _src, s in row.sources.values()]
+    return {"standard": row.standard, "nominal_diameter_m": row.nominal, "series": row.series,
+            "grade": row.grade, "min_increase_m": row.min_increase, "min_overall_diameter_m": row.min_overall,
+            "max_overall_diameter_m": row.max_overall, "min_breakdown_V": row.breakdown,
+            "breakdown_test": row.test or None, "rule": row.rule or None,
+            "least_sure": min(sure, key=_SURENESS_ORDER.index) if sure else None,
+            "sources": {q: {"source": src, "sureness": s} for q, (src, s) in row.sources.items()}}
+
+
+def size_report(text: str) -> dict:
+    """Everything the tables know of one size as written (``'0.5 mm'``, ``'28 SWG'``, ``'22 AWG'``).
+
+    Raises :class:`NotInTable` for a metric diameter that is not a nominal
+    diameter of IEC 60317-0-1 (the message names the nearest sizes).
+    """
+    from .units import parse_quantity
+
+    size = parse_gauge(text)
+    if size is None:
+        size = Size("metric", None, parse_quantity(text, "length", "size"), text.strip())
+        iec_row(size.diameter, 1)  # refuses a diameter outside the standard, naming the nearest
+    rows = []
+    for g in (1, 2, 3):
+        try:
+            rows.append(row_for(size, g, IEC))
+        except NotInTable:
+            pass
+        if size.system == "AWG":
+            try:
+                rows.append(nema_row(size.number, g))
+            except NotInTable:
+                pass
+    src = {"AWG": "ASTM B258 formula", "SWG": swg_table()[size.number][1] if size.system == "SWG" else "",
+           "metric": IEC}[size.system]
+    return {"size": size.text, "system": size.system, "diameter_m": size.diameter, "diameter_source": src,
+            "rows": [row_record(r) for r in rows]}
