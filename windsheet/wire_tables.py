@@ -273,9 +273,11 @@ def next_larger_row(d: float, grade: int) -> EnamelRow:
     (0.021, 2300.0, 'next larger IEC 60317-0-1 row, 0.400 mm')
     """
     key = (_um(d), grade)
-    if key in iec_table() and abs(iec_table()[key].nominal - d) <= 0.5e-6:
+    same = key in iec_table() and abs(iec_table()[key].nominal - d) <= 0.5e-6
+    if same and abs(iec_table()[key].nominal - d) < 1e-12:
         return iec_table()[key]
-    up = [x for x in iec_nominals(("R20",)) if x > d]
+    # A gauge within half a micrometre of a nominal diameter is that size; otherwise the next larger R20 row.
+    up = [iec_table()[key].nominal] if same else [x for x in iec_nominals(("R20",)) if x > d]
     if not up:
         raise NotInTable(f"{_mm(d)} is larger than the largest {IEC} row here "
                          f"({_mm(iec_nominals()[-1])})")
@@ -283,8 +285,9 @@ def next_larger_row(d: float, grade: int) -> EnamelRow:
     if row is None:
         raise NotInTable(f"{IEC} defines no grade {grade} at {_mm(up[0])}, the row for {_mm(d)}")
     max_overall = None if row.max_overall is None else d + (row.max_overall - row.nominal)
+    rule = f"{IEC} row {_mm(row.nominal)}, the same size" if same else f"next larger {IEC} row, {_mm(row.nominal)}"
     return EnamelRow(IEC, d, grade, row.min_increase, max_overall, row.breakdown, row.test, row.series,
-                     row.sources, rule=f"next larger {IEC} row, {_mm(row.nominal)}")
+                     row.sources, rule=rule)
 
 
 def nema_row(awg: int, grade: int) -> EnamelRow:
