@@ -57,6 +57,9 @@ def conductor(name: str = "copper") -> dict:
     return rows
 
 
+_constants = conductor  # the physics functions below take a ``conductor`` name that shadows it
+
+
 def copper() -> dict:
     """Annealed copper constants (IEC 60028), SI: see :func:`conductor`."""
     return conductor("copper")
@@ -166,7 +169,7 @@ class Wire:
 
 def _temperature_factor(temperature_C, conductor_name="copper"):
     """R(t)/R(20 degC), linear in the conductor's coefficient at 20 degC."""
-    return 1 + conductor(conductor_name)["temperature_coefficient_20C"] * (np.asarray(temperature_C) - 20.0)
+    return 1 + _constants(conductor_name)["temperature_coefficient_20C"] * (np.asarray(temperature_C) - 20.0)
 
 
 def dc_resistance(length, copper_d, temperature_C=20.0, conductor="copper"):
@@ -200,7 +203,7 @@ def dc_resistance(length, copper_d, temperature_C=20.0, conductor="copper"):
     >>> round(float(dc_resistance(58.0, d)), 4)
     1.0
     """
-    rho = globals()["conductor"](conductor)["resistivity_20C"]
+    rho = _constants(conductor)["resistivity_20C"]
     r20 = rho * np.asarray(length) / (math.pi * copper_d ** 2 / 4)
     return r20 * _temperature_factor(temperature_C, conductor)
 
@@ -261,7 +264,7 @@ def copper_mass(length, copper_d, conductor="copper"):
     >>> round(float(copper_mass(1.0, d)) * 1e3, 3)  # grams in one metre
     8.89
     """
-    rho = globals()["conductor"](conductor)["density"]
+    rho = _constants(conductor)["density"]
     return rho * np.asarray(length) * math.pi * copper_d ** 2 / 4
 
 
