@@ -19,7 +19,7 @@ from .errors import InputError
 from .limits import check_engine_work, check_turns_in_all
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
-from .wire import copper_mass, dc_resistance, enamel_build
+from .wire import copper_mass, dc_resistance, grade_breakdowns
 
 #: Most turns per strand sized, as for an order's winding.turns.
 MAX_TURNS = 100_000
@@ -111,7 +111,7 @@ def _network(order: Order, L, R, frequency):
 def _terminal_inductance(order, wire, turns, kernels=None):
     layout = _layout(order, wire, turns)
     L = _inductance_matrix(order, wire, layout, kernels)
-    R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter)
+    R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter, conductor=wire.conductor)
     return _network(order, L, R, order.doc.test.frequency).inductance
 
 
@@ -260,18 +260,23 @@ def _grade_advice(insulation, wire, derating):
     build is the cure or whether the construction itself must change.
     """
     worst = insulation["worst_adjacent_Vpk"]
-    allowed = {g: derating * enamel_build(wire.copper_diameter, g)[1] for g in (1, 2, 3)}
-    holds = worst <= max(allowed[3], insulation["allowed_Vpk"])
+    # Only the grades the table gives at this size; a catalog wire may have none.
+    allowed = {g: derating * bd for g, bd in grade_breakdowns(wire.copper_diameter).items()}
+    top = max(allowed) if allowed else None
+    holds = worst <= max(allowed.get(top, 0.0), insulation["allowed_Vpk"])
     out = {**insulation, "any_grade_holds": bool(holds),
            "grade_allowed_Vpk": {str(g): float(a) for g, a in allowed.items()}}
     if insulation["verdict"] != "fail" or worst <= insulation["allowed_Vpk"]:
         return out
-    if not holds:
-        reason = (f"No enamel grade holds {worst:.0f} V peak between neighbours: even grade 3 (triple build) "
-                  f"at this size allows {allowed[3]:.0f} V peak ({derating:.0%} of its breakdown). Change the "
+    if not allowed:
+        reason = (f"The wire tables give no enamel grade for this size; the chosen wire allows "
+                  f"{insulation['allowed_Vpk']:.0f} V peak against {worst:.0f} V peak between neighbours.")
+    elif not holds:
+        reason = (f"No enamel grade holds {worst:.0f} V peak between neighbours: even grade {top} "
+                  f"at this size allows {allowed.get(top, 0.0):.0f} V peak ({derating:.0%} of its breakdown). Change the "
                   "hookup or the construction (fewer volts per turn, sectioned or layer-insulated winding).")
     else:
-        g = min(k for k in (1, 2, 3) if allowed[k] >= worst)
+        g = min(k for k in sorted(allowed) if allowed[k] >= worst)
         reason = (f"Grade {g} enamel at this size would allow {allowed[g]:.0f} V peak "
                   f"({derating:.0%} of its breakdown), enough for the turn-to-turn voltage.")
     out["reasons"] = list(insulation["reasons"]) + [reason]
@@ -327,8 +332,8 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     length = _strand_lengths(order, layout)
     duty = doc.duty
     t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
-    R20 = dc_resistance(length, wire.copper_diameter)
-    Rhot = dc_resistance(length, wire.copper_diameter, t_op)
+    R20 = dc_resistance(length, wire.copper_diameter, conductor=wire.conductor)
+    Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
     net = _network(order, L, R20, doc.test.frequency)
     duty_net = _network(order, L, Rhot, duty.frequency)
     tol = doc.tolerances
@@ -375,7 +380,8 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
             "identification": ident.get(sid, _default_ident(sid, S)),
             "wire_length_m": float(length[s]),
             "wire_length_with_scrap_m": float(length[s] * (1 + doc.winding.scrap_allowance)),
-            "mass_kg": float(copper_mass(length[s] * (1 + doc.winding.scrap_allowance), wire.copper_diameter)),
+            "mass_kg": float(copper_mass(length[s] * (1 + doc.winding.scrap_allowance), wire.copper_diameter,
+                                         conductor=wire.conductor)),
             "resistance_20C_ohm": float(R20[s]),
             "resistance_hot_ohm": float(Rhot[s]),
             "inductance_H": float(L[s, s]),
@@ -404,7 +410,9 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
                  "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None},
         "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
                  "overall_diameter_m": wire.overall_diameter, "grade": wire.grade,
-                 "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source},
+                 "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source,
+                 "conductor": wire.conductor, "min_overall_diameter_m": wire.min_overall_diameter,
+                 "breakdown_test": wire.breakdown_test, "sources": list(wire.sources)},
         "winding": {"strands": S, "turns_per_strand": int(turns), "layers": layout.layers,
                     "turns_in_layer": list(layout.turns_in_layer), "pitch_m": layout.pitch,
                     "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,

@@ -1,7 +1,8 @@
-"""Magnet wire data: sizes, enamel grades, copper properties.
+"""Magnet wire as the engine uses it: the conductor's physics and the :class:`Wire`.
 
-Published tables live as CSV files in ``windsheet/data`` with a ``source``
-column and are loaded once.  A shop can point an order at its own catalog
+Conductor constants (copper, aluminium) live in ``windsheet/data/conductors.csv``
+with their sources; the enamel tables and size rules live in
+:mod:`windsheet.wire_tables`.  A shop can point an order at its own catalog
 (CSV with columns ``name, copper_diameter_mm, overall_diameter_mm,
 breakdown_V, grade, thermal_class, source``).
 """
@@ -12,70 +13,78 @@ import csv
 import math
 from dataclasses import dataclass
 from functools import lru_cache
-from importlib import resources
+from typing import NamedTuple
 
 import numpy as np
 
-GRADE_NAMES = {1: "grade 1 (single build)", 2: "grade 2 (heavy build)", 3: "grade 3 (triple build)"}
+from .wire_tables import (GRADE_NAMES, IEC, NEMA, EnamelRow, NotInTable, Size, awg_diameter,  # noqa: F401
+                          iec_row, next_larger_row, parse_gauge, row_for, swg_diameter)
+from .wire_tables import _read_csv
+
 #: Thermal classes per IEC 60085 (memory). [degC]
 THERMAL_CLASSES = (105, 120, 130, 155, 180, 200, 220, 240)
+CONDUCTORS = ("copper", "aluminium")
 
 
-def _read_csv(name):
-    with resources.files("windsheet").joinpath("data", name).open(encoding="utf-8") as fh:
-        return list(csv.DictReader(fh))
-
-
-@lru_cache(maxsize=1)
-def copper():
-    """Annealed copper constants (IEC 60028), SI: resistivity, alpha, density."""
-    rows = {r["quantity"]: float(r["value"]) for r in _read_csv("copper.csv")}
-    return rows
-
-
-@lru_cache(maxsize=1)
-def grade_table():
-    """IEC 60317-0-1 rows: {grade: (nominal_m, min_increase_m, max_overall_m, breakdown_V)}."""
-    out = {}
-    for g in (1, 2, 3):
-        rows = sorted((r for r in _read_csv("iec60317_grades.csv") if int(r["grade"]) == g),
-                      key=lambda r: float(r["nominal_mm"]))
-        out[g] = tuple(np.array([float(r[k]) for r in rows]) for k in
-                       ("nominal_mm", "min_increase_mm", "max_overall_mm", "min_breakdown_V"))
-    return out
-
-
-def awg_diameter(gauge: int) -> float:
-    """Nominal bare diameter of an AWG size.
+@lru_cache(maxsize=None)
+def conductor(name: str = "copper") -> dict:
+    """Constants of a conductor metal, SI: ``resistivity_20C`` [ohm m],
+    ``temperature_coefficient_20C`` [1/K], ``density`` [kg/m^3].
 
     Parameters
     ----------
-    gauge : int
-        American Wire Gauge number (0000 is -3). [-]
+    name : str
+        ``"copper"`` (annealed, IEC 60028) or ``"aluminium"`` (IEC 60889 grade).
 
     Returns
     -------
-    d : float
-        Bare copper diameter. [m]
+    constants : dict
 
     References
     ----------
-    .. [1] ASTM B258, Standard Specification for Standard Nominal Diameters and
-       Cross-Sectional Areas of AWG Sizes: d = 0.127 mm x 92^((36 - n)/39).
+    .. [1] IEC 60028, International standard of resistance for copper.
+    .. [2] IEC 60889, Hard-drawn aluminium wire for overhead line conductors
+       (61 % IACS); see ``windsheet/data/conductors.csv`` for each value's sureness.
+
+    Examples
+    --------
+    >>> round(conductor("aluminium")["resistivity_20C"] / conductor("copper")["resistivity_20C"], 3)
+    1.639
     """
-    return 0.127e-3 * 92.0 ** ((36 - gauge) / 39.0)
+    rows = {r["quantity"]: float(r["value"]) for r in _read_csv("conductors.csv") if r["conductor"] == name}
+    if not rows:
+        raise ValueError(f"unknown conductor {name!r}; expected one of {', '.join(CONDUCTORS)}")
+    return rows
 
 
-def enamel_build(nominal_d: float, grade: int):
-    """Overall diameter and breakdown voltage of enamelled round copper wire.
+_constants = conductor  # the physics functions below take a ``conductor`` name that shadows it
 
-    Between the tabulated sizes values are interpolated on log-log axes;
-    outside them they are extrapolated and flagged.
+
+def copper() -> dict:
+    """Annealed copper constants (IEC 60028), SI: see :func:`conductor`."""
+    return conductor("copper")
+
+
+class EnamelBuild(NamedTuple):
+    """Overall diameter [m] and minimum breakdown [V] of a size and grade; ``from_next_row`` is
+    True when the values were carried from the next larger row (a gauge size)."""
+
+    overall_diameter: float
+    breakdown: float
+    from_next_row: bool
+
+
+def enamel_build(nominal_d: float, grade: int) -> EnamelBuild:
+    """Maximum overall diameter and minimum breakdown of enamelled round copper wire.
+
+    A tabulated nominal diameter gets its own IEC 60317-0-1 row; any other
+    diameter (a gauge size) the next larger preferred row, the standard's
+    rule for intermediate sizes.  Nothing is interpolated.
 
     Parameters
     ----------
     nominal_d : float
-        Nominal bare diameter. [m]
+        Nominal conductor diameter. [m]
     grade : int
         Enamel grade 1, 2 or 3 (single, heavy, triple build).
 
@@ -84,38 +93,52 @@ def enamel_build(nominal_d: float, grade: int):
     overall_d : float
         Maximum overall diameter. [m]
     breakdown : float
-        Minimum breakdown voltage by the twisted-pair test. [V]
-    extrapolated : bool
-        True when ``nominal_d`` lies outside the tabulated sizes.
+        Minimum breakdown voltage (test method in the row). [V]
+    from_next_row : bool
+        True when ``nominal_d`` is not itself a tabulated nominal diameter.
+
+    Raises
+    ------
+    NotInTable
+        No row covers the size, or the row gives no value for the grade.
 
     References
     ----------
     .. [1] IEC 60317-0-1, Specifications for particular types of winding wires -
-       Part 0-1: Enamelled round copper wire, general requirements (dimension
-       and breakdown tables, as adopted in IS 13730-0-1).
+       Part 0-1: Enamelled round copper wire (dimension and breakdown tables);
+       sources per row in ``windsheet/data/iec60317_0_1_copper.csv``.
+
+    Examples
+    --------
+    >>> od, bd, carried = enamel_build(0.500e-3, 2)
+    >>> round(od * 1e3, 3), bd, carried
+    (0.566, 4600.0, False)
     """
-    nom, _inc, over, bd = grade_table()[grade]
-    x = math.log(nominal_d * 1e3)
-    lx = np.log(nom)
-    extrapolated = not (nom[0] * 0.999 <= nominal_d * 1e3 <= nom[-1] * 1.001)
-    # Increase over nominal scales close to sqrt(d) across the table; interpolate it.
-    inc = np.log(over - nom)
-    lo, hi = (0, 1) if x < lx[0] else ((-2, -1) if x > lx[-1] else (None, None))
-    if lo is None:
-        inc_d = math.exp(np.interp(x, lx, inc))
-        bd_v = float(np.exp(np.interp(x, lx, np.log(bd))))
-    else:
-        def extrap(y):
-            slope = (y[hi] - y[lo]) / (lx[hi] - lx[lo])
-            return y[lo] + slope * (x - lx[lo])
-        inc_d = math.exp(extrap(inc))
-        bd_v = float(math.exp(extrap(np.log(bd))))
-    return nominal_d + inc_d * 1e-3, bd_v, extrapolated
+    row = next_larger_row(nominal_d, grade)
+    if row.max_overall is None or row.breakdown is None:
+        raise NotInTable(f"{IEC} gives no grade {grade} {' or '.join(row.missing())} for "
+                         f"{nominal_d * 1e3:.3f} mm")
+    return EnamelBuild(row.max_overall, row.breakdown, bool(row.rule))
+
+
+def grade_breakdowns(nominal_d: float) -> dict:
+    """Minimum breakdown [V] of every grade the table gives for a diameter: ``{grade: V}``."""
+    out = {}
+    for g in (1, 2, 3):
+        try:
+            out[g] = enamel_build(nominal_d, g).breakdown
+        except NotInTable:
+            pass
+    return out
 
 
 @dataclass(frozen=True)
 class Wire:
-    """A magnet wire as the engine uses it (SI)."""
+    """A magnet wire as the engine uses it (SI).
+
+    ``copper_diameter`` is the bare conductor diameter whatever the metal
+    (the name predates aluminium); ``conductor`` names the metal.
+    """
 
     label: str
     standard: str
@@ -126,28 +149,42 @@ class Wire:
     breakdown: float
     source: str
     warnings: tuple = ()
+    conductor: str = "copper"
+    min_increase: float | None = None
+    breakdown_test: str = ""
+    sources: tuple = ()
 
     @property
     def area(self) -> float:
         return math.pi * self.copper_diameter ** 2 / 4
 
+    @property
+    def conductor_diameter(self) -> float:
+        return self.copper_diameter
 
-def _temperature_factor(temperature_C):
-    """R(t)/R(20 degC) of annealed copper, linear in IEC 60028's coefficient."""
-    return 1 + copper()["temperature_coefficient_20C"] * (temperature_C - 20.0)
+    @property
+    def min_overall_diameter(self) -> float | None:
+        return None if self.min_increase is None else self.copper_diameter + self.min_increase
 
 
-def dc_resistance(length, copper_d, temperature_C=20.0):
-    """DC resistance of annealed copper wire.
+def _temperature_factor(temperature_C, conductor_name="copper"):
+    """R(t)/R(20 degC), linear in the conductor's coefficient at 20 degC."""
+    return 1 + _constants(conductor_name)["temperature_coefficient_20C"] * (np.asarray(temperature_C) - 20.0)
+
+
+def dc_resistance(length, copper_d, temperature_C=20.0, conductor="copper"):
+    """DC resistance of a round wire.
 
     Parameters
     ----------
     length : float or ndarray
         Wire length. [m]
     copper_d : float
-        Bare copper diameter. [m]
+        Bare conductor diameter. [m]
     temperature_C : float
         Conductor temperature. [degC]
+    conductor : str
+        ``"copper"`` or ``"aluminium"``.
 
     Returns
     -------
@@ -158,12 +195,20 @@ def dc_resistance(length, copper_d, temperature_C=20.0):
     ----------
     .. [1] IEC 60028, International standard of resistance for copper:
        1/58 ohm mm^2/m at 20 degC, temperature coefficient 0.00393 /K.
+    .. [2] IEC 60889 (aluminium, 61 % IACS): 0.028264 ohm mm^2/m, 0.00403 /K.
+
+    Examples
+    --------
+    >>> d = math.sqrt(4 / math.pi) * 1e-3          # 1 mm^2
+    >>> round(float(dc_resistance(58.0, d)), 4)
+    1.0
     """
-    r20 = copper()["resistivity_20C"] * np.asarray(length) / (math.pi * copper_d ** 2 / 4)
-    return r20 * _temperature_factor(temperature_C)
+    rho = _constants(conductor)["resistivity_20C"]
+    r20 = rho * np.asarray(length) / (math.pi * copper_d ** 2 / 4)
+    return r20 * _temperature_factor(temperature_C, conductor)
 
 
-def resistance_to_20C(R, temperature_C):
+def resistance_to_20C(R, temperature_C, conductor="copper"):
     """Correct a resistance measured at ``temperature_C`` to 20 degC.
 
     Parameters
@@ -172,6 +217,8 @@ def resistance_to_20C(R, temperature_C):
         Resistance measured. [ohm]
     temperature_C : float
         Conductor (ambient) temperature at the measurement. [degC]
+    conductor : str
+        ``"copper"`` or ``"aluminium"``.
 
     Returns
     -------
@@ -180,53 +227,100 @@ def resistance_to_20C(R, temperature_C):
 
     References
     ----------
-    .. [1] IEC 60028 (temperature coefficient 0.00393 /K at 20 degC).
+    .. [1] IEC 60028 (copper, 0.00393 /K at 20 degC); IEC 60889 (aluminium, 0.00403 /K).
+
+    Examples
+    --------
+    >>> round(float(resistance_to_20C(1.0393, 30.0)), 6)
+    1.0
     """
-    return R / _temperature_factor(temperature_C)
+    return R / _temperature_factor(temperature_C, conductor)
 
 
-def copper_mass(length, copper_d):
-    """Copper mass of a wire.
+def copper_mass(length, copper_d, conductor="copper"):
+    """Conductor mass of a wire (copper unless ``conductor`` says otherwise).
 
     Parameters
     ----------
     length : float or ndarray
         Wire length. [m]
     copper_d : float
-        Bare copper diameter. [m]
+        Bare conductor diameter. [m]
+    conductor : str
+        ``"copper"`` or ``"aluminium"``.
 
     Returns
     -------
     m : float or ndarray
-        Mass of copper, enamel excluded. [kg]
+        Mass of the conductor, enamel excluded. [kg]
 
     References
     ----------
-    .. [1] IEC 60028 (density 8.89 g/cm^3).
+    .. [1] IEC 60028 (copper 8.89 g/cm^3); IEC 60889 (aluminium 2.703 g/cm^3).
+
+    Examples
+    --------
+    >>> d = math.sqrt(4 / math.pi) * 1e-3          # 1 mm^2
+    >>> round(float(copper_mass(1.0, d)) * 1e3, 3)  # grams in one metre
+    8.89
     """
-    return copper()["density"] * np.asarray(length) * math.pi * copper_d ** 2 / 4
+    rho = _constants(conductor)["density"]
+    return rho * np.asarray(length) * math.pi * copper_d ** 2 / 4
 
 
-def standard_wire(nominal_d, grade, thermal_class=155, label=None, standard="IEC 60317-0-1",
-                  overall_d=None, breakdown=None) -> Wire:
-    """Build a :class:`Wire` from a nominal diameter and grade, with optional datasheet overrides."""
-    over, bd, extrap = enamel_build(nominal_d, grade)
-    warnings = []
-    source = "IEC 60317-0-1 table (interpolated)"
-    if extrap:
-        source = "IEC 60317-0-1 table (extrapolated beyond 0.315–1.016 mm)"
-        if overall_d is None or breakdown is None:
-            warnings.append(
-                f"wire {nominal_d * 1e3:.3f} mm lies outside the built-in IEC 60317-0-1 rows; "
-                "overall diameter and breakdown are extrapolated: give the datasheet values "
-                "as wire.overall_diameter and wire.breakdown")
+conductor_mass = copper_mass
+
+_ALUMINIUM_NOTE = ("aluminium wire: enamel dimensions and breakdown are IEC 60317-0-1's copper rows; "
+                   "IEC 60317-0-3 (aluminium) gives the same dimensions as far as recalled (memory, no stored "
+                   "copy found): check the wire's datasheet")
+
+
+def _describe(row: EnamelRow) -> tuple:
+    return tuple(sorted({f"{q}: {src} ({sure})" for q, (src, sure) in row.sources.items()}))
+
+
+def standard_wire(nominal_d, grade, thermal_class=155, label=None, standard=IEC, overall_d=None,
+                  breakdown=None, conductor="copper", size: Size | None = None) -> Wire:
+    """A :class:`Wire` from a table row, with optional datasheet overrides.
+
+    The row is the size's own (metric), the next larger IEC row (a gauge
+    size) or the NEMA MW 1000 build (an AWG size under ``standard=NEMA``).
+    A value the row lacks must come from the datasheet; both datasheet values
+    together accept any size, with no table at all.
+
+    Raises
+    ------
+    NotInTable
+        The size or a needed value is not in the table and the datasheet does not give it.
+    """
+    size = size or Size("metric", None, nominal_d, f"{nominal_d * 1e3:.3f} mm")
+    warnings = [_ALUMINIUM_NOTE] if conductor == "aluminium" else []
+    if overall_d is not None and breakdown is not None:
+        try:
+            row = row_for(size, grade, standard)
+        except NotInTable:
+            row = None
+        return Wire(label=label or f"{size.label} {GRADE_NAMES[grade]}", standard=standard,
+                    copper_diameter=nominal_d, overall_diameter=overall_d, grade=grade,
+                    thermal_class=thermal_class, breakdown=breakdown, source="datasheet values given in the order",
+                    warnings=tuple(warnings), conductor=conductor,
+                    min_increase=row.min_increase if row else None, breakdown_test=row.test if row else "",
+                    sources=("overall diameter and breakdown: datasheet values given in the order",))
+    row = row_for(size, grade, standard)
+    over = overall_d if overall_d is not None else row.max_overall
+    bd = breakdown if breakdown is not None else row.breakdown
+    if over is None or bd is None:
+        missing = [t for t, v in (("maximum overall diameter (give wire.overall_diameter)", over),
+                                  ("minimum breakdown voltage (give wire.breakdown)", bd)) if v is None]
+        raise NotInTable(f"{standard} gives no {GRADE_NAMES[grade]} {' or '.join(missing)} for {size.label} "
+                         "in the stored table")
+    source = f"{standard} table row" + (f" ({row.rule})" if row.rule else "")
     if overall_d is not None or breakdown is not None:
-        source = "datasheet values given in the order" + (
-            "" if (overall_d is not None and breakdown is not None) else f"; rest from {source}")
-    return Wire(label=label or f"{nominal_d * 1e3:.3f} mm {GRADE_NAMES[grade]}", standard=standard,
-                copper_diameter=nominal_d, overall_diameter=overall_d or over, grade=grade,
-                thermal_class=thermal_class, breakdown=breakdown or bd, source=source,
-                warnings=tuple(warnings))
+        source = f"datasheet value given in the order; rest from the {source}"
+    return Wire(label=label or f"{size.label} {GRADE_NAMES[grade]}", standard=standard,
+                copper_diameter=nominal_d, overall_diameter=over, grade=grade, thermal_class=thermal_class,
+                breakdown=bd, source=source, warnings=tuple(warnings), conductor=conductor,
+                min_increase=row.min_increase, breakdown_test=row.test, sources=_describe(row))
 
 
 def load_catalog(path):
