@@ -512,6 +512,18 @@ def neighbour_gap_limit(layout: Layout) -> float:
     return NEIGHBOUR_GAP_FRACTION * layout.overall_diameter + tape
 
 
+def _gap_spacing(layout: Layout, i, j):
+    """Centre distance of a toroid's start and finish turns across the start-finish gap.
+
+    A full layer spans (360 − gap)/360 of the circumference; the start and
+    finish face each other across the rest.  Fewer turns leave a wider gap,
+    so this is the closest case.
+    """
+    span = np.abs(layout.z[j] - layout.z[i]) + layout.overall_diameter
+    circumference = span * 360.0 / (360.0 - TOROID_GAP_DEG)
+    return np.maximum(circumference - np.abs(layout.z[j] - layout.z[i]), layout.overall_diameter)
+
+
 def neighbour_pairs(layout: Layout) -> Neighbours:
     """Every pair of conductors whose insulation surfaces are closer than
     :func:`neighbour_gap_limit`, diagonals included, plus each turn's next
@@ -571,7 +583,7 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
         fi, la = np.repeat(first, last.size), np.tile(last, first.size)
         i, j = np.concatenate([i, fi]), np.concatenate([j, la])
         kind = np.concatenate([kind, np.full(fi.size, "lead", dtype=object)])
-        gap = np.concatenate([gap, np.full(fi.size, np.nan)])
+        gap = np.concatenate([gap, np.maximum(_gap_spacing(layout, fi, la) - d, 0.0)])
         across = np.concatenate([across, np.zeros(fi.size, dtype=bool)])
     out = Neighbours(i=i.astype(int), j=j.astype(int), kind=kind, gap=gap, across_tape=across)
     layout._memo["neighbours"] = out
