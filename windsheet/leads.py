@@ -4,13 +4,14 @@ Pure geometry.  Every strand end has a lead.  Its route is an order choice:
 
 * a **start** lead leaves layer 1 at the start flange and either rises up
   that flange (``start-flange``: past the start-end turn of every layer
-  above, and over the layer-1 turns between it and the flange) or leaves
+  above, and over the layer-1 turns between it and the flange; on a
+  single-layer coil it rises where it starts, beside nothing) or leaves
   through the former (``through-form``: beside no turn);
 * a **finish** lead leaves the top layer and is either laid back over the
-  top layer to the start end (``over-top-layer``), taken out at the flange
-  nearest the finish turn (``end-flange``), or brought back and down the
-  start flange to the former (``down-start-flange``: past the start-end turn
-  of every layer);
+  top layer to the start end (``over-top-layer``), lifted straight out
+  where it ends (``end-flange``: nothing lies above the top layer), or
+  brought back and down the start flange to the former
+  (``down-start-flange``: past the start-end turn of every layer);
 * a **joint** between a finish and a start (series-aiding) is made either at
   the start end, the finish lead laid back over the winding to it
   (``back-over-winding``), or off the winding, the finish lead taken out at
@@ -39,7 +40,7 @@ ROUTE_TEXT = {
     "start-flange": "up the start flange",
     "through-form": "out through the former",
     "over-top-layer": "laid back over the top layer to the start end",
-    "end-flange": "out at the flange where it ends, clear of the turns",
+    "end-flange": "lifted straight out where it ends, at its end flange, clear of the turns",
     "down-start-flange": "back over the top layer and down the start flange to the former",
     "back-over-winding": "finish laid back over the winding to the start end, joint made there",
 }
@@ -149,14 +150,14 @@ def lead_beside(layout: Layout, strand: int, which: int, route: str) -> np.ndarr
             return np.array([], dtype=int)
         if route != "start-flange":
             raise ValueError(f"a start lead's route is one of {', '.join(START_ROUTES)}, got {route!r}")
+        if layout.layers == 1:
+            return np.array([], dtype=int)   # nothing above: it rises where it starts
         cross = _between(layout, 0, layout.z[own], towards_start=True)
         ends = [_end_turn(layout, lay, True) for lay in range(1, layout.layers)]
         return np.unique(np.concatenate([cross, np.asarray(ends, dtype=int)])).astype(int)
     z_own = layout.z[own]
-    # The flange nearer the finish turn: the top layer ends at the start flange when wound back.
-    at_start_end = z_own - layout.z[layout.layer == top].min() <= layout.z[layout.layer == top].max() - z_own
     if route == "end-flange":
-        return _between(layout, top, z_own, towards_start=at_start_end).astype(int)
+        return np.array([], dtype=int)       # lifted out of the top layer where it ends
     back = _between(layout, top, z_own, towards_start=True)
     if route in ("over-top-layer", "back-over-winding"):
         return back.astype(int)
@@ -199,7 +200,7 @@ def lead_routes(layout: Layout, joins, terminals, routes=None, hookup: str = "")
     >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 2, 20, layers=1)
     >>> leads = lead_routes(lay, [["A.finish", "B.start"]], ["A.start", "B.finish"])
     >>> [(x.end, x.route, len(x.beside)) for x in leads]
-    [('A.start', 'start-flange', 0), ('A.finish', 'back-over-winding', 38), ('B.start', 'start-flange', 1), ('B.finish', 'end-flange', 0)]
+    [('A.start', 'start-flange', 0), ('A.finish', 'back-over-winding', 38), ('B.start', 'start-flange', 0), ('B.finish', 'end-flange', 0)]
     """
     if layout.kind == "toroid":
         return []
