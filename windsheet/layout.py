@@ -559,16 +559,16 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
     from scipy.spatial import cKDTree
 
     d = layout.overall_diameter
-    pts = np.column_stack([layout.r, layout.z])
-    tree = cKDTree(pts)
-    close = tree.query_pairs(d + neighbour_gap_limit(layout) * (1 + 1e-9), output_type="ndarray")
-    # Next along each layer, however far.
+    reach = (d + neighbour_gap_limit(layout)) * (1 + 1e-9)
+    tree = cKDTree(np.column_stack([layout.r, layout.z]))
+    close = tree.query_pairs(reach, output_type="ndarray").reshape(-1, 2)
+    # Next along each layer, however far; those within reach are found already.
     order = np.lexsort((layout.z, layout.layer))
     same = layout.layer[order[:-1]] == layout.layer[order[1:]]
-    along = np.column_stack([order[:-1][same], order[1:][same]])
-    pairs = np.vstack([close.reshape(-1, 2), along]) if close.size else along
-    pairs = np.sort(pairs, axis=1)
-    pairs = np.unique(pairs, axis=0) if pairs.size else pairs.reshape(0, 2)
+    a, b = order[:-1][same], order[1:][same]
+    far = np.hypot(layout.r[a] - layout.r[b], layout.z[a] - layout.z[b]) > reach
+    pairs = np.vstack([close, np.column_stack([a[far], b[far]])])
+    pairs = pairs[np.lexsort((pairs.max(axis=1), pairs.min(axis=1)))]
     # Report each pair lower layer first, then along the traverse.
     a, b = pairs[:, 0], pairs[:, 1]
     swap = (layout.layer[a] > layout.layer[b]) | ((layout.layer[a] == layout.layer[b])
