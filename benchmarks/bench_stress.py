@@ -22,7 +22,8 @@ import numpy as np
 from windsheet import stress
 from windsheet.flux_linkage import turn_flux_linkage
 from windsheet.inductance import strand_matrix
-from windsheet.layout import cylinder_layout, neighbour_pairs
+from windsheet.layout import cylinder_layout
+from windsheet.neighbours import neighbour_pairs
 from windsheet.leads import lead_routes
 
 REPEAT = 5

@@ -7,8 +7,9 @@ import numpy as np
 import pytest
 
 from windsheet import capacitance as cap
+from windsheet import conductor_capacitance as cc
 from windsheet import voltage_map as vmap
-from windsheet.layout import cylinder_layout, neighbours, toroid_layout
+from windsheet.layout import cylinder_layout
 
 D_CU, D_OV = 0.45e-3, 0.50e-3
 
@@ -51,13 +52,13 @@ def test_two_wire_line_matches_log_form(ratio):
     eps0 = mpmath.mpf("8.8541878128e-12")  # CODATA 2018 (memory)
     # Two-wire line (memory): C' = π ε0 εr / acosh(D/d), acosh x = ln(x + √(x²−1)).
     expected = mpmath.pi * eps0 * 3.5 / mpmath.log(ratio + mpmath.sqrt(ratio ** 2 - 1))
-    assert cap.two_wire_capacitance_per_length(ratio * d, d, 3.5) == pytest.approx(
+    assert cc.two_wire_capacitance_per_length(ratio * d, d, 3.5) == pytest.approx(
         float(expected), rel=1e-9)
 
 
 def test_two_wire_line_thin_wire_limit():
     # Thin, far-apart wires (memory): C' → π ε0 / ln(2D/d) = 12.08 pF/m at D/d = 1000.
-    c = cap.two_wire_capacitance_per_length(1.0, 1e-3)
+    c = cc.two_wire_capacitance_per_length(1.0, 1e-3)
     assert c == pytest.approx(math.pi * 8.8541878128e-12 / math.log(2000.0), rel=1e-6)
     assert c == pytest.approx(3.660e-12, rel=1e-3)
 
@@ -92,14 +93,14 @@ def test_turn_to_turn_matches_its_cell_integral(cu_mm, ov_mm, eps_r):
     # Massarini & Kazimierczuk 1997 (expression seen in a third-party copy): the closed form
     # is the piecewise enamel/air integral over ±30°; checked by quadrature. Grade 3 at εr 1
     # passes θ* = π/6 and exercises the all-enamel cap.
-    assert cap.turn_to_turn_capacitance_per_length(cu, ov, eps_r) == pytest.approx(
+    assert cc.turn_to_turn_capacitance_per_length(cu, ov, eps_r) == pytest.approx(
         piecewise_cell_integral(cu, ov, eps_r), rel=1e-9)
 
 
 @pytest.mark.parametrize("cu_mm,ov_mm", IEC_WIRES)
 def test_turn_to_turn_bounded_by_series_integral(cu_mm, ov_mm):
     cu, ov = cu_mm * 1e-3, ov_mm * 1e-3
-    c = cap.turn_to_turn_capacitance_per_length(cu, ov, 3.5)
+    c = cc.turn_to_turn_capacitance_per_length(cu, ov, 3.5)
     exact_series = series_cell_integral(cu, ov, 3.5)
     # Derived: min(a, b) lies between the series value ab/(a+b) and twice it.
     assert exact_series < c < 2 * exact_series
@@ -108,10 +109,10 @@ def test_turn_to_turn_bounded_by_series_integral(cu_mm, ov_mm):
 def test_turn_to_turn_touching_045_050_about_111_pf_per_m():
     # Computed (quadrature of the model), 111 pF/m as the colleague's figure; the uniform-εr
     # two-wire line gives 208 pF/m for the same pair (memory formula, computed).
-    c = cap.turn_to_turn_capacitance_per_length(0.45e-3, 0.50e-3, 3.5)
+    c = cc.turn_to_turn_capacitance_per_length(0.45e-3, 0.50e-3, 3.5)
     assert c == pytest.approx(piecewise_cell_integral(0.45e-3, 0.50e-3, 3.5), rel=1e-9)
     assert c == pytest.approx(110.9e-12, rel=1e-3)
-    assert cap.two_wire_capacitance_per_length(0.50e-3, 0.45e-3, 3.5) == pytest.approx(
+    assert cc.two_wire_capacitance_per_length(0.50e-3, 0.45e-3, 3.5) == pytest.approx(
         208.4e-12, rel=1e-3)
 
 
@@ -123,42 +124,42 @@ def test_turn_to_turn_thin_film_limit(eps_r):
     ov = cu * (1 + 1e-8)
     x = math.log1p(1e-8) / eps_r
     expected = (2 * math.sqrt(2 / x) - (2 + math.sqrt(3))) * float(EPS0)
-    assert cap.turn_to_turn_capacitance_per_length(cu, ov, eps_r) == pytest.approx(expected, rel=1e-6)
+    assert cc.turn_to_turn_capacitance_per_length(cu, ov, eps_r) == pytest.approx(expected, rel=1e-6)
 
 
 def test_turn_to_turn_needs_enamel():
     # Derived: with no film, ln(1 + t/r) = 0 and the model has no meaning (bare turns short).
     with pytest.raises(ValueError):
-        cap.turn_to_turn_capacitance_per_length(0.5e-3, 0.5e-3)
+        cc.turn_to_turn_capacitance_per_length(0.5e-3, 0.5e-3)
 
 
 @pytest.mark.parametrize("ratio", [1.5, 3.0, 20.0])
 def test_enamelled_line_limits(ratio):
     cu, ov = 0.45e-3, 0.50e-3
     # Two-wire line (memory): with εr → ∞ the films vanish and the line is in air at Ø_o.
-    assert cap.enamelled_two_wire_capacitance_per_length(ratio * ov, cu, ov, 1e12) == pytest.approx(
-        cap.two_wire_capacitance_per_length(ratio * ov, ov, 1.0), rel=1e-9)
+    assert cc.enamelled_two_wire_capacitance_per_length(ratio * ov, cu, ov, 1e12) == pytest.approx(
+        cc.two_wire_capacitance_per_length(ratio * ov, ov, 1.0), rel=1e-9)
     # Coaxial films in series with the air line (derived): 1/C' adds ln(Do/d)/(π ε0 εr).
-    c = cap.enamelled_two_wire_capacitance_per_length(ratio * ov, cu, ov, 3.5)
-    assert 1 / c == pytest.approx(1 / cap.two_wire_capacitance_per_length(ratio * ov, ov, 1.0)
+    c = cc.enamelled_two_wire_capacitance_per_length(ratio * ov, cu, ov, 3.5)
+    assert 1 / c == pytest.approx(1 / cc.two_wire_capacitance_per_length(ratio * ov, ov, 1.0)
                                   + math.log(ov / cu) / (math.pi * float(EPS0) * 3.5), rel=1e-9)
 
 
 def test_side_by_side_touching_is_turn_to_turn_and_falls_with_spacing():
     cu, ov = 0.50e-3, 0.5694e-3
-    mk = cap.turn_to_turn_capacitance_per_length(cu, ov)
+    mk = cc.turn_to_turn_capacitance_per_length(cu, ov)
     spacing = ov * np.linspace(1.0, 4.0, 30001)
-    c = cap.side_by_side_capacitance_per_length(spacing, cu, ov)
+    c = cc.side_by_side_capacitance_per_length(spacing, cu, ov)
     # Massarini & Kazimierczuk 1997: touching turns.
     assert c[0] == pytest.approx(mk, rel=1e-12)
     # Physics: capacitance never rises as the turns part; no step at the hand-over.
     assert np.all(np.diff(c) <= 1e-18)
     assert np.max(np.abs(np.diff(c))) < 0.01 * mk
     # Derived: well apart it is the two-wire line with air beyond the enamel.
-    assert c[-1] == pytest.approx(cap.enamelled_two_wire_capacitance_per_length(4 * ov, cu, ov),
+    assert c[-1] == pytest.approx(cc.enamelled_two_wire_capacitance_per_length(4 * ov, cu, ov),
                                   rel=1e-12)
     # Enamel's εr taken throughout (the old model) overstates at every spacing.
-    assert np.all(c < cap.two_wire_capacitance_per_length(spacing, cu, cap.ENAMEL_EPS_R))
+    assert np.all(c < cc.two_wire_capacitance_per_length(spacing, cu, cc.ENAMEL_EPS_R))
 
 
 def test_pair_capacitances_touching_and_spaced_turns():
@@ -166,13 +167,13 @@ def test_pair_capacitances_touching_and_spaced_turns():
     i, j, kind, c, _ = cap.pair_capacitances(close)
     length = 0.5 * (close.turn_length[i] + close.turn_length[j])
     # Massarini & Kazimierczuk 1997: close-wound turns touch, C = C' × mean turn length.
-    assert c == pytest.approx(cap.turn_to_turn_capacitance_per_length(D_CU, D_OV) * length,
+    assert c == pytest.approx(cc.turn_to_turn_capacitance_per_length(D_CU, D_OV) * length,
                               rel=1e-12)
     spaced = cylinder_layout(0.02, 0.3, D_CU, D_OV, 1, 20, layers=1, pitch=2 * D_OV)
     i, j, kind, c, _ = cap.pair_capacitances(spaced)
     length = 0.5 * (spaced.turn_length[i] + spaced.turn_length[j])
     # Derived: at twice the overall diameter, the enamelled two-wire line.
-    assert c == pytest.approx(cap.enamelled_two_wire_capacitance_per_length(
+    assert c == pytest.approx(cc.enamelled_two_wire_capacitance_per_length(
         2 * D_OV, D_CU, D_OV) * length, rel=1e-9)
 
 
@@ -258,7 +259,7 @@ LAYER_CASES = [  # copper, overall, style, tape
 @pytest.mark.parametrize("cu,ov,style,tape", LAYER_CASES)
 def test_layer_capacitance_within_ten_percent_of_a_field_solution(cu, ov, style, tape):
     step = ov + tape if style == "stacked" else ov * math.sqrt(3) / 2
-    per_pair = cap.layer_pair_capacitance_per_length(cu, ov, style, step, ov, 3.5, tape)
+    per_pair = cc.layer_pair_capacitance_per_length(cu, ov, style, step, ov, 3.5, tape)
     contacts = 2 if style == "nested" else 1
     field = fd_layer_capacitance(cu, ov, 3.5, style, tape)
     # Independent computation (tests/laplace2d.py; converged to about 1 % at this grid): the
@@ -271,7 +272,7 @@ def test_old_uniform_enamel_plate_was_far_above_the_field():
     # field solution it read some 50 % high for stacked layers (computed here, as the issue reported).
     cu, ov = 0.45e-3, 0.50e-3
     face = cu * math.sqrt(math.pi) / 2
-    old = cap.EPS0 * 3.5 * ov / (ov - face)
+    old = cc.EPS0 * 3.5 * ov / (ov - face)
     assert old / fd_layer_capacitance(cu, ov, 3.5, "stacked") > 1.4
 
 
@@ -282,11 +283,11 @@ def test_series_cell_closed_form_is_its_integral():
         a = 1 + x + tape / 3.2 / ov
         # Massarini & Kazimierczuk's tubes in series, integrated by quadrature (mpmath).
         quad = float(EPS0 * mpmath.quad(lambda t: 1 / (a - mpmath.cos(t)), [0, half]))
-        assert cap.flux_tube_capacitance_per_length(cu, ov, half, eps, solid=tape) == pytest.approx(
+        assert cc.flux_tube_capacitance_per_length(cu, ov, half, eps, solid=tape) == pytest.approx(
             quad, rel=1e-9)
     # The piecewise cell of the turn-to-turn model bounds the series one from above (derived).
-    assert cap.flux_tube_capacitance_per_length(cu, ov, math.pi / 6) < \
-        cap.turn_to_turn_capacitance_per_length(cu, ov)
+    assert cc.flux_tube_capacitance_per_length(cu, ov, math.pi / 6) < \
+        cc.turn_to_turn_capacitance_per_length(cu, ov)
 
 
 def test_plate_model_is_series_plates():
@@ -295,7 +296,7 @@ def test_plate_model_is_series_plates():
     step = ov + tape
     air = step - cu * math.sqrt(math.pi) / 2 - (ov - cu) - tape
     expected = EPS0 * ov / ((ov - cu) / 3.5 + tape / 3.2 + air)
-    assert cap.layer_plate_capacitance_per_length(cu, ov, step, ov, 3.5, tape) == pytest.approx(
+    assert cc.layer_plate_capacitance_per_length(cu, ov, step, ov, 3.5, tape) == pytest.approx(
         expected, rel=1e-12)
 
 

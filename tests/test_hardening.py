@@ -455,3 +455,10 @@ def test_separate_windings_warn_of_their_own_resonance_only(scratch):
     # Half the reported self-resonance is above a third of it (common practice: keep below a third),
     # and below it: one caution, and no claim that the coil is past resonance.
     assert len(notes) == 1 and not notes[0].startswith("ERROR"), notes
+
+
+def test_unknown_field_in_a_hookup_mapping_is_refused_at_its_path(scratch):
+    # A hookup mapping has joins and terminals only; an extra field is a one-line refusal, not a crash.
+    doc = _order(BIFILAR, hookup={"joins": [["A.finish", "B.start"]], "terminals": ["A.start", "B.finish"],
+                                  "colour": "red"})
+    assert _refusal(scratch, doc).startswith("windsheet: hookup.colour:")

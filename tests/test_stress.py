@@ -8,7 +8,8 @@ import pytest
 
 from windsheet import capacitance as cap
 from windsheet import stress
-from windsheet.layout import cylinder_layout, neighbours, toroid_layout
+from windsheet.layout import cylinder_layout, toroid_layout
+from windsheet.neighbours import neighbours
 
 D_CU, D_OV = 0.45e-3, 0.50e-3
 

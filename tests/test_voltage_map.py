@@ -1,7 +1,6 @@
 """Checks of windsheet.voltage_map (and the leads' stress) against trade expectations and
 independent sums."""
 
-import math
 from types import SimpleNamespace
 
 import numpy as np

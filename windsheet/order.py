@@ -292,7 +292,7 @@ def _hookup(raw, strands):
         if isinstance(raw, dict):
             extra = set(raw) - {"joins", "terminals"}
             if extra:
-                raise HookupError(f"hookup.{_field_name(sorted(map(str, extra))[0])}",
+                raise HookupError(join_path("hookup", sorted(map(str, extra))[0]),
                                   "unknown field; a hookup has joins and terminals")
             if "terminals" not in raw:
                 raise HookupError("hookup.terminals", "is required: the two strand ends brought out, like [A.start, B.finish]")

@@ -18,11 +18,13 @@ import math
 import numpy as np
 
 from . import capacitance as cap
+from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R
 from .discharge import construction_inception
 from .flux_linkage import cored_turn_flux_linkage, turn_flux_linkage
 from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTOR, hipot_voltage,
                          insulation_verdict, volts)
-from .layout import Layout, neighbour_pairs
+from .layout import Layout
+from .neighbours import neighbour_pairs
 from .leads import ROUTE_TEXT
 from .voltage_map import describe_turn, pair_record, pair_voltages, turn_drops, turn_potentials
 
@@ -111,7 +113,7 @@ def _lead_pair_record(layout, lead, t, voltage, where):
 
 
 def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
-           inductance_H=None, eps_r=cap.ENAMEL_EPS_R, tape_eps_r=cap.TAPE_EPS_R, tape_rating_V=None,
+           inductance_H=None, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R, tape_rating_V=None,
            derating=DERATING, pdiv_Vpk=None, pdiv_hot_factor=PDIV_HOT_FACTOR, drops=None,
            leads=(), impregnation="none") -> dict:
     """Voltage map, capacitance, self-resonance and insulation verdict for a duty.

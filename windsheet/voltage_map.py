@@ -16,7 +16,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from .layout import Layout, neighbours
+from .layout import Layout
+from .neighbours import neighbours
 
 _STRAND_LETTERS = "ABCDEFGH"
 
