@@ -42,7 +42,7 @@ ROUTE_TEXT = {
     "over-top-layer": "laid back over the top layer to the start end",
     "end-flange": "lifted straight out where it ends, at its end flange, clear of the turns",
     "down-start-flange": "back over the top layer and down the start flange to the former",
-    "back-over-winding": "finish laid back over the winding to the start end, joint made there",
+    "back-over-winding": "laid back over the winding, joint made at the start end",
 }
 
 
