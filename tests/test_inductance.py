@@ -206,8 +206,9 @@ def _brooks_layout(d, copper_d):
     c = 40 * d                            # 40 × 40 turns in a c × c square
     mean_radius = 1.5 * c
     # Innermost layer centre = diameter/2 + d/2; the mean is 19.5 d further out.
+    # Stacked layers (square packing): Brooks' section is a c × c square of turns.
     diameter = 2 * (mean_radius - 20 * d)
-    return cylinder_layout(diameter, c, copper_d, d, 1, 1600, layers=40), mean_radius
+    return cylinder_layout(diameter, c, copper_d, d, 1, 1600, layers=40, layer_style="stacked"), mean_radius
 
 
 def test_brooks_coil_filament_sum():
@@ -231,7 +232,9 @@ def test_wheeler_multilayer_comparable_terms():
     # 6a : 9b : 10c = 90 : 90 : 90 mm — Wheeler's terms comparable.
     d, per_layer, layers = 0.0005, 20, 18
     a, b, c = 0.015, per_layer * d, layers * d
-    lay = cylinder_layout(2 * (a - c / 2), b, 0.00045, d, 1, per_layer * layers, layers=layers)
+    # Stacked layers: Wheeler's rectangular section of depth c = layers × d.
+    lay = cylinder_layout(2 * (a - c / 2), b, 0.00045, d, 1, per_layer * layers, layers=layers,
+                          layer_style="stacked")
     assert (lay.r.min() + lay.r.max()) / 2 == pytest.approx(a)
     # Wheeler, Proc. IRE 16:1398 (1928) (seen): about 1 % when the terms are comparable; allow 2 %.
     assert strand_matrix(lay)[0, 0] == pytest.approx(wheeler_multilayer(a, b, c, per_layer * layers),
@@ -294,6 +297,7 @@ def test_series_aiding_tightly_coupled_is_four_times_one_strand():
     (3, 17, 3, 1.0, 1e-4),       # trifilar with layer tape
     (2, 30, 3, 1.7, 5e-5),       # spaced pitch and tape
     (1, 40, None, 1.3, 0.0),     # auto layers at a spaced pitch
+    (2, 30, 3, 1.0, 0.0),        # bifilar, nested layers
 ])
 def test_fast_sum_equals_double_sum(strands, turns, layers, pitch_factor, tape):
     ov = 0.4e-3
@@ -344,7 +348,8 @@ def test_fast_sum_two_layers_on_one_radius_side_by_side():
 
 
 def test_fast_sum_refuses_coinciding_turns():
-    lay = cylinder_layout(0.012, 6e-3, 0.35e-3, 0.4e-3, 1, 30, layers=2)
+    # Stacked: turn over turn, so on one radius the two layers' turns sit on the same circles.
+    lay = cylinder_layout(0.012, 6e-3, 0.35e-3, 0.4e-3, 1, 30, layers=2, layer_style="stacked")
     # Both layers on one radius and over the same slots: some turns sit on one circle.
     moved = dataclasses.replace(lay, r=np.full(lay.n_turns, lay.r[0]))
     with pytest.raises(ValueError, match="coincide"):

@@ -172,6 +172,14 @@ class LayerTape(_M):
     material: Text = "polyester tape"
 
 
+class LeadRoutes(_M):
+    """How each lead and joint wire is dressed (see :mod:`windsheet.leads`); unnamed routes
+    take the default for the winding."""
+    start: Optional[Literal["start-flange", "through-form"]] = None
+    finish: Optional[Literal["over-top-layer", "end-flange", "down-start-flange"]] = None
+    joint: Optional[Literal["back-over-winding", "end-flange"]] = None
+
+
 class Winding(_M):
     # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
     strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
@@ -184,6 +192,11 @@ class Winding(_M):
     scrap_allowance: Fraction = 0.10
     identification: Optional[dict[Literal["A", "B", "C", "D"], Text]] = None
     coupling: Annotated[float, Field(ge=0.0, le=1.0, allow_inf_nan=False)] = 1.0
+    # Untaped close-wound layers nest, taped or spaced ones stack, unless the order says.
+    layer_style: Optional[Literal["nested", "stacked"]] = None
+    strand_spacing: Literal["together", "even"] = "together"
+    impregnation: Literal["none", "varnish", "potted"] = "none"
+    leads: LeadRoutes = LeadRoutes()
 
 
 class Duty(_M):
@@ -204,7 +217,8 @@ class Insulation(_M):
     derating: Fraction = 0.25
     #: Least insulation resistance accepted strand to strand and to core (100 MΩ: common practice).
     min_resistance: Annotated[float, _q("resistance")] = 100e6
-    pdiv: Voltage = 500.0
+    #: Measured PDIV (20 °C, peak) of touching turns of this wire as built; by default estimated.
+    pdiv: Optional[Voltage] = None
     hot_pdiv_derating: Fraction = 0.25
 
 
@@ -295,7 +309,7 @@ def _hookup(raw, strands):
         if isinstance(raw, dict):
             extra = set(raw) - {"joins", "terminals"}
             if extra:
-                raise HookupError(f"hookup.{_field_name(sorted(map(str, extra))[0])}",
+                raise HookupError(join_path("hookup", sorted(map(str, extra))[0]),
                                   "unknown field; a hookup has joins and terminals")
             if "terminals" not in raw:
                 raise HookupError("hookup.terminals", "is required: the two strand ends brought out, like [A.start, B.finish]")

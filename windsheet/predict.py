@@ -16,10 +16,13 @@ from . import inductance as ind
 from . import layout as lay
 from . import fmt, stress
 from .errors import InputError
+from .insulation import hipot_voltage
+from .leads import lead_routes
+from .remedies import advice, find_remedies
 from .limits import check_engine_work, check_turns_in_all
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
-from .wire import copper_mass, dc_resistance, grade_breakdowns
+from .wire import copper_mass, dc_resistance
 
 #: Most turns per strand sized, as for an order's winding.turns.
 MAX_TURNS = 100_000
@@ -49,6 +52,15 @@ def _place_turns(order: Order, wire, turns: int):
     layers = None if w.layers == "auto" else w.layers
     args = dict(copper_diameter=wire.copper_diameter, overall_diameter=wire.overall_diameter,
                 strands=w.strands, turns=turns, layers=layers, pitch=w.pitch, tape=order.tape)
+    # Checked first, so that a style the construction cannot take is refused at its own field.
+    try:
+        lay.layer_geometry(w.layer_style, order.tape, w.pitch or w.strands * wire.overall_diameter,
+                           w.strands, wire.overall_diameter,
+                           (w.pitch or w.strands * wire.overall_diameter) / w.strands
+                           if w.strand_spacing == "even" else wire.overall_diameter)
+    except ValueError as exc:
+        raise InputError("winding.layer_style", str(exc)) from None
+    args.update(layer_style=w.layer_style, strand_spacing=w.strand_spacing)
     try:
         if isinstance(f, CylinderForm):
             # Enamel is only proven to survive a mandrel of the wire's own diameter
@@ -253,34 +265,9 @@ def _refuse_above_self_resonance(duty, srf):
                          "or use fewer turns or a construction with less capacitance")
 
 
-def _grade_advice(insulation, wire, derating):
-    """Say whether any enamel grade of this copper size would hold the turn-to-turn voltage.
-
-    The verdict judges the wire chosen; a shop also needs to know whether a heavier
-    build is the cure or whether the construction itself must change.
-    """
-    worst = insulation["worst_adjacent_Vpk"]
-    # Only the grades the table gives at this size; a catalog wire may have none.
-    allowed = {g: derating * bd for g, bd in grade_breakdowns(wire.copper_diameter).items()}
-    top = max(allowed) if allowed else None
-    holds = worst <= max(allowed.get(top, 0.0), insulation["allowed_Vpk"])
-    out = {**insulation, "any_grade_holds": bool(holds),
-           "grade_allowed_Vpk": {str(g): float(a) for g, a in allowed.items()}}
-    if insulation["verdict"] != "fail" or worst <= insulation["allowed_Vpk"]:
-        return out
-    if not allowed:
-        reason = (f"The wire tables give no enamel grade for this size; the chosen wire allows "
-                  f"{insulation['allowed_Vpk']:.0f} V peak against {worst:.0f} V peak between neighbours.")
-    elif not holds:
-        reason = (f"No enamel grade holds {worst:.0f} V peak between neighbours: even grade {top} "
-                  f"at this size allows {allowed.get(top, 0.0):.0f} V peak ({derating:.0%} of its breakdown). Change the "
-                  "hookup or the construction (fewer volts per turn, sectioned or layer-insulated winding).")
-    else:
-        g = min(k for k in sorted(allowed) if allowed[k] >= worst)
-        reason = (f"Grade {g} enamel at this size would allow {allowed[g]:.0f} V peak "
-                  f"({derating:.0%} of its breakdown), enough for the turn-to-turn voltage.")
-    out["reasons"] = list(insulation["reasons"]) + [reason]
-    return out
+def _lead_routes(order: Order):
+    r = order.doc.winding.leads
+    return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
 
 
 def _pairs(L, R, frequency):
@@ -315,8 +302,13 @@ def _cross_section(layout, keep=6):
             "kind": layout.kind}
 
 
-def predict(order: Order, today: _dt.date | None = None) -> dict:
-    """Size an order: the complete Prediction, JSON-ready, SI units."""
+def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) -> dict:
+    """Size an order: the complete Prediction, JSON-ready, SI units.
+
+    With ``remedies``, an insulation verdict short of a pass lists the order
+    changes that improve it, each found by sizing the changed order again
+    (:mod:`windsheet.remedies`).
+    """
     doc = order.doc
     wire = resolve_wire(order)
     warnings = list(wire.warnings)
@@ -353,15 +345,27 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
     strand_i = np.abs(duty_net.strand_current) * i_term
 
+    # Each turn's share of its strand's voltage: its own resistance at the duty
+    # temperature and the EMF of its own flux linkage (uniform per turn on a core).
+    ohm_per_m = float(dc_resistance(1.0, wire.copper_diameter, t_op))
+    cored = _al(order) is not None
+    drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
+                                 doc.winding.lead_length)
+    leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
     stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
-                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating)
-    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, **stress_args)
+                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
+                       leads=leads, impregnation=doc.winding.impregnation)
+    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
+                       **stress_args)
     if order.hookup_name == "separate" and S > 1:
         # Capacitance and resonance belong to one winding on its own; the
         # offset between windings only sets the insulation stress.
-        own = stress.assess(layout, separate_windings(L, Rhot), duty.voltage, duty.frequency,
-                            wire.breakdown, **stress_args)
+        own_net = separate_windings(L, Rhot)
+        own = stress.assess(layout, own_net, duty.voltage, duty.frequency, wire.breakdown,
+                            drops=stress.winding_drops(layout, own_net, duty.frequency, ohm_per_m, L,
+                                                       cored, doc.winding.lead_length),
+                            **stress_args)
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
               "self_resonance_Hz": own["self_resonance_Hz"],
@@ -392,7 +396,7 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     energy = 0.5 * net.inductance * i_term ** 2
     elv = 120.0 if duty.frequency == 0 else 50.0
     highest_V = max(duty.voltage, duty.between_windings or 0.0)
-    return {
+    out = {
         "schema": "windsheet.prediction/1",
         "job": {"number": job.number, "part": job.part, "customer": job.customer, "quantity": job.quantity,
                 "revision": job.revision, "issued_by": job.issued_by,
@@ -414,6 +418,8 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
                  "conductor": wire.conductor, "min_overall_diameter_m": wire.min_overall_diameter,
                  "breakdown_test": wire.breakdown_test, "sources": list(wire.sources)},
         "winding": {"strands": S, "turns_per_strand": int(turns), "layers": layout.layers,
+                    "layer_style": layout.layer_style, "strand_spacing": doc.winding.strand_spacing,
+                    "impregnation": doc.winding.impregnation,
                     "turns_in_layer": list(layout.turns_in_layer), "pitch_m": layout.pitch,
                     "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
                     "layer_tape_rating_V": order.tape_rating,
@@ -448,16 +454,24 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         "alternatives": alternative_hookups(L, R20, doc.test.frequency),
         "pairs": _pairs(L, R20, doc.test.frequency),
         "worst_adjacent": st["worst_adjacent"],
+        "leads": st["leads"],
         "capacitance": st["capacitance"],
-        "insulation": {**_grade_advice(st["insulation"], wire, doc.insulation.derating),
-                       "ir_min_ohm": doc.insulation.min_resistance},
-        "hipot": {**st["hipot"], "voltage_V": stress.hipot_voltage(highest_V)},
+        "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
+        "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
                      "stored_energy_J": energy},
         "cross_section": _cross_section(layout),
         "warnings": warnings,
     }
+    if remedies:
+        ins = out["insulation"]
+        found = find_remedies(order, out, lambda changed: predict(changed, today, remedies=False))
+        out["insulation"] = {**ins, "remedies": found,
+                             "reasons": list(ins["reasons"]) + advice(found, ins["verdict"])}
+    else:
+        out["insulation"] = {**out["insulation"], "remedies": None}
+    return out
 
 
 def _default_ident(sid: str, strands: int) -> str:
