@@ -17,7 +17,7 @@ from typing import Annotated, Any, Literal, Optional, Union
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
 
-from .errors import InputError, join_path
+from .errors import InputError, field_name, join_path
 from .fileio import parse_yaml_bytes, read_limited
 from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup
 from .units import parse_percent, parse_quantity
@@ -278,7 +278,7 @@ def _hookup(raw, strands):
         if isinstance(raw, dict):
             extra = set(raw) - {"joins", "terminals"}
             if extra:
-                raise HookupError(f"hookup.{_field_name(sorted(map(str, extra))[0])}",
+                raise HookupError(f"hookup.{field_name(sorted(map(str, extra))[0])}",
                                   "unknown field; a hookup has joins and terminals")
             if "terminals" not in raw:
                 raise HookupError("hookup.terminals", "is required: the two strand ends brought out, like [A.start, B.finish]")
