@@ -114,10 +114,13 @@ class Layout:
                 yield lay, s, float(self.r[sel][0]), z0, lo, hi
 
 
-def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
-    """Turns per layer; full layers first, the remainder in the last."""
+def _layer_plan(turns: int, slots_max: int, layers, across: str = "the traverse") -> list[int]:
+    """Turns per layer; full layers first, the remainder in the last.
+
+    ``across`` names the width wound across as the order names it.
+    """
     if slots_max < 1:
-        raise WindingDoesNotFit("not even one turn fits across the traverse")
+        raise WindingDoesNotFit(f"not even one turn fits across {across}")
     if layers in (None, "auto"):
         n_layers = math.ceil(turns / slots_max)
         per = slots_max
@@ -125,14 +128,14 @@ def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
             raise WindingDoesNotFit(
                 f"{turns} turns at {slots_max} per layer need {n_layers} layers, more than the "
                 f"{MAX_LAYERS} windsheet lays out: short by {turns - MAX_LAYERS * slots_max} turn(s) "
-                "(give the form a max_build, a longer traverse or a finer wire)")
+                f"(give the form a max_build, more room across {across} or a finer wire)")
     else:
         n_layers = int(layers)
         per = math.ceil(turns / n_layers)
         if per > slots_max:
             raise WindingDoesNotFit(
                 f"{turns} turns in {n_layers} layer(s) need {per} turns per layer, "
-                f"the traverse holds {slots_max}; short by {per - slots_max} turn(s) per layer"
+                f"{across} holds {slots_max}; short by {per - slots_max} turn(s) per layer"
             )
     plan = [per] * (n_layers - 1) + [turns - per * (n_layers - 1)]
     if plan[-1] <= 0:
@@ -181,7 +184,7 @@ def _slots_across(width, strands, d, pitch):
 
 def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, strands, turns,
                     layers=None, pitch=None, tape=0.0, max_build=None, kind="cylinder",
-                    turn_length_of_layer=None) -> Layout:
+                    turn_length_of_layer=None, across="the traverse", build_limit="the form") -> Layout:
     """Lay out a layer winding on a cylindrical former or bobbin.
 
     Parameters
@@ -205,6 +208,9 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
         Layer tape thickness between layers. [m]
     max_build : float or None
         Largest radial build allowed. [m]
+    across, build_limit : str
+        How messages name the traverse and the build limit (a bobbin's
+        window ``width`` and ``height``).
 
     Returns
     -------
@@ -221,9 +227,9 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
     if slots_max < 1:
         raise WindingDoesNotFit(
             f"{strands} strand(s) of {d * 1e3:.3f} mm need {strands * d * 1e3:.3f} mm, "
-            f"the traverse is {traverse * 1e3:.3f} mm"
+            f"{across} is {traverse * 1e3:.3f} mm"
         )
-    plan = _layer_plan(turns, slots_max, layers)
+    plan = _layer_plan(turns, slots_max, layers, across)
     n_layers = len(plan)
     build = n_layers * d + (n_layers - 1) * tape
     allowance = BULGE_ALLOWANCE if n_layers > 1 else 1.0
@@ -231,7 +237,7 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
     if max_build is not None and build * allowance > max_build * (1 + 1e-9):
         raise WindingDoesNotFit(
             f"{n_layers} layers build {build * allowance * 1e3:.2f} mm (with "
-            f"{(allowance - 1) * 100:.0f} % bulge allowance), the form allows "
+            f"{(allowance - 1) * 100:.0f} % bulge allowance), {build_limit} allows "
             f"{max_build * 1e3:.2f} mm; over by {(build * allowance - max_build) * 1e3:.2f} mm"
         )
     if n_layers > 1:
@@ -275,7 +281,8 @@ def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, tur
         # An equivalent round surface whose middle of the window has the stated MLT.
         diameter = max(mean_turn_length / math.pi - height, overall_diameter)
     return cylinder_layout(diameter, width, copper_diameter, overall_diameter, strands, turns,
-                           layers=layers, pitch=pitch, tape=tape, max_build=height, kind="bobbin")
+                           layers=layers, pitch=pitch, tape=tape, max_build=height, kind="bobbin",
+                           across="the bobbin's width", build_limit="the bobbin's height")
 
 
 def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overall_diameter,
@@ -312,7 +319,7 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
             f"wire of {d * 1e3:.3f} mm does not pass through a {inner_diameter * 1e3:.2f} mm hole "
             f"with room to wind: the hole needs more than {3 * d * 1e3:.3f} mm (three wire diameters)")
     slots0 = _slots_across(2 * math.pi * rho(0) * usable, strands, d, pitch)
-    plan = _layer_plan(turns, slots0, layers)
+    plan = _layer_plan(turns, slots0, layers, "the core's inner circumference")
     # Inner layers have a shorter circumference: check each one.
     for lay, n in enumerate(plan):
         cap = _slots_across(2 * math.pi * rho(lay) * usable, strands, d, pitch) if rho(lay) > d else 0
