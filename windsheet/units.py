@@ -24,10 +24,10 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from functools import lru_cache
-from typing import NamedTuple, Optional
+from typing import Optional
 
 from .errors import InputError
+from .unit_table import table as _table
 
 #: Peak over rms of a sine (crest factor). [-]
 SINE_CREST = math.sqrt(2.0)
@@ -67,101 +67,9 @@ SANE_RANGE = {
     "mass": (1e-9, 1e4),
 }
 
-# --- The unit table ---------------------------------------------------------------
-
-_PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9,
-             "T": 1e12}
-_PREFIX_NAMES = {"femto": "f", "pico": "p", "nano": "n", "micro": "u", "milli": "m", "kilo": "k",
-                 "mega": "M", "giga": "G", "tera": "T"}
-# SI symbol -> (kind, factor of the unprefixed unit to SI, names)
-_SI = {
-    "m": ("length", 1.0, ("metre", "meter", "metres", "meters")),
-    "H": ("inductance", 1.0, ("henry", "henries", "henrys")),
-    "F": ("capacitance", 1.0, ("farad", "farads")),
-    "V": ("voltage", 1.0, ("volt", "volts")),
-    "A": ("current", 1.0, ("ampere", "amperes", "amp", "amps")),
-    "Hz": ("frequency", 1.0, ("hertz",)),
-    "ohm": ("resistance", 1.0, ("ohm", "ohms")),
-    "s": ("time", 1.0, ("second", "seconds")),
-    "g": ("mass", 1e-3, ("gram", "grams")),
-}
-# Units outside SI's prefixed symbols: spelling -> (kind, factor, offset, canonical).
-# Exact definitions: inch 25.4 mm (1959), mil and thou 0.001 in, foot 12 in.
-_OTHER_ACCEPTED = {
-    "cm": ("length", 1e-2, 0.0, "cm"), "centimetre": ("length", 1e-2, 0.0, "cm"),
-    "centimeter": ("length", 1e-2, 0.0, "cm"), "centimetres": ("length", 1e-2, 0.0, "cm"),
-    "centimeters": ("length", 1e-2, 0.0, "cm"),
-    "in": ("length", 0.0254, 0.0, "inch"), "inch": ("length", 0.0254, 0.0, "inch"),
-    "inches": ("length", 0.0254, 0.0, "inch"),
-    "mil": ("length", 2.54e-5, 0.0, "mil"), "mils": ("length", 2.54e-5, 0.0, "mil"),
-    "thou": ("length", 2.54e-5, 0.0, "thou"),
-    "ft": ("length", 0.3048, 0.0, "ft"), "foot": ("length", 0.3048, 0.0, "ft"),
-    "feet": ("length", 0.3048, 0.0, "ft"),
-    "kohm": ("resistance", 1e3, 0.0, "kohm"), "kilohm": ("resistance", 1e3, 0.0, "kohm"),
-    "kilohms": ("resistance", 1e3, 0.0, "kohm"),
-    "megohm": ("resistance", 1e6, 0.0, "Mohm"), "megohms": ("resistance", 1e6, 0.0, "Mohm"),
-    "gigohm": ("resistance", 1e9, 0.0, "Gohm"), "gigohms": ("resistance", 1e9, 0.0, "Gohm"),
-    "min": ("time", 60.0, 0.0, "min"), "minute": ("time", 60.0, 0.0, "min"),
-    "minutes": ("time", 60.0, 0.0, "min"),
-    "h": ("time", 3600.0, 0.0, "hour"), "hour": ("time", 3600.0, 0.0, "hour"),
-    "hours": ("time", 3600.0, 0.0, "hour"),
-    "kg": ("mass", 1.0, 0.0, "kg"),
-    "degC": ("temperature", 1.0, 0.0, "degC"), "celsius": ("temperature", 1.0, 0.0, "degC"),
-    "K": ("temperature", 1.0, -273.15, "K"), "kelvin": ("temperature", 1.0, -273.15, "K"),
-    "degF": ("temperature", 5.0 / 9.0, -32.0 * 5.0 / 9.0, "degF"),
-    "fahrenheit": ("temperature", 5.0 / 9.0, -32.0 * 5.0 / 9.0, "degF"),
-    "deg": ("angle", math.pi / 180.0, 0.0, "deg"), "degree": ("angle", math.pi / 180.0, 0.0, "deg"),
-    "degrees": ("angle", math.pi / 180.0, 0.0, "deg"),
-    "arcmin": ("angle", math.pi / 10800.0, 0.0, "arcmin"),
-    "arcminute": ("angle", math.pi / 10800.0, 0.0, "arcmin"),
-    "arcminutes": ("angle", math.pi / 10800.0, 0.0, "arcmin"),
-    "rad": ("angle", 1.0, 0.0, "rad"), "radian": ("angle", 1.0, 0.0, "rad"),
-    "radians": ("angle", 1.0, 0.0, "rad"),
-}
-# Units the order language does not take, listed so that a case is never
-# "forgiven" into a unit when the writer may have meant one of these.
-_FOREIGN = {"S": "siemens", "C": "coulomb", "T": "tesla", "W": "watt", "J": "joule", "N": "newton",
-            "Pa": "pascal", "Wb": "weber", "L": "litre", "l": "litre", "t": "tonne", "G": "gauss",
-            "mol": "mole", "cd": "candela", "lm": "lumen", "lx": "lux", "Bq": "becquerel",
-            "Gy": "gray", "Sv": "sievert", "bar": "bar", "eV": "electronvolt", "VA": "volt-ampere",
-            "Wh": "watt-hour", "Ah": "ampere-hour", "ppm": "parts per million", "dB": "decibel"}
-_FOREIGN_PREFIXED = ("S", "C", "T", "W", "J", "N", "Pa", "Wb", "L", "l", "t", "eV", "VA", "Wh", "Ah", "bar")
-
 _QUALIFIERS = {"rms": "rms", "ac": "rms", "a.c.": "rms", "peak": "peak", "pk": "peak",
                "dc": "dc", "d.c.": "dc"}
 _PEAK_TO_PEAK = ("pp", "p-p", "pk-pk", "peak-to-peak", "ptp")
-
-
-class _Unit(NamedTuple):
-    kind: str
-    factor: float
-    offset: float
-    canonical: str
-
-
-@lru_cache(maxsize=1)
-def _table():
-    """(accepted spellings -> _Unit, folded spelling -> every spelling that folds to it)."""
-    units = {}
-    for sym, (kind, base, names) in _SI.items():
-        units[sym] = _Unit(kind, base, 0.0, sym)
-        for name in names:
-            units[name] = _Unit(kind, base, 0.0, sym)
-        for p, f in _PREFIXES.items():
-            units[p + sym] = _Unit(kind, base * f, 0.0, p + sym)
-            for pname, psym in _PREFIX_NAMES.items():
-                if psym == p:
-                    for name in names:
-                        units[pname + name] = _Unit(kind, base * f, 0.0, p + sym)
-    units.update({k: _Unit(*v) for k, v in _OTHER_ACCEPTED.items()})
-    folded = {}
-    foreign = dict(_FOREIGN)
-    for sym in _FOREIGN_PREFIXED:
-        for p in _PREFIXES:
-            foreign.setdefault(p + sym, f"{p}{sym} ({_FOREIGN[sym]})")
-    for spelling in list(units) + list(foreign):
-        folded.setdefault(spelling.casefold(), []).append(spelling)
-    return units, folded, foreign
 
 
 @dataclass(frozen=True)
@@ -359,7 +267,7 @@ def _why_unknown(number: str, word: str, dimension: str, value: str) -> str:
     hint = _suggestions(number, word, dimension)
     also = f"; did you mean {' or '.join(hint)}?" if hint else ""
     if word in foreign:
-        return f"{word!r} is {foreign[word]}, not a unit of {kind}{also}"
+        return f"{word!r} means {foreign[word]}, which windsheet does not read{also}"
     same = folded.get(word.casefold(), [])
     if len(same) > 1 and any(s not in foreign for s in same):
         return f"{word!r} could be more than one unit (letter case matters){also}"
@@ -435,7 +343,7 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
     >>> parse_quantity("25 C", "temperature", "duty.ambient")
     Traceback (most recent call last):
     ...
-    windsheet.errors.InputError: duty.ambient: expected a temperature with a unit, like '25 degC'; 'C' is coulomb, not a unit of temperature; did you mean '25 degC'?
+    windsheet.errors.InputError: duty.ambient: expected a temperature with a unit, like '25 degC'; 'C' means coulomb, which windsheet does not read; did you mean '25 degC'?
     """
     reading = read_quantity(value, dimension, path, allow_zero=allow_zero, allow_negative=allow_negative)
     if reading.qualifier is not None and not (form == "peak" and reading.qualifier == "peak"):
