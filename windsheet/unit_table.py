@@ -17,6 +17,9 @@ from typing import NamedTuple
 
 _PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9,
              "T": 1e12}
+# The other SI prefixes (peta, exa, atto, deci ...): not read, but PH is a petahenry, never a pH.
+_OTHER_SI_PREFIXES = ("a", "z", "y", "r", "q", "d", "c", "da", "h", "P", "E", "Z", "Y", "R", "Q")
+_BINARY_PREFIXES = ("Ki", "Mi", "Gi", "Ti", "Pi", "Ei", "Zi", "Yi")
 _PREFIX_NAMES = {"femto": "f", "pico": "p", "nano": "n", "micro": "u", "milli": "m", "kilo": "k",
                  "mega": "M", "giga": "G", "tera": "T"}
 # SI symbol -> (kind, factor of the unprefixed unit to SI, names)
@@ -70,8 +73,10 @@ _FOREIGN = {"S": "siemens", "C": "coulomb", "T": "tesla", "W": "watt", "J": "jou
             "Pa": "pascal", "Wb": "weber", "L": "litre", "l": "litre", "t": "tonne", "G": "gauss",
             "mol": "mole", "cd": "candela", "lm": "lumen", "lx": "lux", "Bq": "becquerel",
             "Gy": "gray", "Sv": "sievert", "bar": "bar", "eV": "electronvolt", "VA": "volt-ampere",
-            "Wh": "watt-hour", "Ah": "ampere-hour", "ppm": "parts per million", "dB": "decibel"}
-_FOREIGN_PREFIXED = ("S", "C", "T", "W", "J", "N", "Pa", "Wb", "L", "l", "t", "eV", "VA", "Wh", "Ah", "bar")
+            "Wh": "watt-hour", "Ah": "ampere-hour", "ppm": "parts per million", "dB": "decibel",
+            "M": "molar", "a": "annum (year)", "k": "the Boltzmann constant (kelvin is K)"}
+# Accepted symbols read without prefixes.
+_UNPREFIXED = ("h", "min", "in", "ft", "mil", "K", "deg", "rad")
 
 
 class Unit(NamedTuple):
@@ -116,9 +121,13 @@ def table():
     units.update({k: Unit(*v) for k, v in _OTHER_ACCEPTED.items()})
     folded = {}
     foreign = dict(_FOREIGN)
-    for sym in _FOREIGN_PREFIXED:
-        for p in _PREFIXES:
-            foreign.setdefault(p + sym, f"{p}{sym} ({_FOREIGN[sym]})")
+    # Any prefix on any symbol is a unit to a units library (PH a petahenry, nh a nanohour,
+    # Mil a mebilitre): such spellings are never forgiven into one of ours.
+    names = {**{sym: sym for sym in (*_SI, *_UNPREFIXED)}, **_FOREIGN}
+    for sym, name in names.items():
+        for p in (*_PREFIXES, *_OTHER_SI_PREFIXES, *_BINARY_PREFIXES):
+            if p + sym not in units:
+                foreign.setdefault(p + sym, f"{name} with the prefix {p}")
     for spelling in list(units) + list(foreign):
         folded.setdefault(spelling.casefold(), []).append(spelling)
     return units, folded, foreign

@@ -347,10 +347,11 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
     """
     reading = read_quantity(value, dimension, path, allow_zero=allow_zero, allow_negative=allow_negative)
     if reading.qualifier is not None and not (form == "peak" and reading.qualifier == "peak"):
-        plain = DIMENSIONS[dimension][2]
-        also = f" or '{plain} peak'" if form == "peak" else ""
-        raise InputError(path, f"takes a plain {dimension.replace('_', ' ')} like '{plain}'{also}, "
-                               f"without '{reading.qualifier}'; got {value!r}")
+        plain, name = DIMENSIONS[dimension][2], dimension.replace("_", " ")
+        if form == "peak":
+            raise InputError(path, f"is a peak {name}, like '{plain}' or '{plain} peak' "
+                                   f"(an {reading.qualifier} value is not converted here); got {value!r}")
+        raise InputError(path, f"takes a plain {name} like '{plain}', without '{reading.qualifier}'; got {value!r}")
     return reading.value
 
 
