@@ -203,6 +203,9 @@ def test_plain_field_refuses_a_qualifier_and_a_peak_field_takes_peak():
     assert parse_quantity("500 V peak", "voltage", "insulation.pdiv", form="peak") == 500.0
     with pytest.raises(InputError, match="'230 V peak'"):
         parse_quantity("350 V rms", "voltage", "insulation.pdiv", form="peak")
+    assert parse_quantity("500 V dc", "voltage", "units[0].insulation.test_voltage", form="dc") == 500.0
+    with pytest.raises(InputError, match="'230 V dc'"):
+        parse_quantity("500 V rms", "voltage", "units[0].insulation.test_voltage", form="dc")
 
 
 def test_sine_rms_against_a_sampled_sine():

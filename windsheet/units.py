@@ -322,9 +322,10 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
         The field's YAML path, for the error message.
     allow_zero, allow_negative : bool
         As in :func:`read_quantity`.
-    form : {None, "peak"}
+    form : {None, "peak", "rms", "dc"}
         None: the field takes a plain value, and rms/peak/dc is refused.
-        ``"peak"``: a peak field, which takes a plain value or one marked ``peak``.
+        Otherwise the form the field is in: it takes a plain value or one
+        marked so (``"500 V peak"`` for a peak field); another is refused.
 
     Returns
     -------
@@ -346,11 +347,11 @@ def parse_quantity(value, dimension: str, path: str, *, allow_zero: bool = False
     windsheet.errors.InputError: duty.ambient: expected a temperature with a unit, like '25 degC'; 'C' means coulomb, which windsheet does not read; did you mean '25 degC'?
     """
     reading = read_quantity(value, dimension, path, allow_zero=allow_zero, allow_negative=allow_negative)
-    if reading.qualifier is not None and not (form == "peak" and reading.qualifier == "peak"):
+    if reading.qualifier is not None and reading.qualifier != form:
         plain, name = DIMENSIONS[dimension][2], dimension.replace("_", " ")
-        if form == "peak":
-            raise InputError(path, f"is a peak {name}, like '{plain}' or '{plain} peak' "
-                                   f"(an {reading.qualifier} value is not converted here); got {value!r}")
+        if form is not None:
+            raise InputError(path, f"is a {form} {name}, like '{plain}' or '{plain} {form}' "
+                                   f"(a value given as {reading.qualifier} is not converted here); got {value!r}")
         raise InputError(path, f"takes a plain {name} like '{plain}', without '{reading.qualifier}'; got {value!r}")
     return reading.value
 
