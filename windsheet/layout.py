@@ -133,10 +133,13 @@ class Layout:
                 yield lay, s, float(self.r[sel][0]), z0, lo, hi
 
 
-def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
-    """Turns per layer; full layers first, the remainder in the last."""
+def _layer_plan(turns: int, slots_max: int, layers, across: str = "the traverse") -> list[int]:
+    """Turns per layer; full layers first, the remainder in the last.
+
+    ``across`` names the width wound across as the order names it.
+    """
     if slots_max < 1:
-        raise WindingDoesNotFit("not even one turn fits across the traverse")
+        raise WindingDoesNotFit(f"not even one turn fits across {across}")
     if layers in (None, "auto"):
         n_layers = math.ceil(turns / slots_max)
         per = slots_max
@@ -144,14 +147,14 @@ def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
             raise WindingDoesNotFit(
                 f"{turns} turns at {slots_max} per layer need {n_layers} layers, more than the "
                 f"{MAX_LAYERS} windsheet lays out: short by {turns - MAX_LAYERS * slots_max} turn(s) "
-                "(give the form a max_build, a longer traverse or a finer wire)")
+                f"(give the form a max_build, more room across {across} or a finer wire)")
     else:
         n_layers = int(layers)
         per = math.ceil(turns / n_layers)
         if per > slots_max:
             raise WindingDoesNotFit(
                 f"{turns} turns in {n_layers} layer(s) need {per} turns per layer, "
-                f"the traverse holds {slots_max}; short by {per - slots_max} turn(s) per layer"
+                f"{across} holds {slots_max}; short by {per - slots_max} turn(s) per layer"
             )
     plan = [per] * (n_layers - 1) + [turns - per * (n_layers - 1)]
     if plan[-1] <= 0:
@@ -282,7 +285,8 @@ def layer_geometry(layer_style, tape, pitch, strands, d, spacing=None):
 
 def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, strands, turns,
                     layers=None, pitch=None, tape=0.0, max_build=None, kind="cylinder",
-                    turn_length_of_layer=None, layer_style=None, strand_spacing=None) -> Layout:
+                    turn_length_of_layer=None, layer_style=None, strand_spacing=None,
+                    across="the traverse", build_limit="the form") -> Layout:
     """Lay out a layer winding on a cylindrical former or bobbin.
 
     Parameters
@@ -312,6 +316,9 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
     strand_spacing : str or None
         ``"together"`` (default: the strands of a slot touch, side by side)
         or ``"even"`` (spread evenly over the pitch).
+    across, build_limit : str
+        How messages name the traverse and the build limit (a bobbin's
+        window ``width`` and ``height``).
 
     Returns
     -------
@@ -342,9 +349,9 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
     if slots_max < 1:
         raise WindingDoesNotFit(
             f"{strands} strand(s) of {d * 1e3:.3f} mm need {_slot_width(strands, d, spacing) * 1e3:.3f} mm, "
-            f"the traverse is {traverse * 1e3:.3f} mm"
+            f"{across} is {traverse * 1e3:.3f} mm"
         )
-    plan = _layer_plan(turns, slots_max, layers)
+    plan = _layer_plan(turns, slots_max, layers, across)
     n_layers = len(plan)
     build = d + (n_layers - 1) * step
     allowance = BULGE_ALLOWANCE if n_layers > 1 else 1.0
@@ -352,7 +359,7 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
     if max_build is not None and build * allowance > max_build * (1 + 1e-9):
         raise WindingDoesNotFit(
             f"{n_layers} layers build {build * allowance * 1e3:.2f} mm (with "
-            f"{(allowance - 1) * 100:.0f} % bulge allowance), the form allows "
+            f"{(allowance - 1) * 100:.0f} % bulge allowance), {build_limit} allows "
             f"{max_build * 1e3:.2f} mm; over by {(build * allowance - max_build) * 1e3:.2f} mm"
         )
     if n_layers > 1:
@@ -403,7 +410,8 @@ def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, tur
         diameter = max(mean_turn_length / math.pi - height, overall_diameter)
     return cylinder_layout(diameter, width, copper_diameter, overall_diameter, strands, turns,
                            layers=layers, pitch=pitch, tape=tape, max_build=height, kind="bobbin",
-                           layer_style=layer_style, strand_spacing=strand_spacing)
+                           layer_style=layer_style, strand_spacing=strand_spacing,
+                           across="the bobbin's width", build_limit="the bobbin's height")
 
 
 def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overall_diameter,
@@ -442,7 +450,7 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
             f"wire of {d * 1e3:.3f} mm does not pass through a {inner_diameter * 1e3:.2f} mm hole "
             f"with room to wind: the hole needs more than {3 * d * 1e3:.3f} mm (three wire diameters)")
     slots0 = _slots_across(2 * math.pi * rho(0) * usable, strands, d, pitch, spacing)
-    plan = _layer_plan(turns, slots0, layers)
+    plan = _layer_plan(turns, slots0, layers, "the core's inner circumference")
     # Inner layers have a shorter circumference: check each one.
     for lay, n in enumerate(plan):
         cap = _slots_across(2 * math.pi * rho(lay) * usable, strands, d, pitch, spacing) if rho(lay) > d else 0
