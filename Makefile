@@ -27,6 +27,12 @@ syslibs:
 	    || echo "windsheet: libharfbuzz-subset0 not installed; PDFs will be larger" >&2; \
 	fi
 
+	@# The bench page's browser tests drive Debian's chromium (Playwright never downloads a browser).
+	@if [ ! -x /usr/bin/chromium ] && [ "$$(id -u)" = 0 ] && command -v apt-get >/dev/null; then \
+	  apt-get update -qq && apt-get install -y -qq chromium >/dev/null \
+	    || echo "windsheet: chromium not installed; the browser tests will be skipped" >&2; \
+	fi
+
 demo: $(STAMP)
 	$(BIN)/windsheet demo --out $(OUT)
 

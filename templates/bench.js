@@ -1,0 +1,92 @@
+// windsheet bench: saves each reading as it is typed and shows the server's verdicts.
+// The server parses and judges every reading; this script only carries text both ways.
+(function () {
+  "use strict";
+  var form = document.getElementById("qc-form");
+  if (!form || !window.fetch) { return; }
+  var csrf = document.querySelector('meta[name="csrf-token"]').getAttribute("content");
+  var url = form.getAttribute("action") + "/field";
+  var timers = {};
+  var chains = {};
+  var saved = {};
+
+  function show(el, items) {
+    el.textContent = "";
+    items.forEach(function (c) {
+      var s = document.createElement("span");
+      s.className = c.cls; s.textContent = c.text; el.appendChild(s);
+    });
+  }
+  function message(text, bad) {
+    var box = document.getElementById("messages");
+    box.textContent = "";
+    if (!text) { return; }
+    var p = document.createElement("p");
+    p.className = bad ? "message error" : "message"; p.textContent = text; box.appendChild(p);
+  }
+  function apply(units) {
+    Object.keys(units).forEach(function (i) {
+      var u = units[i];
+      Object.keys(u.cells).forEach(function (key) {
+        var el = document.getElementById("c-" + i + "-" + key);
+        if (el) { show(el, u.cells[key]); }
+      });
+      var s = document.getElementById("s-" + i);
+      if (s) {
+        s.textContent = "";
+        var b = document.createElement("b");
+        b.className = u.summary.cls; b.textContent = u.summary.verdict; s.appendChild(b);
+        u.summary.findings.forEach(function (f) {
+          var sp = document.createElement("span"); sp.className = "finding"; sp.textContent = f; s.appendChild(sp);
+        });
+      }
+    });
+  }
+  function queue(input) {
+    // One save at a time per field, so a save never races the field's own previous one.
+    var k = input.name;
+    chains[k] = (chains[k] || Promise.resolve()).then(function () {
+      if (saved[k] === input.value) { return null; }
+      return save(input);
+    });
+  }
+  function save(input) {
+    var sent = input.value;
+    var body = new URLSearchParams();
+    body.set("unit", input.dataset.unit); body.set("field", input.dataset.field);
+    body.set("value", input.value); body.set("version", input.dataset.version);
+    body.set("inspector", (document.getElementById("inspector") || {}).value || "");
+    return fetch(url, {method: "POST", body: body, credentials: "same-origin",
+                       headers: {"X-CSRF-Token": csrf}})
+      .then(function (r) { return r.json(); })
+      .then(function (data) {
+        if (!data.stale) { saved[input.name] = sent; }
+        if (data.version !== undefined) {
+          input.dataset.version = data.version;
+          var hidden = form.querySelector('input[type=hidden][name="v:' + input.dataset.unit + ":" + input.dataset.field + '"]');
+          if (hidden) { hidden.value = data.version; }
+        }
+        message(data.message, !!data.message);
+        if (data.units) { apply(data.units); }
+        if (data.stale && data.value !== undefined) { input.value = data.value; saved[input.name] = data.value; }
+        input.classList.toggle("stale", !!data.stale);
+      })
+      .catch(function () { message("could not reach the bench server: your entry is not saved yet", true); });
+  }
+  Array.prototype.forEach.call(form.querySelectorAll("input[data-field]"), function (el) {
+    saved[el.name] = el.value;
+  });
+  form.addEventListener("input", function (ev) {
+    var input = ev.target;
+    if (!input.dataset || input.dataset.field === undefined) { return; }
+    var k = input.name;
+    clearTimeout(timers[k]);
+    timers[k] = setTimeout(function () { queue(input); }, 350);
+  });
+  form.addEventListener("change", function (ev) {
+    var input = ev.target;
+    if (!input.dataset || input.dataset.field === undefined) { return; }
+    clearTimeout(timers[input.name]);
+    queue(input);
+  });
+})();

@@ -1,0 +1,164 @@
+"""The bench form's fields and the measured-values document they make.
+
+A field is a dotted path into one unit of a measured-values file
+(``strands.A.inductance``, ``terminals.resistance``, ``hipot.result``); the text
+typed is kept as typed and put into the document unchanged, so the units are
+read by :mod:`windsheet.measured` exactly as from a file.  The one rewriting is
+of shape, not of value: a rung inductance typed as ``50.31 kHz / 100 nF`` becomes
+``{resonant_frequency: 50.31 kHz, capacitor: 100 nF}``, and a turn count of
+digits becomes a whole number, as YAML would read it.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Optional
+
+#: Job-wide fields (stored with serial ""), in the measured file's top level.
+JOB_FIELDS = ("ambient", "test_frequency", "instruments")
+#: Sections a unit needs complete before it can be judged today (the terminals line).
+_WHOLE = {"terminals": ("inductance", "resistance"),
+          "hipot": ("voltage", "duration", "result")}
+_PAIR_PARTS = ("series_aiding", "series_opposing")
+_INDUCTANCE = re.compile(r"(^strands\.[A-Z]\.inductance$)|(^terminals\.inductance$)|"
+                         r"(^before_joint\.[A-Z]-[A-Z]\.series_(aiding|opposing)$)")
+_FIELD = re.compile(r"^(strands\.[A-Z]\.(inductance|resistance|turns)|before_joint\.[A-Z]-[A-Z]\."
+                    r"series_(aiding|opposing)|terminals\.(inductance|resistance)|"
+                    r"insulation\.(strand_to_strand|to_core|test_voltage)|"
+                    r"hipot\.(voltage|duration|leakage|result)|continuity\.strand_to_strand|ambient|notes)$")
+
+
+def is_unit_field(field: str) -> bool:
+    """Whether ``field`` is one the form offers for a unit (anything else is refused)."""
+    return bool(_FIELD.match(field))
+
+
+def qc_rows(prediction: dict, required: set) -> list[dict]:
+    """The QC record's rows, each with the unit fields it takes.
+
+    Labels, predictions and accept bands are the traveller's own (render.qc_items),
+    so the form and the printed sheet cannot disagree.
+    """
+    from ..render import qc_items
+
+    ids = [s["id"] for s in prediction.get("strands") or []]
+    rows = []
+    for it in qc_items(prediction):
+        key = it["key"]
+        fields = _fields_for(key, ids)
+        if not fields:
+            continue
+        rows.append({**it, "fields": fields, "required": key in required})
+    rows.append({"key": "notes", "label": "Notes", "predicted": "", "band": "", "judged": False,
+                 "fields": [("notes", "")], "required": False})
+    return rows
+
+
+def _fields_for(key: str, ids: list) -> list[tuple[str, str]]:
+    """(field, placeholder) pairs for one QC row."""
+    if key == "strand.turns":
+        return [(f"strands.{s}.turns", f"{s}: turns") for s in ids]
+    if key.startswith("strand."):
+        _, sid, what = key.split(".")
+        return [(f"strands.{sid}.{what}", "100.4 uH" if what == "inductance" else "0.871 ohm")]
+    if key.startswith("pair."):
+        _, pair, what = key.split(".")
+        return [(f"before_joint.{pair}.{what}", "398.6 uH")]
+    if key == "terminal.inductance":
+        return [("terminals.inductance", "398 uH or 50.3 kHz / 100 nF")]
+    if key == "terminal.resistance":
+        return [("terminals.resistance", "1.743 ohm")]
+    if key == "continuity.strand_to_strand":
+        return [("continuity.strand_to_strand", "open / shorted")]
+    if key == "insulation.strand_to_strand":
+        return [("insulation.strand_to_strand", "25 Gohm"), ("insulation.test_voltage", "500 V")]
+    if key == "insulation.to_core":
+        return [("insulation.to_core", "10 Gohm")]
+    if key == "hipot.result":
+        return [("hipot.voltage", "1460 V"), ("hipot.duration", "60 s"),
+                ("hipot.leakage", "0.05 mA"), ("hipot.result", "pass / fail")]
+    if key == "ambient":
+        return [("ambient", "21.5 degC")]
+    return []
+
+
+def _value(field: str, text: str):
+    if _INDUCTANCE.match(field) and "/" in text:
+        f, _, c = text.partition("/")
+        return {"resonant_frequency": f.strip(), "capacitor": c.strip()}
+    if field.endswith(".turns") and text.isdigit():
+        return int(text)
+    return text
+
+
+def _put(doc: dict, field: str, value) -> None:
+    *head, last = field.split(".")
+    for part in head:
+        nxt = doc.setdefault(part, {})
+        if not isinstance(nxt, dict):  # pragma: no cover - fields never nest under a value
+            return
+        doc = nxt
+    doc[last] = value
+
+
+def unit_document(serial: str, entries: dict, complete_only: bool = False) -> Optional[dict]:
+    """One unit of the measured document from ``{field: text}``; None when nothing is entered.
+
+    ``complete_only`` leaves out sections still half-entered (a pair with one of its two
+    readings, a hipot without its result) so the rest can be judged while typing.
+    """
+    entries = {f: t for f, t in entries.items() if t.strip()}
+    if not entries:
+        return None
+    unit = {"serial": serial}
+    for field in sorted(entries):
+        _put(unit, field, _value(field, entries[field].strip()))
+    if complete_only:
+        for section, parts in _WHOLE.items():
+            if section in unit and not all(p in unit[section] for p in parts):
+                del unit[section]
+        pairs = unit.get("before_joint") or {}
+        for pair in [k for k, v in pairs.items() if not all(p in v for p in _PAIR_PARTS)]:
+            del pairs[pair]
+        if "before_joint" in unit and not pairs:
+            del unit["before_joint"]
+    return unit
+
+
+def measured_document(job: str, revision: Optional[str], job_entries: dict, units: list[dict],
+                      inspector: Optional[str] = None, date: Optional[str] = None) -> dict:
+    """The measured-values document (the shape of a ``*.measured.yaml`` file)."""
+    doc = {"job": job}
+    if revision not in (None, "-"):
+        doc["revision"] = revision
+    if inspector:
+        doc["inspector"] = inspector
+    if date:
+        doc["date"] = date
+    for field in JOB_FIELDS:
+        text = (job_entries.get(field) or "").strip()
+        if text:
+            doc[field] = text
+    doc["units"] = units
+    return doc
+
+
+def field_of_path(path: str, unit_index: int = 0) -> Optional[tuple[str, str]]:
+    """Which field a measured-file fault path names: ``("unit", field)``, ``("job", field)`` or None."""
+    prefix = f"units[{unit_index}]."
+    if path.startswith(prefix):
+        rest = path[len(prefix):]
+        parts = rest.split(".")
+        for n in range(len(parts), 0, -1):
+            cand = ".".join(parts[:n])
+            if is_unit_field(cand):
+                return ("unit", cand)
+        # A section named whole (``terminals: is required``) points at its first field.
+        for cand in ("terminals.inductance", "hipot.voltage"):
+            if cand.startswith(rest + "."):
+                return ("unit", cand)
+        return None
+    top = path.split(".")[0]
+    if top in JOB_FIELDS:
+        return ("job", top)
+    return None

@@ -1,0 +1,112 @@
+"""Where the bench page touches the sign-off, the measured-values reader and the register.
+
+Every call the web layer makes into the rest of windsheet goes through these few
+functions, so a change of the sign-off's interface is met here and nowhere else.
+The page never judges a reading itself: it builds the same measured-values
+document a file would give and hands it to :func:`windsheet.signoff.evaluate_signoff`.
+"""
+
+from __future__ import annotations
+
+import json
+from typing import Optional
+
+from .. import drafts as _drafts
+from ..errors import InputError
+
+
+def open_bench_register(path):
+    """Open an existing register for the bench, adding the drafts table if it has none."""
+    from ..register import open_register
+
+    reg = open_register(path, create=False)
+    try:
+        _drafts.migrate(reg)
+    except BaseException:
+        reg.close()
+        raise
+    return reg
+
+
+def jobs(reg) -> list[dict]:
+    """Every job with its state and the design status of its latest issue."""
+    out = []
+    for j in reg.list_jobs():
+        _, prediction = issued(reg, j["number"])
+        j = dict(j, design=design_status(prediction))
+        out.append(j)
+    return out
+
+
+def issued(reg, number: str) -> tuple[dict, dict]:
+    """A job's state at its latest issue, and the prediction recorded at that issue."""
+    state = reg.job_state(number)
+    _, prediction = reg.find_issue(number, state["revision"], state["order_sha256"])
+    return state, prediction
+
+
+def design_status(prediction: dict) -> str:
+    """'ok', or 'failing' when the issued design failed its insulation check (issued with --force)."""
+    verdict = (prediction.get("insulation") or {}).get("verdict")
+    return "failing (issued with --force)" if verdict == "fail" else (verdict or "—")
+
+
+def required_lines(prediction: dict) -> set:
+    """QC line keys a sign-off cannot do without.
+
+    Today's sign-off requires the terminal readings only; a prediction that lists
+    its required lines (``qc.required``) is taken at its word.
+    """
+    listed = (prediction.get("qc") or {}).get("required")
+    if listed:
+        return set(listed)
+    return {"terminal.inductance", "terminal.resistance"}
+
+
+def parse(document: dict):
+    """The measured-values document, validated exactly as a file is (measured.py)."""
+    from ..measured import measured_from_dict
+
+    return measured_from_dict(document)
+
+
+def evaluate(prediction: dict, document: dict, inspector: Optional[str] = None) -> dict:
+    """The sign-off of ``document`` against the issued prediction (signoff.py)."""
+    from ..signoff import evaluate_signoff
+
+    return evaluate_signoff(prediction, parse(document), inspector=inspector)
+
+
+def record(reg, state: dict, document: dict, result: dict, inspector: str) -> int:
+    """Record a sign-off as the CLI's ``signoff`` does, raw readings with each unit."""
+    measured = parse(document)
+    units = [u.model_dump(mode="json") for u in measured.units]
+    return reg.record_signoff(result, state["order_sha256"], inspector, measured_units=units)
+
+
+def latest_signoff(reg, number: str, revision: str) -> Optional[dict]:
+    """The newest recorded sign-off result of a job revision, or None."""
+    row = reg.conn.execute("SELECT result_json FROM signoffs WHERE job = ? AND revision = ?"
+                           " ORDER BY id DESC LIMIT 1", (number, revision)).fetchone()
+    return json.loads(row[0]) if row else None
+
+
+def signoff_sheet_pdf(prediction: dict, result: dict) -> bytes:
+    """The sign-off sheet, as ``windsheet signoff -o`` writes it."""
+    from ..render import render_pdf, render_signoff_html
+
+    return render_pdf(render_signoff_html(prediction, result, paper="a4"))
+
+
+def load_drafts(reg, number: str, revision: str) -> dict:
+    return _drafts.load_drafts(reg, number, revision)
+
+
+def save_draft(reg, number, revision, serial, field, value, seen_version, saved_by=None) -> int:
+    return _drafts.save_draft(reg, number, revision, serial, field, value, seen_version, saved_by)
+
+
+StaleSave = _drafts.StaleSave
+__all__ = ["open_bench_register", "jobs", "issued", "design_status", "required_lines", "parse",
+           "evaluate", "record", "latest_signoff", "signoff_sheet_pdf", "load_drafts", "save_draft",
+           "StaleSave", "InputError"]
