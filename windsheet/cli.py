@@ -580,6 +580,7 @@ def bench_cmd(register: Optional[str] = typer.Option(None, "--register", help="R
     sock.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
     try:
         sock.bind((host, port))
+        sock.listen(128)  # listening before the address is printed
     except OSError as exc:
         sock.close()
         raise InputError("--port", f"cannot listen on {host}:{port}: {exc.strerror or exc}") from None

@@ -301,7 +301,8 @@ def create_app(register_path, token: str | None = None) -> Starlette:
     # -- faults as messages ----------------------------------------------------------
 
     async def on_input_error(request: Request, exc: InputError):
-        return render("bench_error.html.j2", request, status=400 if not _is_register(exc) else 503,
+        # A fault of the register file itself (locked, damaged) is the server's, not the request's.
+        return render("bench_error.html.j2", request, status=503 if exc.path == register_path else 400,
                       message=str(exc))
 
     async def on_http(request: Request, exc: HTTPException):
@@ -354,10 +355,6 @@ def _safe(number: str) -> str:
 def _cell(text: str) -> str:
     # A spreadsheet would run a cell starting with = + @ as a formula.
     return "'" + text if text[:1] in ("=", "+", "@", "\t", "\r") else text
-
-
-def _is_register(exc: InputError) -> bool:
-    return "register" in (exc.message or "")
 
 
 def _unit_words(message: str, doc: dict) -> str:
