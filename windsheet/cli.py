@@ -1,4 +1,4 @@
-"""Command line: ``windsheet size | traveller | signoff | register | demo``.
+"""Command line: ``windsheet size | traveller | signoff | register | demo | wires | bench``.
 
 Results go to stdout, diagnostics to stderr.  A fault in the user's input is
 one line on stderr and exit status 2; nothing is written.
