@@ -141,10 +141,10 @@ def create_app(register_path, token: str | None = None) -> Starlette:
     def _job_context(reg, number, messages=(), signed=None):
         state, prediction = service.issued(reg, number)
         drafts = service.load_drafts(reg, number, state["revision"])
-        view = job_view(prediction, state, drafts)
+        view = job_view(prediction, state, drafts, service.issued_order_text(reg, state))
         last = service.latest_signoff(reg, number, state["revision"])
         return {"job": prediction.get("job") or {}, "state": state, "view": view,
-                "design": service.design_status(prediction), "messages": list(messages),
+                "design": service.design_status(prediction, state), "messages": list(messages),
                 "last": last, "signed": signed}
 
     async def job_page(request: Request):
@@ -201,7 +201,8 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         if not doc["units"]:
             return _job_context(reg, number, ["no readings entered yet: nothing to sign off"])
         try:
-            result = service.evaluate(prediction, doc, inspector=who)
+            result = service.evaluate(prediction, doc, inspector=who,
+                                      order_text=service.issued_order_text(reg, state))
             service.record(reg, state, doc, result, who)
         except InputError as exc:
             return _job_context(reg, number, [f"not signed off: {_unit_words(str(exc), doc)}"])
@@ -237,11 +238,12 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         drafts = service.load_drafts(reg, number, state["revision"])
         rows = qc_rows(prediction, service.required_lines(prediction))
         job_entries = {f: d["value"] for (s, f), d in drafts.items() if s == ""}
+        order_text = service.issued_order_text(reg, state)
         targets = range(len(serials)) if serial == "" else [serials.index(serial)]
         units = {}
         for i in targets:
             entries = {f: d["value"] for (s, f), d in drafts.items() if s == serials[i]}
-            pv = preview_unit(prediction, state["revision"], job_entries, serials[i], entries)
+            pv = preview_unit(prediction, state["revision"], job_entries, serials[i], entries, order_text)
             units[str(i)] = {"cells": cell_texts(pv, rows), "summary": unit_summary(pv)}
         out["units"] = units
         return out

@@ -34,7 +34,7 @@ def row_of_line(line_key: str) -> str:
 
 
 def preview_unit(prediction: dict, revision: str, job_entries: dict, serial: str,
-                 entries: dict) -> dict:
+                 entries: dict, order_text: Optional[str] = None) -> dict:
     """Judge what has been entered for one unit so far.
 
     Returns a dict with ``state`` ("empty", "waiting", "judged" or "error"),
@@ -51,7 +51,7 @@ def preview_unit(prediction: dict, revision: str, job_entries: dict, serial: str
             return dict(out, state="empty")
         doc = measured_document(number, revision, job_entries, [unit])
         try:
-            result = service.evaluate(prediction, doc)
+            result = service.evaluate(prediction, doc, order_text=order_text)
         except InputError as exc:
             where = field_of_path(exc.path)
             if where is None:
@@ -94,7 +94,7 @@ def cell_texts(preview: dict, rows: list[dict]) -> dict:
         key = row_of_line(line["key"])
         value = measured_text(line["measured"], line["unit"]) if line["measured"] is not None \
             else (line.get("note") or "")
-        word = {"pass": "PASS", "fail": "FAIL", "info": "read"}[line["result"]]
+        word = {"info": "read"}.get(line["result"], str(line["result"]).upper())
         text = f"{word} {value}".strip()
         if key != line["key"] or len(rows) == 0:
             text = f"{line['item']}: {text}"
@@ -115,7 +115,7 @@ def unit_summary(preview: dict) -> dict:
             "findings": [preview["message"]]}
 
 
-def job_view(prediction: dict, state: dict, drafts: dict) -> dict:
+def job_view(prediction: dict, state: dict, drafts: dict, order_text: Optional[str] = None) -> dict:
     """Everything the job page shows, judged afresh from the saved drafts."""
     required = service.required_lines(prediction)
     rows = qc_rows(prediction, required)
@@ -125,7 +125,7 @@ def job_view(prediction: dict, state: dict, drafts: dict) -> dict:
     job_errors = {}
     for i, serial in enumerate(serials):
         entries = {f: d["value"] for (s, f), d in drafts.items() if s == serial}
-        pv = preview_unit(prediction, state["revision"], job_entries, serial, entries)
+        pv = preview_unit(prediction, state["revision"], job_entries, serial, entries, order_text)
         job_errors.update(pv["job_errors"])
         units.append({"index": i, "serial": serial, "cells": cell_texts(pv, rows),
                       "summary": unit_summary(pv),

@@ -48,7 +48,8 @@ def qc_rows(prediction: dict, required: set) -> list[dict]:
         fields = _fields_for(key, ids)
         if not fields:
             continue
-        rows.append({**it, "fields": fields, "required": key in required})
+        # A required key may name the whole row's group ("hipot" for the hipot row).
+        rows.append({**it, "fields": fields, "required": key in required or key.split(".")[0] in required})
     rows.append({"key": "notes", "label": "Notes", "predicted": "", "band": "", "judged": False,
                  "fields": [("notes", "")], "required": False})
     return rows

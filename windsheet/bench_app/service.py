@@ -33,7 +33,7 @@ def jobs(reg) -> list[dict]:
     out = []
     for j in reg.list_jobs():
         _, prediction = issued(reg, j["number"])
-        j = dict(j, design=design_status(prediction))
+        j = dict(j, design=design_status(prediction, j))
         out.append(j)
     return out
 
@@ -41,24 +41,37 @@ def jobs(reg) -> list[dict]:
 def issued(reg, number: str) -> tuple[dict, dict]:
     """A job's state at its latest issue, and the prediction recorded at that issue."""
     state = reg.job_state(number)
-    _, prediction = reg.find_issue(number, state["revision"], state["order_sha256"])
+    issue_id, prediction = reg.find_issue(number, state["revision"], state["order_sha256"])
+    state = dict(state, issue_id=issue_id)
     return state, prediction
 
 
-def design_status(prediction: dict) -> str:
-    """'ok', or 'failing' when the issued design failed its insulation check (issued with --force)."""
+def issued_order_text(reg, state: dict) -> str:
+    """The order's text as recorded at issue (what the traveller was built from)."""
+    row = reg.conn.execute("SELECT order_text FROM issues WHERE id = ?", (state["issue_id"],)).fetchone()
+    return row[0] if row else ""
+
+
+def design_status(prediction: dict, state: Optional[dict] = None) -> str:
+    """The issued design's status in words: the register's when it keeps one, else the prediction's."""
+    recorded = (state or {}).get("design_status")
+    if isinstance(recorded, dict) and recorded.get("state"):
+        return {"forced": "FORCED: fails its insulation check, issued with --force",
+                "failing": "FAILING: fails its insulation check"}.get(recorded["state"], recorded["state"])
     verdict = (prediction.get("insulation") or {}).get("verdict")
-    return "failing (issued with --force)" if verdict == "fail" else (verdict or "—")
+    # A failing design is issued only with --force.
+    return "FORCED: fails its insulation check, issued with --force" if verdict == "fail" \
+        else (verdict or "—")
 
 
 def required_lines(prediction: dict) -> set:
     """QC line keys a sign-off cannot do without.
 
     Today's sign-off requires the terminal readings only; a prediction that lists
-    its required lines (``qc.required``) is taken at its word.
+    its required lines (``qc_required``) is taken at its word.
     """
-    listed = (prediction.get("qc") or {}).get("required")
-    if listed:
+    listed = prediction.get("qc_required")
+    if listed is not None:
         return set(listed)
     return {"terminal.inductance", "terminal.resistance"}
 
@@ -70,11 +83,42 @@ def parse(document: dict):
     return measured_from_dict(document)
 
 
-def evaluate(prediction: dict, document: dict, inspector: Optional[str] = None) -> dict:
-    """The sign-off of ``document`` against the issued prediction (signoff.py)."""
+def evaluate(prediction: dict, document: dict, inspector: Optional[str] = None,
+             order_text: Optional[str] = None) -> dict:
+    """The sign-off of ``document`` against the issued prediction (signoff.py).
+
+    ``order_text`` is the order as issued; a sign-off whose diagnosis re-sizes the
+    order at other turn counts gets it as the command line does.
+    """
     from ..signoff import evaluate_signoff
 
-    return evaluate_signoff(prediction, parse(document), inspector=inspector)
+    extra = {}
+    resize = _resizer(order_text)
+    if resize is not None:
+        extra["resize"] = resize
+    return evaluate_signoff(prediction, parse(document), inspector=inspector, **extra)
+
+
+_ORDERS: dict = {}
+
+
+def _resizer(order_text: Optional[str]):
+    """``windsheet signoff``'s re-sizing of the issued order, where this sign-off has one."""
+    try:
+        from ..predict import strand_values_at_turns
+    except ImportError:
+        return None
+    if not order_text:
+        return None
+    import functools
+
+    from ..order import parse_order
+
+    if order_text not in _ORDERS:
+        if len(_ORDERS) > 16:
+            _ORDERS.clear()
+        _ORDERS[order_text] = parse_order(order_text.encode("utf-8"))
+    return functools.partial(strand_values_at_turns, _ORDERS[order_text])
 
 
 def record(reg, state: dict, document: dict, result: dict, inspector: str) -> int:
@@ -107,6 +151,6 @@ def save_draft(reg, number, revision, serial, field, value, seen_version, saved_
 
 
 StaleSave = _drafts.StaleSave
-__all__ = ["open_bench_register", "jobs", "issued", "design_status", "required_lines", "parse",
+__all__ = ["open_bench_register", "jobs", "issued", "issued_order_text", "design_status", "required_lines", "parse",
            "evaluate", "record", "latest_signoff", "signoff_sheet_pdf", "load_drafts", "save_draft",
            "StaleSave", "InputError"]
