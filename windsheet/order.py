@@ -198,6 +198,8 @@ class Duty(_M):
 class Tolerances(_M):
     inductance: Fraction = 0.10
     resistance: Fraction = 0.05
+    #: Strands compared with each other (L and R); default half the L and R tolerances.
+    strand_balance: Optional[Fraction] = None
 
 
 class Insulation(_M):
