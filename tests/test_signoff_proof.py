@@ -272,3 +272,23 @@ def test_loose_hairpin_gets_no_turn_count_claim():
     assert u["verdict"] == "fail"
     for d in u["diagnosis"]:
         assert d["basis"] != "turns" and "turns per strand" not in d["finding"]
+
+
+@pytest.mark.parametrize("strands, hookup, wound", [(1, "single", 34), (2, "series-aiding", 46)])
+def test_turn_count_is_refitted_by_the_engine(strands, hookup, wound):
+    o, p = design(strands, hookup)
+    # Every strand wound with `wound` of its 40 turns: the engine re-sized there.
+    Lw, Rw = strand_values_at_turns(o, wound)
+    res = sign(p, o, [full_unit(p, Lw, Rw)])
+    f = [d for d in res["units"][0]["diagnosis"] if d["scope"] == "terminals"][0]
+    # The count simulated, not one off as a fixed L ~ N^2, R ~ N law gives.
+    assert f["basis"] == "turns" and f"fit {wound} turns per strand" in f["finding"], f["finding"]
+
+
+def test_single_strand_resistance_on_prediction_rules_out_a_turn_count():
+    o, p = design(1, "single")
+    L, R = arrays(p)
+    # Inductance 14 % high (a fixture or a spaced layup), resistance exact.
+    res = sign(p, o, [full_unit(p, L * 1.14, R)])
+    f = [d for d in res["units"][0]["diagnosis"] if d["scope"] == "terminals"][0]
+    assert f["basis"] != "turns" and "turns per strand" not in f["finding"]

@@ -561,6 +561,7 @@ def qc_items(p: dict) -> list[dict]:
     Keys follow the sign-off's line keys.  ``judged`` items get pass/fail
     boxes; the others are only recorded (they feed the sign-off's diagnosis).
     """
+    from .qc_lines import prediction_required_lines
     from .signoff import DEFAULT_MIN_INSULATION_OHM
 
     term = p.get("terminal") or {}
@@ -602,9 +603,6 @@ def qc_items(p: dict) -> list[dict]:
              ohm(term.get("resistance_ohm")),
              band(acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm"), ohm)),
     ]
-    turns = strands[0].get("turns") if strands else None
-    items.append(item("strand.turns", "Turns counted (where checked)", f"{turns}" if turns else "",
-                      f"{turns} per strand" if turns else "record"))
     ir_min = ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM
     if len(strands) > 1:
         items.append(item("continuity.strand_to_strand", "Continuity between strands", "open", "open"))
@@ -615,11 +613,13 @@ def qc_items(p: dict) -> list[dict]:
     hipot = p.get("hipot") or {}
     if (p.get("cautions") or {}).get("hipot") and hipot.get("voltage_V"):
         dur = hipot.get("duration_s")
-        items.append(item("hipot.result", f"Hipot {volt(hipot['voltage_V'])}"
+        items.append(item("hipot", f"Hipot {volt(hipot['voltage_V'])}"
                           + (f", {float(dur):g} s" if dur else "") + ": leakage, withstand",
                           "", "withstands"))
     items.append(item("ambient", "Ambient temperature at test", "", "record (°C)", judged=False))
-    return items
+    # The record prints exactly the lines the prediction requires, in its order.
+    by_key = {i["key"]: i for i in items}
+    return [by_key.get(k) or item(k, k) for k in prediction_required_lines(p)]
 
 
 def unit_tables(units: list[str]) -> list[list[str]]:
