@@ -120,11 +120,17 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
             out: Optional[Path] = typer.Option(None, "-o", "--out", help="Also write the sign-off sheet here "
                                                "(PDF, or HTML with --html)."),
             html: bool = typer.Option(False, "--html", help="Write the sheet as HTML instead of PDF."),
-            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
-    """Sign off measured units against the issued traveller; exit 0 all pass, 1 any fail, 2 bad input."""
+            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
+            dry_run: bool = typer.Option(False, "--dry-run", help="Evaluate and print only: record nothing "
+                                         "(the register file is opened read-only) and write no sheet.")):
+    """Sign off measured units against the issued traveller.
+
+    Exit status: 0 every unit passes, 1 any unit fails, 3 none fails but some
+    are incomplete (a required QC line not read), 2 bad input.
+    """
     from .measured import load_measured
     from .order import load_order
-    from .register import open_register
+    from .register import open_register, open_register_readonly
     from .signoff import evaluate_signoff, exit_status
     from .signoff import summary_lines as signoff_lines
 
@@ -134,11 +140,19 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
     if not who:
         raise InputError("inspector", "name the inspector with --inspector or 'inspector:' in the measured file")
     job = o.doc.job
+    if dry_run and out is not None:
+        raise InputError("--out", "a dry run writes no sheet; drop --out or --dry-run")
     if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    if dry_run:
+        with open_register_readonly(register) as reg:
+            _, issued = reg.find_issue(job.number, job.revision, o.sha256)
+        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
+        typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng) + ["(dry run: nothing recorded)"]))
+        raise typer.Exit(exit_status(result))
     with open_register(register, create=False) as reg:
         _, issued = reg.find_issue(job.number, job.revision, o.sha256)
-        result = evaluate_signoff(issued, readings, inspector=who)
+        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
         units = [u.model_dump(mode="json") for u in readings.units]
         if out is None:
             reg.record_signoff(result, o.sha256, who, measured_units=units)
@@ -151,11 +165,42 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
     raise typer.Exit(exit_status(result))
 
 
+def _resizer(order):
+    """The engine re-sizing this order at another turn count, for the diagnosis."""
+    from .predict import strand_values_at_turns
+
+    return functools.partial(strand_values_at_turns, order)
+
+
 def _signoff_sheet(prediction, result, html, paper) -> bytes:
     from .render import render_pdf, render_signoff_html
 
     page = render_signoff_html(prediction, result, paper=paper)
     return page.encode("utf-8") if html else render_pdf(page)
+
+
+@app.command("readings-form")
+@guarded
+def readings_form_cmd(order: Path = typer.Argument(..., help="The order, a YAML file."),
+                      out: Path = typer.Option(..., "-o", "--out", help="The form to write (.yaml, or .csv)."),
+                      as_csv: bool = typer.Option(False, "--csv", help="Write CSV (one row per unit) even "
+                                                  "when the name does not end in .csv.")):
+    """Write a measured-values file for the order: its serial numbers, every required QC line empty."""
+    from .fileio import atomic_write_text
+    from .order import load_order
+    from .predict import predict
+    from .readings_form import csv_form, yaml_form
+
+    p = predict(load_order(order))
+    if out.exists():
+        raise InputError(str(out), "already exists; a filled-in form is a record, not overwritten — "
+                                   "choose another name")
+    if not (out.parent if str(out.parent) else Path(".")).is_dir():
+        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    csv_out = as_csv or out.suffix.lower() == ".csv"
+    atomic_write_text(out, csv_form(p) if csv_out else yaml_form(p))
+    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: readings form for "
+               f"{len(p['job']['units'])} units, {len(p['qc_required'])} lines each: {out}", err=True)
 
 
 @app.command("register")
@@ -165,6 +210,8 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                                                         "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
                  issue: Optional[Path] = typer.Option(None, "--issue", help="Record ORDER.yaml as issued "
                                                       "(the traveller command does this when it prints)."),
+                 force: bool = typer.Option(False, "--force", help="With --issue: record a design that fails "
+                                            "its insulation check; it is then marked FORCED."),
                  as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
     """List jobs in the register with their state (issued, passed, failed), or one job's history."""
     from .register import open_register
@@ -175,8 +222,13 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         from .order import load_order
         from .predict import predict
 
+        from .qc_lines import design_fails, design_status
+        from .render import check_issuable
+
         o = load_order(issue)
         p = predict(o)
+        check_issuable(p, force)
+        p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
     from .register import resolve_register_path
 
     if issue is None and not resolve_register_path(register).exists():
@@ -184,8 +236,9 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         return
     with open_register(register, create=issue is not None) as reg:
         if issue is not None:
-            issued = reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
-            typer.echo(f"issued {p['job']['number']} rev {p['job']['revision']} (issue {issued})", err=True)
+            issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
+            forced = " — FORCED over a failing insulation check" if p["design_status"]["state"] == "forced" else ""
+            typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
         if job:
             h = reg.job_history(job)
             typer.echo(_to_json(h) if as_json else "\n".join(history_lines(h)))
@@ -209,6 +262,7 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
     from .fileio import staged_write
     from .order import load_order
     from .predict import predict
+    from .qc_lines import design_fails, design_status
     from .register import open_register
     from .render import check_issuable, order_files, render_pdf, render_traveller_html
 
@@ -225,7 +279,8 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
         o = load_order(f)
         p = predict(o)
         check_issuable(p, force)
-        forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
+        forced = force and design_fails(p)
+        p = {**p, "design_status": design_status(p, forced=forced)}
         page = render_traveller_html(p, paper=paper, forced=forced)
         data = page.encode("utf-8") if html else render_pdf(page)
         target = out / f"{f.stem}.{'html' if html else 'pdf'}" if into_folder else out
@@ -236,8 +291,9 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
         for o, p, forced, target, data in jobs:
             # The sheet lands only if its issue is recorded, and the reverse.
             with staged_write(target, data):
-                reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
+                _, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
             note = " — FORCED over a failing insulation check" if forced else ""
+            note += " (reprint: already issued)" if how == "reprinted" else ""
             typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=bool(forced))
 
 
@@ -259,8 +315,9 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     out.mkdir(parents=True, exist_ok=True)
     predictions = {}
     for f in files:
-        p = predict(load_order(f))
-        predictions[p["job"]["number"]] = p
+        o = load_order(f)
+        p = predict(o)
+        predictions[p["job"]["number"]] = (p, o)
         page = render_traveller_html(p)
         atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
         atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))
@@ -268,10 +325,10 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     sheets = 0
     for m in sorted(folder.glob("*.measured.yaml")):
         readings = load_measured(m)
-        p = predictions.get(readings.job)
-        if p is None:
+        if readings.job not in predictions:
             continue
-        result = evaluate_signoff(p, readings, inspector=readings.inspector)
+        p, o = predictions[readings.job]
+        result = evaluate_signoff(p, readings, inspector=readings.inspector, resize=_resizer(o))
         stem = m.name[: -len(".measured.yaml")] + "-signoff"
         atomic_write_bytes(out / f"{stem}.html", _signoff_sheet(p, result, True, "a4"))
         atomic_write_bytes(out / f"{stem}.pdf", _signoff_sheet(p, result, False, "a4"))

@@ -465,7 +465,20 @@ def measured_from_dict(data: Any) -> MeasuredFile:
 
 
 def load_measured(path) -> MeasuredFile:
-    """Read a measured-values YAML file (size, depth and alias limits apply)."""
+    """Read a measured-values file: YAML (size, depth and alias limits apply), or CSV
+    (``.csv``: one row per unit, one column per QC line, see readings_form.py)."""
+    if str(path).lower().endswith(".csv"):
+        from .fileio import MAX_YAML_BYTES, read_limited
+        from .readings_form import measured_dict_from_csv
+
+        raw = read_limited(path, MAX_YAML_BYTES)
+        if len(raw) > MAX_YAML_BYTES:
+            raise InputError(str(path), f"is larger than {MAX_YAML_BYTES} bytes; not a readings file")
+        try:
+            text = raw.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise InputError(str(path), "is not UTF-8 text") from None
+        return measured_from_dict(measured_dict_from_csv(text, str(path)))
     data = read_yaml_file(path)
     try:
         return measured_from_dict(data)

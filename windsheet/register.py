@@ -24,6 +24,7 @@ from pathlib import Path
 from typing import Optional
 
 from .errors import InputError
+from .qc_lines import status_of
 
 DEFAULT_FILE = "windsheet-register.db"
 ENV_VAR = "WINDSHEET_REGISTER"
@@ -77,7 +78,16 @@ CREATE TABLE unit_signoffs (
     signed_at TEXT NOT NULL
 );
 CREATE INDEX unit_signoffs_job ON unit_signoffs(job, serial);
+CREATE TABLE IF NOT EXISTS reprints (
+    id INTEGER PRIMARY KEY,
+    issue_id INTEGER NOT NULL REFERENCES issues(id),
+    printed_by TEXT,
+    printed_at TEXT NOT NULL
+);
 """
+
+# Registers made before reprints were kept apart get the table on their first reprint.
+_REPRINTS = _SCHEMA[_SCHEMA.index("CREATE TABLE IF NOT EXISTS reprints"):].strip().rstrip(";")
 
 
 def resolve_register_path(option: Optional[str] = None) -> Path:
@@ -253,10 +263,16 @@ class Register:
                      revision: Optional[str] = None) -> int:
         """Record that a traveller was issued; returns the issue id.
 
-        Re-issuing the same revision with the same content (a reprint) is
-        recorded again.  The same revision with different content is refused:
-        a changed order needs a new revision.
+        Re-issuing the same revision with the same content (a reprint: the
+        same traveller as A4, Letter or HTML) is recorded as a reprint of that
+        issue, whose id is returned.  The same revision with different content
+        is refused: a changed order needs a new revision.
         """
+        return self.issue_or_reprint(predictions, order_text, order_sha256, revision)[0]
+
+    def issue_or_reprint(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
+                         revision: Optional[str] = None) -> tuple[int, str]:
+        """Like :meth:`record_issue`; returns ``(issue id, "issued" or "reprinted")``."""
         job = predictions.get("job") or {}
         number = job.get("number")
         if not number:
@@ -274,6 +290,13 @@ class Register:
                                      f"content (sha256 {sha[:12]}…, now {order_sha256[:12]}…); "
                                      "give the changed order a new revision")
             now = _now()
+            first = c.execute("SELECT id FROM issues WHERE job = ? AND revision = ? ORDER BY id LIMIT 1",
+                              (number, revision)).fetchone()
+            if first is not None:
+                c.execute(_REPRINTS)
+                c.execute("INSERT INTO reprints (issue_id, printed_by, printed_at) VALUES (?, ?, ?)",
+                          (first[0], job.get("issued_by"), now))
+                return int(first[0]), "reprinted"
             c.execute("INSERT OR IGNORE INTO jobs VALUES (?, ?, ?, ?)",
                       (number, job.get("part"), job.get("customer"), now))
             c.execute("UPDATE jobs SET part = ?, customer = ? WHERE number = ?",
@@ -283,7 +306,7 @@ class Register:
                 " issued_by, issued_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
                 (number, revision, order_sha256, order_text, _dumps(predictions),
                  _dumps(list(job.get("units") or [])), job.get("issued_by"), now))
-            return int(cur.lastrowid)
+            return int(cur.lastrowid), "issued"
 
     # -- sign-off ----------------------------------------------------------------------
 
@@ -332,7 +355,8 @@ class Register:
             cur = c.execute(
                 "INSERT INTO signoffs (job, issue_id, revision, order_sha256, inspector, verdict, result_json,"
                 " signed_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
-                (number, issue_id, revision, order_sha256, inspector, result["verdict"], _dumps(result), now))
+                (number, issue_id, revision, order_sha256, inspector, _column_verdict(result["verdict"]),
+             _dumps(result), now))
             signoff_id = int(cur.lastrowid)
             for k, unit in enumerate(units):
                 raw = measured_units[k] if measured_units else None
@@ -343,8 +367,10 @@ class Register:
         c.execute(
             "INSERT INTO unit_signoffs (signoff_id, job, serial, verdict, measurements_json, inspector,"
             " signed_at) VALUES (?, ?, ?, ?, ?, ?, ?)",
-            (signoff_id, number, unit["serial"], unit["verdict"],
-             _dumps({"readings": raw, "lines": unit.get("lines"), "diagnosis": unit.get("diagnosis")}),
+            (signoff_id, number, unit["serial"], _column_verdict(unit["verdict"]),
+             _dumps({"readings": raw, "lines": unit.get("lines"), "diagnosis": unit.get("diagnosis"),
+                     "verdict": unit["verdict"], "waived": unit.get("waived") or {},
+                     "design_status": unit.get("design_status")}),
              inspector, now))
 
     # -- reading -----------------------------------------------------------------------
@@ -362,23 +388,28 @@ class Register:
         issue_id, revision, sha, units_json, issued_at, issued_by = issue
         serials = json.loads(units_json)
         latest = {}
-        for serial, verdict in self.conn.execute(
-                "SELECT u.serial, u.verdict FROM unit_signoffs u JOIN signoffs s ON s.id = u.signoff_id"
+        for serial, verdict, meas in self.conn.execute(
+                "SELECT u.serial, u.verdict, u.measurements_json FROM unit_signoffs u"
+                " JOIN signoffs s ON s.id = u.signoff_id"
                 " WHERE s.job = ? AND s.revision = ? ORDER BY u.id", (number, revision)):
-            latest[serial] = verdict
+            latest[serial] = _unit_verdict(verdict, meas)
         failed = sorted(s for s, v in latest.items() if v == "fail")
+        incomplete = sorted(s for s, v in latest.items() if v == "incomplete")
         passed = sorted(s for s, v in latest.items() if v == "pass")
         everyone = set(serials) or set(latest)
         if failed:
             state = "failed"
+        elif incomplete:
+            state = "incomplete"
         elif latest and everyone <= set(passed):
             state = "passed"
         else:
             state = "issued"
         return {"number": number, "revision": revision, "order_sha256": sha, "issued_at": issued_at,
                 "issued_by": issued_by, "state": state, "units": serials,
-                "units_passed": passed, "units_failed": failed,
-                "units_not_signed": [s for s in serials if s not in latest]}
+                "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
+                "units_not_signed": [s for s in serials if s not in latest],
+                "design_status": status_of(self.issued_predictions(issue_id))}
 
     def list_jobs(self) -> list[dict]:
         """Every job with its state, newest issue first."""
@@ -398,19 +429,31 @@ class Register:
         for rid, rev, sha, at, by in self.conn.execute(
                 "SELECT id, revision, order_sha256, issued_at, issued_by FROM issues WHERE job = ? ORDER BY id",
                 (number,)):
+            status = status_of(self.issued_predictions(rid))["state"]
             events.append({"event": "issued", "id": rid, "revision": rev, "order_sha256": sha, "at": at,
-                           "by": by})
+                           "by": by, "design_status": status})
+            if self._has_reprints():
+                for pid, pby, pat in self.conn.execute(
+                        "SELECT id, printed_by, printed_at FROM reprints WHERE issue_id = ? ORDER BY id", (rid,)):
+                    events.append({"event": "reprinted", "id": pid, "revision": rev, "order_sha256": sha,
+                                   "at": pat, "by": pby, "design_status": status})
         for sid, rev, sha, insp, verdict, at in self.conn.execute(
                 "SELECT id, revision, order_sha256, inspector, verdict, signed_at FROM signoffs"
                 " WHERE job = ? ORDER BY id", (number,)):
-            units = [{"serial": s, "verdict": v} for s, v in self.conn.execute(
-                "SELECT serial, verdict FROM unit_signoffs WHERE signoff_id = ? ORDER BY id", (sid,))]
+            units = [{"serial": s, "verdict": _unit_verdict(v, m)} for s, v, m in self.conn.execute(
+                "SELECT serial, verdict, measurements_json FROM unit_signoffs WHERE signoff_id = ? ORDER BY id",
+                (sid,))]
             events.append({"event": "signed off", "id": sid, "revision": rev, "order_sha256": sha,
                            "at": at, "by": insp, "verdict": verdict, "units": units})
         if not events:
             raise InputError("job", f"job {number} is not in register {self.label}")
-        events.sort(key=lambda e: (e["at"], 0 if e["event"] == "issued" else 1, e["id"]))
+        order = {"issued": 0, "reprinted": 1}
+        events.sort(key=lambda e: (e["at"], order.get(e["event"], 2), e["id"]))
         return {"number": number, "state": self.job_state(number), "events": events}
+
+    def _has_reprints(self) -> bool:
+        return self.conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'reprints'"
+                                 ).fetchone() is not None
 
     def issued_predictions(self, issue_id: int) -> dict:
         row = self.conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()
@@ -466,6 +509,50 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         conn.close()
         raise
     return Register(conn, p, timeout)
+
+
+def open_register_readonly(path=None) -> Register:
+    """Open an existing register for reading only (``signoff --dry-run``).
+
+    The file is opened by SQLite in read-only mode, so not a byte of the
+    register changes; a missing, foreign or damaged file is refused as by
+    :func:`open_register`.
+    """
+    p = resolve_register_path(str(path) if path is not None else None)
+    label = str(p)
+    if not p.exists():
+        raise InputError(label, "no register here yet; issue the job's traveller first "
+                                "(or: windsheet register --issue ORDER.yaml)")
+    _check_header(_read_header(p, label), label)
+    try:
+        # With no write-ahead log beside it the file holds every commit: open it
+        # immutable, so SQLite creates no -shm/-wal files either.  A live log
+        # (another writer open) is read through, read-only.
+        live = Path(str(p) + "-wal").exists()
+        query = "mode=ro" if live else "mode=ro&immutable=1"
+        conn = sqlite3.connect(f"{p.resolve().as_uri()}?{query}", uri=True, isolation_level=None,
+                               timeout=DEFAULT_TIMEOUT_S)
+    except sqlite3.Error as exc:
+        raise InputError(label, f"cannot read the register: {exc}") from None
+    try:
+        _check_contents(conn, label)
+    except BaseException:
+        conn.close()
+        raise
+    return Register(conn, p, DEFAULT_TIMEOUT_S)
+
+
+def _column_verdict(verdict: str) -> str:
+    """The verdict columns hold pass or fail: a unit not proven (incomplete) is not passed.
+    The full verdict is kept in the JSON beside it."""
+    return "pass" if verdict == "pass" else "fail"
+
+
+def _unit_verdict(column: str, measurements_json: str) -> str:
+    try:
+        return json.loads(measurements_json).get("verdict") or column
+    except (ValueError, AttributeError):
+        return column
 
 
 def record_issue(register: Register, *args, **kwargs) -> int:

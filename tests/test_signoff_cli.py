@@ -1,0 +1,138 @@
+"""The inspector's commands: dry run, reprints, design status, readings forms, CSV readings.
+
+Readings are simulated from the engine (predict's strand matrix and
+resistances through network.terminal_reading), never typed in.
+"""
+
+import csv
+import io
+import os
+
+import numpy as np
+import yaml
+from typer.testing import CliRunner
+
+from windsheet import wiring_hypotheses as wh
+from windsheet.cli import app
+from windsheet.network import terminal_reading
+from windsheet.order import load_order
+from windsheet.predict import predict
+
+from conftest import SAMPLES
+
+BIFILAR = SAMPLES / "hl-0412-bifilar-aiding.yaml"
+runner = CliRunner()
+
+
+def run(*args):
+    return runner.invoke(app, [str(a) for a in args])
+
+
+def engine_values(p):
+    """Every required reading of an as-ordered unit, keyed by CSV column, from the engine."""
+    L = np.array(p["inductance_matrix_H"])
+    R = np.array([s["resistance_20C_ohm"] for s in p["strands"]])
+    hk = p["hookup"]
+    w = wh.wiring_from(hk["joins"], hk["terminals"], len(R))
+    lt, rt = terminal_reading(L, R, w.node_of, w.t1, w.t2, 1e3)
+    v = {"ambient [degC]": "20", "terminal.inductance [uH]": repr(float(lt * 1e6)), "terminal.resistance [ohm]": repr(float(rt)),
+         "insulation.strand_to_strand [Gohm]": "20", "insulation.to_core [Gohm]": "20",
+         "insulation.test_voltage [V]": "500", "continuity.A-B": "open",
+         "hipot.voltage [V]": repr(float(p["hipot"]["voltage_V"])), "hipot.duration [s]": repr(float(p["hipot"]["duration_s"])),
+         "hipot.result": "pass"}
+    for i, s in enumerate("AB"):
+        v[f"strand.{s}.inductance [uH]"] = repr(float(L[i, i] * 1e6))
+        v[f"strand.{s}.resistance [ohm]"] = repr(float(R[i]))
+    v["pair.A-B.series_aiding [uH]"] = repr(float(terminal_reading(L, R, [0, 1, 1, 2], 0, 2, 1e3)[0] * 1e6))
+    v["pair.A-B.series_opposing [uH]"] = repr(float(terminal_reading(L, R, [0, 1, 2, 1], 0, 2, 1e3)[0] * 1e6))
+    return v
+
+
+def issued(tmp_path):
+    reg = tmp_path / "reg.db"
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.html", "--html", "--register", reg).exit_code == 0
+    return reg
+
+
+def filled_csv(tmp_path, p, mutate=None):
+    form = tmp_path / "form.csv"
+    assert run("readings-form", BIFILAR, "-o", form).exit_code == 0
+    rows = list(csv.DictReader(io.StringIO(form.read_text())))
+    values = engine_values(p)
+    for k, row in enumerate(rows):
+        row.update({c: values[c] for c in row if c in values})
+        if mutate:
+            mutate(k, row)
+    out = io.StringIO()
+    w = csv.DictWriter(out, fieldnames=list(rows[0]), lineterminator="\n")
+    w.writeheader()
+    w.writerows(rows)
+    path = tmp_path / "readings.csv"
+    path.write_text(out.getvalue())
+    return path
+
+
+def test_dry_run_leaves_the_register_byte_for_byte_unchanged(tmp_path):
+    reg = issued(tmp_path)
+    p = predict(load_order(BIFILAR))
+    readings = filled_csv(tmp_path, p)
+    before = reg.read_bytes()
+    names = sorted(os.listdir(tmp_path))
+    r = run("signoff", BIFILAR, readings, "--inspector", "M. Lindqvist", "--register", reg, "--dry-run")
+    assert r.exit_code == 0, r.output
+    assert "nothing recorded" in r.output
+    assert reg.read_bytes() == before
+    assert sorted(os.listdir(tmp_path)) == names
+    # The same readings recorded for real do change it.
+    assert run("signoff", BIFILAR, readings, "--inspector", "M. Lindqvist", "--register", reg).exit_code == 0
+    assert reg.read_bytes() != before
+
+
+def test_csv_readings_from_the_form_sign_off_and_an_empty_form_is_incomplete(tmp_path):
+    reg = issued(tmp_path)
+    form = tmp_path / "empty.yaml"
+    assert run("readings-form", BIFILAR, "-o", form).exit_code == 0
+    doc = yaml.safe_load(form.read_text())
+    assert [u["serial"] for u in doc["units"]] == predict(load_order(BIFILAR))["job"]["units"]
+    # The empty form loads and every unit is incomplete: exit 3, not a pass.
+    r = run("signoff", BIFILAR, form, "--inspector", "M. Lindqvist", "--register", reg, "--dry-run")
+    assert r.exit_code == 3, r.output
+    assert "INCOMPLETE" in r.output
+
+
+def test_a_missing_hipot_in_csv_is_incomplete_and_the_register_says_so(tmp_path):
+    reg = issued(tmp_path)
+    p = predict(load_order(BIFILAR))
+
+    def drop_hipot(k, row):
+        if k == 0:
+            row["hipot.result"] = row["hipot.voltage [V]"] = row["hipot.duration [s]"] = ""
+    readings = filled_csv(tmp_path, p, drop_hipot)
+    r = run("signoff", BIFILAR, readings, "--inspector", "M. Lindqvist", "--register", reg)
+    assert r.exit_code == 3, r.output
+    listing = run("register", "--register", reg).output
+    assert "incomplete" in listing and "4/4 passed" not in listing
+
+
+def test_rendering_a_revision_again_is_a_reprint_not_an_issue(tmp_path):
+    reg = issued(tmp_path)
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.pdf", "--register", reg).exit_code == 0
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t2.pdf", "--paper", "letter", "--register", reg).exit_code == 0
+    hist = run("register", "HL-0412", "--register", reg).output
+    assert hist.count(" issued rev") == 1 and hist.count(" reprinted rev") == 2
+
+
+def test_register_issue_follows_the_force_rule_and_the_status_travels(tmp_path):
+    text = BIFILAR.read_text().replace("voltage: 230 V", "voltage: 4000 V")
+    order = tmp_path / "hv.yaml"
+    order.write_text(text)
+    reg = tmp_path / "reg.db"
+    refused = run("register", "--issue", order, "--register", reg)
+    # The traveller's rule: a failing insulation check is not issued without --force.
+    assert refused.exit_code == 2 and "--force" in refused.output
+    assert run("register", "--issue", order, "--force", "--register", reg).exit_code == 0
+    assert "design FORCED" in run("register", "--register", reg).output
+    p = predict(load_order(order))
+    readings = filled_csv(tmp_path, p)
+    r = run("signoff", order, readings, "--inspector", "M. Lindqvist", "--register", reg, "--dry-run")
+    assert "Design: FORCED" in r.output and "(design FORCED)" in r.output
