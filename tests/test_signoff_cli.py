@@ -136,3 +136,24 @@ def test_register_issue_follows_the_force_rule_and_the_status_travels(tmp_path):
     readings = filled_csv(tmp_path, p)
     r = run("signoff", order, readings, "--inspector", "M. Lindqvist", "--register", reg, "--dry-run")
     assert "Design: FORCED" in r.output and "(design FORCED)" in r.output
+
+
+def test_sheet_spread_over_passing_units_inspector_signs_and_celsius(tmp_path):
+    from windsheet.measured import load_measured
+    from windsheet.render import render_signoff_html
+    from windsheet.signoff import evaluate_signoff
+
+    p = predict(load_order(BIFILAR))
+
+    def fail_second(k, row):
+        if k == 1:  # an open strand: the unit fails
+            row["strand.B.resistance [ohm]"] = "open"
+    readings = load_measured(filled_csv(tmp_path, p, fail_second))
+    res = evaluate_signoff(p, readings, inspector="M. Lindqvist")
+    html = render_signoff_html(p, res)
+    assert res["units"][1]["verdict"] == "fail"
+    # The spread covers the three passing units; the failed one is listed apart.
+    assert all(sp["count"] == 3 for sp in res["spread"])
+    assert "not included: HL-0412-02 (FAIL)" in html
+    assert 'class="k s-signlabel">Inspector</span><span class="v s-issuer">M. Lindqvist' in html
+    assert "degC" not in html and "°C" in html
