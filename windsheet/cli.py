@@ -212,39 +212,56 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                                                       "(the traveller command does this when it prints)."),
                  force: bool = typer.Option(False, "--force", help="With --issue: record a design that fails "
                                             "its insulation check; it is then marked FORCED."),
+                 state: Optional[str] = typer.Option(None, "--state", help="Only jobs in this state: issued, "
+                                                     "passed, failed or incomplete."),
+                 customer: Optional[str] = typer.Option(None, "--customer", help="Only jobs whose customer "
+                                                        "contains this (any case)."),
+                 since: Optional[str] = typer.Option(None, "--since", help="Only jobs issued on or after this "
+                                                     "date (YYYY-MM-DD)."),
+                 as_csv: bool = typer.Option(False, "--csv", help="Print the listing as CSV."),
                  as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
-    """List jobs in the register with their state (issued, passed, failed), or one job's history."""
-    from .register import open_register
-    from .signoff import history_lines, register_lines
+    """List the jobs in the register (job, revision, customer, issued, state, passed/total, design
+    status), or one job's history; --issue records an order as issued."""
+    from .register import open_register_readonly, resolve_register_path
 
-    issued = None
     if issue is not None:
         from .order import load_order
         from .predict import predict
-
         from .qc_lines import design_fails, design_status
+        from .register import open_register
         from .render import check_issuable
 
         o = load_order(issue)
         p = predict(o)
         check_issuable(p, force)
         p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
-    from .register import resolve_register_path
-
-    if issue is None and not resolve_register_path(register).exists():
+        with open_register(register, create=True) as reg:
+            issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
+        forced = " — FORCED over a failing insulation check" if p["design_status"]["state"] == "forced" else ""
+        # Only what was recorded: the listing is its own command.
+        typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
+        return
+    if not resolve_register_path(register).exists():
         typer.echo(f"(no register yet at {resolve_register_path(register)})")
         return
-    with open_register(register, create=issue is not None) as reg:
-        if issue is not None:
-            issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
-            forced = " — FORCED over a failing insulation check" if p["design_status"]["state"] == "forced" else ""
-            typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
+    # Listing reads only: a read-only file or folder can be listed.
+    with open_register_readonly(register) as reg:
         if job:
+            from .signoff_text import history_lines
+
             h = reg.job_history(job)
             typer.echo(_to_json(h) if as_json else "\n".join(history_lines(h)))
-        else:
-            jobs = reg.list_jobs()
-            typer.echo(_to_json(jobs) if as_json else "\n".join(register_lines(jobs)))
+            return
+        jobs = reg.list_jobs()
+    from .register_listing import as_csv as listing_csv, select, table_lines
+
+    jobs = select(jobs, state, customer, since)
+    if as_json:
+        typer.echo(_to_json(jobs))
+    elif as_csv:
+        typer.echo(listing_csv(jobs), nl=False)
+    else:
+        typer.echo("\n".join(table_lines(jobs)))
 
 
 @app.command("traveller")

@@ -26,6 +26,7 @@ from typing import Optional
 from .errors import InputError
 from . import register_schema as schema
 from .register_schema import SCHEMA_VERSION
+from .sheet_ledger import finish_pending, record_pending
 from .qc_lines import status_of
 
 DEFAULT_FILE = "windsheet-register.db"
@@ -248,6 +249,8 @@ class Register:
 
     #: Schema version of the open file (a read-only old register stays at its own).
     version = SCHEMA_VERSION
+    #: Lines about sheets an interrupted run left, finished on opening (see sheet_ledger).
+    repairs: list = []
 
     def __init__(self, conn: sqlite3.Connection, path: Path, timeout: float):
         self.conn = conn
@@ -289,7 +292,7 @@ class Register:
     # -- issue -------------------------------------------------------------------------
 
     def record_issue(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
-                     revision: Optional[str] = None) -> int:
+                     revision: Optional[str] = None, sheet=None) -> int:
         """Record that a traveller was issued; returns the issue id.
 
         Re-issuing the same revision with the same content (a reprint: the
@@ -297,10 +300,10 @@ class Register:
         issue, whose id is returned.  The same revision with different content
         is refused: a changed order needs a new revision.
         """
-        return self.issue_or_reprint(predictions, order_text, order_sha256, revision)[0]
+        return self.issue_or_reprint(predictions, order_text, order_sha256, revision, sheet)[0]
 
     def issue_or_reprint(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
-                         revision: Optional[str] = None) -> tuple[int, str]:
+                         revision: Optional[str] = None, sheet=None) -> tuple[int, str]:
         """Like :meth:`record_issue`; returns ``(issue id, "issued" or "reprinted")``."""
         job = predictions.get("job") or {}
         number = job.get("number")
@@ -324,6 +327,8 @@ class Register:
             if first is not None:
                 c.execute("INSERT INTO reprints (issue_id, printed_by, printed_at) VALUES (?, ?, ?)",
                           (first[0], job.get("issued_by"), now))
+                if sheet is not None:
+                    record_pending(c, sheet, first[0], now)
                 return int(first[0]), "reprinted"
             c.execute("INSERT OR IGNORE INTO jobs VALUES (?, ?, ?, ?)",
                       (number, job.get("part"), job.get("customer"), now))
@@ -335,6 +340,8 @@ class Register:
                 (number, revision, order_sha256, order_text, _dumps(predictions),
                  _dumps(list(job.get("units") or [])), job.get("issued_by"), now,
                  schema.design_state_of(predictions)))
+            if sheet is not None:
+                record_pending(c, sheet, cur.lastrowid, now)
             return int(cur.lastrowid), "issued"
 
     # -- sign-off ----------------------------------------------------------------------
@@ -367,7 +374,8 @@ class Register:
         return issue_id, self.issued_predictions(issue_id)
 
     def record_signoff(self, result: dict, order_sha256: Optional[str] = None,
-                       inspector: Optional[str] = None, measured_units: Optional[list] = None) -> int:
+                       inspector: Optional[str] = None, measured_units: Optional[list] = None,
+                       sheet=None) -> int:
         """Record a sign-off (the dict from :func:`windsheet.signoff.evaluate_signoff`).
 
         ``measured_units`` optionally gives the raw readings per unit (same order
@@ -391,7 +399,22 @@ class Register:
             for k, unit in enumerate(units):
                 raw = measured_units[k] if measured_units else None
                 self._insert_unit(c, signoff_id, number, unit, raw, inspector, now)
+            if sheet is not None:
+                record_pending(c, sheet, signoff_id, now)
             return signoff_id
+
+    def mark_sheet(self, sheet_id: int, state: str) -> None:
+        """The sheet recorded as ``sheet_id`` is now ``placed`` (or ``unprinted``)."""
+        with self.transaction() as c:
+            c.execute("UPDATE sheets SET state = ? WHERE id = ?", (state, int(sheet_id)))
+
+    def finish_sheets(self) -> list[str]:
+        """Finish sheets a crashed run left pending (see :mod:`windsheet.sheet_ledger`)."""
+        if self.version < 2 or self.conn.execute(
+                "SELECT 1 FROM sheets WHERE state = 'pending' LIMIT 1").fetchone() is None:
+            return []
+        with self.transaction() as c:
+            return finish_pending(c)
 
     def _insert_unit(self, c, signoff_id, number, unit, raw, inspector, now):
         c.execute(
@@ -568,6 +591,11 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         raise
     reg = Register(conn, p, timeout)
     reg.version = version
+    try:
+        reg.repairs = reg.finish_sheets()
+    except BaseException:
+        reg.close()
+        raise
     return reg
 
 
