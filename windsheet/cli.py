@@ -151,18 +151,24 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
         typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng) + ["(dry run: nothing recorded)"]))
         raise typer.Exit(exit_status(result))
     with open_register(register, create=False) as reg:
+        _say_repairs(reg)
         _, issued = reg.find_issue(job.number, job.revision, o.sha256)
         result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
         units = [u.model_dump(mode="json") for u in readings.units]
         if out is None:
             reg.record_signoff(result, o.sha256, who, measured_units=units)
         else:
-            from .fileio import staged_write
+            from .sheet_ledger import recorded_sheet
 
-            with staged_write(out, _signoff_sheet(issued, result, html, paper)):
-                reg.record_signoff(result, o.sha256, who, measured_units=units)
+            with recorded_sheet(reg, "signoff", out, _signoff_sheet(issued, result, html, paper)) as sheet:
+                reg.record_signoff(result, o.sha256, who, measured_units=units, sheet=sheet)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
+
+
+def _say_repairs(reg):
+    for line in getattr(reg, "repairs", []) or []:
+        typer.echo(f"windsheet: {line}", err=True)
 
 
 def _resizer(order):

@@ -135,10 +135,10 @@ def _check_contents(conn: sqlite3.Connection, label: str) -> int:
         ok = conn.execute("PRAGMA quick_check").fetchone()[0]
         row = conn.execute("SELECT value FROM meta WHERE key = 'application'").fetchone()
         version = conn.execute("PRAGMA user_version").fetchone()[0]
-    except sqlite3.DatabaseError as exc:
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
         if _is_locked(exc):
             raise _locked_error(label) from None
-        raise InputError(label, f"register is damaged or not a windsheet register ({exc})") from None
+        raise InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})") from None
     if ok != "ok":
         first = (str(ok).splitlines() or ["?"])[0][:160]
         raise InputError(label, f"register is damaged (integrity check: {first}); restore it from a backup")
@@ -151,8 +151,8 @@ def _check_contents(conn: sqlite3.Connection, label: str) -> int:
         raise InputError(label, "register has no schema version; it is damaged")
     try:
         schema.check_structure(conn, version, label)
-    except sqlite3.DatabaseError as exc:
-        raise InputError(label, f"register is damaged ({exc}); restore it from a backup") from None
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
+        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
     return version
 
 
@@ -241,6 +241,8 @@ def _reads(method):
 
 
 def _one_line(exc) -> str:
+    if isinstance(exc, UnicodeDecodeError):
+        return "text that is not UTF-8"
     return (str(exc).splitlines() or [""])[0][:160]
 
 
@@ -583,9 +585,9 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         if "readonly" in str(exc).lower():
             raise _read_only_error(label) from None
         raise InputError(label, f"cannot open the register: {exc}") from None
-    except sqlite3.DatabaseError as exc:
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
         conn.close()
-        raise InputError(label, f"register is damaged ({exc}); restore it from a backup") from None
+        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
     except BaseException:
         conn.close()
         raise
@@ -639,7 +641,7 @@ def open_register_readonly(path=None) -> Register:
         raise InputError(label, f"cannot read the register: {exc}") from None
     try:
         version = _check_contents(conn, label)
-    except sqlite3.OperationalError as exc:
+    except (sqlite3.OperationalError, UnicodeError) as exc:
         conn.close()
         if immutable:
             raise InputError(label, f"cannot read the register: {exc}") from None
