@@ -74,6 +74,9 @@ def summary_lines(p: dict) -> list[str]:
     row("Terminals", f"L {eng(t['inductance_H'], 'H')} (accept {eng(t['accept']['inductance_min_H'], 'H')} … "
         f"{eng(t['accept']['inductance_max_H'], 'H')}), R {eng(t['resistance_ohm'], 'Ω')} at 20 °C, "
         f"{eng(t['resistance_hot_ohm'], 'Ω')} at {p['duty']['operating_temperature_C']:.0f} °C")
+    if t["accept"].get("inductance_basis") == "target":
+        row("", f"L accept band is the ordered target ± tolerance; prediction "
+            f"{t['accept']['prediction_offset'] * 100:+.2f} % from target")
     row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
     if p.get("current_sheet_inductance_H"):
         row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "

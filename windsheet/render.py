@@ -597,7 +597,11 @@ def qc_items(p: dict) -> list[dict]:
             items.append(item(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
                               henry(opp) if opp else "", "record (leakage)", judged=False))
     items += [
-        item("terminal.inductance", "Inductance at the terminals", henry(term.get("inductance_H")),
+        item("terminal.inductance", "Inductance at the terminals" + (
+             " (band: ordered target ± tolerance)" if acc.get("inductance_basis") == "target" else ""),
+             henry(term.get("inductance_H")) + (
+             f" ({acc['prediction_offset'] * 100:+.2f}{_NBSP}% from target)"
+             if acc.get("inductance_basis") == "target" else ""),
              band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
         item("terminal.resistance", "DC resistance at the terminals (at 20 °C)",
              ohm(term.get("resistance_ohm")),
