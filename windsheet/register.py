@@ -24,6 +24,7 @@ from pathlib import Path
 from typing import Optional
 
 from .errors import InputError
+from .fileio import require_regular_file
 from .qc_lines import status_of
 
 DEFAULT_FILE = "windsheet-register.db"
@@ -482,6 +483,7 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
     """
     p = resolve_register_path(str(path) if path is not None else None)
     label = str(p)
+    require_regular_file(p, "register file")
     if not p.exists():
         if not create:
             raise InputError(label, "no register here yet; issue the job's traveller first "
@@ -520,6 +522,7 @@ def open_register_readonly(path=None) -> Register:
     """
     p = resolve_register_path(str(path) if path is not None else None)
     label = str(p)
+    require_regular_file(p, "register file")
     if not p.exists():
         raise InputError(label, "no register here yet; issue the job's traveller first "
                                 "(or: windsheet register --issue ORDER.yaml)")
