@@ -7,6 +7,7 @@ asserted.
 
 from __future__ import annotations
 
+import os
 import subprocess
 import sys
 
@@ -47,6 +48,11 @@ HOSTILE = {
     "unhashable-key": (b"? [a, b]\n: 1\n", "YAML"),
     "tab-indent": (SINGLE.replace("  number:", "\tnumber:").encode(), "not valid YAML"),
     "repeated-section": ((SINGLE + "duty: {voltage: 400 V}\n").encode(), "twice"),
+    "anchor-without-alias": (SINGLE.replace("wire: {size", "wire: &w {size").encode(), "anchors"),
+    "merge-key": (SINGLE.replace("wire: {size: 0.50 mm, grade: 2}", "wire: {<<: {grade: 2}, size: 0.50 mm}").encode(),
+                  "merge keys (<<) are not accepted"),
+    "octal-turns": (SINGLE.replace("turns: 40,", "turns: 040,").encode(), "winding.turns: 040 has a leading zero"),
+    "power-tower": (SINGLE.replace("diameter: 50 mm", 'diameter: "9**9**9 mm"').encode(), "arithmetic is not read"),
 }
 
 
@@ -111,3 +117,57 @@ def test_harmless_encodings_still_size(tmp_path, transform):
     res = _run(tmp_path, "size", str(f), "--json")
     assert res.returncode == 0, res.stderr
     assert '"turns_per_strand": 40' in res.stdout
+
+
+# ---------------------------------------------------------------- files that are not regular files
+def _special(tmp_path, kind):
+    """A path that is not a regular file: a FIFO nobody writes to, a device, a folder."""
+    if kind == "fifo":
+        path = tmp_path / "pipe.yaml"
+        os.mkfifo(path)
+        return str(path), "named pipe (FIFO)"
+    if kind == "device":
+        return "/dev/zero", "is a device"
+    path = tmp_path / "folder.yaml"
+    path.mkdir()
+    return str(path), "is a folder"
+
+
+@pytest.mark.parametrize("kind", ["fifo", "device", "folder"])
+def test_order_that_is_not_a_regular_file(tmp_path, kind):
+    # A blocking open of a FIFO, or reading /dev/zero to the end, shows as TimeoutExpired.
+    path, words = _special(tmp_path, kind)
+    res = _run(tmp_path, "size", path, "--json")
+    _assert_one_line_refusal(res, words)
+    assert path in res.stderr
+
+
+@pytest.mark.parametrize("kind", ["fifo", "device"])
+def test_measured_file_that_is_not_a_regular_file(tmp_path, kind):
+    order = tmp_path / "order.yaml"
+    order.write_text(SINGLE, encoding="utf-8")
+    path, words = _special(tmp_path, kind)
+    res = _run(tmp_path, "signoff", str(order), path, "--inspector", "QC", "--register", str(tmp_path / "r.db"))
+    _assert_one_line_refusal(res, words)
+    assert not (tmp_path / "r.db").exists()
+
+
+@pytest.mark.parametrize("kind", ["fifo", "device", "folder"])
+def test_catalog_that_is_not_a_regular_file(tmp_path, kind):
+    path, words = _special(tmp_path, kind)
+    order = tmp_path / "order.yaml"
+    order.write_text(SINGLE.replace("wire: {size: 0.50 mm, grade: 2}", f"wire: {{size: X, catalog: '{path}'}}"),
+                     encoding="utf-8")
+    res = _run(tmp_path, "size", str(order), "--json")
+    _assert_one_line_refusal(res, words)
+
+
+@pytest.mark.parametrize("kind", ["fifo", "device"])
+@pytest.mark.parametrize("command", [["register"], ["register", "--issue", "ORDER"]])
+def test_register_that_is_not_a_regular_file(tmp_path, kind, command):
+    path, words = _special(tmp_path, kind)
+    order = tmp_path / "order.yaml"
+    order.write_text(SINGLE, encoding="utf-8")
+    args = [str(order) if a == "ORDER" else a for a in command]
+    res = _run(tmp_path, *args, "--register", path)
+    _assert_one_line_refusal(res, words)

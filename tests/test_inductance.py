@@ -1,10 +1,13 @@
 """Checks of windsheet.inductance against published values and independent evaluations."""
 
+import dataclasses
 import math
 
 import mpmath as mp
 import numpy as np
 import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
 from scipy.integrate import quad
 
 from windsheet.inductance import (
@@ -26,7 +29,7 @@ from windsheet.inductance import (
     wheeler_multilayer,
     wheeler_single_layer,
 )
-from windsheet.layout import cylinder_layout, toroid_layout
+from windsheet.layout import WindingDoesNotFit, cylinder_layout, toroid_layout
 
 
 # ---------------------------------------------------------------------------
@@ -126,6 +129,9 @@ def test_maxwell_matches_neumann_integral(r1, r2, dz):
     (0.01, 0.0100001, 0.0),
     (0.01, 0.01, 1.0),       # k → 0: cancellation in the usual form
     (0.01, 0.003, 0.02),
+    (0.01, 0.01, 1e-11),     # k′ ~ 1e-9: the mean takes its most steps
+    (0.02, 0.03, 10.0),
+    (1e-4, 1.0, 0.0),        # very unequal radii
 ])
 def test_maxwell_precise_at_both_ends(r1, r2, dz):
     # DLMF §19.34 form µ0√(r1r2)[(2/k − k)K − (2/k)E] in 40-digit arithmetic (mpmath takes m = k²).
@@ -200,8 +206,9 @@ def _brooks_layout(d, copper_d):
     c = 40 * d                            # 40 × 40 turns in a c × c square
     mean_radius = 1.5 * c
     # Innermost layer centre = diameter/2 + d/2; the mean is 19.5 d further out.
+    # Stacked layers (square packing): Brooks' section is a c × c square of turns.
     diameter = 2 * (mean_radius - 20 * d)
-    return cylinder_layout(diameter, c, copper_d, d, 1, 1600, layers=40), mean_radius
+    return cylinder_layout(diameter, c, copper_d, d, 1, 1600, layers=40, layer_style="stacked"), mean_radius
 
 
 def test_brooks_coil_filament_sum():
@@ -225,7 +232,9 @@ def test_wheeler_multilayer_comparable_terms():
     # 6a : 9b : 10c = 90 : 90 : 90 mm — Wheeler's terms comparable.
     d, per_layer, layers = 0.0005, 20, 18
     a, b, c = 0.015, per_layer * d, layers * d
-    lay = cylinder_layout(2 * (a - c / 2), b, 0.00045, d, 1, per_layer * layers, layers=layers)
+    # Stacked layers: Wheeler's rectangular section of depth c = layers × d.
+    lay = cylinder_layout(2 * (a - c / 2), b, 0.00045, d, 1, per_layer * layers, layers=layers,
+                          layer_style="stacked")
     assert (lay.r.min() + lay.r.max()) / 2 == pytest.approx(a)
     # Wheeler, Proc. IRE 16:1398 (1928) (seen): about 1 % when the terms are comparable; allow 2 %.
     assert strand_matrix(lay)[0, 0] == pytest.approx(wheeler_multilayer(a, b, c, per_layer * layers),
@@ -288,6 +297,7 @@ def test_series_aiding_tightly_coupled_is_four_times_one_strand():
     (3, 17, 3, 1.0, 1e-4),       # trifilar with layer tape
     (2, 30, 3, 1.7, 5e-5),       # spaced pitch and tape
     (1, 40, None, 1.3, 0.0),     # auto layers at a spaced pitch
+    (2, 30, 3, 1.0, 0.0),        # bifilar, nested layers
 ])
 def test_fast_sum_equals_double_sum(strands, turns, layers, pitch_factor, tape):
     ov = 0.4e-3
@@ -295,6 +305,120 @@ def test_fast_sum_equals_double_sum(strands, turns, layers, pitch_factor, tape):
                           pitch=strands * ov * pitch_factor, tape=tape)
     # The Maxwell double sum over all turn pairs (Grover 1946) is the definition the fast sum regroups.
     np.testing.assert_allclose(strand_matrix(lay), strand_matrix_bruteforce(lay), rtol=1e-10)
+
+
+def _rtol_agrees(fast, plain, rtol=1e-9):
+    # The Maxwell double sum over all turn pairs (Grover 1946) is the definition the fast sum regroups.
+    np.testing.assert_allclose(fast, plain, rtol=rtol)
+
+
+@pytest.mark.parametrize("strands, turns, layers, pitch_factor", [
+    (4, 83, 7, 1.0),             # four strands, close wound: strand offsets share kernel classes
+    (4, 60, 5, 2.0),             # pitch twice the strand band: offsets at a quarter and half pitch
+    (3, 50, 4, 1.37),            # offsets incommensurate with the pitch
+    (4, 1, 1, 1.0),              # one turn per strand
+    (2, 7, 7, 1.0),              # one slot per layer
+])
+def test_fast_sum_many_strands_and_layers(strands, turns, layers, pitch_factor):
+    ov = 0.3e-3
+    lay = cylinder_layout(0.010, 40e-3, 0.27e-3, ov, strands, turns, layers=layers,
+                          pitch=strands * ov * pitch_factor, tape=2e-5)
+    _rtol_agrees(strand_matrix(lay), strand_matrix_bruteforce(lay))
+
+
+def test_fast_sum_layers_out_of_order_and_shifted():
+    # Layers whose radii are not in winding order (nested sections) and whose turns are shifted
+    # along the axis by a fraction of the pitch: the group shape of Layout.groups() still holds.
+    lay = cylinder_layout(0.012, 9e-3, 0.35e-3, 0.4e-3, 2, 40, layers=4)
+    radius = {0: 0.0071, 1: 0.0062, 2: 0.0080, 3: 0.0066}
+    shift = {0: 0.0, 1: 0.173e-3, 2: -0.31e-3, 3: 0.5e-3}
+    r = np.array([radius[k] for k in lay.layer])
+    z = lay.z + np.array([shift[k] for k in lay.layer])
+    moved = dataclasses.replace(lay, r=r, z=z)
+    _rtol_agrees(strand_matrix(moved), strand_matrix_bruteforce(moved))
+
+
+def test_fast_sum_two_layers_on_one_radius_side_by_side():
+    # Two sections on the same radius, the second beyond the first along the axis.
+    lay = cylinder_layout(0.012, 6e-3, 0.35e-3, 0.4e-3, 1, 30, layers=2)
+    r = np.full(lay.n_turns, lay.r[0])
+    z = np.where(lay.layer == 1, lay.z + 0.02, lay.z)
+    moved = dataclasses.replace(lay, r=r, z=z)
+    _rtol_agrees(strand_matrix(moved), strand_matrix_bruteforce(moved))
+
+
+def test_fast_sum_refuses_coinciding_turns():
+    # Stacked: turn over turn, so on one radius the two layers' turns sit on the same circles.
+    lay = cylinder_layout(0.012, 6e-3, 0.35e-3, 0.4e-3, 1, 30, layers=2, layer_style="stacked")
+    # Both layers on one radius and over the same slots: some turns sit on one circle.
+    moved = dataclasses.replace(lay, r=np.full(lay.n_turns, lay.r[0]))
+    with pytest.raises(ValueError, match="coincide"):
+        strand_matrix(moved)
+
+
+@settings(max_examples=30, deadline=None)
+@given(strands=st.integers(1, 4), turns=st.integers(1, 90), layers=st.integers(1, 9),
+       pitch_factor=st.floats(1.0, 3.0), tape=st.sampled_from([0.0, 1e-5, 7.3e-5]))
+def test_fast_sum_equals_double_sum_property(strands, turns, layers, pitch_factor, tape):
+    ov = 0.25e-3
+    pitch = strands * ov * pitch_factor
+    try:
+        lay = cylinder_layout(0.008, 30 * pitch + strands * ov, 0.22e-3, ov, strands, turns,
+                              layers=layers, pitch=pitch, tape=tape)
+    except WindingDoesNotFit:
+        assume(False)
+    _rtol_agrees(strand_matrix(lay), strand_matrix_bruteforce(lay))
+
+
+def _distinct_kernels(lay):
+    """Distinct (radius pair, |dz|) over all pairs of different turns, by brute force."""
+    i, j = np.triu_indices(lay.n_turns, 1)
+    r, z = lay.r, lay.z
+    key = np.stack([np.minimum(r[i], r[j]), np.maximum(r[i], r[j]),
+                    np.round(np.abs(z[i] - z[j]) / lay.pitch * 2 ** 20)], axis=1)
+    return len(np.unique(key, axis=0))
+
+
+@pytest.mark.parametrize("strands, turns, layers, pitch_factor", [
+    (4, 83, 7, 1.0), (4, 60, 5, 2.0), (3, 50, 4, 1.37), (1, 29, 3, 1.0)])
+def test_fast_sum_evaluates_each_distinct_kernel_once(monkeypatch, strands, turns, layers, pitch_factor):
+    import windsheet.inductance as ind
+    ov = 0.3e-3
+    lay = cylinder_layout(0.010, 40e-3, 0.27e-3, ov, strands, turns, layers=layers,
+                          pitch=strands * ov * pitch_factor, tape=2e-5)
+    evaluated = []
+    real = ind.maxwell_mutual
+    monkeypatch.setattr(ind, "maxwell_mutual", lambda r1, r2, dz: evaluated.append(np.size(dz)) or real(r1, r2, dz))
+    ind.strand_matrix(lay)
+    # The engine's floor: one Maxwell kernel per distinct (radius pair, |dz|) of the coil's turn
+    # pairs, counted here over all turn pairs independently.
+    assert sum(evaluated) == _distinct_kernels(lay)
+
+
+def test_kernel_cache_shared_between_turn_counts(monkeypatch):
+    import windsheet.inductance as ind
+    evaluated = []
+    real = ind.maxwell_mutual
+    monkeypatch.setattr(ind, "maxwell_mutual", lambda r1, r2, dz: evaluated.append(np.size(dz)) or real(r1, r2, dz))
+    cache = {}
+    for turns, new_layer in ((300, True), (301, True), (290, False), (340, True)):
+        lay = cylinder_layout(0.010, 12e-3, 0.27e-3, 0.3e-3, 2, turns, pitch=0.6e-3, tape=2e-5)
+        evaluated.clear()
+        shared = ind.strand_matrix(lay, cache)
+        # A count that adds no layer needs no kernel the cache lacks; one that adds a layer
+        # needs only the new layer's pairs, far fewer than all distinct kernels (brute-force count).
+        assert sum(evaluated) <= (_distinct_kernels(lay) / 5 if turns != 300 else _distinct_kernels(lay))
+        assert (sum(evaluated) > 0) == new_layer
+        # The Maxwell double sum over all turn pairs (Grover 1946), uncached.
+        _rtol_agrees(shared, strand_matrix_bruteforce(lay), rtol=1e-9)
+
+
+def test_long_single_layer_approaches_rosa():
+    a, p, d, N = 0.01, 0.5e-3, 0.4e-3, 100_000
+    lay = _single_layer(a, p, d, d, N)
+    # Rosa (1907) / Grover (1946): the current sheet less the round-wire correction; its end
+    # effects fade with length, so a 100,000-turn coil agrees to about 1e-6 (computed: 6.9e-7).
+    assert strand_matrix(lay)[0, 0] == pytest.approx(rosa_corrected_inductance(a, p, d, N), rel=3e-6)
 
 
 def test_filament_method_refuses_toroid():

@@ -393,7 +393,7 @@ def test_signoff_commands_on_samples(tmp_path, cli):
     bad = cli("signoff", ORDER, SAMPLES / "HL-0412-reversed.measured.yaml", "--register", reg,
               "--inspector", "T. Vance")
     assert bad.exit_code == 1
-    assert "HL-0412-02: FAIL" in bad.output and "a strand is reversed" in bad.output
+    assert "HL-0412-02: FAIL" in bad.output and "strand A reversed" in bad.output
     listing = cli("register", "--register", reg)
     assert listing.exit_code == 0 and "failed" in listing.output
     history = cli("register", "HL-0412", "--register", reg)

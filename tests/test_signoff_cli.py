@@ -159,3 +159,22 @@ def test_sheet_spread_over_passing_units_inspector_signs_and_celsius(tmp_path):
     assert "not included: HL-0412-02 (FAIL)" in html
     assert 'class="k s-signlabel">Inspector</span><span class="v s-issuer">M. Lindqvist' in html
     assert "degC" not in html and "°C" in html
+
+
+def test_a_waiver_in_csv_passes_the_unit_and_is_kept_in_the_register(tmp_path):
+    import json
+    import sqlite3
+
+    reg = issued(tmp_path)
+    p = predict(load_order(BIFILAR))
+    reason = "withstand tested by the customer at goods-in"
+
+    def waive_hipot(k, row):
+        row["hipot.result"] = row["hipot.voltage [V]"] = row["hipot.duration [s]"] = ""
+        row["waive.hipot"] = reason
+    readings = filled_csv(tmp_path, p, waive_hipot)
+    r = run("signoff", BIFILAR, readings, "--inspector", "M. Lindqvist", "--register", reg)
+    assert r.exit_code == 0, r.output
+    with sqlite3.connect(reg) as c:
+        rows = [json.loads(m) for (m,) in c.execute("SELECT measurements_json FROM unit_signoffs")]
+    assert len(rows) == 4 and all(m["waived"] == {"hipot": reason} for m in rows)

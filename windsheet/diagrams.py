@@ -106,7 +106,7 @@ def _nets(hookup):
     return [tuple(str(e) for e in join) for join in hookup.get("joins") or [] if len(join) >= 2]
 
 
-def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
+def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None) -> str:
     """Wiring diagram of a hookup as an SVG string.
 
     Every strand is a coil symbol on its own row, start on the left (with the
@@ -123,6 +123,9 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
         Strand identifiers in row order, e.g. ``["A", "B"]``.
     labels : dict, optional
         Strand id -> how to tell it apart (``"red enamel"``), printed beside the coil.
+    routes : sequence of (str, str), optional
+        ``(end, how its lead is dressed)`` pairs, printed under the diagram
+        (``data-route`` on each line).
     """
     ids = [str(s) for s in strand_ids]
     labels = labels or {}
@@ -155,6 +158,9 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
     shift = 40.0 - left_edge  # keep the left terminals inside the viewBox
     width = right_edge + shift + 40.0
     height = _TOP + (len(ids) - 1) * _ROW_H + _TERMINAL_DROP + 17.0 + 12.0
+    routes = list(routes or [])
+    notes_y = height + 4.0
+    height += 13.0 * len(routes) + (6.0 if routes else 0.0)
 
     root = _svg_root(width, height, f"Wiring diagram, hookup {hookup.get('name', '')}")
     top = _el(root, "g", transform=f"translate({shift:.1f},0)")
@@ -187,6 +193,9 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None) -> str:
 
     for t_i, end in enumerate(terminals):
         _draw_terminal(top, f"T{t_i + 1}", end, end_xy)
+    for k, (end, how) in enumerate(routes):
+        _text(root, 12.0, notes_y + 13.0 * k, _clip(f"{end} lead: {how}", 90), font_size="9",
+              data_route=str(end))
     return _to_string(root)
 
 

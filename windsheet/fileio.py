@@ -2,12 +2,17 @@
 
 from __future__ import annotations
 
+import csv
+import io
 import os
+import stat
 import tempfile
+import re
 from contextlib import contextmanager
+from functools import lru_cache
 from pathlib import Path
 
-from .errors import InputError
+from .errors import InputError, join_path
 
 
 def _fsync_dir(folder: Path) -> None:
@@ -175,29 +180,83 @@ MAX_YAML_BYTES = 1_000_000
 MAX_YAML_DEPTH = 32
 
 
+# A count as a shop writes it: decimal digits, no leading zero.  YAML 1.1 also
+# reads 060 as octal 48, 0x3C and 0b111100 as 60, 6_0 as 60 and 1:30 as 90.
+_DECIMAL = re.compile(r"[-+]?(?:0|[1-9][0-9]*)")
+
+
+class OddNumeral:
+    """A number YAML 1.1 would read other than as a shop means it (``060``, ``0x3C``,
+    ``6_0``, ``1:30``); kept as its text so the loader can refuse it at its path."""
+
+    __slots__ = ("text",)
+
+    def __init__(self, text: str):
+        self.text = text
+
+    def __hash__(self):
+        return hash(("OddNumeral", self.text))
+
+    def __eq__(self, other):
+        return isinstance(other, OddNumeral) and other.text == self.text
+
+    def __repr__(self):
+        return self.text
+
+    def reason(self) -> str:
+        t = self.text.strip()
+        body = t.lstrip("+-")
+        if ":" in t:
+            return (f"{t} would be read as a base-60 number; write the decimal value, "
+                    f"or quote it ('{t}') if it is text")
+        if body[:2].lower() in ("0x", "0b"):
+            base = "hexadecimal" if body[1] in "xX" else "binary"
+            try:
+                decimal = f" ({int(t.replace('_', ''), 0)})"
+            except ValueError:
+                decimal = ""
+            return f"{t} is a {base} number; write counts in decimal{decimal}"
+        if "_" in t:
+            return f"{t}: digit separators (_) are not read; write {t.replace('_', '')}"
+        plain = body.lstrip("0") or "0"
+        return (f"{t} has a leading zero, which YAML reads as an octal number; write {plain} for a count, "
+                f"or quote it ('{t}') if it is text")
+
+
+class _Refused(Exception):
+    """A YAML feature a shop file never needs, with where it is."""
+
+    def __init__(self, problem: str, mark):
+        super().__init__(problem)
+        self.problem, self.mark = problem, mark
+
+
+@lru_cache(maxsize=None)
 def _yaml_loader_class(max_depth: int):
     import yaml
 
     class LimitedSafeLoader(yaml.SafeLoader):
-        """Safe loader that also refuses aliases, deep nesting and repeated keys.
+        """Safe loader that also refuses anchors, aliases, merge keys, deep
+        nesting, repeated keys and numbers a shop does not write that way.
 
-        Aliases are refused outright: shop files never need them and they are
-        how an "alias bomb" grows a few hundred bytes into gigabytes.
+        Anchors and aliases are refused outright: shop files never need them
+        and they are how an "alias bomb" grows a few hundred bytes into gigabytes.
         """
 
         _depth = 0
 
         def compose_node(self, parent, index):
-            if self.check_event(yaml.AliasEvent):
-                event = self.peek_event()
-                raise yaml.constructor.ConstructorError(
-                    None, None, "aliases (*name) are not accepted", event.start_mark)
+            event = self.peek_event()
+            if isinstance(event, yaml.AliasEvent):
+                raise _Refused(f"anchors and aliases (*{event.anchor}) are not accepted; write the value out in full",
+                               event.start_mark)
+            if getattr(event, "anchor", None) is not None:
+                raise _Refused(f"anchors and aliases (&{event.anchor}) are not accepted; write the value out in full",
+                               event.start_mark)
             self._depth += 1
             try:
                 if self._depth > max_depth:
-                    raise yaml.constructor.ConstructorError(
-                        None, None, f"nested deeper than {max_depth} levels",
-                        self.peek_event().start_mark)
+                    raise _Refused(f"nested deeper than {max_depth} levels", event.start_mark)
                 return super().compose_node(parent, index)
             finally:
                 self._depth -= 1
@@ -205,19 +264,51 @@ def _yaml_loader_class(max_depth: int):
         def construct_mapping(self, node, deep=False):
             seen = set()
             for key_node, _ in node.value:
+                if key_node.tag == "tag:yaml.org,2002:merge":
+                    raise _Refused("merge keys (<<) are not accepted; write the fields out in full",
+                                   key_node.start_mark)
                 key = self.construct_object(key_node, deep=True)
                 try:
                     hashable = key in seen
                 except TypeError:
-                    raise yaml.constructor.ConstructorError(
-                        None, None, "a mapping key must be plain text", key_node.start_mark)
+                    raise _Refused("a YAML mapping key must be plain text", key_node.start_mark) from None
                 if hashable:
-                    raise yaml.constructor.ConstructorError(
-                        None, None, f"key {key!r} appears twice", key_node.start_mark)
+                    raise _Refused(f"key {key!r} appears twice", key_node.start_mark)
                 seen.add(key)
             return super().construct_mapping(node, deep=deep)
 
+        def construct_yaml_int(self, node):
+            text = self.construct_scalar(node)
+            return int(text) if _DECIMAL.fullmatch(text) else OddNumeral(text)
+
+        def construct_yaml_float(self, node):
+            text = self.construct_scalar(node)
+            if "_" in text or ":" in text:
+                return OddNumeral(text)
+            return super().construct_yaml_float(node)
+
+    LimitedSafeLoader.add_constructor("tag:yaml.org,2002:int", LimitedSafeLoader.construct_yaml_int)
+    LimitedSafeLoader.add_constructor("tag:yaml.org,2002:float", LimitedSafeLoader.construct_yaml_float)
     return LimitedSafeLoader
+
+
+def _first_odd_numeral(node, path=()):
+    """(path, numeral) of the first :class:`OddNumeral` in document order, or None."""
+    if isinstance(node, OddNumeral):
+        return path, node
+    if isinstance(node, dict):
+        for k, v in node.items():
+            if isinstance(k, OddNumeral):
+                return path + (k.text,), k
+            found = _first_odd_numeral(v, path + (k,))
+            if found:
+                return found
+    elif isinstance(node, list):
+        for i, v in enumerate(node):
+            found = _first_odd_numeral(v, path + (i,))
+            if found:
+                return found
+    return None
 
 
 def read_yaml_file(path, *, max_bytes: int = MAX_YAML_BYTES, max_depth: int = MAX_YAML_DEPTH):
@@ -230,21 +321,127 @@ def read_yaml_file(path, *, max_bytes: int = MAX_YAML_BYTES, max_depth: int = MA
     return parse_yaml_bytes(read_limited(path, max_bytes), str(path), max_bytes=max_bytes, max_depth=max_depth)
 
 
-def read_limited(path, max_bytes: int) -> bytes:
-    """The bytes of a YAML file, reading at most one byte past ``max_bytes`` (so an
-    oversized file is noticed without reading it all); faults name the file."""
+def _not_regular(mode: int, what: str) -> str | None:
+    """Why a file of this ``st_mode`` is refused, or None for a regular file."""
+    if stat.S_ISREG(mode):
+        return None
+    if stat.S_ISDIR(mode):
+        return f"is a folder, expected a {what}"
+    if stat.S_ISFIFO(mode):
+        kind = "a named pipe (FIFO)"
+    elif stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        kind = "a device"
+    elif stat.S_ISSOCK(mode):
+        kind = "a socket"
+    else:
+        kind = "not a plain file"
+    return f"is {kind}, not a regular file; expected a {what}"
+
+
+def _refuse_os_error(label: str, exc: OSError, what: str):
+    if isinstance(exc, FileNotFoundError):
+        return InputError(label, "file not found")
+    if isinstance(exc, IsADirectoryError):
+        return InputError(label, f"is a folder, expected a {what}")
+    if isinstance(exc, PermissionError):
+        return InputError(label, "cannot read: permission denied")
+    return InputError(label, f"cannot read: {exc.strerror or exc}")
+
+
+def require_regular_file(path, what: str = "file") -> None:
+    """Refuse ``path`` unless it is a regular file or does not exist yet.
+
+    Called before a library (SQLite) opens a file itself: a FIFO given as a
+    register would block that open for ever, a device would be read without end.
+
+    Raises
+    ------
+    InputError
+        ``path`` names a folder, a FIFO, a device or a socket; the error names it.
+    """
     label = str(path)
     try:
-        with open(Path(path), "rb") as fh:
-            return fh.read(max_bytes + 1)
+        mode = os.stat(path).st_mode
     except FileNotFoundError:
-        raise InputError(label, "file not found") from None
-    except IsADirectoryError:
-        raise InputError(label, "is a folder, expected a YAML file") from None
-    except PermissionError:
-        raise InputError(label, "cannot read: permission denied") from None
+        return
     except OSError as exc:
-        raise InputError(label, f"cannot read: {exc.strerror or exc}") from None
+        raise _refuse_os_error(label, exc, what) from None
+    why = _not_regular(mode, what)
+    if why:
+        raise InputError(label, why)
+
+
+def read_limited(path, max_bytes: int, what: str = "YAML file") -> bytes:
+    """The bytes of a regular file, reading at most one byte past ``max_bytes``
+    (so an oversized file is noticed without reading it all); faults name the file.
+
+    A FIFO, a device (``/dev/zero``), a socket or a folder is refused by name
+    without blocking: the file is stat-ed first, then opened with ``O_NONBLOCK``
+    and checked again on the open descriptor, so a file swapped in between is
+    caught too.  Reading a regular file of bounded size cannot wait for a writer.
+
+    Examples
+    --------
+    >>> read_limited("/dev/zero", 10)
+    Traceback (most recent call last):
+    ...
+    windsheet.errors.InputError: /dev/zero: is a device, not a regular file; expected a YAML file
+    """
+    label = str(path)
+    try:
+        why = _not_regular(os.stat(path).st_mode, what)
+        if why:
+            raise InputError(label, why)
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0)
+                     | getattr(os, "O_CLOEXEC", 0))
+    except OSError as exc:
+        raise _refuse_os_error(label, exc, what) from None
+    try:
+        why = _not_regular(os.fstat(fd).st_mode, what)
+        if why:
+            raise InputError(label, why)
+        chunks, left = [], max_bytes + 1
+        while left > 0:
+            chunk = os.read(fd, min(left, 1 << 20))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            left -= len(chunk)
+        return b"".join(chunks)
+    except OSError as exc:
+        raise _refuse_os_error(label, exc, what) from None
+    finally:
+        os.close(fd)
+
+
+#: A shop's CSV table (wire catalog, readings) is a few hundred rows. [bytes]
+MAX_CSV_BYTES = 1_000_000
+
+
+def read_csv_rows(path, what: str = "CSV file", max_bytes: int = MAX_CSV_BYTES) -> list[dict]:
+    """The rows of a CSV file with a header line, as dicts, read with :func:`read_limited`.
+
+    UTF-8 (a spreadsheet's byte-order mark is dropped).  A field over the
+    ``csv`` module's limit (128 K characters) or a malformed quote is refused
+    with the line it is on; every refusal is an :class:`InputError` naming the file.
+    """
+    label = str(path)
+    raw = read_limited(path, max_bytes, what)
+    if len(raw) > max_bytes:
+        raise InputError(label, f"file is larger than {max_bytes // 1000} kB; not a {what}")
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputError(label, f"is not UTF-8 text; expected a {what}") from None
+    if "\x00" in text:
+        raise InputError(label, "contains NUL characters (binary file?)")
+    reader = csv.DictReader(io.StringIO(text, newline=""))
+    try:
+        return list(reader)
+    except csv.Error as exc:
+        problem = (f"a field is longer than {csv.field_size_limit()} characters" if "field limit" in str(exc)
+                   else f"not readable as CSV ({exc})")
+        raise InputError(label, f"line {reader.line_num + 1}: {problem}; expected a {what}") from None
 
 
 def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
@@ -261,7 +458,10 @@ def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
     if "\x00" in text:
         raise InputError(label, "contains NUL characters (binary file?)")
     try:
-        return yaml.load(text, Loader=_yaml_loader_class(max_depth))  # noqa: S506 - SafeLoader subclass
+        doc = yaml.load(text, Loader=_yaml_loader_class(max_depth))  # noqa: S506 - SafeLoader subclass
+    except _Refused as exc:
+        where = f"line {exc.mark.line + 1}, column {exc.mark.column + 1}: " if exc.mark else ""
+        raise InputError(label, f"{where}{exc.problem}") from None
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
         where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
@@ -271,3 +471,8 @@ def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
         raise InputError(label, f"not valid YAML: {exc}") from None
     except RecursionError:
         raise InputError(label, "nested too deeply") from None
+    odd = _first_odd_numeral(doc)
+    if odd:
+        where, numeral = odd
+        raise InputError(join_path(*where) or label, numeral.reason())
+    return doc

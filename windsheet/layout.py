@@ -1,8 +1,11 @@
 """Winding layout: where every turn of every strand sits.
 
 Pure geometry on SI numbers.  Strands are wound side by side, A, B, … in each
-pitch slot; layers are wound back and forth (layer 1 returns over layer 0),
-layer tape adds to the radius between layers.  A winding that does not fit
+pitch slot, touching (or, asked for, evenly spread across the pitch); layers are
+wound back and forth (layer 1 returns over layer 0).  Untaped close-wound
+layers nest: each upper turn lies in the groove between two turns below,
+half a conductor spacing along and ``d·√3/2`` out.  Taped (or spaced) layers
+stack, one wire diameter plus the tape apart.  A winding that does not fit
 raises :class:`WindingDoesNotFit` saying by how much.
 
 Coordinates
@@ -23,6 +26,9 @@ import numpy as np
 
 #: Multilayer bulge allowance on build height (common practice: about 10 %).
 BULGE_ALLOWANCE = 1.10
+LAYER_STYLES = ("nested", "stacked")
+#: How the strands of one slot sit: touching side by side, or spread evenly over the pitch.
+STRAND_SPACINGS = ("together", "even")
 #: Angle left free between start and finish on a toroid (common practice: 20–30°).
 TOROID_GAP_DEG = 30.0
 
@@ -60,6 +66,13 @@ class Layout:
         Axial advance per slot, i.e. per turn of one strand. [m]
     copper_diameter, overall_diameter : float
         Bare and insulated wire diameter. [m]
+    layer_style : str
+        ``"nested"`` (upper turns in the grooves below) or ``"stacked"``.
+    layer_step : float
+        Radial distance between the conductor centres of adjacent layers. [m]
+    strand_spacing : float
+        Axial distance between neighbouring strands of one slot: the overall
+        diameter when together, ``pitch / strands`` when spread evenly. [m]
     """
 
     kind: str
@@ -82,6 +95,12 @@ class Layout:
     build_height: float = 0.0
     traverse_used: float = 0.0
     notes: tuple = field(default_factory=tuple)
+    layer_style: str = "stacked"
+    layer_step: float = 0.0
+    strand_spacing: float = 0.0
+    # Results derived from the geometry alone (the neighbour search), kept
+    # with the layout so that each is computed once however often it is asked for.
+    _memo: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def n_turns(self) -> int:
@@ -114,10 +133,13 @@ class Layout:
                 yield lay, s, float(self.r[sel][0]), z0, lo, hi
 
 
-def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
-    """Turns per layer; full layers first, the remainder in the last."""
+def _layer_plan(turns: int, slots_max: int, layers, across: str = "the traverse") -> list[int]:
+    """Turns per layer; full layers first, the remainder in the last.
+
+    ``across`` names the width wound across as the order names it.
+    """
     if slots_max < 1:
-        raise WindingDoesNotFit("not even one turn fits across the traverse")
+        raise WindingDoesNotFit(f"not even one turn fits across {across}")
     if layers in (None, "auto"):
         n_layers = math.ceil(turns / slots_max)
         per = slots_max
@@ -125,14 +147,14 @@ def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
             raise WindingDoesNotFit(
                 f"{turns} turns at {slots_max} per layer need {n_layers} layers, more than the "
                 f"{MAX_LAYERS} windsheet lays out: short by {turns - MAX_LAYERS * slots_max} turn(s) "
-                "(give the form a max_build, a longer traverse or a finer wire)")
+                f"(give the form a max_build, more room across {across} or a finer wire)")
     else:
         n_layers = int(layers)
         per = math.ceil(turns / n_layers)
         if per > slots_max:
             raise WindingDoesNotFit(
                 f"{turns} turns in {n_layers} layer(s) need {per} turns per layer, "
-                f"the traverse holds {slots_max}; short by {per - slots_max} turn(s) per layer"
+                f"{across} holds {slots_max}; short by {per - slots_max} turn(s) per layer"
             )
     plan = [per] * (n_layers - 1) + [turns - per * (n_layers - 1)]
     if plan[-1] <= 0:
@@ -142,25 +164,31 @@ def _layer_plan(turns: int, slots_max: int, layers) -> list[int]:
     return plan
 
 
-def _wind(plan, strands, pitch, d, r_of_layer, length_of_layer, z_offset=0.0):
-    """Place turns back and forth, layer by layer."""
-    rows = []  # (r, z, layer, slot, strand, index, length)
-    count = [0] * strands
+def _wind(plan, strands, pitch, d, r_of_layer, length_of_layer, z_shift=lambda lay: 0.0,
+          spacing=None):
+    """Place turns back and forth, layer by layer (vectorised, one block per layer).
+
+    Strand ``s`` of slot ``k`` sits at ``z = k·pitch + s·spacing + d/2
+    + z_shift(layer)``, so each (layer, strand) group keeps one radius and
+    ``z = z0 + slot·pitch`` (the shape :meth:`Layout.groups` promises).
+    """
+    spacing = d if spacing is None else spacing
+    blocks = []
+    count = 0  # turns of each strand laid so far
     end_slot = 0  # slot where the previous layer finished
     for lay, n in enumerate(plan):
-        if lay % 2 == 0:
-            slots = range(n)
-        else:
-            slots = range(end_slot, end_slot - n, -1)
-        for k in slots:
-            for s in range(strands):
-                z = z_offset + k * pitch + s * d + d / 2
-                rows.append((r_of_layer(lay), z, lay, k, s, count[s], length_of_layer(lay)))
-                count[s] += 1
-        end_slot = slots[-1]
-    a = np.array(rows, dtype=float)
-    return (a[:, 0], a[:, 1], a[:, 2].astype(int), a[:, 3].astype(int),
-            a[:, 4].astype(int), a[:, 5].astype(int), a[:, 6])
+        slots = np.arange(n) if lay % 2 == 0 else end_slot - np.arange(n)
+        k = np.repeat(slots, strands)
+        s = np.tile(np.arange(strands), n)
+        index = count + np.repeat(np.arange(n), strands)
+        z = k * pitch + s * spacing + d / 2 + z_shift(lay)
+        blocks.append((np.full(k.size, r_of_layer(lay)), z, np.full(k.size, lay), k, s, index,
+                       np.full(k.size, length_of_layer(lay))))
+        count += n
+        end_slot = int(slots[-1])
+    cols = [np.concatenate(c) for c in zip(*blocks)]
+    return (cols[0].astype(float), cols[1].astype(float), cols[2].astype(int), cols[3].astype(int),
+            cols[4].astype(int), cols[5].astype(int), cols[6].astype(float))
 
 
 def _check_pitch(pitch, strands, d):
@@ -174,14 +202,91 @@ def _check_pitch(pitch, strands, d):
     return pitch
 
 
-def _slots_across(width, strands, d, pitch):
+def _strand_spacing(spacing, strands, d, pitch):
+    """Distance between neighbouring strands of a slot. [m]"""
+    if spacing not in (None,) + STRAND_SPACINGS:
+        raise ValueError(f"strand spacing is together or even, got {spacing!r}")
+    return pitch / strands if spacing == "even" else d
+
+
+def _slot_width(strands, d, spacing):
+    """Axial room one slot's strands take."""
+    return (strands - 1) * spacing + d
+
+
+def _slots_across(width, strands, d, pitch, spacing=None):
     """Slots that fit in ``width``: the last slot's strands must fit too."""
-    return int(math.floor((width - strands * d) / pitch + 1e-9)) + 1 if width >= strands * d else 0
+    need = _slot_width(strands, d, d if spacing is None else spacing)
+    return int(math.floor((width - need) / pitch + 1e-9)) + 1 if width >= need * (1 - 1e-12) else 0
+
+
+def layer_geometry(layer_style, tape, pitch, strands, d, spacing=None):
+    """Style, radial step and axial shift of alternate layers for a winding.
+
+    Parameters
+    ----------
+    layer_style : str or None
+        ``"nested"``, ``"stacked"``, or ``None`` for the default: untaped
+        close-wound layers nest, taped or spaced layers stack.
+    tape : float
+        Layer tape thickness. [m]
+    pitch : float
+        Axial advance per turn of one strand. [m]
+    strands : int
+        Strands wound side by side.
+    d : float
+        Overall wire diameter. [m]
+    spacing : float or None
+        Distance between neighbouring strands of a slot; default ``d``. [m]
+
+    Returns
+    -------
+    style : str
+    step : float
+        Radial distance between adjacent layers' conductor centres:
+        ``d·√3/2`` nested (three touching circles), ``d + tape`` stacked. [m]
+    shift : float
+        Axial offset of every second layer: half the conductor spacing when
+        nested, 0 when stacked. [m]
+
+    Raises
+    ------
+    ValueError
+        ``"nested"`` asked for with layer tape, or with spaced turns (there
+        are no grooves for the upper layer to lie in).
+
+    References
+    ----------
+    Orthocyclic (nested) and layer-on-layer winding, common practice; the
+    ``√3/2`` spacing is the geometry of touching equal circles.
+
+    Examples
+    --------
+    >>> style, step, shift = layer_geometry(None, 0.0, 0.5e-3, 1, 0.5e-3)
+    >>> style, round(step * 1e3, 4), round(shift * 1e3, 4)
+    ('nested', 0.433, 0.25)
+    >>> layer_geometry(None, 50e-6, 0.5e-3, 1, 0.5e-3)[0]
+    'stacked'
+    """
+    spacing = d if spacing is None else spacing
+    close = abs(pitch - strands * d) <= 1e-9 * strands * d and abs(spacing - d) <= 1e-9 * d
+    if layer_style is None:
+        layer_style = "nested" if tape <= 0 and close else "stacked"
+    if layer_style not in LAYER_STYLES:
+        raise ValueError(f"layer style is nested or stacked, got {layer_style!r}")
+    if layer_style == "nested":
+        if tape > 0:
+            raise ValueError("taped layers stack: the tape keeps the upper layer out of the grooves")
+        if not close:
+            raise ValueError("only close-wound layers nest: spaced turns leave no grooves to lie in")
+        return "nested", d * math.sqrt(3.0) / 2.0, d / 2.0
+    return "stacked", d + tape, 0.0
 
 
 def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, strands, turns,
                     layers=None, pitch=None, tape=0.0, max_build=None, kind="cylinder",
-                    turn_length_of_layer=None) -> Layout:
+                    turn_length_of_layer=None, layer_style=None, strand_spacing=None,
+                    across="the traverse", build_limit="the form") -> Layout:
     """Lay out a layer winding on a cylindrical former or bobbin.
 
     Parameters
@@ -205,55 +310,84 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
         Layer tape thickness between layers. [m]
     max_build : float or None
         Largest radial build allowed. [m]
+    layer_style : str or None
+        ``"nested"`` or ``"stacked"``; default by construction (see
+        :func:`layer_geometry`).
+    strand_spacing : str or None
+        ``"together"`` (default: the strands of a slot touch, side by side)
+        or ``"even"`` (spread evenly over the pitch).
+    across, build_limit : str
+        How messages name the traverse and the build limit (a bobbin's
+        window ``width`` and ``height``).
 
     Returns
     -------
     Layout
 
+    Notes
+    -----
+    The last turn of a nested layer is laid half a conductor spacing past
+    the one below; at a full layer it climbs against the flange.  The
+    position used stands for it.
+
     References
     ----------
     Layer-wound, back-and-forth construction and the ~10 % multilayer bulge
     allowance are common practice.
+
+    Examples
+    --------
+    >>> lay = cylinder_layout(0.02, 10e-3, 0.45e-3, 0.5e-3, 1, 40)
+    >>> lay.layers, lay.turns_in_layer, lay.layer_style
+    (2, (20, 20), 'nested')
     """
     d = overall_diameter
     pitch = _check_pitch(pitch, strands, d)
-    slots_max = _slots_across(traverse, strands, d, pitch)
+    spacing = _strand_spacing(strand_spacing, strands, d, pitch)
+    style, step, shift = layer_geometry(layer_style, tape, pitch, strands, d, spacing)
+    slots_max = _slots_across(traverse, strands, d, pitch, spacing)
     if slots_max < 1:
         raise WindingDoesNotFit(
-            f"{strands} strand(s) of {d * 1e3:.3f} mm need {strands * d * 1e3:.3f} mm, "
-            f"the traverse is {traverse * 1e3:.3f} mm"
+            f"{strands} strand(s) of {d * 1e3:.3f} mm need {_slot_width(strands, d, spacing) * 1e3:.3f} mm, "
+            f"{across} is {traverse * 1e3:.3f} mm"
         )
-    plan = _layer_plan(turns, slots_max, layers)
+    plan = _layer_plan(turns, slots_max, layers, across)
     n_layers = len(plan)
-    build = n_layers * d + (n_layers - 1) * tape
+    build = d + (n_layers - 1) * step
     allowance = BULGE_ALLOWANCE if n_layers > 1 else 1.0
     notes = []
     if max_build is not None and build * allowance > max_build * (1 + 1e-9):
         raise WindingDoesNotFit(
             f"{n_layers} layers build {build * allowance * 1e3:.2f} mm (with "
-            f"{(allowance - 1) * 100:.0f} % bulge allowance), the form allows "
+            f"{(allowance - 1) * 100:.0f} % bulge allowance), {build_limit} allows "
             f"{max_build * 1e3:.2f} mm; over by {(build * allowance - max_build) * 1e3:.2f} mm"
         )
     if n_layers > 1:
         notes.append(f"build includes a {(allowance - 1) * 100:.0f} % multilayer bulge "
                      "allowance (common practice)")
 
+    if style == "nested" and n_layers > 1:
+        notes.append("untaped layers nest in the grooves of the layer below (orthocyclic, "
+                     "d·√3/2 apart)")
+
     def r_of_layer(lay):
-        return diameter / 2 + d / 2 + lay * (d + tape)
+        return diameter / 2 + d / 2 + lay * step
 
     length = turn_length_of_layer or (lambda lay: 2 * math.pi * r_of_layer(lay))
-    r, z, layer, slot, strand, index, tl = _wind(plan, strands, pitch, d, r_of_layer, length)
-    used = (max(plan) - 1) * pitch + strands * d
+    r, z, layer, slot, strand, index, tl = _wind(plan, strands, pitch, d, r_of_layer, length,
+                                                 lambda lay: shift * (lay % 2), spacing)
+    used = (max(plan) - 1) * pitch + _slot_width(strands, d, spacing)
     return Layout(kind=kind, strands=strands, turns_per_strand=turns, layers=n_layers,
                   slots_per_layer=slots_max, pitch=pitch, copper_diameter=copper_diameter,
                   overall_diameter=d, tape=tape, r=r, z=z, layer=layer, slot=slot,
                   strand=strand, index=index, turn_length=tl, turns_in_layer=tuple(plan),
-                  build_height=build * allowance, traverse_used=used, notes=tuple(notes))
+                  build_height=build * allowance, traverse_used=used, notes=tuple(notes),
+                  layer_style=style, layer_step=step, strand_spacing=spacing)
 
 
 def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, turns,
                   diameter=None, mean_turn_length=None, layers=None, pitch=None,
-                  tape=0.0) -> Layout:
+                  tape=0.0, layer_style=None, strand_spacing=None) -> Layout:
     """Lay out a winding in a bobbin window.
 
     Parameters
@@ -275,12 +409,14 @@ def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, tur
         # An equivalent round surface whose middle of the window has the stated MLT.
         diameter = max(mean_turn_length / math.pi - height, overall_diameter)
     return cylinder_layout(diameter, width, copper_diameter, overall_diameter, strands, turns,
-                           layers=layers, pitch=pitch, tape=tape, max_build=height, kind="bobbin")
+                           layers=layers, pitch=pitch, tape=tape, max_build=height, kind="bobbin",
+                           layer_style=layer_style, strand_spacing=strand_spacing,
+                           across="the bobbin's width", build_limit="the bobbin's height")
 
 
 def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overall_diameter,
                   strands, turns, layers=None, pitch=None, tape=0.0,
-                  gap_deg=TOROID_GAP_DEG) -> Layout:
+                  gap_deg=TOROID_GAP_DEG, layer_style=None, strand_spacing=None) -> Layout:
     """Lay out a winding on a toroidal core.
 
     Turns are counted on the inner circumference, where they crowd; each layer
@@ -302,20 +438,22 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
     if outer_diameter <= inner_diameter:
         raise WindingDoesNotFit("the toroid's outer diameter must exceed its inner diameter")
     pitch = _check_pitch(pitch, strands, d)
+    spacing = _strand_spacing(strand_spacing, strands, d, pitch)
+    style, step, shift = layer_geometry(layer_style, tape, pitch, strands, d, spacing)
     usable = (360.0 - gap_deg) / 360.0
 
     def rho(lay):  # radius of the conductor centres on the inside of the core
-        return inner_diameter / 2 - d / 2 - lay * (d + tape)
+        return inner_diameter / 2 - d / 2 - lay * step
 
     if rho(0) <= d:
         raise FormTooSmall(
             f"wire of {d * 1e3:.3f} mm does not pass through a {inner_diameter * 1e3:.2f} mm hole "
             f"with room to wind: the hole needs more than {3 * d * 1e3:.3f} mm (three wire diameters)")
-    slots0 = _slots_across(2 * math.pi * rho(0) * usable, strands, d, pitch)
-    plan = _layer_plan(turns, slots0, layers)
+    slots0 = _slots_across(2 * math.pi * rho(0) * usable, strands, d, pitch, spacing)
+    plan = _layer_plan(turns, slots0, layers, "the core's inner circumference")
     # Inner layers have a shorter circumference: check each one.
     for lay, n in enumerate(plan):
-        cap = _slots_across(2 * math.pi * rho(lay) * usable, strands, d, pitch) if rho(lay) > d else 0
+        cap = _slots_across(2 * math.pi * rho(lay) * usable, strands, d, pitch, spacing) if rho(lay) > d else 0
         if n > cap:
             raise WindingDoesNotFit(
                 f"layer {lay + 1} needs {n} turns per strand on the inside of the core, "
@@ -323,50 +461,17 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
     w = (outer_diameter - inner_diameter) / 2
 
     def length(lay):  # wire centre runs round the core section, offset by the build
-        delta = d / 2 + lay * (d + tape)
+        delta = d / 2 + lay * step
         return 2 * (w + height) + 2 * math.pi * delta
 
-    r, z, layer, slot, strand, index, tl = _wind(plan, strands, pitch, d, lambda lay: lay * (d + tape), length)
+    r, z, layer, slot, strand, index, tl = _wind(plan, strands, pitch, d, lambda lay: lay * step, length,
+                                                 lambda lay: shift * (lay % 2), spacing)
     n_layers = len(plan)
     return Layout(kind="toroid", strands=strands, turns_per_strand=turns, layers=n_layers,
                   slots_per_layer=slots0, pitch=pitch, copper_diameter=copper_diameter,
                   overall_diameter=d, tape=tape, r=r, z=z, layer=layer, slot=slot,
                   strand=strand, index=index, turn_length=tl, turns_in_layer=tuple(plan),
-                  build_height=n_layers * d + (n_layers - 1) * tape,
-                  traverse_used=(max(plan) - 1) * pitch + strands * d,
-                  notes=(f"{gap_deg:.0f}° left free between start and finish (common practice)",))
-
-
-def neighbours(layout: Layout):
-    """Pairs of physically adjacent conductors.
-
-    Returns
-    -------
-    i, j : ndarray of int
-        Turn indices (into the layout arrays) of each adjacent pair.
-    kind : ndarray of str
-        ``"side"`` (same layer, next along the traverse), ``"layer"`` (the
-        layer above or below, overlapping axially) or ``"lead"`` (a toroid's
-        start and finish, which meet across the gap).
-    """
-    I, J, K = [], [], []
-    d = layout.overall_diameter
-    for lay in range(layout.layers):
-        sel = np.flatnonzero(layout.layer == lay)
-        order = sel[np.argsort(layout.z[sel], kind="stable")]
-        I.extend(order[:-1]); J.extend(order[1:]); K.extend(["side"] * (order.size - 1))
-        if lay + 1 < layout.layers:
-            up = np.flatnonzero(layout.layer == lay + 1)
-            zs = layout.z[order]
-            for t in up:
-                lo = np.searchsorted(zs, layout.z[t] - d * 0.999)
-                hi = np.searchsorted(zs, layout.z[t] + d * 0.999)
-                for q in order[lo:hi]:
-                    I.append(q); J.append(t); K.append("layer")
-    if layout.kind == "toroid":
-        first = np.flatnonzero(layout.index == 0)
-        last = np.flatnonzero(layout.index == layout.turns_per_strand - 1)
-        for a in first:
-            for b in last:
-                I.append(a); J.append(b); K.append("lead")
-    return np.asarray(I, dtype=int), np.asarray(J, dtype=int), np.asarray(K, dtype=object)
+                  build_height=d + (n_layers - 1) * step,
+                  traverse_used=(max(plan) - 1) * pitch + _slot_width(strands, d, spacing),
+                  notes=(f"{gap_deg:.0f}° left free between start and finish (common practice)",),
+                  layer_style=style, layer_step=step, strand_spacing=spacing)

@@ -128,10 +128,10 @@ def coupling_coefficient(mutual, l1, l2):
 
 # --- Field types: quantities parsed at the edge ------------------------------------
 
-def _quantity(dimension: str, *, allow_zero: bool = False):
+def _quantity(dimension: str, *, allow_zero: bool = False, form=None):
     def parse(value):
         try:
-            return parse_quantity(value, dimension, "", allow_zero=allow_zero)
+            return parse_quantity(value, dimension, "", allow_zero=allow_zero, form=form)
         except InputError as exc:
             raise PydanticCustomError("quantity", exc.message) from None
     return BeforeValidator(parse)
@@ -306,7 +306,8 @@ class TapReading(_Model):
 class InsulationReadings(_Model):
     strand_to_strand: Optional[InsulationResistance] = None
     to_core: Optional[InsulationResistance] = None
-    test_voltage: Optional[Voltage] = None
+    # An insulation-resistance tester applies dc: '500 V' or '500 V dc'.
+    test_voltage: Optional[Annotated[float, _quantity("voltage", form="dc")]] = None
 
 
 class HipotReading(_Model):

@@ -14,12 +14,16 @@ import numpy as np
 
 from . import inductance as ind
 from . import layout as lay
-from . import stress
+from . import fmt, stress
 from .errors import InputError
+from .insulation import hipot_voltage
+from .leads import lead_routes
+from .remedies import advice, find_remedies
+from .limits import check_engine_work, check_turns_in_all
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
 from .qc_lines import required_lines
-from .wire import copper_mass, dc_resistance, grade_breakdowns
+from .wire import copper_mass, dc_resistance
 
 #: Most turns per strand sized, as for an order's winding.turns.
 MAX_TURNS = 100_000
@@ -36,10 +40,28 @@ HOOKUP_TEXT = {
 
 
 def _layout(order: Order, wire, turns: int):
+    """The order's layout at ``turns`` per strand, within the work budgets (windsheet.limits)."""
+    field = "winding.turns" if order.doc.winding.turns else "winding.target_inductance"
+    check_turns_in_all(turns, order.doc.winding.strands, field)
+    layout = _place_turns(order, wire, turns)
+    check_engine_work(layout.turns_per_strand, layout.layers, layout.strands, field)
+    return layout
+
+
+def _place_turns(order: Order, wire, turns: int):
     f, w = order.doc.form, order.doc.winding
     layers = None if w.layers == "auto" else w.layers
     args = dict(copper_diameter=wire.copper_diameter, overall_diameter=wire.overall_diameter,
                 strands=w.strands, turns=turns, layers=layers, pitch=w.pitch, tape=order.tape)
+    # Checked first, so that a style the construction cannot take is refused at its own field.
+    try:
+        lay.layer_geometry(w.layer_style, order.tape, w.pitch or w.strands * wire.overall_diameter,
+                           w.strands, wire.overall_diameter,
+                           (w.pitch or w.strands * wire.overall_diameter) / w.strands
+                           if w.strand_spacing == "even" else wire.overall_diameter)
+    except ValueError as exc:
+        raise InputError("winding.layer_style", str(exc)) from None
+    args.update(layer_style=w.layer_style, strand_spacing=w.strand_spacing)
     try:
         if isinstance(f, CylinderForm):
             # Enamel is only proven to survive a mandrel of the wire's own diameter
@@ -77,10 +99,10 @@ def _strand_lengths(order: Order, layout):
     return layout.strand_length() + 2 * order.doc.winding.lead_length
 
 
-def _inductance_matrix(order: Order, wire, layout):
+def _inductance_matrix(order: Order, wire, layout, kernels=None):
     al = _al(order)
     if al is None:
-        return ind.strand_matrix(layout)
+        return ind.strand_matrix(layout, kernels)
     S = layout.strands
     L = ind.cored_strand_matrix([layout.turns_per_strand] * S, al, order.doc.winding.coupling)
     if S > 1:
@@ -99,45 +121,134 @@ def _network(order: Order, L, R, frequency):
     return solve_network(L, R, order.joins, order.terminals, frequency, hookup=order.hookup_name)
 
 
-def _terminal_inductance(order, wire, turns):
+def _terminal_inductance(order, wire, turns, kernels=None):
     layout = _layout(order, wire, turns)
-    L = _inductance_matrix(order, wire, layout)
+    L = _inductance_matrix(order, wire, layout, kernels)
     R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter, conductor=wire.conductor)
     return _network(order, L, R, order.doc.test.frequency).inductance
+
+
+def _estimate_turns(values, target):
+    """Turns per strand estimated to give the target, from the counts sized so far.
+
+    ``values`` maps counts tried to their terminal inductance (``None``: not
+    sized).  Terminal inductance grows about as a power of the turns, so the
+    estimate is a secant on log L against log N through the two sized counts
+    nearest the target; with one count only the power is taken as 2.
+    """
+    sized = sorted((n for n, v in values.items() if v is not None),
+                   key=lambda n: abs(math.log(values[n] / target)))
+    a = sized[0]
+    power = 2.0
+    if len(sized) > 1:
+        b = sized[1]
+        if values[b] != values[a]:
+            power = min(4.0, max(0.5, math.log(values[b] / values[a]) / math.log(b / a)))
+    return a * (target / values[a]) ** (1.0 / power)
+
+
+def _bracket_turns(inductance_at, target, start=10, max_turns=MAX_TURNS):
+    """Adjacent whole turn counts ``lo``, ``lo + 1`` either side of the target.
+
+    ``inductance_at(n)`` gives the terminal inductance at ``n`` turns per
+    strand, or ``None`` when ``n`` turns cannot be sized (they do not fit,
+    or exceed the work budget).  Inductance rises with the turns, so counts
+    that overshoot and counts that cannot be sized bound the search from
+    above.  A secant in log-log takes a handful of evaluations, each kept
+    inside the bracket; after eight the search halves the bracket instead.
+
+    Returns
+    -------
+    lo, hi : int or None
+        Largest count tried at or below the target (``None``: even one turn
+        overshoots) and the smallest tried above it or not sizable.
+    values : dict
+        Every count tried and its inductance (``None``: not sized). [H]
+    need : float or None
+        Set when the search stopped because the target needs at least ``hi``
+        turns, which cannot be sized, or more than ``max_turns``: the
+        estimated turns per strand.
+    """
+    values, lo, hi, n = {}, None, None, max(1, min(start, max_turns))
+    for step in range(200):
+        v = values[n] = inductance_at(n)
+        if v is None or v > target:
+            hi = n if hi is None else min(hi, n)
+        else:
+            lo = n if lo is None else max(lo, n)
+        if hi == 1 or (lo is not None and hi is not None and hi - lo == 1):
+            break
+        if all(x is None for x in values.values()):
+            n = max(1, hi // 2)                       # nothing sized yet: look lower
+            continue
+        guess = _estimate_turns(values, target)
+        if (hi is None and guess > max_turns) or (hi is not None and values[hi] is None and guess >= hi):
+            return lo, hi, values, guess
+        if step >= 8 and lo is not None and hi is not None:
+            n = (lo + hi) // 2
+        else:
+            n = int(round(guess))
+            n = max(n, lo + 1) if lo is not None else n
+            n = min(n, hi - 1) if hi is not None else n
+            n = max(1, min(n, max_turns))
+    return lo, hi, values, None
 
 
 def solve_turns(order: Order, wire):
     """Turns per strand for the order's target inductance.
 
-    Terminal inductance grows close to N², so Newton steps on sqrt(L) converge
-    in a few evaluations of the full engine; the nearest whole number wins.
+    Brackets the target between two adjacent whole turn counts (a few
+    evaluations of the engine, sharing their kernels) and takes the nearer
+    by log error.  A target
+    that no whole count meets within the order's inductance tolerance is
+    refused, naming the nearest counts and what they give.
     """
     target = order.doc.winding.target_inductance
-    n = 10
-    for _ in range(12):
-        got = _terminal_inductance(order, wire, n)
+    tol = order.doc.tolerances.inductance
+    errors = {}
+    kernels = {}                 # one form and wire throughout: steps share their kernels
+
+    def inductance_at(n):
+        try:
+            got = _terminal_inductance(order, wire, n, kernels)
+        except InputError as exc:
+            errors[n] = exc
+            return None
         if got <= 0:
             raise InputError("hookup", "this hookup has no net inductance; a target inductance cannot be met")
-        nxt = max(1, int(round(n * math.sqrt(target / got))))
-        if nxt > MAX_TURNS:
-            raise InputError("winding.target_inductance", f"needs about {nxt} turns per strand, more than the "
-                             f"{MAX_TURNS} windsheet sizes: choose a larger form, a core, or a smaller target")
-        if nxt == n:
-            break
-        n = nxt
-    candidates = {}
-    for k in {max(1, n - 1), n, n + 1}:
-        try:
-            candidates[k] = _terminal_inductance(order, wire, k)
-        except InputError:
-            continue
+        return got
+
+    lo, hi, values, need = _bracket_turns(inductance_at, target)
+    if need is not None and hi is None:
+        raise InputError("winding.target_inductance", f"needs about {need:.0f} turns per strand, more than the "
+                         f"{MAX_TURNS} windsheet sizes: choose a larger form, a core, or a smaller target")
+    candidates = {k: values[k] for k in (lo, hi) if k is not None and values.get(k) is not None}
     if not candidates:
-        _layout(order, wire, n)  # raises the does-not-fit message
+        raise errors[hi]                                   # not even one turn can be sized
     best = min(candidates, key=lambda k: abs(math.log(candidates[k] / target)))
+    if abs(candidates[best] / target - 1) > tol:
+        if hi in errors:                                   # the turns needed cannot be sized
+            raise InputError(errors[hi].path, f"needs {hi} or more turns per strand: {errors[hi].message}")
+        raise InputError("winding.target_inductance", _unreachable(target, tol, lo, hi, values))
     exact = best * math.sqrt(target / candidates[best])
     return best, {"inductance_H": target, "turns_exact": exact, "turns_chosen": best,
                   "inductance_at_chosen_H": candidates[best],
                   "error": candidates[best] / target - 1, "fits": True}
+
+
+def _unreachable(target, tol, lo, hi, values):
+    """Why no whole turn count meets the target, with the nearest counts' values."""
+    def henry(x, trim=False):
+        return fmt.eng(x, "H", trim=trim, sep=" ")
+
+    band = "±" + fmt.percent(tol).replace(fmt.NBSP, " ")
+    if lo is None:
+        near = f"the fewest, 1 turn, gives {henry(values[1])}"
+    else:
+        near = f"{lo} turn{'s give' if lo > 1 else ' gives'} {henry(values[lo])}, {hi} turns {henry(values[hi])}"
+    return (f"{henry(target, trim=True)} cannot be met in whole turns within the {band} inductance tolerance: "
+            f"{near}. Give a target within {band} of a whole-turn value, widen the tolerance, "
+            "or change the form or wire")
 
 
 def _hz(x):
@@ -155,34 +266,9 @@ def _refuse_above_self_resonance(duty, srf):
                          "or use fewer turns or a construction with less capacitance")
 
 
-def _grade_advice(insulation, wire, derating):
-    """Say whether any enamel grade of this copper size would hold the turn-to-turn voltage.
-
-    The verdict judges the wire chosen; a shop also needs to know whether a heavier
-    build is the cure or whether the construction itself must change.
-    """
-    worst = insulation["worst_adjacent_Vpk"]
-    # Only the grades the table gives at this size; a catalog wire may have none.
-    allowed = {g: derating * bd for g, bd in grade_breakdowns(wire.copper_diameter).items()}
-    top = max(allowed) if allowed else None
-    holds = worst <= max(allowed.get(top, 0.0), insulation["allowed_Vpk"])
-    out = {**insulation, "any_grade_holds": bool(holds),
-           "grade_allowed_Vpk": {str(g): float(a) for g, a in allowed.items()}}
-    if insulation["verdict"] != "fail" or worst <= insulation["allowed_Vpk"]:
-        return out
-    if not allowed:
-        reason = (f"The wire tables give no enamel grade for this size; the chosen wire allows "
-                  f"{insulation['allowed_Vpk']:.0f} V peak against {worst:.0f} V peak between neighbours.")
-    elif not holds:
-        reason = (f"No enamel grade holds {worst:.0f} V peak between neighbours: even grade {top} "
-                  f"at this size allows {allowed.get(top, 0.0):.0f} V peak ({derating:.0%} of its breakdown). Change the "
-                  "hookup or the construction (fewer volts per turn, sectioned or layer-insulated winding).")
-    else:
-        g = min(k for k in sorted(allowed) if allowed[k] >= worst)
-        reason = (f"Grade {g} enamel at this size would allow {allowed[g]:.0f} V peak "
-                  f"({derating:.0%} of its breakdown), enough for the turn-to-turn voltage.")
-    out["reasons"] = list(insulation["reasons"]) + [reason]
-    return out
+def _lead_routes(order: Order):
+    r = order.doc.winding.leads
+    return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
 
 
 def _pairs(L, R, frequency):
@@ -217,8 +303,13 @@ def _cross_section(layout, keep=6):
             "kind": layout.kind}
 
 
-def predict(order: Order, today: _dt.date | None = None) -> dict:
-    """Size an order: the complete Prediction, JSON-ready, SI units."""
+def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) -> dict:
+    """Size an order: the complete Prediction, JSON-ready, SI units.
+
+    With ``remedies``, an insulation verdict short of a pass lists the order
+    changes that improve it, each found by sizing the changed order again
+    (:mod:`windsheet.remedies`).
+    """
     doc = order.doc
     wire = resolve_wire(order)
     warnings = list(wire.warnings)
@@ -255,15 +346,27 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
     strand_i = np.abs(duty_net.strand_current) * i_term
 
+    # Each turn's share of its strand's voltage: its own resistance at the duty
+    # temperature and the EMF of its own flux linkage (uniform per turn on a core).
+    ohm_per_m = float(dc_resistance(1.0, wire.copper_diameter, t_op))
+    cored = _al(order) is not None
+    drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
+                                 doc.winding.lead_length)
+    leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
     stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
-                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating)
-    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, **stress_args)
+                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
+                       leads=leads, impregnation=doc.winding.impregnation)
+    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
+                       **stress_args)
     if order.hookup_name == "separate" and S > 1:
         # Capacitance and resonance belong to one winding on its own; the
         # offset between windings only sets the insulation stress.
-        own = stress.assess(layout, separate_windings(L, Rhot), duty.voltage, duty.frequency,
-                            wire.breakdown, **stress_args)
+        own_net = separate_windings(L, Rhot)
+        own = stress.assess(layout, own_net, duty.voltage, duty.frequency, wire.breakdown,
+                            drops=stress.winding_drops(layout, own_net, duty.frequency, ohm_per_m, L,
+                                                       cored, doc.winding.lead_length),
+                            **stress_args)
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
               "self_resonance_Hz": own["self_resonance_Hz"],
@@ -294,7 +397,7 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
     energy = 0.5 * net.inductance * i_term ** 2
     elv = 120.0 if duty.frequency == 0 else 50.0
     highest_V = max(duty.voltage, duty.between_windings or 0.0)
-    return {
+    out = {
         "schema": "windsheet.prediction/1",
         "job": {"number": job.number, "part": job.part, "customer": job.customer, "quantity": job.quantity,
                 "revision": job.revision, "issued_by": job.issued_by,
@@ -316,6 +419,8 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
                  "conductor": wire.conductor, "min_overall_diameter_m": wire.min_overall_diameter,
                  "breakdown_test": wire.breakdown_test, "sources": list(wire.sources)},
         "winding": {"strands": S, "turns_per_strand": int(turns), "layers": layout.layers,
+                    "layer_style": layout.layer_style, "strand_spacing": doc.winding.strand_spacing,
+                    "impregnation": doc.winding.impregnation,
                     "turns_in_layer": list(layout.turns_in_layer), "pitch_m": layout.pitch,
                     "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
                     "layer_tape_rating_V": order.tape_rating,
@@ -323,7 +428,8 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
                     "close_wound": doc.winding.pitch is None, "target": target},
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
-        "duty": {"voltage_V": duty.voltage, "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
+        "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
+                 "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
                  "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
         "test": {"frequency_Hz": doc.test.frequency},
         "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
@@ -350,10 +456,10 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         "alternatives": alternative_hookups(L, R20, doc.test.frequency),
         "pairs": _pairs(L, R20, doc.test.frequency),
         "worst_adjacent": st["worst_adjacent"],
+        "leads": st["leads"],
         "capacitance": st["capacitance"],
-        "insulation": {**_grade_advice(st["insulation"], wire, doc.insulation.derating),
-                       "ir_min_ohm": doc.insulation.min_resistance},
-        "hipot": {**st["hipot"], "voltage_V": stress.hipot_voltage(highest_V)},
+        "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
+        "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
         "qc_required": required_lines(S, bool(net.joins), True),
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
@@ -361,6 +467,14 @@ def predict(order: Order, today: _dt.date | None = None) -> dict:
         "cross_section": _cross_section(layout),
         "warnings": warnings,
     }
+    if remedies:
+        ins = out["insulation"]
+        found = find_remedies(order, out, lambda changed: predict(changed, today, remedies=False))
+        out["insulation"] = {**ins, "remedies": found,
+                             "reasons": list(ins["reasons"]) + advice(found, ins["verdict"])}
+    else:
+        out["insulation"] = {**out["insulation"], "remedies": None}
+    return out
 
 
 def _inductance_accept(predicted, target, tol):

@@ -25,6 +25,7 @@ from typing import Optional
 
 from .errors import InputError
 from . import register_schema as schema
+from .fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
 from .sheet_ledger import finish_pending, record_pending
 from .qc_lines import status_of
@@ -556,6 +557,7 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
     """
     p = resolve_register_path(str(path) if path is not None else None)
     label = str(p)
+    require_regular_file(p, "register file")
     if not p.exists():
         if not create:
             raise InputError(label, "no register here yet; issue the job's traveller first "
@@ -626,6 +628,7 @@ def open_register_readonly(path=None) -> Register:
     """
     p = resolve_register_path(str(path) if path is not None else None)
     label = str(p)
+    require_regular_file(p, "register file")
     if not p.exists():
         raise InputError(label, "no register here yet; issue the job's traveller first "
                                 "(or: windsheet register --issue ORDER.yaml)")

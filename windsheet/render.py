@@ -17,7 +17,23 @@ from markupsafe import Markup
 from .diagrams import cross_section_svg, winding_terminals, wiring_svg
 from .errors import InputError
 
-TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
+
+
+def _templates_dir() -> Path:
+    """The templates folder: inside the installed package, else the source tree's.
+
+    The wheel maps the top-level ``templates/`` into ``windsheet/templates``
+    (pyproject ``package-dir``); an editable install reads the folder in place.
+    """
+    from importlib.resources import files
+
+    packaged = files("windsheet") / "templates"
+    if packaged.is_dir():
+        return Path(str(packaged)).resolve()
+    return Path(__file__).resolve().parent.parent / "templates"
+
+
+TEMPLATES_DIR = _templates_dir()
 
 #: Page sizes by the CLI's ``--paper`` word; CSS ``@page size`` keywords.
 PAPER_SIZES = {"a4": "A4", "letter": "letter"}
@@ -227,7 +243,7 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "strand_ids": ids,
         "terminal_names": terminal_names(hookup, ids),
         "joins_text": [" + ".join(j) for j in hookup.get("joins") or []],
-        "wiring_svg": Markup(wiring_svg(hookup, ids, labels)),
+        "wiring_svg": Markup(wiring_svg(hookup, ids, labels, lead_notes(p))),
         "cross_section_svg": Markup(cross_section_svg(p.get("cross_section") or {},
                                                       (p.get("form") or {}).get("kind") or "")),
         "section_wide": _widest_layer(p.get("cross_section") or {}) > 14,
@@ -241,6 +257,17 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "unit_tables": unit_tables((p.get("job") or {}).get("units") or []),
         "insulation_rows": insulation_rows(ins),
     }
+
+
+def lead_notes(p: dict) -> list[tuple[str, str]]:
+    """``(end, route in words)`` for every lead the prediction routes, joints named."""
+    out = []
+    for lead in p.get("leads") or []:
+        how = lead.get("route_text") or lead.get("route") or ""
+        if lead.get("joint"):
+            how = f"{how} (joint {lead['joint']})"
+        out.append((lead["lead"], how))
+    return out
 
 
 def _widest_layer(cross_section: dict) -> int:
@@ -307,8 +334,14 @@ def insulation_rows(ins: dict) -> list[tuple[str, str]]:
     add("Allowed between adjacent turns", "allowed_Vpk", lambda v: volt(v) + " peak")
     add("Margin (allowed ÷ worst)", "margin", lambda v: f"{float(v):.2f}")
     add("Paschen minimum, air", "paschen_min_Vpk", lambda v: volt(v) + " peak")
-    add("Partial-discharge inception, 20 °C (assumed)", "pdiv_Vpk", lambda v: volt(v) + " peak")
-    add("Partial-discharge inception, hot (assumed)", "pdiv_hot_Vpk", lambda v: volt(v) + " peak")
+    basis = {"estimated": "estimated", "measured": "measured"}.get(ins.get("pdiv_basis"), "")
+    pair = (ins.get("pd_pair") or {}).get("where")
+    if pair:
+        rows.append(("Pair nearest partial discharge", f"{pair}, "
+                     f"{volt((ins.get('pd_pair') or {}).get('voltage_Vpk'))} peak"))
+    add(f"Its partial-discharge inception, 20 °C ({basis})" if basis else
+        "Partial-discharge inception, 20 °C", "pdiv_Vpk", lambda v: volt(v) + " peak")
+    add("Its partial-discharge inception, hot", "pdiv_hot_Vpk", lambda v: volt(v) + " peak")
     add("Worst layer-to-layer voltage", "layer_Vpk", lambda v: volt(v) + " peak")
     add("Layer tape rating", "tape_rating_V", volt)
     return rows
@@ -419,6 +452,10 @@ def procedure_steps(p: dict) -> list[dict]:
     if toroid:
         start_text += (" Mark the start position on the core; the finish must stop short of it "
                        "by the gap shown below.")
+    routes = {lead["lead"]: lead for lead in p.get("leads") or []}
+    start_routes = sorted({routes[f"{s}.start"]["route_text"] for s in ids if f"{s}.start" in routes})
+    if start_routes:
+        start_text += f" Start lead{'s' if n > 1 else ''}: {'; '.join(start_routes)}."
     steps.append(_step("Anchor and label the start" + ("s" if n > 1 else ""), start_text))
 
     for lay in range(layers):
@@ -446,9 +483,12 @@ def procedure_steps(p: dict) -> list[dict]:
                            f"Stop so that {gap_text} of the core stays bare between the starts and "
                            "the finishes (common practice: 20–30°); start and finish leads must "
                            "not touch or cross.", ["gap checked"]))
+    finish_routes = sorted({f"{end}: {r['route_text']}" for end, r in routes.items()
+                            if end.endswith(".finish")})
     steps.append(_step("Secure the finish" + ("es" if n > 1 else ""),
                        f"Tape or tie the finish{'es' if n > 1 else ''} leaving {lead}; "
-                       f"tag every finish (\"A finish\", …)."))
+                       f"tag every finish (\"A finish\", …)."
+                       + (f" Route: {'; '.join(finish_routes)}." if finish_routes else "")))
 
     if n == 1:
         steps.append(_step("Continuity check",
@@ -480,9 +520,12 @@ def procedure_steps(p: dict) -> list[dict]:
             "are swapped in the tags.",
             [f"{a}+{b} aiding / opposing" for a, b in pairs]))
         for j in joins:
+            via = [routes[e]["route_text"] for e in j if e in routes and e.endswith(".finish")
+                   and routes[e].get("joint") and ".start" in routes[e]["joint"]]
             steps.append(_step(f"Make the joint {' + '.join(j)}",
                                "Per the wiring diagram: strip the enamel, twist, solder; "
-                               "sleeve the joint.", ["joined"]))
+                               "sleeve the joint." + (f" Joint lead {via[0]}." if via else ""),
+                               ["joined"]))
     sleeve = ", ".join(f"{t} = {end}" for t, end in terminal_names(hookup, ids))
     steps.append(_step("Sleeve and terminate",
                        f"Sleeve every lead; terminate and mark the terminals: {sleeve}.",
@@ -597,7 +640,11 @@ def qc_items(p: dict) -> list[dict]:
             items.append(item(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
                               henry(opp) if opp else "", "record (leakage)", judged=False))
     items += [
-        item("terminal.inductance", "Inductance at the terminals", henry(term.get("inductance_H")),
+        item("terminal.inductance", "Inductance at the terminals" + (
+             " (band: ordered target ± tolerance)" if acc.get("inductance_basis") == "target" else ""),
+             henry(term.get("inductance_H")) + (
+             f" ({acc['prediction_offset'] * 100:+.2f}{_NBSP}% from target)"
+             if acc.get("inductance_basis") == "target" else ""),
              band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
         item("terminal.resistance", "DC resistance at the terminals (at 20 °C)",
              ohm(term.get("resistance_ohm")),

@@ -324,20 +324,25 @@ def standard_wire(nominal_d, grade, thermal_class=155, label=None, standard=IEC,
 
 
 def load_catalog(path):
-    """Read a shop wire catalog (CSV) into ``{name: row}``; raises ValueError on a bad row."""
+    """Read a shop wire catalog (CSV) into ``{name: row}``; raises ValueError on a bad row.
+
+    The file is read bounded (:func:`windsheet.fileio.read_csv_rows`): a FIFO,
+    a device or an oversized file is refused by name with InputError.
+    """
+    from .fileio import read_csv_rows
+
     out = {}
-    with open(path, encoding="utf-8", newline="") as fh:
-        for n, row in enumerate(csv.DictReader(fh), start=2):
-            try:
-                out[row["name"].strip()] = Wire(
-                    label=row["name"].strip(), standard=row.get("source", "shop catalog") or "shop catalog",
-                    copper_diameter=float(row["copper_diameter_mm"]) * 1e-3,
-                    overall_diameter=float(row["overall_diameter_mm"]) * 1e-3,
-                    grade=int(row["grade"]) if row.get("grade") else None,
-                    thermal_class=int(row.get("thermal_class") or 155),
-                    breakdown=float(row["breakdown_V"]),
-                    source=f"shop catalog {path}, line {n}")
-            except (KeyError, TypeError, ValueError, AttributeError):
-                raise ValueError(f"line {n}: expected columns name, copper_diameter_mm, "
-                                 "overall_diameter_mm, breakdown_V, grade, thermal_class") from None
+    for n, row in enumerate(read_csv_rows(path, "wire catalog (CSV)"), start=2):
+        try:
+            out[row["name"].strip()] = Wire(
+                label=row["name"].strip(), standard=row.get("source", "shop catalog") or "shop catalog",
+                copper_diameter=float(row["copper_diameter_mm"]) * 1e-3,
+                overall_diameter=float(row["overall_diameter_mm"]) * 1e-3,
+                grade=int(row["grade"]) if row.get("grade") else None,
+                thermal_class=int(row.get("thermal_class") or 155),
+                breakdown=float(row["breakdown_V"]),
+                source=f"shop catalog {path}, line {n}")
+        except (KeyError, TypeError, ValueError, AttributeError):
+            raise ValueError(f"line {n}: expected columns name, copper_diameter_mm, "
+                             "overall_diameter_mm, breakdown_V, grade, thermal_class") from None
     return out
