@@ -178,3 +178,18 @@ def test_a_waiver_in_csv_passes_the_unit_and_is_kept_in_the_register(tmp_path):
     with sqlite3.connect(reg) as c:
         rows = [json.loads(m) for (m,) in c.execute("SELECT measurements_json FROM unit_signoffs")]
     assert len(rows) == 4 and all(m["waived"] == {"hipot": reason} for m in rows)
+
+
+def test_a_bad_csv_cell_is_named_by_row_and_column(tmp_path):
+    reg = issued(tmp_path)
+    p = predict(load_order(BIFILAR))
+
+    def garble(k, row):
+        if k == 2:
+            row["terminal.inductance [uH]"] = "about 400"
+    readings = filled_csv(tmp_path, p, garble)
+    r = run("signoff", BIFILAR, readings, "--inspector", "M. Lindqvist", "--register", reg)
+    # Bad input: one line naming the cell, exit 2, nothing recorded.
+    assert r.exit_code == 2
+    assert "row 4, column 'terminal.inductance [uH]'" in r.output and r.output.count("\n") == 1
+    assert "signed off" not in run("register", "HL-0412", "--register", reg).output

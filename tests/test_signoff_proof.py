@@ -301,3 +301,17 @@ def test_single_strand_resistance_on_prediction_rules_out_a_turn_count():
     res = sign(p, o, [full_unit(p, L * 1.14, R)])
     f = [d for d in res["units"][0]["diagnosis"] if d["scope"] == "terminals"][0]
     assert f["basis"] != "turns" and "turns per strand" not in f["finding"]
+
+
+@pytest.mark.parametrize("tol, verdict", [("10 %", "pass"), ("10 %, strand_balance: 1 %", "fail")])
+def test_the_order_can_set_the_balance_tolerance(tol, verdict):
+    o, p = design(2, "series-aiding", turns=60, tol=tol)
+    L, R = arrays(p)
+    # Strand B one turn short (59 of 60), re-sized by the engine: about 2 % in L and R.
+    L59, R59 = strand_values_at_turns(o, 59)
+    Ls, Rs = L.copy(), R.copy()
+    Ls[1, 1], Rs[1] = L59[1, 1], R59[1]
+    Ls[0, 1] = Ls[1, 0] = L[0, 1] * 59 / 60
+    u = sign(p, o, [full_unit(p, Ls, Rs)])["units"][0]
+    assert ("fail" if any(x["result"] == "fail" for x in u["lines"] if x["key"].startswith("balance."))
+            else "pass") == verdict

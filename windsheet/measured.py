@@ -470,7 +470,7 @@ def load_measured(path) -> MeasuredFile:
     (``.csv``: one row per unit, one column per QC line, see readings_form.py)."""
     if str(path).lower().endswith(".csv"):
         from .fileio import MAX_YAML_BYTES, read_limited
-        from .readings_form import measured_dict_from_csv
+        from .readings_form import measured_from_csv
 
         raw = read_limited(path, MAX_YAML_BYTES)
         if len(raw) > MAX_YAML_BYTES:
@@ -479,7 +479,7 @@ def load_measured(path) -> MeasuredFile:
             text = raw.decode("utf-8-sig")
         except UnicodeDecodeError:
             raise InputError(str(path), "is not UTF-8 text") from None
-        return measured_from_dict(measured_dict_from_csv(text, str(path)))
+        return measured_from_csv(text, str(path))
     data = read_yaml_file(path)
     try:
         return measured_from_dict(data)

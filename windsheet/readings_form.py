@@ -132,8 +132,30 @@ def _path_of(key: str, where: str) -> list[str]:
     raise InputError(where, f"unknown column {key!r}; expected a QC line like 'terminal.inductance [uH]'")
 
 
-def measured_dict_from_csv(text: str, label: str = "readings.csv") -> dict:
-    """A measured-values document (as from YAML) built from CSV rows."""
+def measured_from_csv(text: str, label: str = "readings.csv"):
+    """Validated measured values from CSV text; a fault names its row and column."""
+    from .measured import measured_from_dict
+
+    columns: dict = {}
+    doc = measured_dict_from_csv(text, label, columns)
+    try:
+        return measured_from_dict(doc)
+    except InputError as exc:
+        m = re.match(r"^units\[(\d+)\]\.?(.*)$", exc.path or "")
+        if not m:
+            raise
+        k, rest = int(m.group(1)), m.group(2)
+        col = next((c for path, c in columns.items() if rest == path or rest.startswith(path + ".")), None)
+        where = f"{label}: row {k + 2}" + (f", column {col!r}" if col else (f", {rest}" if rest else ""))
+        raise InputError(where, exc.message) from None
+
+
+def measured_dict_from_csv(text: str, label: str = "readings.csv", columns=None) -> dict:
+    """A measured-values document (as from YAML) built from CSV rows.
+
+    ``columns``, when given, is filled with the dotted document path of each
+    column (``terminals.inductance``) against the header that gave it.
+    """
     rows = list(csv.reader(io.StringIO(text)))
     rows = [r for r in rows if any(c.strip() for c in r)]
     if len(rows) < 2:
@@ -145,6 +167,8 @@ def measured_dict_from_csv(text: str, label: str = "readings.csv") -> dict:
             raise InputError(f"{label}:column {k + 1}", f"cannot read header {h!r}; expected 'name [unit]'")
         name, unit = m.group(1), m.group(2)
         cols.append((name, unit, None if name in _FILE_FIELDS else _path_of(name, f"{label}:{h}")))
+        if columns is not None and cols[-1][2]:
+            columns[".".join(cols[-1][2])] = h.strip()
     if not any(c[0] == "serial" for c in cols):
         raise InputError(label, "needs a 'serial' column")
     doc: dict = {}
