@@ -48,6 +48,8 @@ def fields_of_file(path: Path) -> tuple[dict, list[tuple[str, dict]]]:
         for pair, state in (u.get("continuity") or {}).items():
             # A two-strand coil has one pair: strand_to_strand is that pair.
             f["continuity.strand_to_strand"] = state
+        if u.get("waive"):
+            f["waive"] = "; ".join(f"{k}: {v}" for k, v in u["waive"].items())
         if "ambient" in u:
             f["ambient"] = str(u["ambient"])
         units.append((u["serial"], f))

@@ -89,7 +89,9 @@ def test_enter_judge_sign_off_and_download(page, server, tmp_path):
     page.fill('input[name="r:0:terminals.resistance"]', "1.7431 ohm")
     # The server judges the line as it is typed; the browser only shows its words.
     summary = page.locator('[id="s-0"]')
-    summary.get_by_text("PASS").wait_for()
+    # In band, but the other required lines are not read yet.
+    _cell(page, 0, "terminal.resistance").get_by_text("PASS").wait_for()
+    summary.get_by_text("INCOMPLETE").wait_for()
     page.fill('input[name="r:0:strands.A.inductance"]', "100.4 uH")
     _cell(page, 0, "strand.A.inductance").get_by_text("PASS 100.4").wait_for()
     # Out of band: about 50 % over the strand's predicted inductance.
@@ -113,10 +115,11 @@ def test_enter_judge_sign_off_and_download(page, server, tmp_path):
 
 def test_drafts_survive_a_server_restart(page, server):
     page.goto(server.url + "/job/HL-0412")
+    page.fill('input[name="r:job:ambient"]', "21.5 degC")
     page.fill('input[name="r:3:terminals.inductance"]', "400.6 uH")
     page.fill('input[name="r:3:terminals.resistance"]', "1.7488 ohm")
-    # Saved once the server has answered with the unit's judgement.
-    page.locator('[id="s-3"]').get_by_text(re.compile("PASS|FAIL")).wait_for()
+    # Saved once the server has answered with the line's judgement.
+    _cell(page, 3, "terminal.resistance").get_by_text(re.compile("PASS|FAIL")).wait_for()
     server.stop()
     server.start()
     page.goto(server.url + "/job/HL-0412")

@@ -84,12 +84,14 @@ def test_job_list_and_every_serial(client):
         assert f'<th class="serial">{serial}</th>' in job
 
 
-def test_required_lines_marked(client):
+def test_required_lines_marked(client, issued_register):
     page = client.get(f"/job/{JOB}").text
     rows = re.findall(r'<tr data-row="([^"]+)"><th scope="row">[^<]*(<span class="required")?', page)
     required = {key for key, mark in rows if mark}
-    # Today's sign-off cannot judge a unit without its terminal readings (measured.py).
-    assert required == {"terminal.inductance", "terminal.resistance"}
+    # The traveller that issued the job prints exactly the required lines in its QC record.
+    traveller = (issued_register.parent / "t.html").read_text()
+    assert required == set(re.findall(r'<tr data-qc="([^"]+)"', traveller))
+    assert {"strand.turns", "notes", "waive"} <= {key for key, mark in rows if not mark}
 
 
 @pytest.mark.parametrize("sample", ["HL-0412.measured.yaml", "HL-0412-reversed.measured.yaml"])
@@ -106,6 +108,23 @@ def test_same_verdicts_as_the_measured_file(client, reg_path, sample):
     expected.pop("date"), bench.pop("date")  # the bench dates its sign-off today
     dumps = lambda d: json.dumps(d, sort_keys=True, allow_nan=False)  # noqa: E731
     assert dumps(bench) == dumps(expected)
+
+
+def test_waiver_same_as_the_file(client, reg_path):
+    sample = yaml.safe_load((SAMPLES / "HL-0412.measured.yaml").read_text())
+    del sample["units"][0]["hipot"]
+    sample["units"][0]["waive"] = {"hipot": "withstand tested by the customer at goods-in"}
+    (reg_path.parent / "waived.measured.yaml").write_text(yaml.safe_dump(sample))
+    enter_file(client, reg_path.parent / "waived.measured.yaml")
+    sign_off(client, sample["inspector"])
+    bench = latest_result(reg_path)
+    with open_register(reg_path, create=False) as reg:
+        state = reg.job_state(JOB)
+        _, issued = reg.find_issue(JOB, state["revision"], state["order_sha256"])
+    expected = evaluate_signoff(issued, load_measured(reg_path.parent / "waived.measured.yaml"),
+                                inspector=sample["inspector"])
+    assert bench["units"][0]["waived"] == {"hipot": "withstand tested by the customer at goods-in"}
+    assert json.dumps(bench["units"], sort_keys=True) == json.dumps(expected["units"], sort_keys=True)
 
 
 def test_downloaded_file_signs_off_the_same_through_the_cli(client, reg_path, tmp_path):
@@ -128,7 +147,9 @@ def test_out_of_band_line_turns_fail(client):
     save(client, "job", "ambient", "21.5 degC")
     save(client, 0, "terminals.inductance", "398.1 uH")
     body = save(client, 0, "terminals.resistance", "1.7431 ohm").json()
-    assert body["units"]["0"]["summary"]["verdict"] == "PASS"
+    # The other required lines are not read yet: in band so far, but not proven.
+    assert body["units"]["0"]["cells"]["terminal.inductance"][0]["cls"] == "pass"
+    assert body["units"]["0"]["summary"]["verdict"] == "INCOMPLETE"
     # 150 uH on a strand predicted near 100 uH (the issued prediction's band is ±10 %).
     body = save(client, 0, "strands.A.inductance", "150 uH").json()
     cell = body["units"]["0"]["cells"]["strand.A.inductance"]

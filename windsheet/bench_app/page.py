@@ -15,6 +15,8 @@ from ..errors import InputError
 from . import service
 from .readings import field_of_path, measured_document, qc_rows, unit_document
 
+#: The cell, under each unit's verdict, of lines no QC row of the form takes.
+OTHER = "other"
 #: At most this many faulty fields are peeled off one unit before giving up.
 _MAX_FAULTS = 40
 
@@ -29,7 +31,7 @@ def row_of_line(line_key: str) -> str:
     if parts[0] == "continuity":
         return "continuity.strand_to_strand"
     if parts[0] == "hipot":
-        return "hipot.result"
+        return "hipot"
     return line_key
 
 
@@ -46,7 +48,7 @@ def preview_unit(prediction: dict, revision: str, job_entries: dict, serial: str
     errors, job_errors = {}, {}
     out = {"errors": errors, "job_errors": job_errors, "unit": None, "message": ""}
     for _ in range(_MAX_FAULTS):
-        unit = unit_document(serial, entries, complete_only=True)
+        unit = unit_document(serial, entries)
         if unit is None:
             return dict(out, state="empty")
         doc = measured_document(number, revision, job_entries, [unit])
@@ -85,9 +87,10 @@ def cell_texts(preview: dict, rows: list[dict]) -> dict:
     from ..render import measured_text
 
     cells = {r["key"]: [] for r in rows}
+    cells[OTHER] = []
     field_row = {f: r["key"] for r in rows for f, _ in r["fields"]}
     for field, message in preview["errors"].items():
-        cells.setdefault(field_row.get(field, "notes"), []).append(
+        cells[field_row.get(field, OTHER)].append(
             {"text": f"{field}: {message}", "cls": "error"})
     unit = preview.get("unit") or {}
     for line in unit.get("lines") or []:
@@ -96,9 +99,9 @@ def cell_texts(preview: dict, rows: list[dict]) -> dict:
             else (line.get("note") or "")
         word = {"info": "read"}.get(line["result"], str(line["result"]).upper())
         text = f"{word} {value}".strip()
-        if key != line["key"] or len(rows) == 0:
+        if key != line["key"] or key not in cells:
             text = f"{line['item']}: {text}"
-        cells.setdefault(key, []).append({"text": text, "cls": line["result"]})
+        cells[key if key in cells else OTHER].append({"text": text, "cls": line["result"]})
     return cells
 
 
@@ -107,7 +110,7 @@ def unit_summary(preview: dict) -> dict:
     state = preview["state"]
     if state == "judged":
         u = preview["unit"]
-        return {"verdict": u["verdict"].upper(), "cls": u["verdict"],
+        return {"verdict": str(u["verdict"]).upper(), "cls": u["verdict"],
                 "findings": [d["finding"] for d in u.get("diagnosis") or []]}
     if state == "empty":
         return {"verdict": "no readings", "cls": "empty", "findings": []}

@@ -25,7 +25,7 @@ _INDUCTANCE = re.compile(r"(^strands\.[A-Z]\.inductance$)|(^terminals\.inductanc
 _FIELD = re.compile(r"^(strands\.[A-Z]\.(inductance|resistance|turns)|before_joint\.[A-Z]-[A-Z]\."
                     r"series_(aiding|opposing)|terminals\.(inductance|resistance)|"
                     r"insulation\.(strand_to_strand|to_core|test_voltage)|"
-                    r"hipot\.(voltage|duration|leakage|result)|continuity\.strand_to_strand|ambient|notes)$")
+                    r"hipot\.(voltage|duration|leakage|result)|continuity\.strand_to_strand|ambient|waive|notes)$")
 
 
 def is_unit_field(field: str) -> bool:
@@ -44,14 +44,17 @@ def qc_rows(prediction: dict, required: set) -> list[dict]:
     ids = [s["id"] for s in prediction.get("strands") or []]
     rows = []
     for it in qc_items(prediction):
-        key = it["key"]
-        fields = _fields_for(key, ids)
-        if not fields:
-            continue
-        # A required key may name the whole row's group ("hipot" for the hipot row).
-        rows.append({**it, "fields": fields, "required": key in required or key.split(".")[0] in required})
-    rows.append({"key": "notes", "label": "Notes", "predicted": "", "band": "", "judged": False,
-                 "fields": [("notes", "")], "required": False})
+        fields = _fields_for(it["key"], ids)
+        rows.append({**it, "fields": fields, "required": it["key"] in required})
+    turns = (prediction.get("strands") or [{}])[0].get("turns")
+    extra = [("strand.turns", "Turns counted (where checked)", f"{turns or ''}",
+              f"{turns} per strand" if turns else "record"),
+             ("waive", "Lines waived, with the reason", "", "line: reason; …"),
+             ("notes", "Notes", "", "")]
+    for key, label, predicted, band in extra:
+        if key not in {r["key"] for r in rows}:
+            rows.append({"key": key, "label": label, "predicted": predicted, "band": band, "judged": False,
+                         "fields": _fields_for(key, ids), "required": key in required})
     return rows
 
 
@@ -75,11 +78,15 @@ def _fields_for(key: str, ids: list) -> list[tuple[str, str]]:
         return [("insulation.strand_to_strand", "25 Gohm"), ("insulation.test_voltage", "500 V")]
     if key == "insulation.to_core":
         return [("insulation.to_core", "10 Gohm")]
-    if key == "hipot.result":
+    if key in ("hipot", "hipot.result"):
         return [("hipot.voltage", "1460 V"), ("hipot.duration", "60 s"),
                 ("hipot.leakage", "0.05 mA"), ("hipot.result", "pass / fail")]
     if key == "ambient":
         return [("ambient", "21.5 degC")]
+    if key == "waive":
+        return [("waive", "hipot: tested at goods-in")]
+    if key == "notes":
+        return [("notes", "")]
     return []
 
 
@@ -89,6 +96,11 @@ def _value(field: str, text: str):
         return {"resonant_frequency": f.strip(), "capacitor": c.strip()}
     if field.endswith(".turns") and text.isdigit():
         return int(text)
+    if field == "waive" and ":" in text:
+        # "line: reason; line: reason", the measured file's waive mapping in one line.
+        pairs = [p.partition(":") for p in text.split(";") if p.strip()]
+        if all(sep for _, sep, _ in pairs):
+            return {k.strip(): r.strip() for k, _, r in pairs}
     return text
 
 

@@ -54,26 +54,18 @@ def issued_order_text(reg, state: dict) -> str:
 
 def design_status(prediction: dict, state: Optional[dict] = None) -> str:
     """The issued design's status in words: the register's when it keeps one, else the prediction's."""
+    from ..qc_lines import status_of, status_words
+
     recorded = (state or {}).get("design_status")
-    if isinstance(recorded, dict) and recorded.get("state"):
-        return {"forced": "FORCED: fails its insulation check, issued with --force",
-                "failing": "FAILING: fails its insulation check"}.get(recorded["state"], recorded["state"])
-    verdict = (prediction.get("insulation") or {}).get("verdict")
-    # A failing design is issued only with --force.
-    return "FORCED: fails its insulation check, issued with --force" if verdict == "fail" \
-        else (verdict or "—")
+    status = recorded if isinstance(recorded, dict) and recorded.get("state") else status_of(prediction)
+    return status_words(status) or "ok"
 
 
 def required_lines(prediction: dict) -> set:
-    """QC line keys a sign-off cannot do without.
+    """QC line keys a sign-off cannot do without (``qc_required``, or made from the design)."""
+    from ..qc_lines import prediction_required_lines
 
-    Today's sign-off requires the terminal readings only; a prediction that lists
-    its required lines (``qc_required``) is taken at its word.
-    """
-    listed = prediction.get("qc_required")
-    if listed is not None:
-        return set(listed)
-    return {"terminal.inductance", "terminal.resistance"}
+    return set(prediction_required_lines(prediction))
 
 
 def parse(document: dict):
@@ -92,27 +84,20 @@ def evaluate(prediction: dict, document: dict, inspector: Optional[str] = None,
     """
     from ..signoff import evaluate_signoff
 
-    extra = {}
-    resize = _resizer(order_text)
-    if resize is not None:
-        extra["resize"] = resize
-    return evaluate_signoff(prediction, parse(document), inspector=inspector, **extra)
+    return evaluate_signoff(prediction, parse(document), inspector=inspector, resize=_resizer(order_text))
 
 
 _ORDERS: dict = {}
 
 
 def _resizer(order_text: Optional[str]):
-    """``windsheet signoff``'s re-sizing of the issued order, where this sign-off has one."""
-    try:
-        from ..predict import strand_values_at_turns
-    except ImportError:
-        return None
+    """``windsheet signoff``'s re-sizing of the issued order at other turn counts."""
     if not order_text:
         return None
     import functools
 
     from ..order import parse_order
+    from ..predict import strand_values_at_turns
 
     if order_text not in _ORDERS:
         if len(_ORDERS) > 16:
