@@ -28,7 +28,7 @@ from starlette.routing import Route
 from ..errors import InputError
 from . import service
 from .page import cell_texts, job_view, preview_unit, signoff_document, unit_summary
-from .readings import JOB_FIELDS, is_unit_field, qc_rows
+from .readings import JOB_FIELDS, is_unit_field, qc_rows, readings_csv_rows
 
 MAX_BODY_BYTES = 64 * 1024
 TOKEN_COOKIE = "ws_bench_token"
@@ -263,22 +263,35 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         return Response(data, media_type="application/pdf",
                         headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-signoff.pdf"'})
 
-    def _csv(reg, number):
+    def _csv(reg, number, who):
+        """The readings in the sign-off's CSV form: ``windsheet signoff ORDER this.csv`` reads it."""
+        state, prediction = service.issued(reg, number)
+        drafts = service.load_drafts(reg, number, state["revision"])
+        doc = signoff_document(prediction, state, drafts, who, None)
+        return _csv_text(readings_csv_rows(doc))
+
+    def _drafts_csv(reg, number):
+        """Every saved entry with its version, who saved it and when."""
         state, _ = service.issued(reg, number)
         drafts = service.load_drafts(reg, number, state["revision"])
-        buf = io.StringIO()
-        w = csv.writer(buf, lineterminator="\n")
-        w.writerow(["job", "revision", "serial", "field", "reading", "version", "saved_by", "saved_at"])
+        rows = [["job", "revision", "serial", "field", "reading", "version", "saved_by", "saved_at"]]
         for (serial, field), d in sorted(drafts.items()):
-            w.writerow([number, state["revision"], serial or "(job)", field, _cell(d["value"]), d["version"],
-                        _cell(d["saved_by"] or ""), d["saved_at"]])
-        return buf.getvalue()
+            rows.append([number, state["revision"], serial or "(job)", field, d["value"], d["version"],
+                         d["saved_by"] or "", d["saved_at"]])
+        return _csv_text(rows)
 
     async def readings_csv(request: Request):
         number = request.path_params["number"]
-        text = await run_in_threadpool(with_register, _csv, number)
+        who = (request.query_params.get("inspector") or "").strip()[:200] or None
+        text = await run_in_threadpool(with_register, _csv, number, who)
         return Response(text, media_type="text/csv; charset=utf-8",
                         headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-readings.csv"'})
+
+    async def drafts_csv(request: Request):
+        number = request.path_params["number"]
+        text = await run_in_threadpool(with_register, _drafts_csv, number)
+        return Response(text, media_type="text/csv; charset=utf-8",
+                        headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-entries.csv"'})
 
     def _yaml(reg, number, who):
         state, prediction = service.issued(reg, number)
@@ -323,6 +336,7 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         Route("/job/{number}/field", field_post, methods=["POST"]),
         Route("/job/{number}/signoff.pdf", signoff_pdf),
         Route("/job/{number}/readings.csv", readings_csv),
+        Route("/job/{number}/entries.csv", drafts_csv),
         Route("/job/{number}/measured.yaml", measured_yaml),
         Route("/static/{name}", static),
     ]
@@ -352,6 +366,14 @@ def _int(value) -> int:
 
 def _safe(number: str) -> str:
     return "".join(c if c.isalnum() or c in "-_." else "_" for c in number)[:80]
+
+
+def _csv_text(rows) -> str:
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    for row in rows:
+        w.writerow([_cell(str(c)) for c in row])
+    return buf.getvalue()
 
 
 def _cell(text: str) -> str:

@@ -175,3 +175,77 @@ def field_of_path(path: str, unit_index: int = 0) -> Optional[tuple[str, str]]:
     if top in JOB_FIELDS:
         return ("job", top)
     return None
+
+
+def csv_column(field: str) -> Optional[str]:
+    """The sign-off's CSV readings column (a QC line key) that carries a unit field."""
+    parts = field.split(".")
+    head = parts[0]
+    if head == "strands":
+        return f"strand.{parts[1]}.{parts[2]}"
+    if head == "before_joint":
+        return f"pair.{parts[1]}.{parts[2]}"
+    if head == "terminals":
+        return f"terminal.{parts[1]}"
+    if head in ("insulation", "hipot", "continuity") or field in ("ambient", "notes"):
+        return field
+    return None
+
+
+def readings_csv_rows(document: dict) -> list[list[str]]:
+    """A measured-values document as the sign-off's CSV readings (readings_form.py): one row a unit.
+
+    Cells hold the quantities as typed, each with its own unit; a waiver is a
+    ``waive.LINE`` column holding the reason.  A rung inductance is written as typed
+    (``f / C``), which the CSV reader does not take: give such a job as YAML.
+    """
+    flat_units = []
+    for unit in document.get("units") or []:
+        flat = {"serial": unit["serial"]}
+        for field, value in _flatten(unit):
+            if field == "serial":
+                continue
+            if field.startswith("waive."):
+                flat[field] = value
+                continue
+            if isinstance(value, dict) or field.endswith((".resonant_frequency", ".capacitor")):
+                continue
+            column = csv_column(field)
+            if column:
+                flat[column] = str(value)
+        for field in ("strands", "terminals", "before_joint"):
+            for path, v in _rung(unit.get(field)):
+                flat[csv_column(f"{field}.{path}")] = f"{v['resonant_frequency']} / {v['capacitor']}"
+        flat_units.append(flat)
+    # The CSV has no file-wide ambient or test frequency: each unit's row carries it.
+    for key in ("ambient", "test_frequency"):
+        if document.get(key):
+            for flat in flat_units:
+                flat.setdefault(key, str(document[key]))
+    head = ["job", "revision", "inspector", "date", "instruments", "serial"]
+    for flat in flat_units:
+        head += [c for c in flat if c not in head]
+    job_cells = {k: str(document.get(k) or "") for k in ("job", "revision", "inspector", "date", "instruments")}
+    rows = [head]
+    for flat in flat_units:
+        rows.append([job_cells[c] if c in job_cells else flat.get(c, "") for c in head])
+    return rows
+
+
+def _flatten(node, prefix=""):
+    for k, v in node.items():
+        path = f"{prefix}{k}"
+        if isinstance(v, dict) and not ("resonant_frequency" in v and "capacitor" in v):
+            yield from _flatten(v, path + ".")
+        else:
+            yield path, v
+
+
+def _rung(section, prefix=""):
+    if not isinstance(section, dict):
+        return
+    for k, v in section.items():
+        if isinstance(v, dict) and "resonant_frequency" in v and "capacitor" in v:
+            yield f"{prefix}{k}", v
+        elif isinstance(v, dict):
+            yield from _rung(v, f"{prefix}{k}.")
