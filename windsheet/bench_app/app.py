@@ -10,11 +10,14 @@ with Jinja2 autoescaping; a fault shows as a message, never a traceback.
 
 from __future__ import annotations
 
+import asyncio
 import csv
+import functools
 import datetime as _dt
 import hmac
 import io
 import secrets
+from concurrent.futures import ThreadPoolExecutor
 from urllib.parse import urlsplit
 
 import yaml
@@ -114,12 +117,25 @@ def create_app(register_path, token: str | None = None) -> Starlette:
             resp.set_cookie(CSRF_COOKIE, csrf, httponly=True, samesite="strict")
         return resp
 
-    def with_register(fn, *args):
-        reg = service.open_bench_register(register_path)
+    # One thread owns the register connection: opening a register checks the whole file,
+    # too much to do on every keystroke, and SQLite connections stay in their thread.
+    worker = ThreadPoolExecutor(max_workers=1, thread_name_prefix="bench-register")
+    held = {"reg": None}
+
+    def _in_worker(fn, *args):
+        if held["reg"] is None:
+            held["reg"] = service.open_bench_register(register_path)
         try:
-            return fn(reg, *args)
-        finally:
-            reg.close()
+            return fn(held["reg"], *args)
+        except BaseException as exc:
+            if not isinstance(exc, (InputError, HTTPException)) or getattr(exc, "path", None) == register_path:
+                # A fault of the register itself: open it afresh next time.
+                held["reg"].close()
+                held["reg"] = None
+            raise
+
+    async def with_register(fn, *args):
+        return await asyncio.get_running_loop().run_in_executor(worker, functools.partial(_in_worker, fn, *args))
 
     async def check_post(request: Request) -> dict:
         origin = request.headers.get("origin")
@@ -135,7 +151,7 @@ def create_app(register_path, token: str | None = None) -> Starlette:
     # -- pages ---------------------------------------------------------------------
 
     async def job_list(request: Request):
-        jobs = await run_in_threadpool(with_register, service.jobs)
+        jobs = await with_register(service.jobs)
         return render("bench_jobs.html.j2", request, jobs=jobs)
 
     def _job_context(reg, number, messages=(), signed=None):
@@ -149,7 +165,7 @@ def create_app(register_path, token: str | None = None) -> Starlette:
 
     async def job_page(request: Request):
         number = request.path_params["number"]
-        ctx = await run_in_threadpool(with_register, _job_context, number)
+        ctx = await with_register(_job_context, number)
         return render("bench_job.html.j2", request, **ctx)
 
     def _save_form(reg, number, form, who):
@@ -180,9 +196,9 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         number = request.path_params["number"]
         who = str(form.get("inspector") or "").strip()[:200] or None
         if form.get("action") == "signoff":
-            ctx = await run_in_threadpool(with_register, _save_then_signoff, number, form, who)
+            ctx = await with_register(_save_then_signoff, number, form, who)
         else:
-            ctx = await run_in_threadpool(with_register, _save_form, number, form, who)
+            ctx = await with_register(_save_form, number, form, who)
         return render("bench_job.html.j2", request, **ctx)
 
     def _save_then_signoff(reg, number, form, who):
@@ -217,7 +233,7 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         where, field = str(form.get("unit") or ""), str(form.get("field") or "")
         value, seen = str(form.get("value") or ""), _int(form.get("version"))
         who = str(form.get("inspector") or "").strip()[:200] or None
-        body = await run_in_threadpool(with_register, _save_one, number, where, field, value, seen, who)
+        body = await with_register(_save_one, number, where, field, value, seen, who)
         return JSONResponse(body, status_code=409 if body.get("stale") else 200)
 
     def _save_one(reg, number, where, field, value, seen, who):
@@ -255,11 +271,13 @@ def create_app(register_path, token: str | None = None) -> Starlette:
         last = service.latest_signoff(reg, number, state["revision"])
         if last is None:
             raise InputError("job", f"job {number} rev {state['revision']} has not been signed off yet")
-        return service.signoff_sheet_pdf(prediction, last)
+        return prediction, last
 
     async def signoff_pdf(request: Request):
         number = request.path_params["number"]
-        data = await run_in_threadpool(with_register, _pdf, number)
+        prediction, last = await with_register(_pdf, number)
+        # Rendered outside the register's thread: saves go on meanwhile.
+        data = await run_in_threadpool(service.signoff_sheet_pdf, prediction, last)
         return Response(data, media_type="application/pdf",
                         headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-signoff.pdf"'})
 
@@ -283,13 +301,13 @@ def create_app(register_path, token: str | None = None) -> Starlette:
     async def readings_csv(request: Request):
         number = request.path_params["number"]
         who = (request.query_params.get("inspector") or "").strip()[:200] or None
-        text = await run_in_threadpool(with_register, _csv, number, who)
+        text = await with_register(_csv, number, who)
         return Response(text, media_type="text/csv; charset=utf-8",
                         headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-readings.csv"'})
 
     async def drafts_csv(request: Request):
         number = request.path_params["number"]
-        text = await run_in_threadpool(with_register, _drafts_csv, number)
+        text = await with_register(_drafts_csv, number)
         return Response(text, media_type="text/csv; charset=utf-8",
                         headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-entries.csv"'})
 
@@ -302,7 +320,7 @@ def create_app(register_path, token: str | None = None) -> Starlette:
     async def measured_yaml(request: Request):
         number = request.path_params["number"]
         who = (request.query_params.get("inspector") or "").strip()[:200] or None
-        text = await run_in_threadpool(with_register, _yaml, number, who)
+        text = await with_register(_yaml, number, who)
         return Response(text, media_type="application/yaml; charset=utf-8",
                         headers={"Content-Disposition":
                                  f'attachment; filename="{_safe(number)}.measured.yaml"'})
