@@ -339,3 +339,10 @@ def test_cli_import_stays_light():
             "print(any(m.split('.')[0] in ('starlette', 'uvicorn', 'multipart') for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "False"
+
+
+def test_loopback_names_only(reg_path):
+    app = create_app(reg_path, allowed_hosts=["127.0.0.1", "localhost"])
+    assert TestClient(app, base_url="http://127.0.0.1:8765").get("/").status_code == 200
+    # A page of another site whose name was rebound to 127.0.0.1 sends its own Host.
+    assert TestClient(app, base_url="http://bench.evil.example:8765").get("/").status_code == 400

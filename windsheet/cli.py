@@ -671,7 +671,10 @@ def bench_cmd(register: Optional[str] = typer.Option(None, "--register", help="R
     actual = sock.getsockname()[1]
     typer.echo(f"windsheet bench: register {path}", err=True)
     typer.echo(f"windsheet bench: open {bench_address(host, actual, secret)}  (Ctrl-C stops)", err=True)
-    config = uvicorn.Config(create_app(path, token=secret), log_level="warning", access_log=False,
+    # On loopback without a token, only loopback names: refuses a rebound outside name.
+    hosts = None if secret else ["127.0.0.1", "localhost", "::1", "[::1]"]
+    config = uvicorn.Config(create_app(path, token=secret, allowed_hosts=hosts), log_level="warning",
+                            access_log=False,
                             server_header=False)
     server = uvicorn.Server(config)
     server.run(sockets=[sock])

@@ -99,8 +99,12 @@ async def _plain(send, status: int, text: str):
     await send({"type": "http.response.body", "body": body})
 
 
-def create_app(register_path, token: str | None = None) -> Starlette:
-    """The bench application over the register at ``register_path`` (fixed for its life)."""
+def create_app(register_path, token: str | None = None, allowed_hosts=None) -> Starlette:
+    """The bench application over the register at ``register_path`` (fixed for its life).
+
+    ``allowed_hosts`` limits the ``Host`` a request may name (on loopback: the loopback
+    names, so a page of another site rebinding its name to 127.0.0.1 is refused).
+    """
     from ..render import TEMPLATES_DIR, environment
 
     env = environment()
@@ -362,6 +366,10 @@ def create_app(register_path, token: str | None = None) -> Starlette:
                                                        Exception: on_fault})
     app.add_middleware(BodyLimit)
     app.add_middleware(TokenGate, token=token)
+    if allowed_hosts:
+        from starlette.middleware.trustedhost import TrustedHostMiddleware
+
+        app.add_middleware(TrustedHostMiddleware, allowed_hosts=list(allowed_hosts))
     return app
 
 
