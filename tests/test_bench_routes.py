@@ -346,3 +346,14 @@ def test_loopback_names_only(reg_path):
     assert TestClient(app, base_url="http://127.0.0.1:8765").get("/").status_code == 200
     # A page of another site whose name was rebound to 127.0.0.1 sends its own Host.
     assert TestClient(app, base_url="http://bench.evil.example:8765").get("/").status_code == 400
+
+
+@pytest.mark.parametrize("order", ["hl-0410-single.yaml", "hl-0415-noninductive.yaml"])
+def test_every_required_line_can_be_typed(tmp_path, order):
+    reg = issue_with_traveller(tmp_path, SAMPLES / order)
+    number = yaml.safe_load((SAMPLES / order).read_text())["job"]["number"]
+    page = TestClient(create_app(reg)).get(f"/job/{number}").text
+    traveller = (tmp_path / "t.html").read_text()
+    for key in set(re.findall(r'<tr data-qc="([^"]+)"', traveller)):
+        row = re.search(rf'<tr data-row="{re.escape(key)}">(.*?)</tr>', page, re.S)
+        assert row and 'name="r:0:' in row.group(1), key

@@ -75,9 +75,10 @@ def _fields_for(key: str, ids: list) -> list[tuple[str, str]]:
     if key == "continuity.strand_to_strand":
         return [("continuity.strand_to_strand", "open / shorted")]
     if key == "insulation.strand_to_strand":
-        return [("insulation.strand_to_strand", "25 Gohm"), ("insulation.test_voltage", "500 V")]
+        return [("insulation.strand_to_strand", "25 Gohm")]
     if key == "insulation.to_core":
-        return [("insulation.to_core", "10 Gohm")]
+        # Every coil has this row; the tester's voltage goes with it.
+        return [("insulation.to_core", "10 Gohm"), ("insulation.test_voltage", "500 V")]
     if key in ("hipot", "hipot.result"):
         return [("hipot.voltage", "1460 V"), ("hipot.duration", "60 s"),
                 ("hipot.leakage", "0.05 mA"), ("hipot.result", "pass / fail")]
