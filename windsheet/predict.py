@@ -16,6 +16,7 @@ from . import inductance as ind
 from . import layout as lay
 from . import fmt, stress
 from .errors import InputError
+from .fast_front import DEFAULT_GROUND_CAPACITANCE_F
 from .insulation import hipot_voltage
 from .leads import lead_routes
 from .remedies import advice, find_remedies
@@ -270,6 +271,30 @@ def _lead_routes(order: Order):
     return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
 
 
+def _end(name: str):
+    sid, which = name.split(".")
+    return STRAND_IDS.index(sid), 0 if which == "start" else 1
+
+
+def _edge(order: Order, net, turns: int):
+    """The fast edge a pulse or ``rise_time`` duty puts on the terminals, for stress.edge_stress."""
+    duty = order.doc.duty
+    if duty.waveform != "pulse" and duty.rise_time is None:
+        return None
+    ends = np.asarray(net.end_potential, dtype=complex)
+    if order.hookup_name == "separate":
+        # Each winding on its own circuit takes the same edge (as the network drives them in phase).
+        held = {(s, w): float(w) for s in range(ends.shape[0]) for w in (0, 1)}
+    else:
+        held = {_end(t): float(np.real(ends[_end(t)])) for t in net.terminals}
+    ties = [(_end(a), _end(b)) for group in net.joins for a, b in zip(group[:-1], group[1:])]
+    span = float(np.max(np.abs(ends[:, 1] - ends[:, 0]))) if ends.size else 1.0
+    given = duty.ground_capacitance is not None
+    return {"held": held, "ties": ties, "rise_time_s": duty.rise_time,
+            "ground_F": duty.ground_capacitance if given else DEFAULT_GROUND_CAPACITANCE_F,
+            "ground_given": given, "series_turns": int(round(turns / span)) if span > 0 else turns}
+
+
 def _pairs(L, R, frequency):
     """What each pair of strands reads linked series-aiding and series-opposing before the joint."""
     out = {}
@@ -357,7 +382,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                        pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
                        leads=leads, impregnation=doc.winding.impregnation)
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
-                       **stress_args)
+                       edge=_edge(order, duty_net, turns), **stress_args)
     if order.hookup_name == "separate" and S > 1:
         # Capacitance and resonance belong to one winding on its own; the
         # offset between windings only sets the insulation stress.
@@ -455,6 +480,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "alternatives": alternative_hookups(L, R20, doc.test.frequency),
         "pairs": _pairs(L, R20, doc.test.frequency),
         "worst_adjacent": st["worst_adjacent"],
+        "impulse": st["impulse"],
         "leads": st["leads"],
         "capacitance": st["capacitance"],
         "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
