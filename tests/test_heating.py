@@ -92,3 +92,17 @@ def test_overloaded_winding_fails_its_class_and_warns():
     assert th["hot_spot_C"] > p["wire"]["thermal_class_C"]
     assert th["verdict"] == "fail" and p["cautions"]["hot_surface"]
     assert any("thermal class" in w for w in p["warnings"])
+
+
+def test_traveller_shows_heating_edge_and_hot_surface():
+    from windsheet.render import render_traveller_html
+
+    doc = _multilayer(current="2.5 A", rise_time="100 ns")
+    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    html = render_traveller_html(p, forced=True)
+    th = p["thermal"]
+    assert "On the duty: AC resistance, heating" in html
+    assert f"{th['current_density_A_per_mm2']:.2f} A/mm²" in html and "common practice" in html
+    assert 'data-thermal="fail"' in html
+    assert "Hot surface" in html
+    assert "First turn under the edge" in html and "assumed: give duty.ground_capacitance" in html
