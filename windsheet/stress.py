@@ -151,7 +151,8 @@ def edge_stress(layout: Layout, nb, c, edge, peak):
     report : dict
         ``alpha``, ``series_capacitance_F``, ``ground_capacitance_F``,
         ``first_turn_Vpk``, ``first_turn_uniform_Vpk`` (the even share
-        V/N), ``first_turn_uniform_winding_Vpk`` (the closed form at this α),
+        V/N), ``first_turn_uniform_winding_Vpk`` (the closed form at this α, single
+        layers only),
         ``worst_pair_Vpk``, ``worst_pair_where``, ``edge_Vpk``, ``rise_time_s``.
 
     References
@@ -192,7 +193,8 @@ def edge_stress(layout: Layout, nb, c, edge, peak):
     turns_between = max(1, int(edge.get("series_turns", n)))
     share = peak / turns_between
     closed = None
-    if alpha is not None and math.isfinite(alpha):
+    # The closed form is a turn-by-turn ladder's: a check for a single layer only.
+    if alpha is not None and math.isfinite(alpha) and layout.layers == 1:
         closed = float(peak * (1.0 - uniform_initial_distribution(1.0 / turns_between, alpha)))
     k = int(np.argmax(dv)) if dv.size else None
     where = pair_record(layout, int(nb.i[k]), int(nb.j[k]), str(nb.kind[k]), dv[k])["where"] if k is not None else None
