@@ -106,3 +106,13 @@ def test_traveller_shows_heating_edge_and_hot_surface():
     assert 'data-thermal="fail"' in html
     assert "Hot surface" in html
     assert "First turn under the edge" in html and "assumed: give duty.ground_capacitance" in html
+
+
+def test_summary_names_heating_and_the_edge():
+    from windsheet.cli import summary_lines
+
+    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A", rise_time="100 ns")).encode(), "o.yaml"),
+                remedies=False)
+    text = "\n".join(summary_lines(p))
+    assert f"hot spot {p['thermal']['hot_spot_C']:.0f} °C (class 155)" in text and "Heating         FAIL" in text
+    assert "Fast edge" in text and "first turn" in text

@@ -91,9 +91,22 @@ def summary_lines(p: dict) -> list[str]:
         f"{eng(t['accept']['inductance_max_H'], 'H')}), R {eng(t['resistance_ohm'], 'Ω')} at 20 °C, "
         f"{eng(t['resistance_hot_ohm'], 'Ω')} at {p['duty']['operating_temperature_C']:.0f} °C")
     row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
+    if t.get("resistance_ac_ohm") is not None and p.get("ac_resistance") and p["duty"]["frequency_Hz"]:
+        row("", f"R {eng(t['resistance_ac_ohm'], 'Ω')} at {eng(p['duty']['frequency_Hz'], 'Hz')} "
+            f"(AC/DC {p['ac_resistance']['ratio']:.3f}), loss {eng(t['loss_W'], 'W')} at the duty current")
     if p.get("current_sheet_inductance_H"):
         row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "
             f"correction {eng(p['current_sheet_rosa_corrected_H'], 'H')} (strand A)")
+    th = p.get("thermal")
+    if th:
+        row("Heating", f"{th['verdict'].upper()} — surface +{th['surface_rise_K']:.1f} K, hot spot "
+            f"{th['hot_spot_C']:.0f} °C (class {th['thermal_class_C'] or '—'}), "
+            f"{th['current_density_A_per_mm2']:.2f} A/mm²")
+    imp = p.get("impulse")
+    if imp:
+        row("Fast edge", f"first turn {eng(imp['first_turn_Vpk'], 'V')} peak (even share "
+            f"{eng(imp['first_turn_uniform_Vpk'], 'V')}), worst pair {eng(imp['worst_pair_Vpk'], 'V')} peak"
+            + (f", α {imp['alpha']:.3g}" if imp.get("alpha") is not None else ""))
     wa = p["worst_adjacent"]
     row("Worst adjacent", f"{eng(wa['voltage_Vpk'], 'V')} peak — {wa['where']}")
     ins = p["insulation"]
