@@ -116,3 +116,14 @@ def test_summary_names_heating_and_the_edge():
     text = "\n".join(summary_lines(p))
     assert f"hot spot {p['thermal']['hot_spot_C']:.0f} °C (class 155)" in text and "Heating         FAIL" in text
     assert "Fast edge" in text and "first turn" in text
+
+
+def test_thermal_fail_is_not_issued_unless_forced():
+    from windsheet.errors import InputError
+    from windsheet.render import check_issuable
+
+    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
+    assert p["insulation"]["verdict"] != "fail" and p["thermal"]["verdict"] == "fail"
+    with pytest.raises(InputError, match="thermal check fails"):
+        check_issuable(p)
+    check_issuable(p, force=True)
