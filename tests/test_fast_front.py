@@ -24,7 +24,7 @@ def test_uniform_ladder_against_closed_form(alpha):
     # α² = Cg_total / Cs_total with Cs_total = cs/(n − 1), Cg_total = n·cg.
     cg = alpha ** 2 * cs / (n - 1) / n
     i, j, c, g = ladder(n, cs, cg)
-    v = capacitive_distribution(n, i, j, c, g, {0: 1.0, n - 1: 0.0})
+    v, _ = capacitive_distribution(n, i, j, c, g, {0: 1.0, n - 1: 0.0})
     x = np.arange(n) / (n - 1)
     # Closed form V(x) = V0·sinh(α(1 − x))/sinh(α) (Wagner 1915; Heathcote, J & P Transformer Book §8.1).
     ref = np.sinh(alpha * (1 - x)) / np.sinh(alpha)
@@ -38,7 +38,7 @@ def test_discrete_ladder_exact():
     # (the recurrence c(v_{k−1} − 2v_k + v_{k+1}) = g·v_k, solved independently here).
     n, cs, cg = 60, 3e-12, 0.4e-12
     i, j, c, g = ladder(n, cs, cg)
-    v = capacitive_distribution(n, i, j, c, g, {0: 1.0, n - 1: 0.0})
+    v, _ = capacitive_distribution(n, i, j, c, g, {0: 1.0, n - 1: 0.0})
     beta = math.acosh(1 + cg / (2 * cs))
     k = np.arange(n)
     assert v == pytest.approx(np.sinh(beta * (n - 1 - k)) / np.sinh(beta * (n - 1)), abs=1e-10)
@@ -54,9 +54,9 @@ def test_ties_hold_joined_nodes_together():
     # Two ladders joined end to start read as one ladder of both (series strands through a joint).
     n, cs, cg = 20, 2e-12, 0.1e-12
     i = np.concatenate([np.arange(n - 1), n + np.arange(n - 1)])
-    v = capacitive_distribution(2 * n, i, i + 1, np.full(i.size, cs), cg, {0: 1.0, 2 * n - 1: 0.0},
+    v, _ = capacitive_distribution(2 * n, i, i + 1, np.full(i.size, cs), cg, {0: 1.0, 2 * n - 1: 0.0},
                                 ties=[(n - 1, n)])
-    one = capacitive_distribution(2 * n - 1, np.arange(2 * n - 2), np.arange(1, 2 * n - 1),
+    one, _ = capacitive_distribution(2 * n - 1, np.arange(2 * n - 2), np.arange(1, 2 * n - 1),
                                   np.full(2 * n - 2, cs), cg, {0: 1.0, 2 * n - 2: 0.0})
     # The merged node carries two ground shares in the joined network; compare away from it loosely.
     assert v[: n - 1] == pytest.approx(one[: n - 1], abs=2e-3)
@@ -103,3 +103,12 @@ def test_bifilar_series_edge_uses_the_joint():
     assert "turn 1" in imp["worst_pair_where"]
     assert imp["first_turn_Vpk"] > 10 * imp["first_turn_uniform_Vpk"]
     assert imp["first_turn_uniform_Vpk"] == pytest.approx(600.0 / 80)
+
+
+def test_series_capacitance_counts_charge_through_joints():
+    # Two equal ladders in parallel (starts joined, finishes joined), held at ladder one's ends
+    # only: capacitors in parallel add, Cs = 2·cs/(n − 1) (circuit theory).
+    n, cs = 30, 4e-12
+    i = np.concatenate([np.arange(n - 1), n + np.arange(n - 1)])
+    got = series_capacitance(2 * n, i, i + 1, np.full(i.size, cs), [0], [n - 1], ties=[(0, n), (n - 1, 2 * n - 1)])
+    assert got == pytest.approx(2 * cs / (n - 1), rel=1e-6)

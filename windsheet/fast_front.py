@@ -114,6 +114,9 @@ def capacitive_distribution(n_nodes, i, j, c_pair, c_ground, fixed, ties=()):
     -------
     v : ndarray, shape (n_nodes,)
         Potential of every node. [V]
+    K : scipy.sparse.csr_matrix
+        The nodal capacitance matrix, ties included: ``K @ v`` is each
+        node's charge (non-zero at the held nodes only). [F]
 
     References
     ----------
@@ -122,7 +125,7 @@ def capacitive_distribution(n_nodes, i, j, c_pair, c_ground, fixed, ties=()):
 
     Examples
     --------
-    >>> v = capacitive_distribution(3, [0, 1], [1, 2], [1e-12, 1e-12], 0.0, {0: 1.0, 2: 0.0})
+    >>> v, _ = capacitive_distribution(3, [0, 1], [1, 2], [1e-12, 1e-12], 0.0, {0: 1.0, 2: 0.0})
     >>> [round(float(x), 3) for x in v]
     [1.0, 0.5, 0.0]
     """
@@ -153,7 +156,7 @@ def capacitive_distribution(n_nodes, i, j, c_pair, c_ground, fixed, ties=()):
     if free.size:
         rhs = -K[free][:, np.flatnonzero(held)] @ v[held]
         v[free] = np.atleast_1d(spsolve(K[free][:, free].tocsc(), rhs))
-    return v
+    return v, K
 
 
 def series_capacitance(n_nodes, i, j, c_pair, line, earth, ties=()):
@@ -185,14 +188,6 @@ def series_capacitance(n_nodes, i, j, c_pair, line, earth, ties=()):
     1.0
     """
     fixed = {**{n: 1.0 for n in line}, **{n: 0.0 for n in earth}}
-    v = capacitive_distribution(n_nodes, i, j, c_pair, 0.0, fixed, ties)
-    i = np.asarray(i, dtype=int)
-    j = np.asarray(j, dtype=int)
-    c = np.asarray(c_pair, dtype=float)
-    charge = 0.0
-    line_set = set(int(n) for n in line)
-    for a, b, cab in zip(i, j, c):
-        if (int(a) in line_set) != (int(b) in line_set):
-            inner, outer = (a, b) if int(a) in line_set else (b, a)
-            charge += cab * (v[inner] - v[outer])
-    return float(charge)
+    v, K = capacitive_distribution(n_nodes, i, j, c_pair, 0.0, fixed, ties)
+    # The charge the line terminal supplies: the held line nodes' charge, through ties as well.
+    return float(np.sum((K @ v)[np.asarray(list(line), dtype=int)]))

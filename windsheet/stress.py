@@ -176,7 +176,7 @@ def edge_stress(layout: Layout, nb, c, edge, peak):
     held = {end_turn(layout, s, w): float(val) for (s, w), val in edge["held"].items()}
     ties = [(end_turn(layout, *a), end_turn(layout, *b)) for a, b in edge["ties"]]
     cg = float(edge["ground_F"]) / n
-    v = capacitive_distribution(n, nb.i, nb.j, c, cg, held, ties)
+    v, _ = capacitive_distribution(n, nb.i, nb.j, c, cg, held, ties)
     line = [t for t, val in held.items() if val == max(held.values())]
     earth = [t for t, val in held.items() if val != max(held.values())]
     cs = series_capacitance(n, nb.i, nb.j, c, line, earth, ties) if earth else 0.0
