@@ -127,3 +127,12 @@ def test_thermal_fail_is_not_issued_unless_forced():
     with pytest.raises(InputError, match="thermal check fails"):
         check_issuable(p)
     check_issuable(p, force=True)
+
+
+def test_voltage_driven_coil_draws_less_as_it_warms():
+    doc = _multilayer(voltage="6 V dc")
+    doc["duty"].pop("current", None)
+    doc["duty"].pop("operating_temperature", None)
+    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    # Ohm's law at the balance's own temperature: P = V²/R_hot, self-consistent.
+    assert p["thermal"]["loss_W"] == pytest.approx(6.0 ** 2 / p["terminal"]["resistance_hot_ohm"], rel=1e-3)

@@ -296,11 +296,18 @@ def _ac_ratio(order: Order, wire, layout, temperature_C):
                             layout.layers, layout.pitch / layout.strands)
 
 
-def _heat(order: Order, wire, layout, length, strand_i):
-    """Temperatures of the winding on its duty (:mod:`windsheet.heating`), loss rising with them."""
+def _heat(order: Order, wire, layout, length, L):
+    """Temperatures of the winding on its duty (:mod:`windsheet.heating`), loss rising with them.
+
+    The strand currents are found again at each temperature: a winding driven by a voltage
+    without a stated current draws less as it warms.
+    """
+    duty = order.doc.duty
+
     def loss_at(t):
         r = dc_resistance(length, wire.copper_diameter, t, conductor=wire.conductor)
-        return float(np.sum(strand_i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
+        i = _strand_currents(duty, _network(order, L, r, duty.frequency))
+        return float(np.sum(i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
 
     area, size = _outer_surface(order, layout)
     temps = heating.winding_temperatures(loss_at, area, size, float(layout.build_height), order.doc.duty.ambient)
@@ -411,7 +418,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
     net = _network(order, L, R20, doc.test.frequency)
     duty_net = _network(order, L, Rhot, duty.frequency)
-    temps = _heat(order, wire, layout, length, _strand_currents(duty, duty_net))
+    temps = _heat(order, wire, layout, length, L)
     if duty.operating_temperature is None:
         # The order gives no running temperature: the heat balance's mean winding temperature is used.
         t_op = temps["mean_C"]
