@@ -362,7 +362,7 @@ def duty_physics_rows(p: dict) -> list[tuple[str, str]]:
     rows = []
     if t.get("resistance_ac_ohm") is not None and ac:
         f = ac.get("frequency_Hz")
-        rows.append((f"Resistance at the duty frequency ({hertz(f) if f else 'd.c.'}), hot",
+        rows.append((f"Resistance at the duty frequency ({hertz(f)}), hot" if f else "Resistance on the d.c. duty, hot",
                      f"{ohm(t['resistance_ac_ohm'])} (AC/DC {float(ac.get('ratio', 1.0)):.3f}; {ac.get('model', '')})"))
     if t.get("loss_W") is not None:
         rows.append(("Copper loss at the duty current", eng(t["loss_W"], "W", sig=3)))
