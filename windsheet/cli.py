@@ -251,7 +251,7 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                  as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
     """List jobs in the register with their state (issued, passed, failed), or one job's history."""
     from .register import open_register
-    from .signoff import history_lines, register_lines
+    from .register_text import history_lines, register_lines
 
     issued = None
     if issue is not None:
