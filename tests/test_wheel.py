@@ -23,7 +23,13 @@ ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"
 
 
+def _clean_env():
+    # Nothing from the source tree on the installed environment's path.
+    return {k: v for k, v in os.environ.items() if k not in ("PYTHONPATH", "WINDSHEET_REGISTER")}
+
+
 def _run(cmd, **kw):
+    kw.setdefault("env", _clean_env())
     res = subprocess.run(cmd, capture_output=True, text=True, timeout=300, **kw)
     assert res.returncode == 0, (cmd, res.stdout[-2000:], res.stderr[-2000:])
     return res
@@ -72,7 +78,7 @@ def test_installed_package_is_the_wheel_not_the_source_tree(installed):
 
 def test_installed_wheel_renders_and_signs_off(installed):
     work, exe = installed["work"], installed["env"] / "bin" / "windsheet"
-    env = {k: v for k, v in os.environ.items() if k not in ("PYTHONPATH", "WINDSHEET_REGISTER")}
+    env = _clean_env()
     reg = str(work / "reg.db")
     order = str(SAMPLES / "hl-0412-bifilar-aiding.yaml")
     _run([str(exe), "traveller", order, "-o", str(work / "t.pdf"), "--register", reg], cwd=work, env=env)

@@ -286,6 +286,10 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
     o = load_order_arg(arg)
     p = predict(o)
     check_issuable(p, force)
+    if fmt != "json":
+        from .limits import check_sheet_units
+
+        check_sheet_units(len(p["job"]["units"]), "job.quantity", "traveller")
     forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
     if fmt == "json":
         data = (_to_json(p) + "\n").encode("utf-8")
