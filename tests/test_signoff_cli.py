@@ -193,3 +193,15 @@ def test_a_bad_csv_cell_is_named_by_row_and_column(tmp_path):
     assert r.exit_code == 2
     assert "row 4, column 'terminal.inductance [uH]'" in r.output and r.output.count("\n") == 1
     assert "signed off" not in run("register", "HL-0412", "--register", reg).output
+
+
+def test_a_turn_count_in_csv_is_read_as_a_count():
+    from windsheet.measured import measured_from_dict
+    from windsheet.readings_form import measured_dict_from_csv
+
+    text = "job,serial,strand.A.turns,strand.B.turns,terminal.inductance [uH]\nHL-0412,HL-0412-01,60,057,400\n"
+    doc = measured_dict_from_csv(text)
+    # 60 is the count the winder wrote; 057 keeps its leading zero so the reader refuses it, as in YAML.
+    assert doc["units"][0]["strands"]["A"]["turns"] == 60 and doc["units"][0]["strands"]["B"]["turns"] == "057"
+    doc["units"][0]["strands"].pop("B")
+    assert measured_from_dict(doc).units[0].strands["A"].turns == 60

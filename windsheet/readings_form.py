@@ -185,6 +185,8 @@ def measured_dict_from_csv(text: str, label: str = "readings.csv", columns=None)
                 doc[name] = cell
                 continue
             value = f"{cell} {u}" if u and re.match(r"^[-+]?[\d.]+(e[-+]?\d+)?$", cell, re.I) else cell
+            if path[-1] == "turns" and re.fullmatch(r"[1-9]\d{0,6}", cell):
+                value = int(cell)  # a count, as YAML would read it (leading zeros stay text and are refused)
             node = unit
             for p in path[:-1]:
                 node = node.setdefault(p, {})
