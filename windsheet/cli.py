@@ -165,8 +165,12 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                                                         "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
                  issue: Optional[Path] = typer.Option(None, "--issue", help="Record ORDER.yaml as issued "
                                                       "(the traveller command does this when it prints)."),
-                 as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
+                 as_json: bool = typer.Option(False, "--json", help="Print as JSON."),
+                 lot: Optional[str] = typer.Option(None, "--lot", help="List every unit recorded with this "
+                                                   "wire reel or lot, core lot or instrument id (exact match).")):
     """List jobs in the register with their state (issued, passed, failed), or one job's history."""
+    if lot is not None:
+        return _lot_search(register, lot, as_json)
     from .register import open_register
     from .signoff import history_lines, register_lines
 
@@ -192,6 +196,19 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         else:
             jobs = reg.list_jobs()
             typer.echo(_to_json(jobs) if as_json else "\n".join(register_lines(jobs)))
+
+
+def _lot_search(register, lot, as_json):
+    """The recall question: which units were built from (or measured with) ``lot``."""
+    from .register import open_register, resolve_register_path
+    from .traceability import lot_lines, similar_lots, units_with_lot
+
+    if not resolve_register_path(register).exists():
+        raise InputError(str(resolve_register_path(register)), "no register here yet; nothing is recorded")
+    with open_register(register, create=False) as reg:
+        units = units_with_lot(reg.conn, lot)
+        similar = similar_lots(reg.conn, lot) if not units else []
+    typer.echo(_to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))
 
 
 @app.command("traveller")

@@ -25,6 +25,7 @@ from typing import Optional
 
 from .errors import InputError
 from .fileio import require_regular_file
+from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
 
 DEFAULT_FILE = "windsheet-register.db"
 ENV_VAR = "WINDSHEET_REGISTER"
@@ -179,7 +180,7 @@ def _create(path: Path, label: str) -> None:
             conn.execute("PRAGMA journal_mode = DELETE")
             conn.execute(f"PRAGMA application_id = {APPLICATION_ID}")
             conn.execute("BEGIN")
-            for stmt in filter(str.strip, _SCHEMA.split(";")):
+            for stmt in filter(str.strip, (_SCHEMA + ";" + UNIT_LOTS_SCHEMA).split(";")):
                 conn.execute(stmt)
             conn.execute("INSERT INTO meta VALUES ('application', ?)", (APPLICATION,))
             conn.execute("INSERT INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),))
@@ -347,6 +348,7 @@ class Register:
             (signoff_id, number, unit["serial"], unit["verdict"],
              _dumps({"readings": raw, "lines": unit.get("lines"), "diagnosis": unit.get("diagnosis")}),
              inspector, now))
+        insert_unit_lots(c, signoff_id, number, unit["serial"], unit.get("trace"), now)
 
     # -- reading -----------------------------------------------------------------------
 
@@ -459,6 +461,7 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
             raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
         conn.execute("PRAGMA synchronous = FULL")
         conn.execute("PRAGMA foreign_keys = ON")
+        ensure_table(conn)  # registers made before lots were recorded gain the table
     except sqlite3.OperationalError as exc:
         conn.close()
         if _is_locked(exc):

@@ -16,6 +16,7 @@ from markupsafe import Markup
 
 from .diagrams import cross_section_svg, winding_terminals, wiring_svg
 from .errors import InputError
+from .traceability import lot_rows, trace_text
 
 TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
 
@@ -704,6 +705,7 @@ def signoff_context(prediction: dict, result: dict) -> dict:
         units.append({"serial": u.get("serial"), "verdict": u.get("verdict"),
                       "ambient": celsius(u.get("ambient_C")) if u.get("ambient_C") is not None else "—",
                       "notes": u.get("notes"),
+                      "trace": trace_text(u["trace"]) if lot_rows(u.get("trace")) else "",
                       "rows": [_line_row(x) for x in u.get("lines") or []],
                       "diagnosis": u.get("diagnosis") or []})
     spread = []

@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 from typing import Optional
 
+from .traceability import unit_trace
 from .errors import InputError, join_path
 from .measured import (ALPHA_COPPER_20C, InductanceReading, MeasuredFile, UnitReadings,
                        coupling_coefficient, mutual_from_series, resistance_at_20C, unit_ambient,
@@ -357,6 +358,7 @@ def evaluate_unit(prediction: dict, measured: MeasuredFile, unit: UnitReadings, 
 
     verdict = "fail" if any(x["result"] == "fail" for x in lines) else "pass"
     return {"serial": unit.serial, "verdict": verdict, "lines": lines, "diagnosis": findings,
+            "trace": unit_trace(measured, unit),
             "ambient_C": ambient, "notes": unit.notes}
 
 
