@@ -63,6 +63,8 @@ def family_of(prediction: dict) -> tuple[str, str]:
     hookup = (prediction.get("hookup") or {}).get("name") or "custom hookup"
     size = f.get("diameter_m") or f.get("outer_diameter_m") or f.get("mean_turn_length_m")
     size_text = f"{size * 1e3:g} mm " if size else ""
+    if size_text.strip() in str(f.get("material") or ""):
+        size_text = ""  # the material already names its size
     word = _STRANDS_WORD.get(strands, f"{strands}-strand")
     wire_family = f"{w.get('conductor') or 'copper'} {w.get('standard') or ''}".strip()
     label = f"{word} {hookup if strands > 1 else ''}".strip() + \
