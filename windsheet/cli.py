@@ -145,16 +145,19 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
         else:
             from .fileio import staged_write
 
-            with staged_write(out, _signoff_sheet(issued, result, html, paper)):
+            from .report import family_chart_svg
+
+            chart = family_chart_svg(reg, issued, result)
+            with staged_write(out, _signoff_sheet(issued, result, html, paper, chart)):
                 reg.record_signoff(result, o.sha256, who, measured_units=units)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
 
 
-def _signoff_sheet(prediction, result, html, paper) -> bytes:
+def _signoff_sheet(prediction, result, html, paper, qc_chart_svg=None) -> bytes:
     from .render import render_pdf, render_signoff_html
 
-    page = render_signoff_html(prediction, result, paper=paper)
+    page = render_signoff_html(prediction, result, paper=paper, qc_chart_svg=qc_chart_svg)
     return page.encode("utf-8") if html else render_pdf(page)
 
 

@@ -6,15 +6,8 @@ computes nothing.
 
 from __future__ import annotations
 
-import base64
-
-from .render import (TEMPLATES_DIR, _page_size, _stylesheet, environment,  # noqa: F401 - shared sheet frame
-                     render_pdf)
-
-
-def svg_data_url(svg: str) -> str:
-    """An SVG as a ``data:`` URL: the sheet stands alone and loads nothing from outside."""
-    return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
+from .render import TEMPLATES_DIR, _page_size, _stylesheet, environment
+from .render import _svg_data_url as svg_data_url  # a data: URL: the sheet loads nothing from outside
 
 
 def records_html(title: str, subtitle: str, doctype: str, sections: list[dict], notes=(),
