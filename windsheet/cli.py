@@ -385,6 +385,34 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
         typer.echo(f"  sign-off {m.name}: {result['verdict'].upper()}")
     if sheets:
         typer.echo(f"{sheets} sign-off sheets (PDF and HTML) written to {out.resolve()}")
+    _demo_records(out, list(predictions.values()))
+
+
+def _demo_records(out: Path, predictions: list) -> None:
+    """The sample bill of materials of every sample order, and a QC report on a simulated register."""
+    import tempfile
+
+    from .demo_records import build_sample_register
+    from .fileio import atomic_write_bytes
+    from .materials import bill_csv, bill_of_materials
+    from .records_render import materials_html, report_html
+    from .register import open_register
+    from .render import render_pdf
+    from .report import report_charts, report_from_register
+
+    bill = bill_of_materials(predictions)
+    atomic_write_bytes(out / "materials.csv", bill_csv(bill).encode("utf-8"))
+    atomic_write_bytes(out / "materials.pdf", render_pdf(materials_html(bill)))
+    with tempfile.TemporaryDirectory() as tmp:
+        reg_path = Path(tmp) / "sample-register.db"
+        build_sample_register(reg_path)
+        with open_register(reg_path, create=False) as reg:
+            rep = report_from_register(reg)
+        atomic_write_bytes(out / "sample-register.db", reg_path.read_bytes())
+    atomic_write_bytes(out / "qc-report.json", (_to_json(rep) + "\n").encode("utf-8"))
+    atomic_write_bytes(out / "qc-report.pdf", render_pdf(report_html(rep, report_charts(rep))))
+    typer.echo(f"bill of materials (materials.csv, .pdf) and QC report on a simulated register "
+               f"(qc-report.pdf, .json, sample-register.db; invented data) written to {out.resolve()}")
 
 
 def main():  # console-script entry point
