@@ -262,9 +262,12 @@ def _sum_by_spec(items: list[dict], keys: tuple) -> list[dict]:
 
 # --- Output --------------------------------------------------------------------------
 
-def _group_text(group: tuple) -> str:
+def _group_text(group: tuple, label=None) -> str:
     standard, size, grade, conductor, tc = group
-    return f"{size * 1e3:.3f} mm grade {grade} {conductor}, class {tc}, {standard}"
+    # The order's own name for the wire (e.g. '22 AWG ...') with the copper size it resolved to.
+    name = label if label and "mm" in label else (
+        f"{label} ({size * 1e3:.3f} mm)" if label else f"{size * 1e3:.3f} mm grade {grade}")
+    return f"{name} {conductor}, class {tc}, {standard}"
 
 
 def bill_rows(bill: dict) -> list[dict]:
@@ -275,10 +278,11 @@ def bill_rows(bill: dict) -> list[dict]:
         rows.append({"scope": scope, "category": category, "item": item, "quantity": quantity, "unit": unit})
 
     def wire_rows(scope, w):
-        add(scope, "wire", _group_text(w["group"]), round(w["length_m"], 3), "m")
-        add(scope, "wire", _group_text(w["group"]), round(w["mass_kg"], 5), "kg")
+        text = _group_text(w["group"], w.get("label"))
+        add(scope, "wire", text, round(w["length_m"], 3), "m")
+        add(scope, "wire", text, round(w["mass_kg"], 5), "kg")
         if w.get("reels") is not None:
-            add(scope, "wire", _group_text(w["group"]) + f" on {w['reel_kg']:g} kg reels", w["reels"], "reels")
+            add(scope, "wire", text + f" on {w['reel_kg']:g} kg reels", w["reels"], "reels")
 
     for j in bill["jobs"]:
         scope = j["job"]
