@@ -18,12 +18,27 @@ from . import fmt
 from .errors import InputError
 
 app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False,
-                  rich_markup_mode=None)  # plain usage errors: a few lines, no boxes
+                  rich_markup_mode=None,  # plain usage errors: a few lines, no boxes
+                  context_settings={"help_option_names": ["-h", "--help"]})
+
+
+def _show_version(value: bool):
+    if value:
+        from . import __version__
+
+        typer.echo(f"windsheet {__version__}")
+        raise typer.Exit(0)
 
 
 @app.callback()
-def _root():
-    """Job sheets for coil winding: size an order, print its traveller, sign off the units."""
+def _root(version: bool = typer.Option(False, "--version", is_eager=True, callback=_show_version,
+                                       help="Print the version and exit.")):
+    """Job sheets for coil winding: size an order, print its traveller, sign off the units.
+
+    Exit status: 0 done (and every verdict a pass or marginal), 1 a verdict short of that
+    (an insulation FAIL from size, a unit not passed at sign-off) or a batch with a refused
+    order, 2 bad input (one line on stderr names the field or file; nothing is written).
+    """
 
 
 def guarded(fn):
@@ -55,8 +70,9 @@ def summary_lines(p: dict) -> list[str]:
     row("Job", f"{j['number']} rev {j['revision']} — {j['part']} (qty {j['quantity']})")
     row("Wire", p["wire"]["label"] + f", overall {eng(p['wire']['overall_diameter_m'], 'm')}")
     w = p["winding"]
-    row("Winding", f"{w['strands']} strand(s) × {w['turns_per_strand']} turns, {w['layers']} layer(s) "
-        f"{w['turns_in_layer']}, pitch {eng(w['pitch_m'], 'm')}")
+    layers = ", ".join(str(n) for n in w["turns_in_layer"])
+    row("Winding", f"{_count(w['strands'], 'strand')} × {w['turns_per_strand']} turns, "
+        f"{_count(w['layers'], 'layer')} ({layers} turns per strand), pitch {eng(w['pitch_m'], 'm')}")
     if w.get("target"):
         t = w["target"]
         row("Target", f"{eng(t['inductance_H'], 'H')} → {t['turns_exact']:.2f} turns exact, "
@@ -65,7 +81,7 @@ def summary_lines(p: dict) -> list[str]:
     row("Fit", f"{fit['slots_per_layer']} slots per layer, traverse used {eng(fit['traverse_used_m'], 'm')}"
         + (f" of {eng(fit['traverse_m'], 'm')}" if fit.get("traverse_m") else "")
         + f", build {eng(fit['build_m'], 'm')}")
-    row("Hookup", f"{p['hookup']['name']}: joins {p['hookup']['joins'] or 'none'}, terminals {p['hookup']['terminals']}")
+    row("Hookup", hookup_words(p["hookup"]))
     for s in p["strands"]:
         row(f"Strand {s['id']}", f"{eng(s['inductance_H'], 'H')}, {eng(s['resistance_20C_ohm'], 'Ω')} at 20 °C, "
             f"{s['wire_length_m']:.2f} m ({s['wire_length_with_scrap_m']:.2f} m with scrap), "
@@ -89,24 +105,86 @@ def summary_lines(p: dict) -> list[str]:
     return [f"{k:<{width}}  {v}" for k, v in rows]
 
 
+def _count(n: int, word: str) -> str:
+    return f"{n} {word}{'' if n == 1 else 's'}"
+
+
+def _end(end: str) -> str:
+    # "A.finish" -> "A finish": the words the bench uses.
+    return end.replace(".", " ")
+
+
+def hookup_words(h: dict) -> str:
+    """The hookup as a winder says it: ``series-aiding — A finish joined to B start; T1 A start, T2 B finish``."""
+    joins = "; ".join(" joined to ".join(_end(e) for e in j) for j in (h.get("joins") or []))
+    terms = ", ".join(f"T{i} {_end(t)}" for i, t in enumerate(h.get("terminals") or [], 1))
+    return f"{h['name']} — " + (f"{joins}; " if joins else "no joins; ") + f"terminals {terms}"
+
+
 def _to_json(obj) -> str:
     return json.dumps(obj, indent=2, ensure_ascii=False, allow_nan=False, default=str)
 
 
 # ---------------------------------------------------------------- commands
 @app.command()
-@guarded
-def size(order: Path = typer.Argument(..., help="The order, a YAML file."),
-         as_json: bool = typer.Option(False, "--json", help="Print the whole prediction as JSON (SI units).")):
-    """Size a coil order: turns, layers, fit, wire, resistance, inductance, stress."""
-    from .order import load_order
+def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folders of orders or globs; "
+                                            "'-' reads one order from standard input."),
+         as_json: bool = typer.Option(False, "--json", help="Print the whole prediction as JSON (SI units); "
+                                      "several orders print one JSON object per line (JSON Lines).")):
+    """Size coil orders: turns, layers, fit, wire, resistance, inductance, stress.
+
+    Exit 0 when every order sizes and none fails its insulation check, 1 when one fails it
+    (or, in a batch, when any order is refused), 2 for bad input to a single order.
+    """
+    from .batch import expand_orders, load_order_arg, progress
+
+    try:
+        files = expand_orders(orders)
+    except InputError as exc:
+        typer.echo(f"windsheet: {exc}", err=True)
+        raise typer.Exit(2) from None
+    if len(files) == 1:
+        p = _size_one(files[0])
+        typer.echo(_to_json(p) if as_json else "\n".join(summary_lines(p)))
+        raise typer.Exit(1 if _insulation_fails(p) else 0)
     from .predict import predict
 
-    p = predict(load_order(order))
-    if as_json:
-        typer.echo(_to_json(p))
-    else:
-        typer.echo("\n".join(summary_lines(p)))
+    refused, failing = [], []
+    with progress(len(files), "sizing") as step:
+        for f in files:
+            try:
+                p = predict(load_order_arg(f))
+            except InputError as exc:
+                # Named by its file; the batch carries on.
+                msg = str(exc)
+                typer.echo(f"windsheet: {msg if msg.startswith(f) else f'{f}: {msg}'}", err=True)
+                refused.append(f)
+                step()
+                continue
+            if _insulation_fails(p):
+                failing.append(f)
+            if as_json:
+                typer.echo(json.dumps({"file": f, **p}, ensure_ascii=False, allow_nan=False, default=str))
+            else:
+                typer.echo(f"== {f}\n" + "\n".join(summary_lines(p)) + "\n")
+            step()
+    sized = len(files) - len(refused)
+    tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
+    tail += f"; {len(failing)} fail the insulation check ({', '.join(failing)})" if failing else ""
+    typer.echo(f"windsheet: sized {sized} of {len(files)} orders{tail}", err=True)
+    raise typer.Exit(1 if refused or failing else 0)
+
+
+@guarded
+def _size_one(arg: str) -> dict:
+    from .batch import load_order_arg
+    from .predict import predict
+
+    return predict(load_order_arg(arg))
+
+
+def _insulation_fails(p: dict) -> bool:
+    return (p.get("insulation") or {}).get("verdict") == "fail"
 
 
 @app.command()
@@ -119,9 +197,14 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
             inspector: Optional[str] = typer.Option(None, "--inspector", help="Who signs the units off."),
             out: Optional[Path] = typer.Option(None, "-o", "--out", help="Also write the sign-off sheet here "
                                                "(PDF, or HTML with --html)."),
-            html: bool = typer.Option(False, "--html", help="Write the sheet as HTML instead of PDF."),
+            html: bool = typer.Option(False, "--html", help="Write the sheet as HTML (same as --format html)."),
+            fmt: Optional[str] = typer.Option(None, "--format", help="pdf or html; default from the "
+                                              "sheet's extension, else pdf."),
             paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
     """Sign off measured units against the issued traveller; exit 0 all pass, 1 any fail, 2 bad input."""
+    from .batch import output_format
+
+    html = output_format(out, fmt, html, allowed=("pdf", "html")) == "html"
     from .measured import load_measured
     from .order import load_order
     from .register import open_register
@@ -214,51 +297,131 @@ def _lot_search(register, lot, as_json):
     typer.echo(_to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))
 
 
+def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
+    """Size, check and render one traveller (runs in a worker process for a batch)."""
+    from .batch import load_order_arg
+    from .predict import predict
+    from .render import check_issuable, render_pdf, render_traveller_html
+
+    o = load_order_arg(arg)
+    p = predict(o)
+    check_issuable(p, force)
+    if fmt != "json":
+        from .limits import check_sheet_units
+
+        check_sheet_units(len(p["job"]["units"]), "job.quantity", "traveller")
+    forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
+    if fmt == "json":
+        data = (_to_json(p) + "\n").encode("utf-8")
+    else:
+        page = render_traveller_html(p, paper=paper, forced=forced)
+        data = page.encode("utf-8") if fmt == "html" else render_pdf(page)
+    return p, o.source.decode("utf-8", "replace"), o.sha256, forced, data
+
+
+def _traveller_worker(args):
+    try:
+        return _traveller_job(*args), None
+    except InputError as exc:
+        return None, str(exc)
+
+
 @app.command("traveller")
 @guarded
-def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), or a folder of orders."),
-                  out: Path = typer.Option(..., "-o", "--out", help="Output file; for a folder of orders, "
-                                           "an output folder (one traveller per order)."),
-                  html: bool = typer.Option(False, "--html", help="Write HTML instead of PDF."),
+def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML files), folders of orders or globs; "
+                                                     "'-' reads one order from standard input."),
+                  out: str = typer.Option(..., "-o", "--out", help="Output file, or '-' for standard output; "
+                                          "for several orders, an output folder (one traveller per order)."),
+                  html: bool = typer.Option(False, "--html", help="Write HTML (same as --format html)."),
+                  fmt: Optional[str] = typer.Option(None, "--format", help="pdf, html or json (the prediction); "
+                                                    "default: from the output file's extension, else pdf."),
                   paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
                   force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
                                              "fails; the sheet then says FORCED."),
+                  jobs: int = typer.Option(0, "--jobs", min=0, help="Worker processes for several orders "
+                                           "(default: one per core)."),
                   register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
                                                          "$WINDSHEET_REGISTER, else ./windsheet-register.db).")):
-    """Print the traveller (job sheet) of an order, and record the issue in the job register."""
-    from .fileio import staged_write
-    from .order import load_order
-    from .predict import predict
-    from .register import open_register
-    from .render import check_issuable, order_files, render_pdf, render_traveller_html
+    """Print the traveller (job sheet) of an order, and record the issue in the job register.
 
-    files = order_files(order)
-    many = Path(order).is_dir()
-    into_folder = many or out.is_dir()
-    if many and out.exists() and not out.is_dir():
-        raise InputError(str(out), "a folder of orders needs an output folder, not a file")
-    if not into_folder and not (out.parent if str(out.parent) else Path(".")).is_dir():
-        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
-    # Everything is sized, checked and rendered before anything is written or recorded.
-    jobs = []
-    for f in files:
-        o = load_order(f)
-        p = predict(o)
-        check_issuable(p, force)
-        forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
-        page = render_traveller_html(p, paper=paper, forced=forced)
-        data = page.encode("utf-8") if html else render_pdf(page)
-        target = out / f"{f.stem}.{'html' if html else 'pdf'}" if into_folder else out
-        jobs.append((o, p, forced, target, data))
-    if many:
-        out.mkdir(parents=True, exist_ok=True)
-    with open_register(register) as reg:
-        for o, p, forced, target, data in jobs:
-            # The sheet lands only if its issue is recorded, and the reverse.
-            with staged_write(target, data):
-                reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
-            note = " — FORCED over a failing insulation check" if forced else ""
-            typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=bool(forced))
+    One order: everything is sized, checked and rendered before anything is written or
+    recorded, and the sheet lands only with its register record. Several orders: rendered in
+    parallel, each written and recorded as soon as it is done; a refused order is named and
+    the batch carries on (exit 1 at the end).
+    """
+    from .batch import STDIN, expand_orders, output_format, progress
+    from .fileio import staged_write
+    from .register import open_register
+
+    files = expand_orders(orders)
+    many = len(files) > 1 or any(Path(a).is_dir() for a in orders if a != STDIN)
+    if out == STDIN:
+        if many:
+            raise InputError("-o", "several travellers need an output folder, not standard output")
+        fmt_ = output_format(out, fmt, html)
+        if fmt_ == "pdf" and sys.stdout.isatty():
+            raise InputError("-o", "will not write a PDF to a terminal: redirect it, or give --format html")
+    else:
+        out_path = Path(out)
+        if many and out_path.exists() and not out_path.is_dir():
+            raise InputError(out, "several orders need an output folder, not a file")
+        into_folder = many or out_path.is_dir()
+        fmt_ = output_format(None if into_folder else out, fmt, html)
+        if not into_folder and not (out_path.parent if str(out_path.parent) else Path(".")).is_dir():
+            raise InputError(out, f"cannot write: folder {str(out_path.parent)!r} does not exist")
+    if not many:
+        p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force)
+        with open_register(register) as reg:
+            if out == STDIN:
+                reg.record_issue(p, source, sha)
+                sys.stdout.buffer.write(data)
+                sys.stdout.buffer.flush()
+            else:
+                target = out_path / f"{Path(files[0]).stem}.{fmt_}" if into_folder else out_path
+                # The sheet lands only if its issue is recorded, and the reverse.
+                with staged_write(target, data):
+                    reg.record_issue(p, source, sha)
+                _said_issued(p, target, forced)
+        return
+    out_path.mkdir(parents=True, exist_ok=True)
+    refused = []
+    work = [(f, paper, fmt_, force) for f in files]
+    with open_register(register) as reg, progress(len(files), "travellers") as step:
+        for f, (done, err) in zip(files, _in_parallel(_traveller_worker, work, jobs)):
+            if err is not None:
+                typer.echo(f"windsheet: {err if err.startswith(f) else f'{f}: {err}'}", err=True)
+                refused.append(f)
+            else:
+                p, source, sha, forced, data = done
+                target = out_path / f"{Path(f).stem}.{fmt_}"
+                with staged_write(target, data):
+                    reg.record_issue(p, source, sha)
+                _said_issued(p, target, forced)
+            step()
+    tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
+    typer.echo(f"windsheet: {len(files) - len(refused)} of {len(files)} travellers written to {out_path}{tail}",
+               err=True)
+    if refused:
+        raise typer.Exit(1)
+
+
+def _said_issued(p, target, forced):
+    note = " — FORCED over a failing insulation check" if forced else ""
+    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=True)
+
+
+def _in_parallel(fn, work: list, jobs: int = 0):
+    """``fn`` over ``work`` in worker processes, results in order as each is ready (one core: in process)."""
+    import os
+
+    n = min(jobs or os.cpu_count() or 1, len(work))
+    if n <= 1:
+        yield from map(fn, work)
+        return
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(max_workers=n) as pool:
+        yield from pool.map(fn, work)
 
 
 @app.command("materials")

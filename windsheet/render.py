@@ -18,7 +18,23 @@ from .diagrams import cross_section_svg, winding_terminals, wiring_svg
 from .errors import InputError
 from .traceability import lot_rows, trace_text
 
-TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
+
+
+def _templates_dir() -> Path:
+    """The templates folder: inside the installed package, else the source tree's.
+
+    The wheel maps the top-level ``templates/`` into ``windsheet/templates``
+    (pyproject ``package-dir``); an editable install reads the folder in place.
+    """
+    from importlib.resources import files
+
+    packaged = files("windsheet") / "templates"
+    if packaged.is_dir():
+        return Path(str(packaged)).resolve()
+    return Path(__file__).resolve().parent.parent / "templates"
+
+
+TEMPLATES_DIR = _templates_dir()
 
 #: Page sizes by the CLI's ``--paper`` word; CSS ``@page size`` keywords.
 PAPER_SIZES = {"a4": "A4", "letter": "letter"}
