@@ -13,11 +13,11 @@ from __future__ import annotations
 import math
 from typing import Optional
 
-from .traceability import unit_trace
 from .errors import InputError, join_path
 from .measured import (ALPHA_COPPER_20C, InductanceReading, MeasuredFile, UnitReadings,
                        coupling_coefficient, mutual_from_series, resistance_at_20C, unit_ambient,
                        unit_test_frequency)
+from .traceability import unit_trace
 
 #: Resistance ratio of one wire-size step.  AWG (ASTM B258) steps the diameter
 #: by 92**(1/39); IEC 60317 nominal diameters follow the R20 series, 10**(1/20),
