@@ -90,10 +90,26 @@ def summary_lines(p: dict) -> list[str]:
     row("Terminals", f"L {eng(t['inductance_H'], 'H')} (accept {eng(t['accept']['inductance_min_H'], 'H')} … "
         f"{eng(t['accept']['inductance_max_H'], 'H')}), R {eng(t['resistance_ohm'], 'Ω')} at 20 °C, "
         f"{eng(t['resistance_hot_ohm'], 'Ω')} at {p['duty']['operating_temperature_C']:.0f} °C")
+    if t["accept"].get("inductance_basis") == "target":
+        row("", f"L accept band is the ordered target ± tolerance; prediction "
+            f"{t['accept']['prediction_offset'] * 100:+.2f} % from target")
     row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
+    if t.get("resistance_ac_ohm") is not None and p.get("ac_resistance") and p["duty"]["frequency_Hz"]:
+        row("", f"R {eng(t['resistance_ac_ohm'], 'Ω')} at {eng(p['duty']['frequency_Hz'], 'Hz')} "
+            f"(AC/DC {p['ac_resistance']['ratio']:.3f}), loss {eng(t['loss_W'], 'W')} at the duty current")
     if p.get("current_sheet_inductance_H"):
         row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "
             f"correction {eng(p['current_sheet_rosa_corrected_H'], 'H')} (strand A)")
+    th = p.get("thermal")
+    if th:
+        row("Heating", f"{th['verdict'].upper()} — surface +{th['surface_rise_K']:.1f} K, hot spot "
+            f"{th['hot_spot_C']:.0f} °C (class {th['thermal_class_C'] or '—'}), "
+            f"{th['current_density_A_per_mm2']:.2f} A/mm²")
+    imp = p.get("impulse")
+    if imp:
+        row("Fast edge", f"first turn {eng(imp['first_turn_Vpk'], 'V')} peak (even share "
+            f"{eng(imp['first_turn_uniform_Vpk'], 'V')}), worst pair {eng(imp['worst_pair_Vpk'], 'V')} peak"
+            + (f", α {imp['alpha']:.3g}" if imp.get("alpha") is not None else ""))
     wa = p["worst_adjacent"]
     row("Worst adjacent", f"{eng(wa['voltage_Vpk'], 'V')} peak — {wa['where']}")
     ins = p["insulation"]
@@ -200,14 +216,20 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
             html: bool = typer.Option(False, "--html", help="Write the sheet as HTML (same as --format html)."),
             fmt: Optional[str] = typer.Option(None, "--format", help="pdf or html; default from the "
                                               "sheet's extension, else pdf."),
-            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
-    """Sign off measured units against the issued traveller; exit 0 all pass, 1 any fail, 2 bad input."""
+            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
+            dry_run: bool = typer.Option(False, "--dry-run", help="Evaluate and print only: record nothing "
+                                         "(the register file is opened read-only) and write no sheet.")):
+    """Sign off measured units against the issued traveller.
+
+    Exit status: 0 every unit passes, 1 any unit fails, 3 none fails but some
+    are incomplete (a required QC line not read), 2 bad input.
+    """
     from .batch import output_format
 
     html = output_format(out, fmt, html, allowed=("pdf", "html")) == "html"
     from .measured import load_measured
     from .order import load_order
-    from .register import open_register
+    from .register import open_register, open_register_readonly
     from .signoff import evaluate_signoff, exit_status
     from .signoff import summary_lines as signoff_lines
 
@@ -217,24 +239,45 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
     if not who:
         raise InputError("inspector", "name the inspector with --inspector or 'inspector:' in the measured file")
     job = o.doc.job
+    if dry_run and out is not None:
+        raise InputError("--out", "a dry run writes no sheet; drop --out or --dry-run")
     if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    if dry_run:
+        with open_register_readonly(register) as reg:
+            _, issued = reg.find_issue(job.number, job.revision, o.sha256)
+        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
+        typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng) + ["(dry run: nothing recorded)"]))
+        raise typer.Exit(exit_status(result))
     with open_register(register, create=False) as reg:
+        _say_repairs(reg)
         _, issued = reg.find_issue(job.number, job.revision, o.sha256)
-        result = evaluate_signoff(issued, readings, inspector=who)
+        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
         units = [u.model_dump(mode="json") for u in readings.units]
         if out is None:
             reg.record_signoff(result, o.sha256, who, measured_units=units)
         else:
-            from .fileio import staged_write
+            from .sheet_ledger import recorded_sheet
 
             from .report import family_chart_svg
 
             chart = family_chart_svg(reg, issued, result)
-            with staged_write(out, _signoff_sheet(issued, result, html, paper, chart)):
-                reg.record_signoff(result, o.sha256, who, measured_units=units)
+            with recorded_sheet(reg, "signoff", out, _signoff_sheet(issued, result, html, paper, chart)) as sheet:
+                reg.record_signoff(result, o.sha256, who, measured_units=units, sheet=sheet)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
+
+
+def _say_repairs(reg):
+    for line in getattr(reg, "repairs", []) or []:
+        typer.echo(f"windsheet: {line}", err=True)
+
+
+def _resizer(order):
+    """The engine re-sizing this order at another turn count, for the diagnosis."""
+    from .predict import strand_values_at_turns
+
+    return functools.partial(strand_values_at_turns, order)
 
 
 def _signoff_sheet(prediction, result, html, paper, qc_chart_svg=None) -> bytes:
@@ -244,6 +287,30 @@ def _signoff_sheet(prediction, result, html, paper, qc_chart_svg=None) -> bytes:
     return page.encode("utf-8") if html else render_pdf(page)
 
 
+@app.command("readings-form")
+@guarded
+def readings_form_cmd(order: Path = typer.Argument(..., help="The order, a YAML file."),
+                      out: Path = typer.Option(..., "-o", "--out", help="The form to write (.yaml, or .csv)."),
+                      as_csv: bool = typer.Option(False, "--csv", help="Write CSV (one row per unit) even "
+                                                  "when the name does not end in .csv.")):
+    """Write a measured-values file for the order: its serial numbers, every required QC line empty."""
+    from .fileio import atomic_write_text
+    from .order import load_order
+    from .predict import predict
+    from .readings_form import csv_form, yaml_form
+
+    p = predict(load_order(order))
+    if out.exists():
+        raise InputError(str(out), "already exists; a filled-in form is a record, not overwritten — "
+                                   "choose another name")
+    if not (out.parent if str(out.parent) else Path(".")).is_dir():
+        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    csv_out = as_csv or out.suffix.lower() == ".csv"
+    atomic_write_text(out, csv_form(p) if csv_out else yaml_form(p))
+    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: readings form for "
+               f"{len(p['job']['units'])} units, {len(p['qc_required'])} lines each: {out}", err=True)
+
+
 @app.command("register")
 @guarded
 def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: show its history."),
@@ -251,47 +318,72 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                                                         "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
                  issue: Optional[Path] = typer.Option(None, "--issue", help="Record ORDER.yaml as issued "
                                                       "(the traveller command does this when it prints)."),
+                 force: bool = typer.Option(False, "--force", help="With --issue: record a design that fails "
+                                            "its insulation check; it is then marked FORCED."),
+                 state: Optional[str] = typer.Option(None, "--state", help="Only jobs in this state: issued, "
+                                                     "passed, failed or incomplete."),
+                 customer: Optional[str] = typer.Option(None, "--customer", help="Only jobs whose customer "
+                                                        "contains this (any case)."),
+                 since: Optional[str] = typer.Option(None, "--since", help="Only jobs issued on or after this "
+                                                     "date (YYYY-MM-DD)."),
+                 as_csv: bool = typer.Option(False, "--csv", help="Print the listing as CSV."),
                  as_json: bool = typer.Option(False, "--json", help="Print as JSON."),
                  lot: Optional[str] = typer.Option(None, "--lot", help="List every unit recorded with this "
                                                    "wire reel or lot, core lot or instrument id (exact match).")):
-    """List jobs in the register with their state (issued, passed, failed), or one job's history."""
+    """List the jobs in the register (job, revision, customer, issued, state, passed/total, design
+    status), or one job's history; --issue records an order as issued; --lot lists the units of a reel or lot."""
     if lot is not None:
         return _lot_search(register, lot, as_json)
-    from .register import open_register
-    from .signoff import history_lines, register_lines
+    from .register import open_register_readonly, resolve_register_path
 
-    issued = None
     if issue is not None:
         from .order import load_order
         from .predict import predict
+        from .qc_lines import design_fails, design_status
+        from .register import open_register
+        from .render import check_issuable
 
         o = load_order(issue)
         p = predict(o)
-    from .register import resolve_register_path
-
-    if issue is None and not resolve_register_path(register).exists():
+        check_issuable(p, force)
+        p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
+        with open_register(register, create=True) as reg:
+            issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
+        forced = " — FORCED over a failing design check" if p["design_status"]["state"] == "forced" else ""
+        # Only what was recorded: the listing is its own command.
+        typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
+        return
+    if not resolve_register_path(register).exists():
         typer.echo(f"(no register yet at {resolve_register_path(register)})")
         return
-    with open_register(register, create=issue is not None) as reg:
-        if issue is not None:
-            issued = reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
-            typer.echo(f"issued {p['job']['number']} rev {p['job']['revision']} (issue {issued})", err=True)
+    # Listing reads only: a read-only file or folder can be listed.
+    with open_register_readonly(register) as reg:
         if job:
+            from .signoff_text import history_lines
+
             h = reg.job_history(job)
             typer.echo(_to_json(h) if as_json else "\n".join(history_lines(h)))
-        else:
-            jobs = reg.list_jobs()
-            typer.echo(_to_json(jobs) if as_json else "\n".join(register_lines(jobs)))
+            return
+        jobs = reg.list_jobs()
+    from .register_listing import as_csv as listing_csv, select, table_lines
+
+    jobs = select(jobs, state, customer, since)
+    if as_json:
+        typer.echo(_to_json(jobs))
+    elif as_csv:
+        typer.echo(listing_csv(jobs), nl=False)
+    else:
+        typer.echo("\n".join(table_lines(jobs)))
 
 
 def _lot_search(register, lot, as_json):
     """The recall question: which units were built from (or measured with) ``lot``."""
-    from .register import open_register, resolve_register_path
+    from .register import open_register_readonly, resolve_register_path
     from .traceability import lot_lines, similar_lots, units_with_lot
 
     if not resolve_register_path(register).exists():
         raise InputError(str(resolve_register_path(register)), "no register here yet; nothing is recorded")
-    with open_register(register, create=False) as reg:
+    with open_register_readonly(register) as reg:
         units = units_with_lot(reg.conn, lot)
         similar = similar_lots(reg.conn, lot) if not units else []
     typer.echo(_to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))
@@ -301,6 +393,7 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
     """Size, check and render one traveller (runs in a worker process for a batch)."""
     from .batch import load_order_arg
     from .predict import predict
+    from .qc_lines import design_fails, design_status
     from .render import check_issuable, render_pdf, render_traveller_html
 
     o = load_order_arg(arg)
@@ -310,7 +403,8 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
         from .limits import check_sheet_units
 
         check_sheet_units(len(p["job"]["units"]), "job.quantity", "traveller")
-    forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
+    forced = force and design_fails(p)
+    p = {**p, "design_status": design_status(p, forced=forced)}
     if fmt == "json":
         data = (_to_json(p) + "\n").encode("utf-8")
     else:
@@ -350,8 +444,8 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
     the batch carries on (exit 1 at the end).
     """
     from .batch import STDIN, expand_orders, output_format, progress
-    from .fileio import staged_write
     from .register import open_register
+    from .sheet_ledger import recorded_sheet
 
     files = expand_orders(orders)
     many = len(files) > 1 or any(Path(a).is_dir() for a in orders if a != STDIN)
@@ -372,21 +466,23 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
     if not many:
         p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force)
         with open_register(register) as reg:
+            _say_repairs(reg)
             if out == STDIN:
-                reg.record_issue(p, source, sha)
+                how = reg.issue_or_reprint(p, source, sha)[1]
                 sys.stdout.buffer.write(data)
                 sys.stdout.buffer.flush()
             else:
                 target = out_path / f"{Path(files[0]).stem}.{fmt_}" if into_folder else out_path
                 # The sheet lands only if its issue is recorded, and the reverse.
-                with staged_write(target, data):
-                    reg.record_issue(p, source, sha)
-                _said_issued(p, target, forced)
+                with recorded_sheet(reg, "traveller", target, data) as sheet:
+                    how = reg.issue_or_reprint(p, source, sha, sheet=sheet)[1]
+                _said_issued(p, target, forced, how)
         return
     out_path.mkdir(parents=True, exist_ok=True)
     refused = []
     work = [(f, paper, fmt_, force) for f in files]
     with open_register(register) as reg, progress(len(files), "travellers") as step:
+        _say_repairs(reg)
         for f, (done, err) in zip(files, _in_parallel(_traveller_worker, work, jobs)):
             if err is not None:
                 typer.echo(f"windsheet: {err if err.startswith(f) else f'{f}: {err}'}", err=True)
@@ -394,9 +490,9 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
             else:
                 p, source, sha, forced, data = done
                 target = out_path / f"{Path(f).stem}.{fmt_}"
-                with staged_write(target, data):
-                    reg.record_issue(p, source, sha)
-                _said_issued(p, target, forced)
+                with recorded_sheet(reg, "traveller", target, data) as sheet:
+                    how = reg.issue_or_reprint(p, source, sha, sheet=sheet)[1]
+                _said_issued(p, target, forced, how)
             step()
     tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
     typer.echo(f"windsheet: {len(files) - len(refused)} of {len(files)} travellers written to {out_path}{tail}",
@@ -405,8 +501,8 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
         raise typer.Exit(1)
 
 
-def _said_issued(p, target, forced):
-    note = " — FORCED over a failing insulation check" if forced else ""
+def _said_issued(p, target, forced, how):
+    note = " — FORCED over a failing design check" if forced else ""
     typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=True)
 
 
@@ -528,8 +624,9 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     out.mkdir(parents=True, exist_ok=True)
     predictions = {}
     for f in files:
-        p = predict(load_order(f))
-        predictions[p["job"]["number"]] = p
+        o = load_order(f)
+        p = predict(o)
+        predictions[p["job"]["number"]] = (p, o)
         page = render_traveller_html(p)
         atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
         atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))
@@ -537,10 +634,10 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     sheets = 0
     for m in sorted(folder.glob("*.measured.yaml")):
         readings = load_measured(m)
-        p = predictions.get(readings.job)
-        if p is None:
+        if readings.job not in predictions:
             continue
-        result = evaluate_signoff(p, readings, inspector=readings.inspector)
+        p, o = predictions[readings.job]
+        result = evaluate_signoff(p, readings, inspector=readings.inspector, resize=_resizer(o))
         stem = m.name[: -len(".measured.yaml")] + "-signoff"
         atomic_write_bytes(out / f"{stem}.html", _signoff_sheet(p, result, True, "a4"))
         atomic_write_bytes(out / f"{stem}.pdf", _signoff_sheet(p, result, False, "a4"))

@@ -181,6 +181,12 @@ def check_issuable(prediction: dict, force: bool = False) -> None:
         why = "; ".join(str(r) for r in ins.get("reasons") or []) or "see the insulation check"
         raise InputError("insulation", f"insulation check fails ({why}); "
                          "not issued — fix the order, or issue with --force")
+    thermal = prediction.get("thermal") or {}
+    if thermal.get("verdict") == "fail" and not force:
+        # Enamel run over its thermal class ages fast: as much a fail as a voltage it cannot hold.
+        raise InputError("duty.current", f"thermal check fails ({thermal.get('reason')}); "
+                         "not issued — lower the current, use a heavier wire or a higher thermal class, "
+                         "or issue with --force")
 
 
 def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = False,
@@ -257,6 +263,9 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "qc_items": qc_items(p),
         "unit_tables": unit_tables((p.get("job") or {}).get("units") or []),
         "insulation_rows": insulation_rows(ins),
+        "duty_physics_rows": duty_physics_rows(p),
+        "thermal": p.get("thermal") or {},
+        "impulse_rows": impulse_rows(p.get("impulse")),
     }
 
 
@@ -345,6 +354,45 @@ def insulation_rows(ins: dict) -> list[tuple[str, str]]:
     add("Its partial-discharge inception, hot", "pdiv_hot_Vpk", lambda v: volt(v) + " peak")
     add("Worst layer-to-layer voltage", "layer_Vpk", lambda v: volt(v) + " peak")
     add("Layer tape rating", "tape_rating_V", volt)
+    return rows
+
+
+def duty_physics_rows(p: dict) -> list[tuple[str, str]]:
+    """AC resistance, loss, temperatures and current density on the duty, as the prediction gives them."""
+    t, ac, th = p.get("terminal") or {}, p.get("ac_resistance") or {}, p.get("thermal") or {}
+    rows = []
+    if t.get("resistance_ac_ohm") is not None and ac:
+        f = ac.get("frequency_Hz")
+        rows.append((f"Resistance at the duty frequency ({hertz(f)}), hot" if f else "Resistance on the d.c. duty, hot",
+                     f"{ohm(t['resistance_ac_ohm'])} (AC/DC {float(ac.get('ratio', 1.0)):.3f}; {ac.get('model', '')})"))
+    if t.get("loss_W") is not None:
+        rows.append(("Copper loss at the duty current", eng(t["loss_W"], "W", sig=3)))
+    if th:
+        rows.append(("Temperature rise of the surface (still air)",
+                     f"{float(th['surface_rise_K']):.1f} K, surface {celsius(th['surface_C'])}"))
+        rows.append(("Hot spot (estimate) / mean winding",
+                     f"{celsius(th['hot_spot_C'])} / {celsius(th['mean_C'])}"))
+        rows.append(("Thermal check", f"{str(th.get('verdict', '')).upper()}: {th.get('reason', '')}"))
+        lo, hi = th.get("current_density_range_A_per_mm2") or (None, None)
+        rows.append(("Current density", f"{float(th['current_density_A_per_mm2']):.2f} A/mm²"
+                     + (f" (common practice {lo:g}–{hi:g} A/mm² for natural cooling)" if lo else "")))
+        rows.append(("Heat method", th.get("method", "")))
+    return rows
+
+
+def impulse_rows(imp) -> list[tuple[str, str]]:
+    """The fast edge's share on the first turns, when the duty has one."""
+    if not imp:
+        return []
+    rows = [("Fast edge", f"{volt(imp['edge_Vpk'])} peak"
+             + (f", rise time {eng(imp['rise_time_s'], 's', sig=3)}" if imp.get("rise_time_s") else ""))]
+    rows.append(("First turn under the edge", f"{volt(imp['first_turn_Vpk'])} peak "
+                 f"(even share {volt(imp['first_turn_uniform_Vpk'])})"))
+    rows.append(("Worst pair under the edge", f"{volt(imp['worst_pair_Vpk'])} peak, {imp.get('worst_pair_where')}"))
+    if imp.get("alpha") is not None:
+        rows.append(("Distribution constant α = √(Cg/Cs)", f"{float(imp['alpha']):.3g}"))
+    rows.append(("Capacitance to ground / core / shield", farad(imp["ground_capacitance_F"])
+                 + ("" if imp.get("ground_capacitance_given") else " (assumed: give duty.ground_capacitance)")))
     return rows
 
 
@@ -584,6 +632,11 @@ def cautions(p: dict) -> list[dict]:
     elif energy is not None:
         out.append({"level": "note", "title": "Stored magnetic energy",
                     "text": f"{joule(energy)} at the duty current (½LI²)."})
+    if cau.get("hot_surface"):
+        out.append({"level": "warning", "title": "Hot surface",
+                    "text": f"On its duty the winding's surface is computed to reach about "
+                            f"{celsius(cau.get('surface_C'))} (in still air): it burns on contact. Let it "
+                            "cool before handling, and keep it guarded where people can touch it."})
     out.append({"level": "note", "title": "Ring-test fixtures",
                 "text": "The capacitor of a ring (resonance) test fixture holds charge after the "
                         "test: discharge it through a resistor before handling (energy ½CV²)."})
@@ -605,6 +658,7 @@ def qc_items(p: dict) -> list[dict]:
     Keys follow the sign-off's line keys.  ``judged`` items get pass/fail
     boxes; the others are only recorded (they feed the sign-off's diagnosis).
     """
+    from .qc_lines import prediction_required_lines
     from .signoff import DEFAULT_MIN_INSULATION_OHM
 
     term = p.get("terminal") or {}
@@ -640,15 +694,16 @@ def qc_items(p: dict) -> list[dict]:
             items.append(item(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
                               henry(opp) if opp else "", "record (leakage)", judged=False))
     items += [
-        item("terminal.inductance", "Inductance at the terminals", henry(term.get("inductance_H")),
+        item("terminal.inductance", "Inductance at the terminals" + (
+             " (band: ordered target ± tolerance)" if acc.get("inductance_basis") == "target" else ""),
+             henry(term.get("inductance_H")) + (
+             f" ({acc['prediction_offset'] * 100:+.2f}{_NBSP}% from target)"
+             if acc.get("inductance_basis") == "target" else ""),
              band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
         item("terminal.resistance", "DC resistance at the terminals (at 20 °C)",
              ohm(term.get("resistance_ohm")),
              band(acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm"), ohm)),
     ]
-    turns = strands[0].get("turns") if strands else None
-    items.append(item("strand.turns", "Turns counted (where checked)", f"{turns}" if turns else "",
-                      f"{turns} per strand" if turns else "record"))
     ir_min = ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM
     if len(strands) > 1:
         items.append(item("continuity.strand_to_strand", "Continuity between strands", "open", "open"))
@@ -659,11 +714,13 @@ def qc_items(p: dict) -> list[dict]:
     hipot = p.get("hipot") or {}
     if (p.get("cautions") or {}).get("hipot") and hipot.get("voltage_V"):
         dur = hipot.get("duration_s")
-        items.append(item("hipot.result", f"Hipot {volt(hipot['voltage_V'])}"
+        items.append(item("hipot", f"Hipot {volt(hipot['voltage_V'])}"
                           + (f", {float(dur):g} s" if dur else "") + ": leakage, withstand",
                           "", "withstands"))
     items.append(item("ambient", "Ambient temperature at test", "", "record (°C)", judged=False))
-    return items
+    # The record prints exactly the lines the prediction requires, in its order.
+    by_key = {i["key"]: i for i in items}
+    return [by_key.get(k) or item(k, k) for k in prediction_required_lines(p)]
 
 
 def unit_tables(units: list[str]) -> list[list[str]]:
@@ -718,7 +775,7 @@ def _line_row(line: dict) -> dict:
 def signoff_context(prediction: dict, result: dict) -> dict:
     units = []
     for u in result.get("units") or []:
-        units.append({"serial": u.get("serial"), "verdict": u.get("verdict"),
+        units.append({"serial": u.get("serial"), "verdict": u.get("verdict"), "design_status": u.get("design_status"),
                       "ambient": celsius(u.get("ambient_C")) if u.get("ambient_C") is not None else "—",
                       "notes": u.get("notes"),
                       "trace": trace_text(u["trace"]) if lot_rows(u.get("trace")) else "",
@@ -733,8 +790,12 @@ def signoff_context(prediction: dict, result: dict) -> dict:
                        "min": measured_text(sp.get("min"), unit), "max": measured_text(sp.get("max"), unit),
                        "range": f"{rf * 100:.1f}{_NBSP}%" if rf is not None else "—"})
     same_order = (result.get("order_hash") == prediction.get("order_hash")) if result.get("order_hash") else None
+    from .qc_lines import status_words
+
+    design = result.get("design_status") or {"state": "ok", "reasons": []}
     return {"p": prediction, "r": result, "job": prediction.get("job") or {}, "units": units,
-            "spread": spread, "same_order": same_order,
+            "spread": spread, "same_order": same_order, "design": design, "design_words": status_words(design),
+            "apart": list(result.get("units_apart") or []),
             "cautions": list(result.get("cautions") or []), "deferral": DEFERRAL}
 
 
