@@ -645,7 +645,7 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
         typer.echo(f"  sign-off {m.name}: {result['verdict'].upper()}")
     if sheets:
         typer.echo(f"{sheets} sign-off sheets (PDF and HTML) written to {out.resolve()}")
-    _demo_records(out, list(predictions.values()))
+    _demo_records(out, [p for p, _ in predictions.values()])
 
 
 def _demo_records(out: Path, predictions: list) -> None:
