@@ -124,3 +124,20 @@ def test_single_layer_sample_at_100_kHz_through_the_prediction():
     assert p["terminal"]["resistance_ac_ohm"] == pytest.approx(s["resistance_ac_ohm"], rel=1e-9)
     # Loss at the duty current, I²·R_ac.
     assert p["terminal"]["loss_W"] == pytest.approx(0.1 ** 2 * s["resistance_ac_ohm"], rel=1e-9)
+
+
+def test_kelvin_functions_by_bessels_integral_against_scipy():
+    from scipy.special import kelvin
+
+    from windsheet.ac_resistance import kelvin_ber_bei
+
+    x = np.concatenate([np.linspace(0.0, 10.0, 41), np.geomspace(10.0, 300.0, 25)])
+    b, db = kelvin_ber_bei(x)
+    z = x * np.exp(0.75j * np.pi)
+    # ber + i bei = J0(x e^{3πi/4}), derivative -e^{3πi/4} J1 (DLMF 10.61.1); scipy's jv (AMOS) as reference.
+    np.testing.assert_allclose(b, jv(0, z), rtol=1e-12, atol=1e-15)
+    np.testing.assert_allclose(db, -np.exp(0.75j * np.pi) * jv(1, z), rtol=1e-12, atol=1e-15)
+    # scipy.special.kelvin (Zhang & Jin's routines) agrees to its own accuracy, about 5e-10 near x = 10.
+    ber, bei, berp, beip = kelvin(x)
+    np.testing.assert_allclose(b, ber, rtol=1e-8)
+    np.testing.assert_allclose(db, berp, rtol=1e-8)

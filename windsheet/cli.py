@@ -243,6 +243,11 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
         raise InputError("--out", "a dry run writes no sheet; drop --out or --dry-run")
     if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    if out is not None:
+        from .limits import check_sheet_units
+
+        # Checked before anything is evaluated or recorded; without -o any number is signed off.
+        check_sheet_units(len(readings.units), "units", "sign-off sheet")
     if dry_run:
         with open_register_readonly(register) as reg:
             _, issued = reg.find_issue(job.number, job.revision, o.sha256)
