@@ -30,7 +30,10 @@ def fields_of_file(path: Path) -> tuple[dict, list[tuple[str, dict]]]:
     (measured.py's docstring), so the two can be compared.
     """
     doc = yaml.safe_load(path.read_text())
-    job = {k: str(doc[k]) for k in ("ambient", "test_frequency", "instruments") if k in doc}
+    def mapping(v):
+        return "; ".join(f"{k}: {x}" for k, x in v.items()) if isinstance(v, dict) else str(v)
+    job = {k: mapping(doc[k]) for k in ("ambient", "test_frequency", "instruments", "wire_lot", "core_lot",
+                                        "instrument_ids") if k in doc}
     units = []
     for u in doc["units"]:
         f = {}
@@ -52,5 +55,8 @@ def fields_of_file(path: Path) -> tuple[dict, list[tuple[str, dict]]]:
             f["waive"] = "; ".join(f"{k}: {v}" for k, v in u["waive"].items())
         if "ambient" in u:
             f["ambient"] = str(u["ambient"])
+        for k in ("wire_lot", "core_lot", "instrument_ids"):
+            if k in u:
+                f[k] = mapping(u[k])
         units.append((u["serial"], f))
     return job, units

@@ -264,7 +264,10 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
         else:
             from .sheet_ledger import recorded_sheet
 
-            with recorded_sheet(reg, "signoff", out, _signoff_sheet(issued, result, html, paper)) as sheet:
+            from .report import family_chart_svg
+
+            chart = family_chart_svg(reg, issued, result)
+            with recorded_sheet(reg, "signoff", out, _signoff_sheet(issued, result, html, paper, chart)) as sheet:
                 reg.record_signoff(result, o.sha256, who, measured_units=units, sheet=sheet)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
@@ -282,10 +285,10 @@ def _resizer(order):
     return functools.partial(strand_values_at_turns, order)
 
 
-def _signoff_sheet(prediction, result, html, paper) -> bytes:
+def _signoff_sheet(prediction, result, html, paper, qc_chart_svg=None) -> bytes:
     from .render import render_pdf, render_signoff_html
 
-    page = render_signoff_html(prediction, result, paper=paper)
+    page = render_signoff_html(prediction, result, paper=paper, qc_chart_svg=qc_chart_svg)
     return page.encode("utf-8") if html else render_pdf(page)
 
 
@@ -329,9 +332,13 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                  since: Optional[str] = typer.Option(None, "--since", help="Only jobs issued on or after this "
                                                      "date (YYYY-MM-DD)."),
                  as_csv: bool = typer.Option(False, "--csv", help="Print the listing as CSV."),
-                 as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
+                 as_json: bool = typer.Option(False, "--json", help="Print as JSON."),
+                 lot: Optional[str] = typer.Option(None, "--lot", help="List every unit recorded with this "
+                                                   "wire reel or lot, core lot or instrument id (exact match).")):
     """List the jobs in the register (job, revision, customer, issued, state, passed/total, design
-    status), or one job's history; --issue records an order as issued."""
+    status), or one job's history; --issue records an order as issued; --lot lists the units of a reel or lot."""
+    if lot is not None:
+        return _lot_search(register, lot, as_json)
     from .register import open_register_readonly, resolve_register_path
 
     if issue is not None:
@@ -372,6 +379,19 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         typer.echo(listing_csv(jobs), nl=False)
     else:
         typer.echo("\n".join(table_lines(jobs)))
+
+
+def _lot_search(register, lot, as_json):
+    """The recall question: which units were built from (or measured with) ``lot``."""
+    from .register import open_register_readonly, resolve_register_path
+    from .traceability import lot_lines, similar_lots, units_with_lot
+
+    if not resolve_register_path(register).exists():
+        raise InputError(str(resolve_register_path(register)), "no register here yet; nothing is recorded")
+    with open_register_readonly(register) as reg:
+        units = units_with_lot(reg.conn, lot)
+        similar = similar_lots(reg.conn, lot) if not units else []
+    typer.echo(_to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))
 
 
 def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
@@ -505,6 +525,92 @@ def _in_parallel(fn, work: list, jobs: int = 0):
         yield from pool.map(fn, work)
 
 
+@app.command("materials")
+@guarded
+def materials_cmd(orders: list[Path] = typer.Argument(..., help="Orders (YAML files) or folders of orders."),
+                  out: Optional[Path] = typer.Option(None, "-o", "--out", help="Write the bill here: .csv, "
+                                                     ".json or .pdf (by the file's ending)."),
+                  as_json: bool = typer.Option(False, "--json", help="Print the bill as JSON (metres, kilograms)."),
+                  reels: Optional[Path] = typer.Option(None, "--reels", help="The shop's reel list (CSV: size_mm, "
+                                                       "reel_kg; optional standard, grade, conductor, thermal_class, source)."),
+                  paper: str = typer.Option("a4", "--paper", help="Paper size of the PDF: a4 or letter.")):
+    """Bill of materials for a set of orders: per job and in total (wire, tape, sleeving, forms, labels)."""
+    from .materials import bill_csv, bill_json_ready, bill_of_materials, bill_rows, load_reels
+    from .order import load_order
+    from .predict import predict
+    from .render import order_files
+
+    kinds = {".csv", ".json", ".pdf"}
+    if out is not None:
+        if out.suffix.lower() not in kinds:
+            raise InputError(str(out), "expected a file ending in .csv, .json or .pdf")
+        if not (out.parent if str(out.parent) else Path(".")).is_dir():
+            raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    reel_rows = load_reels(reels) if reels is not None else None
+    files = [f for o in orders for f in order_files(o)]
+    numbers = {}
+    predictions = []
+    for f in files:
+        p = predict(load_order(f), remedies=False)
+        number = p["job"]["number"]
+        if number in numbers:
+            raise InputError(str(f), f"job {number} is also in {numbers[number]}; give each job once")
+        numbers[number] = str(f)
+        predictions.append(p)
+    bill = bill_of_materials(predictions, reel_rows)
+    if out is not None:
+        from .fileio import atomic_write_bytes
+
+        kind = out.suffix.lower()
+        if kind == ".csv":
+            data = bill_csv(bill).encode("utf-8")
+        elif kind == ".json":
+            data = (_to_json(bill_json_ready(bill)) + "\n").encode("utf-8")
+        else:
+            from .records_render import materials_html
+            from .render import render_pdf
+
+            data = render_pdf(materials_html(bill, paper))
+        atomic_write_bytes(out, data)
+        typer.echo(f"bill of materials for {len(predictions)} job(s): {out}", err=True)
+    if as_json:
+        typer.echo(_to_json(bill_json_ready(bill)))
+    elif out is None:
+        for r in bill_rows(bill):
+            if r["scope"] == "TOTAL":
+                typer.echo(f"{r['category']:<9} {r['quantity']:>12,} {r['unit']:<6} {r['item']}")
+
+
+@app.command("report")
+@guarded
+def report_cmd(out: Optional[Path] = typer.Option(None, "-o", "--out", help="Write the QC report PDF here."),
+               as_json: bool = typer.Option(False, "--json", help="Print the report as JSON."),
+               register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
+                                                      "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
+               paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
+    """QC report from the register: the shop's bias per family, control charts with run rules."""
+    from .register import open_register
+    from .report import report_charts, report_from_register
+
+    if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
+        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    with open_register(register, create=False) as reg:
+        rep = report_from_register(reg)
+    if not rep["units"]:
+        raise InputError(str(rep["register"]), "no unit is signed off in this register yet; nothing to report")
+    if out is not None:
+        from .fileio import atomic_write_bytes
+        from .records_render import report_html
+        from .render import render_pdf
+
+        atomic_write_bytes(out, render_pdf(report_html(rep, report_charts(rep), paper)))
+        typer.echo(f"QC report of {rep['units']} unit(s): {out}", err=True)
+    if as_json:
+        typer.echo(_to_json(rep))
+    elif out is None:
+        typer.echo("\n".join(rep["statements"]))
+
+
 @app.command("demo")
 @guarded
 def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the demo sheets."),
@@ -544,6 +650,34 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
         typer.echo(f"  sign-off {m.name}: {result['verdict'].upper()}")
     if sheets:
         typer.echo(f"{sheets} sign-off sheets (PDF and HTML) written to {out.resolve()}")
+    _demo_records(out, [p for p, _ in predictions.values()])
+
+
+def _demo_records(out: Path, predictions: list) -> None:
+    """The sample bill of materials of every sample order, and a QC report on a simulated register."""
+    import tempfile
+
+    from .demo_records import build_sample_register
+    from .fileio import atomic_write_bytes
+    from .materials import bill_csv, bill_of_materials
+    from .records_render import materials_html, report_html
+    from .register import open_register
+    from .render import render_pdf
+    from .report import report_charts, report_from_register
+
+    bill = bill_of_materials(predictions)
+    atomic_write_bytes(out / "materials.csv", bill_csv(bill).encode("utf-8"))
+    atomic_write_bytes(out / "materials.pdf", render_pdf(materials_html(bill)))
+    with tempfile.TemporaryDirectory() as tmp:
+        reg_path = Path(tmp) / "sample-register.db"
+        build_sample_register(reg_path)
+        with open_register(reg_path, create=False) as reg:
+            rep = report_from_register(reg)
+        atomic_write_bytes(out / "sample-register.db", reg_path.read_bytes())
+    atomic_write_bytes(out / "qc-report.json", (_to_json(rep) + "\n").encode("utf-8"))
+    atomic_write_bytes(out / "qc-report.pdf", render_pdf(report_html(rep, report_charts(rep))))
+    typer.echo(f"bill of materials (materials.csv, .pdf) and QC report on a simulated register "
+               f"(qc-report.pdf, .json, sample-register.db; invented data) written to {out.resolve()}")
 
 
 def main():  # console-script entry point

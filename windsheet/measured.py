@@ -21,6 +21,12 @@ Shape of the file (every quantity carries its unit)::
         insulation: {strand_to_strand: 5 Gohm, to_core: 10 Gohm, test_voltage: 500 V}
         hipot: {voltage: 1500 V, duration: 60 s, leakage: 0.4 mA, result: pass}
         continuity: {A-B: open}     # or {strand_to_strand: shorted}
+        wire_lot: R-2291            # optional traceability: the reel or lot (or {A: R-2291, B: R-2292})
+        core_lot: GE50-1107         # the form's or core's lot
+        instrument_ids: {lcr: LCR-07, ohmmeter: DMM-12, hipot: HV-03}
+
+``wire_lot``, ``core_lot`` and ``instrument_ids`` may also be given once at the
+top of the file for every unit; a unit's own value replaces the file's.
 
 An inductance is either read directly (``61.2 uH``, optionally as
 ``{value: 61.2 uH, test_frequency: 10 kHz}``) or rung against a known
@@ -160,6 +166,21 @@ Current = Annotated[float, _quantity("current", allow_zero=True)]
 Duration = Annotated[float, _quantity("time")]
 Temperature = Annotated[float, _quantity("temperature")]
 Text = Annotated[str, _text(200)]
+
+
+def _lot_id(value):
+    if isinstance(value, bool) or not isinstance(value, (str, int)):
+        raise PydanticCustomError("lot", "expected a reel, lot or instrument id like 'R-2291'")
+    value = str(value).strip()
+    if not LOT_ID.match(value):
+        raise PydanticCustomError("lot", "expected a reel, lot or instrument id of letters, digits and "
+                                         "'. _ / : # -', at most 64 characters, like 'R-2291'")
+    return value
+
+
+#: Reel, lot and instrument ids: printable, no spaces at the ends, so a search matches exactly.
+LOT_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._/:#-]{0,63}$")
+LotId = Annotated[str, BeforeValidator(_lot_id)]
 
 
 def _resistance_or_open(value):
@@ -366,6 +387,10 @@ class UnitReadings(_Model):
     #: QC lines the inspector waives for this unit, each with the reason.
     waive: dict[str, Text] = Field(default_factory=dict)
     notes: Optional[Text] = None
+    # Traceability (windsheet.traceability): stored per unit in the register.
+    wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
+    core_lot: Optional[LotId] = None
+    instrument_ids: Optional[dict[str, LotId]] = None
 
     @field_validator("serial")
     @classmethod
@@ -383,6 +408,9 @@ class MeasuredFile(_Model):
     instruments: Optional[Text] = None
     ambient: Optional[Temperature] = None
     test_frequency: Optional[Frequency] = None
+    wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
+    core_lot: Optional[LotId] = None
+    instrument_ids: Optional[dict[str, LotId]] = None
     #: QC lines waived for every unit of the file, each with the reason.
     waive: dict[str, Text] = Field(default_factory=dict)
     units: list[UnitReadings] = Field(min_length=1, max_length=10_000)
@@ -439,7 +467,8 @@ def _check_keys(data: dict) -> None:
             continue
         for section, pattern, example in (("strands", STRAND_ID, "A"),
                                           ("before_joint", PAIR_ID, "A-B"),
-                                          ("continuity", PAIR_ID, "A-B")):
+                                          ("continuity", PAIR_ID, "A-B"),
+                                          ("wire_lot", STRAND_ID, "A")):
             block = unit.get(section)
             if not isinstance(block, dict):
                 continue

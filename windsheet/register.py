@@ -29,6 +29,7 @@ from .fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
 from .sheet_ledger import finish_pending, record_pending
 from .qc_lines import status_of
+from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
 
 DEFAULT_FILE = "windsheet-register.db"
 ENV_VAR = "WINDSHEET_REGISTER"
@@ -190,7 +191,7 @@ def _create(path: Path, label: str) -> None:
             conn.execute("PRAGMA journal_mode = DELETE")
             conn.execute(f"PRAGMA application_id = {APPLICATION_ID}")
             conn.execute("BEGIN")
-            for stmt in filter(str.strip, _SCHEMA.split(";")):
+            for stmt in filter(str.strip, (_SCHEMA + ";" + UNIT_LOTS_SCHEMA).split(";")):
                 conn.execute(stmt)
             conn.execute("INSERT INTO meta VALUES ('application', ?)", (APPLICATION,))
             conn.execute("INSERT INTO meta VALUES ('schema_version', '1')")
@@ -428,6 +429,7 @@ class Register:
                      "verdict": unit["verdict"], "waived": unit.get("waived") or {},
                      "design_status": unit.get("design_status")}),
              inspector, now, unit["verdict"]))
+        insert_unit_lots(c, signoff_id, number, unit["serial"], unit.get("trace"), now)
 
     # -- reading -----------------------------------------------------------------------
 
@@ -580,6 +582,7 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         conn.execute("PRAGMA synchronous = FULL")
         conn.execute("PRAGMA foreign_keys = ON")
         version = schema.migrate(conn, version, _now())
+        ensure_table(conn)  # registers made before lots were recorded gain the table
     except sqlite3.OperationalError as exc:
         conn.close()
         if _is_locked(exc):

@@ -16,6 +16,7 @@ from markupsafe import Markup
 
 from .diagrams import cross_section_svg, winding_terminals, wiring_svg
 from .errors import InputError
+from .traceability import lot_rows, trace_text
 
 
 
@@ -777,6 +778,7 @@ def signoff_context(prediction: dict, result: dict) -> dict:
         units.append({"serial": u.get("serial"), "verdict": u.get("verdict"), "design_status": u.get("design_status"),
                       "ambient": celsius(u.get("ambient_C")) if u.get("ambient_C") is not None else "—",
                       "notes": u.get("notes"),
+                      "trace": trace_text(u["trace"]) if lot_rows(u.get("trace")) else "",
                       "rows": [_line_row(x) for x in u.get("lines") or []],
                       "diagnosis": u.get("diagnosis") or []})
     spread = []
@@ -797,8 +799,14 @@ def signoff_context(prediction: dict, result: dict) -> dict:
             "cautions": list(result.get("cautions") or []), "deferral": DEFERRAL}
 
 
+def _svg_data_url(svg: str) -> str:
+    import base64
+
+    return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
+
+
 def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4",
-                        templates_dir: Path = TEMPLATES_DIR) -> str:
+                        templates_dir: Path = TEMPLATES_DIR, qc_chart_svg: str | None = None) -> str:
     """The sign-off sheet (measured against predicted, diagnosis, verdict) as HTML.
 
     ``signoff_result`` is what :func:`windsheet.signoff.evaluate_signoff` returns.
@@ -806,7 +814,8 @@ def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4
     env = environment(templates_dir)
     ctx = signoff_context(prediction, signoff_result)
     ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
-               stylesheet=_stylesheet(templates_dir), sections=SIGNOFF_SECTIONS)
+               stylesheet=_stylesheet(templates_dir), sections=SIGNOFF_SECTIONS,
+               qc_chart=_svg_data_url(qc_chart_svg) if qc_chart_svg else None)
     return env.get_template("signoff.html.j2").render(**ctx)
 
 

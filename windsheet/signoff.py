@@ -28,6 +28,7 @@ from .qc_lines import prediction_required_lines, status_of
 from .signoff_diagnosis import diagnose_strand, diagnose_terminals
 from .signoff_text import history_lines, register_lines, summary_lines  # noqa: F401 - the CLI's
 from .strand_balance import balance_lines, leakage_line
+from .traceability import unit_trace
 from .wiring_hypotheses import GAUGE_STEP_R  # noqa: F401 - re-exported
 
 #: Insulation resistance below which a unit fails when the order gives no figure
@@ -270,7 +271,7 @@ def evaluate_unit(prediction: dict, measured: MeasuredFile, unit: UnitReadings, 
     status = status_of(prediction)
     return {"serial": unit.serial, "verdict": sl.unit_verdict(lines, missing), "lines": lines,
             "diagnosis": findings, "missing": missing, "waived": waived, "ambient_C": ambient,
-            "notes": unit.notes, "design_status": status["state"]}
+            "notes": unit.notes, "design_status": status["state"], "trace": unit_trace(measured, unit)}
 
 
 # --- All units ------------------------------------------------------------------------

@@ -15,7 +15,9 @@ import re
 from typing import Optional
 
 #: Job-wide fields (stored with serial ""), in the measured file's top level.
-JOB_FIELDS = ("ambient", "test_frequency", "instruments")
+JOB_FIELDS = ("ambient", "test_frequency", "instruments", "wire_lot", "core_lot", "instrument_ids")
+#: Traceability fields: a reel or lot, or one per strand / instrument as "key: id; key: id".
+_TRACE = ("wire_lot", "core_lot", "instrument_ids")
 #: Sections a unit needs complete before it can be judged today (the terminals line).
 _WHOLE = {"terminals": ("inductance", "resistance"),
           "hipot": ("voltage", "duration", "result")}
@@ -25,7 +27,7 @@ _INDUCTANCE = re.compile(r"(^strands\.[A-Z]\.inductance$)|(^terminals\.inductanc
 _FIELD = re.compile(r"^(strands\.[A-Z]\.(inductance|resistance|turns)|before_joint\.[A-Z]-[A-Z]\."
                     r"series_(aiding|opposing)|terminals\.(inductance|resistance)|"
                     r"insulation\.(strand_to_strand|to_core|test_voltage)|"
-                    r"hipot\.(voltage|duration|leakage|result)|continuity\.strand_to_strand|ambient|waive|notes)$")
+                    r"hipot\.(voltage|duration|leakage|result)|continuity\.strand_to_strand|ambient|waive|notes|wire_lot|core_lot|instrument_ids)$")
 
 
 def is_unit_field(field: str) -> bool:
@@ -50,6 +52,9 @@ def qc_rows(prediction: dict, required: set) -> list[dict]:
     extra = [("strand.turns", "Turns counted (where checked)", f"{turns or ''}",
               f"{turns} per strand" if turns else "record"),
              ("waive", "Lines waived, with the reason", "", "line: reason; …"),
+             ("wire_lot", "Wire reel or lot (or per strand)", "", "R-2291, or A: R-2291; B: R-2305"),
+             ("core_lot", "Form or core lot", "", "GE50-1107"),
+             ("instrument_ids", "Instruments used", "", "lcr: LCR-07; hipot: HV-03"),
              ("notes", "Notes", "", "")]
     for key, label, predicted, band in extra:
         if key not in {r["key"] for r in rows}:
@@ -88,6 +93,8 @@ def _fields_for(key: str, ids: list) -> list[tuple[str, str]]:
         return [("waive", "hipot: tested at goods-in")]
     if key == "notes":
         return [("notes", "")]
+    if key in _TRACE:
+        return [(key, {"wire_lot": "R-2291", "core_lot": "GE50-1107", "instrument_ids": "lcr: LCR-07"}[key])]
     return []
 
 
@@ -97,6 +104,11 @@ def _value(field: str, text: str):
         return {"resonant_frequency": f.strip(), "capacitor": c.strip()}
     if field.endswith(".turns") and text.isdigit():
         return int(text)
+    if field in ("wire_lot", "instrument_ids") and ":" in text:
+        # "A: R-2291; B: R-2305", the measured file's mapping in one line.
+        pairs = [p.partition(":") for p in text.split(";") if p.strip()]
+        if all(sep for _, sep, _ in pairs):
+            return {k.strip(): r.strip() for k, _, r in pairs}
     if field == "waive" and ":" in text:
         # "line: reason; line: reason", the measured file's waive mapping in one line.
         pairs = [p.partition(":") for p in text.split(";") if p.strip()]
@@ -152,7 +164,7 @@ def measured_document(job: str, revision: Optional[str], job_entries: dict, unit
     for field in JOB_FIELDS:
         text = (job_entries.get(field) or "").strip()
         if text:
-            doc[field] = text
+            doc[field] = _value(field, text)
     doc["units"] = units
     return doc
 
