@@ -223,6 +223,28 @@ class LeadRoutes(_M):
     joint: Optional[Literal["back-over-winding", "end-flange"]] = None
 
 
+def _spread(v):
+    """``even``, or a sector angle like ``270 deg`` (radians)."""
+    if isinstance(v, str) and v.strip().lower() == "even":
+        return "even"
+    try:
+        angle = parse_quantity(v, "angle", "")
+    except InputError:
+        raise ValueError("expected even, or a sector angle like '270 deg'") from None
+    if not 0.0 < angle < 2 * math.pi:
+        raise ValueError("a sector is an angle above 0 deg and below 360 deg")
+    return angle
+
+
+def _direction(v):
+    words = {"clockwise": "clockwise", "cw": "clockwise", "anticlockwise": "anticlockwise",
+             "counterclockwise": "anticlockwise", "ccw": "anticlockwise"}
+    key = re.sub(r"[\s-]", "", v).lower() if isinstance(v, str) else None
+    if key not in words:
+        raise ValueError("expected clockwise or anticlockwise")
+    return words[key]
+
+
 class Winding(_M):
     # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
     strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
@@ -240,6 +262,10 @@ class Winding(_M):
     strand_spacing: Literal["together", "even"] = "together"
     impregnation: Literal["none", "varnish", "potted"] = "none"
     leads: LeadRoutes = LeadRoutes()
+    # Toroids: turns spread evenly round the core (less the gap), or over a sector.
+    spread: Optional[Annotated[Union[Literal["even"], float], BeforeValidator(_spread)]] = None
+    # Seen from the start end (a toroid: from its top face); see the README's convention.
+    direction: Annotated[Literal["clockwise", "anticlockwise"], BeforeValidator(_direction)] = "clockwise"
 
 
 class Duty(_M):

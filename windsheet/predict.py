@@ -61,6 +61,8 @@ def _place_turns(order: Order, wire, turns: int):
     except ValueError as exc:
         raise InputError("winding.layer_style", str(exc)) from None
     args.update(layer_style=w.layer_style, strand_spacing=w.strand_spacing)
+    if w.spread is not None and not isinstance(f, ToroidForm):
+        raise InputError("winding.spread", "applies to a toroid only (spread round the core)")
     try:
         if isinstance(f, CylinderForm):
             # Enamel is only proven to survive a mandrel of the wire's own diameter
@@ -71,8 +73,9 @@ def _place_turns(order: Order, wire, turns: int):
                     "overall diameter: the wire is thicker than the form")
             return lay.cylinder_layout(f.diameter, f.traverse, max_build=f.max_build, **args)
         if isinstance(f, ToroidForm):
+            spread = "even" if w.spread in (None, "even") else math.degrees(w.spread)
             return lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height,
-                                     gap_deg=math.degrees(f.gap), **args)
+                                     gap_deg=math.degrees(f.gap), spread=spread, **args)
         return lay.bobbin_layout(f.width, f.height, diameter=f.diameter,
                                  mean_turn_length=f.mean_turn_length, **args)
     except lay.FormTooSmall as exc:
@@ -302,6 +305,40 @@ def _cross_section(layout, keep=6):
             "kind": layout.kind}
 
 
+def _ring(layout, most=90):
+    """A toroid's turns round the ring, for the top view: each layer's turn angles.
+
+    Angles are degrees from the start in the winding direction, one list per
+    layer and strand (at most ``most`` a layer, evenly picked, for the
+    drawing); ``gap_deg`` is the bare angle left between the first and the
+    last turn's wire edges on the inside of the hole.
+    """
+    if layout.theta is None:
+        return None
+    deg = np.degrees(layout.theta)
+    wire_deg = math.degrees(layout.overall_diameter / layout.ring_radius)
+    layers = []
+    for lay_i in range(layout.layers):
+        per_strand = {}
+        for s in range(layout.strands):
+            sel = np.flatnonzero((layout.layer == lay_i) & (layout.strand == s))
+            sel = sel[np.argsort(layout.index[sel])]
+            pick = sel if sel.size <= most else sel[np.linspace(0, sel.size - 1, most).round().astype(int)]
+            per_strand[STRAND_IDS[s]] = [round(float(a), 2) for a in deg[pick]]
+        sel = layout.layer == lay_i
+        rho = layout.ring_radius - float(layout.r[sel][0])
+        a_turns = np.sort(deg[sel & (layout.strand == 0)])
+        layers.append({"layer": lay_i + 1, "turns": int(layout.turns_in_layer[lay_i]),
+                       "pitch_deg": float(np.diff(a_turns).mean()) if a_turns.size > 1 else 0.0,
+                       "radius_m": rho, "build_m": layout.ring_radius - rho + layout.overall_diameter / 2,
+                       "from_deg": float(deg[sel].min()), "to_deg": float(deg[sel].max()),
+                       "angles_deg": per_strand})
+    return {"spread": layout.spread, "ring_radius_m": layout.ring_radius,
+            "wire_diameter_m": layout.overall_diameter,
+            "span_deg": float(deg.max() - deg.min() + wire_deg),
+            "gap_deg": float(360.0 - (deg.max() - deg.min()) - wire_deg), "layers": layers}
+
+
 def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) -> dict:
     """Size an order: the complete Prediction, JSON-ready, SI units.
 
@@ -424,7 +461,9 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                     "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
                     "layer_tape_rating_V": order.tape_rating,
                     "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
-                    "close_wound": doc.winding.pitch is None, "target": target},
+                    "close_wound": doc.winding.pitch is None, "target": target,
+                    "direction": doc.winding.direction, "spread": layout.spread or None},
+        "ring": _ring(layout),
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,

@@ -73,11 +73,13 @@ def procedure_steps(p: dict) -> list[dict]:
         t = turns_in_layer[lay] if lay < len(turns_in_layer) else w.get("turns_per_strand")
         direction = "from the start end" if lay % 2 == 0 else "back towards the start end"
         if toroid:
-            direction = "round the core in the winding direction"
+            direction = _toroid_direction(p, lay)
         together = ("" if n == 1 else
                     f", strands {_strand_list(ids)} side by side in every turn (never crossed)")
         pitch = ("close-wound, turns touching" if w.get("close_wound")
                  else f"pitch {length(w.get('pitch_m'))} per turn")
+        if toroid:
+            pitch = _toroid_spacing(p, lay)
         title = "Wind" if layers == 1 else f"Wind layer {lay + 1} of {layers}"
         per = " per strand" if n > 1 else ""
         steps.append(_step(title, f"{t} turns{per} {direction}{together}; {pitch}.",
@@ -88,7 +90,7 @@ def procedure_steps(p: dict) -> list[dict]:
                                f"{length(w['layer_tape_m'])} thick, over "
                                f"the full traverse, overlapping at the seam; no wire visible."))
     if toroid:
-        gap = form.get("gap_deg")
+        gap = (p.get("ring") or {}).get("gap_deg", form.get("gap_deg"))
         gap_text = f"about {float(gap):.0f}°" if gap is not None else "the gap in the specification"
         steps.append(_step("Leave the start/finish gap",
                            f"Stop so that {gap_text} of the core stays bare between the starts and "
@@ -161,3 +163,26 @@ def procedure_steps(p: dict) -> list[dict]:
     return steps
 
 
+
+
+def _toroid_direction(p: dict, lay: int) -> str:
+    """Which way round, as the operator sees the core: from its top face (the face marked)."""
+    way = (p.get("winding") or {}).get("direction") or "clockwise"
+    back = "anticlockwise" if way == "clockwise" else "clockwise"
+    each = ("each turn down through the hole and back up over the outside, "
+            "the same way through the hole every turn")
+    if lay % 2 == 0:
+        return f"advancing {way} round the ring seen from its top face, from the start mark; {each}"
+    return f"back over the layer below, now advancing {back} seen from the top face towards the start; {each}"
+
+
+def _toroid_spacing(p: dict, lay: int) -> str:
+    ring = p.get("ring") or {}
+    layers = ring.get("layers") or []
+    if lay >= len(layers):
+        return "spread evenly"
+    L = layers[lay]
+    where = (f"over the {float(ring.get('span_deg') or 0):.0f}° sector marked on the core"
+             if ring.get("spread") == "sector" else "evenly round the whole core")
+    return (f"spread {where}, about {float(L['pitch_deg']):.1f}° per turn "
+            f"(from {float(L['from_deg']):.0f}° to {float(L['to_deg']):.0f}° from the start mark; see the top view)")

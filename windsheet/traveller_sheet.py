@@ -63,6 +63,7 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "cross_section_svg": Markup(cross_section_svg(p.get("cross_section") or {},
                                                       (p.get("form") or {}).get("kind") or "")),
         "section_wide": _widest_layer(p.get("cross_section") or {}) > 14,
+        "ring_svgs": _ring_svgs(p),
         "form_rows": form_rows(p.get("form") or {}),
         "duty_rows": duty_rows(p.get("duty") or {}),
         "picks": pick_list(p),
@@ -339,3 +340,16 @@ def _procedure_steps(p: dict) -> list[dict]:
     from .procedure import procedure_steps  # the procedure reads this module's rows
 
     return procedure_steps(p)
+
+
+def _ring_svgs(p: dict):
+    """A toroid's top view and section through the ring, or ``None`` for other forms."""
+    ring = p.get("ring")
+    if not ring:
+        return None
+    from .ring_diagrams import ring_section_svg, ring_top_view_svg
+
+    form = p.get("form") or {}
+    direction = (p.get("winding") or {}).get("direction") or "clockwise"
+    return {"top": Markup(ring_top_view_svg(ring, form, direction)),
+            "section": Markup(ring_section_svg(ring, form))}
