@@ -201,6 +201,8 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
                                            "an output folder (one traveller per order)."),
                   html: bool = typer.Option(False, "--html", help="Write HTML instead of PDF."),
                   paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
+                  units: Optional[str] = typer.Option(None, "--units", help="imperial (inches beside "
+                                                      "millimetres) or metric; default as the order is written."),
                   force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
                                              "fails; the sheet then says FORCED."),
                   register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
@@ -226,7 +228,7 @@ def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), 
         p = predict(o)
         check_issuable(p, force)
         forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
-        page = render_traveller_html(p, paper=paper, forced=forced)
+        page = render_traveller_html(p, paper=paper, forced=forced, units=units)
         data = page.encode("utf-8") if html else render_pdf(page)
         target = out / f"{f.stem}.{'html' if html else 'pdf'}" if into_folder else out
         jobs.append((o, p, forced, target, data))

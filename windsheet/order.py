@@ -531,7 +531,26 @@ def parse_order(data: bytes, path: str | None = None) -> Order:
         doc = OrderDoc.model_validate(raw)
     except ValidationError as exc:
         raise _validation_to_input_error(exc) from None
-    return Order(doc, data, path)
+    order = Order(doc, data, path)
+    order.imperial = written_in_imperial(raw)
+    return order
+
+
+_IMPERIAL = re.compile(r"^\s*[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*(in|inch|inches|mil|mils|thou|ft|foot|feet)\s*$",
+                       re.IGNORECASE)
+
+
+def written_in_imperial(raw) -> bool:
+    """Whether the order writes a length in inches (mil, ft) or a wire size in AWG.
+
+    The sheets then print inches (and the AWG size) beside millimetres.
+    """
+    if isinstance(raw, dict):
+        return any(written_in_imperial(v) for v in raw.values())
+    if isinstance(raw, list):
+        return any(written_in_imperial(v) for v in raw)
+    return isinstance(raw, str) and (bool(_IMPERIAL.match(raw)) or
+                                     bool(re.fullmatch(r"\s*\d+(/0)?\s*awg\s*", raw, re.IGNORECASE)))
 
 
 def load_order(path) -> Order:

@@ -464,6 +464,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                     "close_wound": doc.winding.pitch is None, "target": target,
                     "direction": doc.winding.direction, "spread": layout.spread or None},
         "ring": _ring(layout),
+        "sheet_units": "imperial" if getattr(order, "imperial", False) else "metric",
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,

@@ -31,8 +31,22 @@ def check_issuable(prediction: dict, force: bool = False) -> None:
                          "not issued — fix the order, or issue with --force")
 
 
+#: The CLI's ``--units`` words.
+UNIT_SYSTEMS = ("imperial", "metric")
+
+
+def _imperial(prediction: dict, units: str | None) -> bool:
+    """Inches beside millimetres: as the order was written, unless ``--units`` says otherwise."""
+    if units is None:
+        return prediction.get("sheet_units") == "imperial"
+    key = str(units).strip().lower()
+    if key not in UNIT_SYSTEMS:
+        raise InputError("--units", f"expected imperial or metric, got {units!r}")
+    return key == "imperial"
+
+
 def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = False,
-                          templates_dir: Path = TEMPLATES_DIR) -> str:
+                          templates_dir: Path = TEMPLATES_DIR, units: str | None = None) -> str:
     """The traveller for one order as a standalone HTML document.
 
     Parameters
@@ -43,12 +57,21 @@ def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = Fa
     forced : bool
         The sheet was issued with ``--force`` over a failing insulation check;
         printed prominently on the first page.
+    units : {None, "imperial", "metric"}
+        Lengths in millimetres, with inches beside them for ``imperial``;
+        by default as the order was written (``prediction["sheet_units"]``).
     """
-    env = environment(templates_dir)
-    ctx = traveller_context(prediction, forced=forced)
-    ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
-               stylesheet=_stylesheet(templates_dir), sections=SECTIONS)
-    return env.get_template("traveller.html.j2").render(**ctx)
+    from .fmt import IMPERIAL
+
+    token = IMPERIAL.set(_imperial(prediction, units))
+    try:
+        env = environment(templates_dir)
+        ctx = traveller_context(prediction, forced=forced)
+        ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
+                   stylesheet=_stylesheet(templates_dir), sections=SECTIONS)
+        return env.get_template("traveller.html.j2").render(**ctx)
+    finally:
+        IMPERIAL.reset(token)
 
 
 def order_files(path) -> list[Path]:
@@ -69,18 +92,29 @@ def order_files(path) -> list[Path]:
     return [path]
 
 
-def traveller(prediction: dict, paper: str = "a4", forced: bool = False) -> tuple[str, bytes]:
+def traveller(prediction: dict, paper: str = "a4", forced: bool = False,
+              units: str | None = None) -> tuple[str, bytes]:
     """HTML and PDF of one traveller."""
-    html = render_traveller_html(prediction, paper=paper, forced=forced)
+    html = render_traveller_html(prediction, paper=paper, forced=forced, units=units)
     return html, render_pdf(html)
 
 
 def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4",
-                        templates_dir: Path = TEMPLATES_DIR) -> str:
+                        templates_dir: Path = TEMPLATES_DIR, units: str | None = None) -> str:
     """The sign-off sheet (measured against predicted, diagnosis, verdict) as HTML.
 
     ``signoff_result`` is what :func:`windsheet.signoff.evaluate_signoff` returns.
     """
+    from .fmt import IMPERIAL
+
+    token = IMPERIAL.set(_imperial(prediction, units))
+    try:
+        return _signoff_html(prediction, signoff_result, paper, templates_dir)
+    finally:
+        IMPERIAL.reset(token)
+
+
+def _signoff_html(prediction, signoff_result, paper, templates_dir):
     env = environment(templates_dir)
     ctx = signoff_context(prediction, signoff_result)
     ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
