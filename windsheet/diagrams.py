@@ -250,13 +250,16 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
     """
     layers = [layer.get("slots") or [] if isinstance(layer, dict) else layer
               for layer in cross_section.get("layers") or []]
+    counts = [layer.get("turns") if isinstance(layer, dict) else None
+              for layer in cross_section.get("layers") or []]
+    full = max([c for c in counts if c] + [0])
     tape = bool(cross_section.get("tape_between_layers"))
     cell = 20.0
     gap_w = 26.0
     tape_h = 6.0 if tape else 0.0
     runs = [_with_gaps(layer) for layer in layers]
     width_cells = max([_run_width(r, cell, gap_w) for r in runs] + [cell * 4])
-    margin_l, margin_r = 64.0, 16.0
+    margin_l, margin_r = 64.0, 96.0
     width = margin_l + width_cells + margin_r
     base_y = 30.0 + len(layers) * (cell + tape_h) + 14.0
     height = base_y + 34.0
@@ -288,6 +291,13 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
             _text(g, x + cell / 2, y + 4, s, text_anchor="middle", font_weight="bold",
                   fill=STRAND_TEXT.get(s, "#000000"))
             x += cell
+        n = counts[lay] if lay < len(counts) else None
+        if n:
+            # A partial layer ends short, where its last turn lies, and says so.
+            partial = n < full
+            _text(g, x + 6, y + 4, f"{n} of {full} turns, partial" if partial else f"{n} turns",
+                  font_size="9", font_weight="bold" if partial else None,
+                  data_partial="1" if partial else None)
         if tape and lay < len(runs) - 1:
             ty = y - cell / 2 - tape_h / 2
             _el(root, "rect", x=f"{margin_l - 4:.1f}", y=f"{ty - (tape_h - 2) / 2:.1f}",

@@ -294,13 +294,16 @@ def _cross_section(layout, keep=6):
     for lay_i in range(layout.layers):
         sel = np.flatnonzero(layout.layer == lay_i)
         slots = sorted(set(layout.slot[sel].tolist()))
-        shown = slots if len(slots) <= 2 * keep else slots[:keep] + slots[-keep:]
+        # A partial layer shows fewer slots after the ellipsis, in proportion to its turns.
+        full = max(layout.turns_in_layer)
+        tail = keep if len(slots) >= full else max(1, round(keep * len(slots) / full) - 2)
+        shown = slots if len(slots) <= keep + tail else slots[:keep] + slots[-tail:]
         rows = []
         for k in shown:
             for t in sel[layout.slot[sel] == k]:
                 rows.append({"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]})
         out.append({"layer": lay_i + 1, "turns": len(slots), "slots": rows,
-                    "elided": len(slots) > 2 * keep})
+                    "elided": len(slots) > keep + tail})
     return {"layers": out, "tape_between_layers": layout.tape > 0 and layout.layers > 1,
             "kind": layout.kind}
 

@@ -67,11 +67,16 @@ def procedure_steps(p: dict) -> list[dict]:
     start_routes = sorted({routes[f"{s}.start"]["route_text"] for s in ids if f"{s}.start" in routes})
     if start_routes:
         start_text += f" Start lead{'s' if n > 1 else ''}: {'; '.join(start_routes)}."
+    if not toroid:
+        start_text += " " + _where_to_start(p)
     steps.append(_step("Anchor and label the start" + ("s" if n > 1 else ""), start_text))
 
     for lay in range(layers):
         t = turns_in_layer[lay] if lay < len(turns_in_layer) else w.get("turns_per_strand")
-        direction = "from the start end" if lay % 2 == 0 else "back towards the start end"
+        way = w.get("direction") or "clockwise"
+        direction = (f"from the start end, the form turning so the wire goes on {way} seen from the "
+                     "start end" if lay % 2 == 0 else
+                     f"back towards the start end, still going on {way} seen from the start end")
         if toroid:
             direction = _toroid_direction(p, lay)
         together = ("" if n == 1 else
@@ -154,6 +159,8 @@ def procedure_steps(p: dict) -> list[dict]:
             f"{volt(hipot['voltage_V'])}{f' for {float(dur):g} s' if dur else ''} {where}. "
             f"Basis: {hipot.get('basis', '—')}. See the cautions.",
             ["leakage", "result"]))
+    if kind == "bobbin":
+        steps.append(_core_assembly_step(p))
     steps.append(_step("Final measurements",
                        "Terminal inductance and DC resistance at the terminals "
                        f"{' – '.join(t for t, _ in terminal_names(hookup, ids))}; insulation resistance; "
@@ -186,3 +193,29 @@ def _toroid_spacing(p: dict, lay: int) -> str:
              if ring.get("spread") == "sector" else "evenly round the whole core")
     return (f"spread {where}, about {float(L['pitch_deg']):.1f}° per turn "
             f"(from {float(L['from_deg']):.0f}° to {float(L['to_deg']):.0f}° from the start mark; see the top view)")
+
+
+def _where_to_start(p: dict) -> str:
+    """Where on the traverse the first turn goes, and the room the winding leaves."""
+    fit = p.get("fit") or {}
+    used, room = fit.get("traverse_used_m"), fit.get("traverse_m")
+    if not used or not room:
+        return "Start hard against the start flange."
+    spare = room - used
+    return (f"Start hard against the start flange (the start end); the winding takes {length(used)} "
+            f"of the {length(room)} traverse, leaving {length(spare)} bare at the finish end.")
+
+
+def _core_assembly_step(p: dict) -> dict:
+    """Fit the core to the wound bobbin; its gap sets the inductance the terminals read."""
+    form = p.get("form") or {}
+    acc = (p.get("terminal") or {}).get("accept") or {}
+    lo, hi = acc.get("inductance_min_H"), acc.get("inductance_max_H")
+    gap = form.get("gap_m")
+    how = (f"Fit the core halves with a gap of {length(gap)} (spacer in each outer leg or ground centre leg, "
+           "per the core's data); clamp or bond them." if gap else
+           "Fit the core halves through the bobbin and clamp them; if the core is gapped, adjust the "
+           f"gap (spacers) until the inductance at the terminals reads {henry(lo)} – {henry(hi)} at the "
+           "test frequency, then clamp or bond.")
+    return _step("Assemble and gap the core", how + " The predicted inductance holds only with the "
+                 "core as assembled here.", ["L after gapping"])
