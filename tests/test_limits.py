@@ -84,3 +84,21 @@ def test_target_needing_more_than_the_budget_is_refused_at_the_target(monkeypatc
     ok = copy.deepcopy(doc)
     ok["winding"]["target_inductance"] = "200 uH"
     assert run(ok)["winding"]["target"]["error"] == pytest.approx(0, abs=0.05)
+
+
+def test_a_traveller_beyond_the_sheet_budget_is_refused_and_nothing_is_written(tmp_path):
+    from typer.testing import CliRunner
+
+    from windsheet.cli import app
+
+    doc = yaml.safe_load((SAMPLES / "hl-0410-single.yaml").read_text(encoding="utf-8"))
+    doc["job"].pop("units", None)
+    doc["job"]["quantity"] = limits.SHEET_UNITS + 1
+    f = tmp_path / "big.yaml"
+    f.write_text(yaml.safe_dump(doc), encoding="utf-8")
+    reg, out = tmp_path / "r.db", tmp_path / "big.pdf"
+    res = CliRunner().invoke(app, ["traveller", str(f), "-o", str(out), "--register", str(reg)])
+    assert res.exit_code == 2 and res.stderr.startswith("windsheet: job.quantity: a traveller for 101 units")
+    assert not out.exists() and not reg.exists()
+    # The order itself still sizes: the budget is the sheet's, not the order's.
+    assert CliRunner().invoke(app, ["size", str(f)]).exit_code == 0

@@ -15,7 +15,7 @@ from typer.testing import CliRunner
 
 from windsheet import fileio
 from windsheet.errors import InputError
-from windsheet.register import (APPLICATION_ID, DEFAULT_FILE, ENV_VAR, open_register,
+from windsheet.register import (APPLICATION_ID, SCHEMA_VERSION, DEFAULT_FILE, ENV_VAR, open_register,
                                 resolve_register_path)
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -157,7 +157,7 @@ def test_new_register_carries_marker_and_schema_version(tmp_path):
     header = path.read_bytes()[:100]
     # SQLite file format: application_id at offset 68, user_version at 60 (sqlite.org/fileformat.html).
     assert int.from_bytes(header[68:72], "big") == APPLICATION_ID
-    assert int.from_bytes(header[60:64], "big") == 1
+    assert int.from_bytes(header[60:64], "big") == SCHEMA_VERSION == 2
     with sqlite3.connect(path) as c:
         assert c.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
         assert dict(c.execute("SELECT key, value FROM meta"))["application"] == "windsheet-register"
@@ -393,7 +393,7 @@ def test_signoff_commands_on_samples(tmp_path, cli):
     bad = cli("signoff", ORDER, SAMPLES / "HL-0412-reversed.measured.yaml", "--register", reg,
               "--inspector", "T. Vance")
     assert bad.exit_code == 1
-    assert "HL-0412-02: FAIL" in bad.output and "a strand is reversed" in bad.output
+    assert "HL-0412-02: FAIL" in bad.output and "strand A reversed" in bad.output
     listing = cli("register", "--register", reg)
     assert listing.exit_code == 0 and "failed" in listing.output
     history = cli("register", "HL-0412", "--register", reg)

@@ -18,12 +18,27 @@ from . import fmt
 from .errors import InputError
 
 app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False,
-                  rich_markup_mode=None)  # plain usage errors: a few lines, no boxes
+                  rich_markup_mode=None,  # plain usage errors: a few lines, no boxes
+                  context_settings={"help_option_names": ["-h", "--help"]})
+
+
+def _show_version(value: bool):
+    if value:
+        from . import __version__
+
+        typer.echo(f"windsheet {__version__}")
+        raise typer.Exit(0)
 
 
 @app.callback()
-def _root():
-    """Job sheets for coil winding: size an order, print its traveller, sign off the units."""
+def _root(version: bool = typer.Option(False, "--version", is_eager=True, callback=_show_version,
+                                       help="Print the version and exit.")):
+    """Job sheets for coil winding: size an order, print its traveller, sign off the units.
+
+    Exit status: 0 done (and every verdict a pass or marginal), 1 a verdict short of that
+    (an insulation FAIL from size, a unit not passed at sign-off) or a batch with a refused
+    order, 2 bad input (one line on stderr names the field or file; nothing is written).
+    """
 
 
 def guarded(fn):
@@ -55,8 +70,9 @@ def summary_lines(p: dict) -> list[str]:
     row("Job", f"{j['number']} rev {j['revision']} — {j['part']} (qty {j['quantity']})")
     row("Wire", p["wire"]["label"] + f", overall {eng(p['wire']['overall_diameter_m'], 'm')}")
     w = p["winding"]
-    row("Winding", f"{w['strands']} strand(s) × {w['turns_per_strand']} turns, {w['layers']} layer(s) "
-        f"{w['turns_in_layer']}, pitch {eng(w['pitch_m'], 'm')}")
+    layers = ", ".join(str(n) for n in w["turns_in_layer"])
+    row("Winding", f"{_count(w['strands'], 'strand')} × {w['turns_per_strand']} turns, "
+        f"{_count(w['layers'], 'layer')} ({layers} turns per strand), pitch {eng(w['pitch_m'], 'm')}")
     if w.get("target"):
         t = w["target"]
         row("Target", f"{eng(t['inductance_H'], 'H')} → {t['turns_exact']:.2f} turns exact, "
@@ -65,7 +81,7 @@ def summary_lines(p: dict) -> list[str]:
     row("Fit", f"{fit['slots_per_layer']} slots per layer, traverse used {eng(fit['traverse_used_m'], 'm')}"
         + (f" of {eng(fit['traverse_m'], 'm')}" if fit.get("traverse_m") else "")
         + f", build {eng(fit['build_m'], 'm')}")
-    row("Hookup", f"{p['hookup']['name']}: joins {p['hookup']['joins'] or 'none'}, terminals {p['hookup']['terminals']}")
+    row("Hookup", hookup_words(p["hookup"]))
     for s in p["strands"]:
         row(f"Strand {s['id']}", f"{eng(s['inductance_H'], 'H')}, {eng(s['resistance_20C_ohm'], 'Ω')} at 20 °C, "
             f"{s['wire_length_m']:.2f} m ({s['wire_length_with_scrap_m']:.2f} m with scrap), "
@@ -74,6 +90,9 @@ def summary_lines(p: dict) -> list[str]:
     row("Terminals", f"L {eng(t['inductance_H'], 'H')} (accept {eng(t['accept']['inductance_min_H'], 'H')} … "
         f"{eng(t['accept']['inductance_max_H'], 'H')}), R {eng(t['resistance_ohm'], 'Ω')} at 20 °C, "
         f"{eng(t['resistance_hot_ohm'], 'Ω')} at {p['duty']['operating_temperature_C']:.0f} °C")
+    if t["accept"].get("inductance_basis") == "target":
+        row("", f"L accept band is the ordered target ± tolerance; prediction "
+            f"{t['accept']['prediction_offset'] * 100:+.2f} % from target")
     row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
     if p.get("current_sheet_inductance_H"):
         row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "
@@ -89,24 +108,86 @@ def summary_lines(p: dict) -> list[str]:
     return [f"{k:<{width}}  {v}" for k, v in rows]
 
 
+def _count(n: int, word: str) -> str:
+    return f"{n} {word}{'' if n == 1 else 's'}"
+
+
+def _end(end: str) -> str:
+    # "A.finish" -> "A finish": the words the bench uses.
+    return end.replace(".", " ")
+
+
+def hookup_words(h: dict) -> str:
+    """The hookup as a winder says it: ``series-aiding — A finish joined to B start; T1 A start, T2 B finish``."""
+    joins = "; ".join(" joined to ".join(_end(e) for e in j) for j in (h.get("joins") or []))
+    terms = ", ".join(f"T{i} {_end(t)}" for i, t in enumerate(h.get("terminals") or [], 1))
+    return f"{h['name']} — " + (f"{joins}; " if joins else "no joins; ") + f"terminals {terms}"
+
+
 def _to_json(obj) -> str:
     return json.dumps(obj, indent=2, ensure_ascii=False, allow_nan=False, default=str)
 
 
 # ---------------------------------------------------------------- commands
 @app.command()
-@guarded
-def size(order: Path = typer.Argument(..., help="The order, a YAML file."),
-         as_json: bool = typer.Option(False, "--json", help="Print the whole prediction as JSON (SI units).")):
-    """Size a coil order: turns, layers, fit, wire, resistance, inductance, stress."""
-    from .order import load_order
+def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folders of orders or globs; "
+                                            "'-' reads one order from standard input."),
+         as_json: bool = typer.Option(False, "--json", help="Print the whole prediction as JSON (SI units); "
+                                      "several orders print one JSON object per line (JSON Lines).")):
+    """Size coil orders: turns, layers, fit, wire, resistance, inductance, stress.
+
+    Exit 0 when every order sizes and none fails its insulation check, 1 when one fails it
+    (or, in a batch, when any order is refused), 2 for bad input to a single order.
+    """
+    from .batch import expand_orders, load_order_arg, progress
+
+    try:
+        files = expand_orders(orders)
+    except InputError as exc:
+        typer.echo(f"windsheet: {exc}", err=True)
+        raise typer.Exit(2) from None
+    if len(files) == 1:
+        p = _size_one(files[0])
+        typer.echo(_to_json(p) if as_json else "\n".join(summary_lines(p)))
+        raise typer.Exit(1 if _insulation_fails(p) else 0)
     from .predict import predict
 
-    p = predict(load_order(order))
-    if as_json:
-        typer.echo(_to_json(p))
-    else:
-        typer.echo("\n".join(summary_lines(p)))
+    refused, failing = [], []
+    with progress(len(files), "sizing") as step:
+        for f in files:
+            try:
+                p = predict(load_order_arg(f))
+            except InputError as exc:
+                # Named by its file; the batch carries on.
+                msg = str(exc)
+                typer.echo(f"windsheet: {msg if msg.startswith(f) else f'{f}: {msg}'}", err=True)
+                refused.append(f)
+                step()
+                continue
+            if _insulation_fails(p):
+                failing.append(f)
+            if as_json:
+                typer.echo(json.dumps({"file": f, **p}, ensure_ascii=False, allow_nan=False, default=str))
+            else:
+                typer.echo(f"== {f}\n" + "\n".join(summary_lines(p)) + "\n")
+            step()
+    sized = len(files) - len(refused)
+    tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
+    tail += f"; {len(failing)} fail the insulation check ({', '.join(failing)})" if failing else ""
+    typer.echo(f"windsheet: sized {sized} of {len(files)} orders{tail}", err=True)
+    raise typer.Exit(1 if refused or failing else 0)
+
+
+@guarded
+def _size_one(arg: str) -> dict:
+    from .batch import load_order_arg
+    from .predict import predict
+
+    return predict(load_order_arg(arg))
+
+
+def _insulation_fails(p: dict) -> bool:
+    return (p.get("insulation") or {}).get("verdict") == "fail"
 
 
 @app.command()
@@ -119,12 +200,23 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
             inspector: Optional[str] = typer.Option(None, "--inspector", help="Who signs the units off."),
             out: Optional[Path] = typer.Option(None, "-o", "--out", help="Also write the sign-off sheet here "
                                                "(PDF, or HTML with --html)."),
-            html: bool = typer.Option(False, "--html", help="Write the sheet as HTML instead of PDF."),
-            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
-    """Sign off measured units against the issued traveller; exit 0 all pass, 1 any fail, 2 bad input."""
+            html: bool = typer.Option(False, "--html", help="Write the sheet as HTML (same as --format html)."),
+            fmt: Optional[str] = typer.Option(None, "--format", help="pdf or html; default from the "
+                                              "sheet's extension, else pdf."),
+            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
+            dry_run: bool = typer.Option(False, "--dry-run", help="Evaluate and print only: record nothing "
+                                         "(the register file is opened read-only) and write no sheet.")):
+    """Sign off measured units against the issued traveller.
+
+    Exit status: 0 every unit passes, 1 any unit fails, 3 none fails but some
+    are incomplete (a required QC line not read), 2 bad input.
+    """
+    from .batch import output_format
+
+    html = output_format(out, fmt, html, allowed=("pdf", "html")) == "html"
     from .measured import load_measured
     from .order import load_order
-    from .register import open_register
+    from .register import open_register, open_register_readonly
     from .signoff import evaluate_signoff, exit_status
     from .signoff import summary_lines as signoff_lines
 
@@ -134,21 +226,42 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
     if not who:
         raise InputError("inspector", "name the inspector with --inspector or 'inspector:' in the measured file")
     job = o.doc.job
+    if dry_run and out is not None:
+        raise InputError("--out", "a dry run writes no sheet; drop --out or --dry-run")
     if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    if dry_run:
+        with open_register_readonly(register) as reg:
+            _, issued = reg.find_issue(job.number, job.revision, o.sha256)
+        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
+        typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng) + ["(dry run: nothing recorded)"]))
+        raise typer.Exit(exit_status(result))
     with open_register(register, create=False) as reg:
+        _say_repairs(reg)
         _, issued = reg.find_issue(job.number, job.revision, o.sha256)
-        result = evaluate_signoff(issued, readings, inspector=who)
+        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
         units = [u.model_dump(mode="json") for u in readings.units]
         if out is None:
             reg.record_signoff(result, o.sha256, who, measured_units=units)
         else:
-            from .fileio import staged_write
+            from .sheet_ledger import recorded_sheet
 
-            with staged_write(out, _signoff_sheet(issued, result, html, paper)):
-                reg.record_signoff(result, o.sha256, who, measured_units=units)
+            with recorded_sheet(reg, "signoff", out, _signoff_sheet(issued, result, html, paper)) as sheet:
+                reg.record_signoff(result, o.sha256, who, measured_units=units, sheet=sheet)
     typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
     raise typer.Exit(exit_status(result))
+
+
+def _say_repairs(reg):
+    for line in getattr(reg, "repairs", []) or []:
+        typer.echo(f"windsheet: {line}", err=True)
+
+
+def _resizer(order):
+    """The engine re-sizing this order at another turn count, for the diagnosis."""
+    from .predict import strand_values_at_turns
+
+    return functools.partial(strand_values_at_turns, order)
 
 
 def _signoff_sheet(prediction, result, html, paper) -> bytes:
@@ -158,6 +271,30 @@ def _signoff_sheet(prediction, result, html, paper) -> bytes:
     return page.encode("utf-8") if html else render_pdf(page)
 
 
+@app.command("readings-form")
+@guarded
+def readings_form_cmd(order: Path = typer.Argument(..., help="The order, a YAML file."),
+                      out: Path = typer.Option(..., "-o", "--out", help="The form to write (.yaml, or .csv)."),
+                      as_csv: bool = typer.Option(False, "--csv", help="Write CSV (one row per unit) even "
+                                                  "when the name does not end in .csv.")):
+    """Write a measured-values file for the order: its serial numbers, every required QC line empty."""
+    from .fileio import atomic_write_text
+    from .order import load_order
+    from .predict import predict
+    from .readings_form import csv_form, yaml_form
+
+    p = predict(load_order(order))
+    if out.exists():
+        raise InputError(str(out), "already exists; a filled-in form is a record, not overwritten — "
+                                   "choose another name")
+    if not (out.parent if str(out.parent) else Path(".")).is_dir():
+        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    csv_out = as_csv or out.suffix.lower() == ".csv"
+    atomic_write_text(out, csv_form(p) if csv_out else yaml_form(p))
+    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: readings form for "
+               f"{len(p['job']['units'])} units, {len(p['qc_required'])} lines each: {out}", err=True)
+
+
 @app.command("register")
 @guarded
 def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: show its history."),
@@ -165,82 +302,191 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                                                         "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
                  issue: Optional[Path] = typer.Option(None, "--issue", help="Record ORDER.yaml as issued "
                                                       "(the traveller command does this when it prints)."),
+                 force: bool = typer.Option(False, "--force", help="With --issue: record a design that fails "
+                                            "its insulation check; it is then marked FORCED."),
+                 state: Optional[str] = typer.Option(None, "--state", help="Only jobs in this state: issued, "
+                                                     "passed, failed or incomplete."),
+                 customer: Optional[str] = typer.Option(None, "--customer", help="Only jobs whose customer "
+                                                        "contains this (any case)."),
+                 since: Optional[str] = typer.Option(None, "--since", help="Only jobs issued on or after this "
+                                                     "date (YYYY-MM-DD)."),
+                 as_csv: bool = typer.Option(False, "--csv", help="Print the listing as CSV."),
                  as_json: bool = typer.Option(False, "--json", help="Print as JSON.")):
-    """List jobs in the register with their state (issued, passed, failed), or one job's history."""
-    from .register import open_register
-    from .signoff import history_lines, register_lines
+    """List the jobs in the register (job, revision, customer, issued, state, passed/total, design
+    status), or one job's history; --issue records an order as issued."""
+    from .register import open_register_readonly, resolve_register_path
 
-    issued = None
     if issue is not None:
         from .order import load_order
         from .predict import predict
+        from .qc_lines import design_fails, design_status
+        from .register import open_register
+        from .render import check_issuable
 
         o = load_order(issue)
         p = predict(o)
-    from .register import resolve_register_path
-
-    if issue is None and not resolve_register_path(register).exists():
+        check_issuable(p, force)
+        p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
+        with open_register(register, create=True) as reg:
+            issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
+        forced = " — FORCED over a failing insulation check" if p["design_status"]["state"] == "forced" else ""
+        # Only what was recorded: the listing is its own command.
+        typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
+        return
+    if not resolve_register_path(register).exists():
         typer.echo(f"(no register yet at {resolve_register_path(register)})")
         return
-    with open_register(register, create=issue is not None) as reg:
-        if issue is not None:
-            issued = reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
-            typer.echo(f"issued {p['job']['number']} rev {p['job']['revision']} (issue {issued})", err=True)
+    # Listing reads only: a read-only file or folder can be listed.
+    with open_register_readonly(register) as reg:
         if job:
+            from .signoff_text import history_lines
+
             h = reg.job_history(job)
             typer.echo(_to_json(h) if as_json else "\n".join(history_lines(h)))
-        else:
-            jobs = reg.list_jobs()
-            typer.echo(_to_json(jobs) if as_json else "\n".join(register_lines(jobs)))
+            return
+        jobs = reg.list_jobs()
+    from .register_listing import as_csv as listing_csv, select, table_lines
+
+    jobs = select(jobs, state, customer, since)
+    if as_json:
+        typer.echo(_to_json(jobs))
+    elif as_csv:
+        typer.echo(listing_csv(jobs), nl=False)
+    else:
+        typer.echo("\n".join(table_lines(jobs)))
+
+
+def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | None = None):
+    """Size, check and render one traveller (runs in a worker process for a batch)."""
+    from .batch import load_order_arg
+    from .predict import predict
+    from .qc_lines import design_fails, design_status
+    from .render import check_issuable, render_pdf, render_traveller_html
+
+    o = load_order_arg(arg)
+    p = predict(o)
+    check_issuable(p, force)
+    if fmt != "json":
+        from .limits import check_sheet_units
+
+        check_sheet_units(len(p["job"]["units"]), "job.quantity", "traveller")
+    forced = force and design_fails(p)
+    p = {**p, "design_status": design_status(p, forced=forced)}
+    if fmt == "json":
+        data = (_to_json(p) + "\n").encode("utf-8")
+    else:
+        page = render_traveller_html(p, paper=paper, forced=forced, units=units)
+        data = page.encode("utf-8") if fmt == "html" else render_pdf(page)
+    return p, o.source.decode("utf-8", "replace"), o.sha256, forced, data
+
+
+def _traveller_worker(args):
+    try:
+        return _traveller_job(*args), None
+    except InputError as exc:
+        return None, str(exc)
 
 
 @app.command("traveller")
 @guarded
-def traveller_cmd(order: Path = typer.Argument(..., help="An order (YAML file), or a folder of orders."),
-                  out: Path = typer.Option(..., "-o", "--out", help="Output file; for a folder of orders, "
-                                           "an output folder (one traveller per order)."),
-                  html: bool = typer.Option(False, "--html", help="Write HTML instead of PDF."),
+def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML files), folders of orders or globs; "
+                                                     "'-' reads one order from standard input."),
+                  out: str = typer.Option(..., "-o", "--out", help="Output file, or '-' for standard output; "
+                                          "for several orders, an output folder (one traveller per order)."),
+                  html: bool = typer.Option(False, "--html", help="Write HTML (same as --format html)."),
+                  fmt: Optional[str] = typer.Option(None, "--format", help="pdf, html or json (the prediction); "
+                                                    "default: from the output file's extension, else pdf."),
                   paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
                   units: Optional[str] = typer.Option(None, "--units", help="imperial (inches beside "
                                                       "millimetres) or metric; default as the order is written."),
                   force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
                                              "fails; the sheet then says FORCED."),
+                  jobs: int = typer.Option(0, "--jobs", min=0, help="Worker processes for several orders "
+                                           "(default: one per core)."),
                   register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
                                                          "$WINDSHEET_REGISTER, else ./windsheet-register.db).")):
-    """Print the traveller (job sheet) of an order, and record the issue in the job register."""
-    from .fileio import staged_write
-    from .order import load_order
-    from .predict import predict
-    from .register import open_register
-    from .render import check_issuable, order_files, render_pdf, render_traveller_html
+    """Print the traveller (job sheet) of an order, and record the issue in the job register.
 
-    files = order_files(order)
-    many = Path(order).is_dir()
-    into_folder = many or out.is_dir()
-    if many and out.exists() and not out.is_dir():
-        raise InputError(str(out), "a folder of orders needs an output folder, not a file")
-    if not into_folder and not (out.parent if str(out.parent) else Path(".")).is_dir():
-        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
-    # Everything is sized, checked and rendered before anything is written or recorded.
-    jobs = []
-    for f in files:
-        o = load_order(f)
-        p = predict(o)
-        check_issuable(p, force)
-        forced = force and (p.get("insulation") or {}).get("verdict") == "fail"
-        page = render_traveller_html(p, paper=paper, forced=forced, units=units)
-        data = page.encode("utf-8") if html else render_pdf(page)
-        target = out / f"{f.stem}.{'html' if html else 'pdf'}" if into_folder else out
-        jobs.append((o, p, forced, target, data))
-    if many:
-        out.mkdir(parents=True, exist_ok=True)
-    with open_register(register) as reg:
-        for o, p, forced, target, data in jobs:
-            # The sheet lands only if its issue is recorded, and the reverse.
-            with staged_write(target, data):
-                reg.record_issue(p, o.source.decode("utf-8", "replace"), o.sha256)
-            note = " — FORCED over a failing insulation check" if forced else ""
-            typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=bool(forced))
+    One order: everything is sized, checked and rendered before anything is written or
+    recorded, and the sheet lands only with its register record. Several orders: rendered in
+    parallel, each written and recorded as soon as it is done; a refused order is named and
+    the batch carries on (exit 1 at the end).
+    """
+    from .batch import STDIN, expand_orders, output_format, progress
+    from .register import open_register
+    from .sheet_ledger import recorded_sheet
+
+    files = expand_orders(orders)
+    many = len(files) > 1 or any(Path(a).is_dir() for a in orders if a != STDIN)
+    if out == STDIN:
+        if many:
+            raise InputError("-o", "several travellers need an output folder, not standard output")
+        fmt_ = output_format(out, fmt, html)
+        if fmt_ == "pdf" and sys.stdout.isatty():
+            raise InputError("-o", "will not write a PDF to a terminal: redirect it, or give --format html")
+    else:
+        out_path = Path(out)
+        if many and out_path.exists() and not out_path.is_dir():
+            raise InputError(out, "several orders need an output folder, not a file")
+        into_folder = many or out_path.is_dir()
+        fmt_ = output_format(None if into_folder else out, fmt, html)
+        if not into_folder and not (out_path.parent if str(out_path.parent) else Path(".")).is_dir():
+            raise InputError(out, f"cannot write: folder {str(out_path.parent)!r} does not exist")
+    if not many:
+        p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force, units)
+        with open_register(register) as reg:
+            _say_repairs(reg)
+            if out == STDIN:
+                how = reg.issue_or_reprint(p, source, sha)[1]
+                sys.stdout.buffer.write(data)
+                sys.stdout.buffer.flush()
+            else:
+                target = out_path / f"{Path(files[0]).stem}.{fmt_}" if into_folder else out_path
+                # The sheet lands only if its issue is recorded, and the reverse.
+                with recorded_sheet(reg, "traveller", target, data) as sheet:
+                    how = reg.issue_or_reprint(p, source, sha, sheet=sheet)[1]
+                _said_issued(p, target, forced, how)
+        return
+    out_path.mkdir(parents=True, exist_ok=True)
+    refused = []
+    work = [(f, paper, fmt_, force, units) for f in files]
+    with open_register(register) as reg, progress(len(files), "travellers") as step:
+        _say_repairs(reg)
+        for f, (done, err) in zip(files, _in_parallel(_traveller_worker, work, jobs)):
+            if err is not None:
+                typer.echo(f"windsheet: {err if err.startswith(f) else f'{f}: {err}'}", err=True)
+                refused.append(f)
+            else:
+                p, source, sha, forced, data = done
+                target = out_path / f"{Path(f).stem}.{fmt_}"
+                with recorded_sheet(reg, "traveller", target, data) as sheet:
+                    how = reg.issue_or_reprint(p, source, sha, sheet=sheet)[1]
+                _said_issued(p, target, forced, how)
+            step()
+    tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
+    typer.echo(f"windsheet: {len(files) - len(refused)} of {len(files)} travellers written to {out_path}{tail}",
+               err=True)
+    if refused:
+        raise typer.Exit(1)
+
+
+def _said_issued(p, target, forced, how):
+    note = " — FORCED over a failing insulation check" if forced else ""
+    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=True)
+
+
+def _in_parallel(fn, work: list, jobs: int = 0):
+    """``fn`` over ``work`` in worker processes, results in order as each is ready (one core: in process)."""
+    import os
+
+    n = min(jobs or os.cpu_count() or 1, len(work))
+    if n <= 1:
+        yield from map(fn, work)
+        return
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(max_workers=n) as pool:
+        yield from pool.map(fn, work)
 
 
 @app.command("demo")
@@ -261,8 +507,9 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     out.mkdir(parents=True, exist_ok=True)
     predictions = {}
     for f in files:
-        p = predict(load_order(f))
-        predictions[p["job"]["number"]] = p
+        o = load_order(f)
+        p = predict(o)
+        predictions[p["job"]["number"]] = (p, o)
         page = render_traveller_html(p)
         atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
         atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))
@@ -270,10 +517,10 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     sheets = 0
     for m in sorted(folder.glob("*.measured.yaml")):
         readings = load_measured(m)
-        p = predictions.get(readings.job)
-        if p is None:
+        if readings.job not in predictions:
             continue
-        result = evaluate_signoff(p, readings, inspector=readings.inspector)
+        p, o = predictions[readings.job]
+        result = evaluate_signoff(p, readings, inspector=readings.inspector, resize=_resizer(o))
         stem = m.name[: -len(".measured.yaml")] + "-signoff"
         atomic_write_bytes(out / f"{stem}.html", _signoff_sheet(p, result, True, "a4"))
         atomic_write_bytes(out / f"{stem}.pdf", _signoff_sheet(p, result, False, "a4"))

@@ -29,22 +29,53 @@ def _fsync_dir(folder: Path) -> None:
         os.close(fd)
 
 
-@contextmanager
-def staged_write(path, data: bytes):
-    """Write ``data`` beside ``path`` and put it in place only if the ``with`` block succeeds.
+def _temp_prefix(name: str) -> str:
+    # Host and process in the name: a later run can tell a crashed writer's file from a live one's.
+    import socket
 
-    The temporary file in the same folder is flushed, fsynced and renamed over
-    the target with :func:`os.replace`, which is atomic on POSIX and Windows
-    when both names are on one file system (hence the same folder).  On any
-    failure, in the write or in the block, the temporary file is removed and
-    the old target is left as it was.  The block is where a caller records
-    what it wrote (the register), so a record and its file stand or fall together.
+    host = "".join(ch for ch in socket.gethostname() if ch.isalnum() or ch in "-_")[:40] or "host"
+    return f".{name}.{host}-{os.getpid()}."
 
-    Raises
-    ------
-    InputError
-        The folder is missing, the path is a folder, or it is not writable;
-        the error names the output path.
+
+def clean_stale_temps(folder, name: str) -> list[Path]:
+    """Remove temporary files a crashed run of this host left beside ``folder/name``.
+
+    A temporary file is ``.NAME.HOST-PID.XXXX.tmp``; it is stale when HOST is
+    this host and process PID no longer runs.  Files of live processes and of
+    other hosts are left alone.  Returns what was removed.
+    """
+    folder = Path(folder)
+    mine = _temp_prefix(name)
+    host_prefix = mine[: mine.rindex("-") + 1]
+    removed = []
+    try:
+        names = [q for q in folder.iterdir() if q.name.startswith(host_prefix) and q.name.endswith(".tmp")]
+    except OSError:
+        return removed
+    for q in names:
+        pid_text = q.name[len(host_prefix):].split(".", 1)[0]
+        if not pid_text.isdigit():
+            continue
+        try:
+            os.kill(int(pid_text), 0)
+            continue  # still running
+        except ProcessLookupError:
+            pass
+        except OSError:
+            continue  # running as someone else
+        try:
+            q.unlink()
+            removed.append(q)
+        except OSError:
+            pass
+    return removed
+
+
+def stage_file(path, data: bytes) -> tuple[Path, str]:
+    """Write ``data`` to a temporary file beside ``path`` (flushed, fsynced, permissions set).
+
+    Returns ``(target, temporary name)``; put it in place with :func:`place_file`.
+    Stale temporary files of crashed runs for the same name are removed first.
     """
     target = Path(path)
     folder = target.parent if str(target.parent) else Path(".")
@@ -53,8 +84,9 @@ def staged_write(path, data: bytes):
         raise InputError(label, f"cannot write: folder {str(folder)!r} does not exist")
     if target.is_dir():
         raise InputError(label, "cannot write: this is a folder, expected a file name")
+    clean_stale_temps(folder, target.name)
     try:
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+        fd, tmp_name = tempfile.mkstemp(prefix=_temp_prefix(target.name), suffix=".tmp", dir=folder)
     except PermissionError:
         raise InputError(label, f"cannot write: no write permission in folder {str(folder)!r}") from None
     except OSError as exc:
@@ -74,19 +106,61 @@ def staged_write(path, data: bytes):
             umask = os.umask(0)
             os.umask(umask)
             os.chmod(tmp_name, 0o666 & ~umask)
-        yield target
-        os.replace(tmp_name, target)
     except BaseException as exc:
-        try:
-            os.unlink(tmp_name)
-        except OSError:
-            pass
+        discard_file(tmp_name)
         if isinstance(exc, PermissionError):
             raise InputError(label, "cannot write: permission denied") from None
         if isinstance(exc, OSError):
             raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
         raise
-    _fsync_dir(folder)
+    return target, tmp_name
+
+
+def place_file(tmp_name: str, target) -> None:
+    """Rename a staged file over its target (atomic in one folder) and sync the folder."""
+    target = Path(target)
+    os.replace(tmp_name, target)
+    _fsync_dir(target.parent if str(target.parent) else Path("."))
+
+
+def discard_file(tmp_name: str) -> None:
+    try:
+        os.unlink(tmp_name)
+    except OSError:
+        pass
+
+
+@contextmanager
+def staged_write(path, data: bytes):
+    """Write ``data`` beside ``path`` and put it in place only if the ``with`` block succeeds.
+
+    The temporary file in the same folder is flushed, fsynced and renamed over
+    the target with :func:`os.replace`, which is atomic on POSIX and Windows
+    when both names are on one file system (hence the same folder).  On any
+    failure, in the write or in the block, the temporary file is removed and
+    the old target is left as it was.  The block is where a caller records
+    what it wrote (the register), so a record and its file stand or fall
+    together; :mod:`windsheet.sheet_ledger` also closes the window between
+    the record's commit and the rename.
+
+    Raises
+    ------
+    InputError
+        The folder is missing, the path is a folder, or it is not writable;
+        the error names the output path.
+    """
+    target, tmp_name = stage_file(path, data)
+    label = str(target)
+    try:
+        yield target
+        place_file(tmp_name, target)
+    except BaseException as exc:
+        discard_file(tmp_name)
+        if isinstance(exc, PermissionError):
+            raise InputError(label, "cannot write: permission denied") from None
+        if isinstance(exc, OSError):
+            raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+        raise
 
 
 def atomic_write_bytes(path, data: bytes) -> Path:

@@ -92,3 +92,35 @@ def check_engine_work(turns: int, layers: int, strands: int, path: str) -> None:
             f"{turns} turns x {layers} layers x {strands} strand(s) is {work:,} of work (turns x layers x "
             f"strands), more than the {ENGINE_WORK:,} windsheet sizes: {_FEWER_LAYERS}, fewer strands "
             "or fewer turns"))
+
+
+#: Units on one printed sheet (a traveller's QC record, a sign-off sheet).  Four
+#: units fill a QC table: a 100-unit traveller is about 32 pages, 13 s and 265 MB
+#: on a busy 2-core machine (250 units: 21 s, 460 MB).  A larger job is issued in lots.
+SHEET_UNITS = 100
+
+
+def check_sheet_units(units: int, path: str = "job.quantity", sheet: str = "traveller") -> None:
+    """Refuse a sheet for more than :data:`SHEET_UNITS` units, saying what to change.
+
+    Parameters
+    ----------
+    units : int
+        Units (serial numbers) the sheet would list. [1]
+    path : str
+        YAML path of the field the refusal names.
+    sheet : str
+        Which sheet, for the message.
+
+    Examples
+    --------
+    >>> check_sheet_units(100)
+    >>> check_sheet_units(1000)  # doctest: +ELLIPSIS
+    Traceback (most recent call last):
+    ...
+    windsheet.errors.InputError: job.quantity: a traveller for 1000 units is more than the 100 ...
+    """
+    if int(units) > SHEET_UNITS:
+        raise InputError(path, (
+            f"a {sheet} for {units} units is more than the {SHEET_UNITS} one sheet holds: "
+            f"issue the job in lots of at most {SHEET_UNITS} units"))

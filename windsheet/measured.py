@@ -36,7 +36,7 @@ from __future__ import annotations
 import datetime as _dt
 import math
 import re
-from typing import Annotated, Any, Literal, Optional
+from typing import Annotated, Any, Literal, Optional, Union
 
 from pydantic import (BaseModel, BeforeValidator, ConfigDict, Field, ValidationError,
                       field_validator, model_validator)
@@ -268,13 +268,39 @@ class StrandReadings(_Model):
 
 
 class PairReadings(_Model):
-    series_aiding: InductanceReading
-    series_opposing: InductanceReading
+    series_aiding: Optional[InductanceReading] = None
+    series_opposing: Optional[InductanceReading] = None
 
 
 class TerminalReadings(_Model):
-    inductance: InductanceReading
-    resistance: Resistance
+    inductance: Optional[InductanceReading] = None
+    resistance: Optional[Resistance] = None
+
+
+class TapReading(_Model):
+    """An extra inductance read between two points of the wired coil.
+
+    Points are ``T1`` / ``T2`` (the terminals as ordered) or a joint named by
+    its strand ends as ordered, e.g. ``A.finish+B.start``.
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=True)
+    from_: Text = Field(alias="from")
+    to: Text
+    #: ``open`` when the meter finds no path between the two points.
+    inductance: Union[Literal["open"], InductanceReading]
+
+    @field_validator("inductance", mode="before")
+    @classmethod
+    def _open_word(cls, value):
+        if isinstance(value, str) and value.strip().lower() in ("open", "open circuit", "ol"):
+            return "open"
+        return value
+
+    @property
+    def henries(self) -> float:
+        """The inductance read [H]; infinite for an open circuit."""
+        return float("inf") if self.inductance == "open" else self.inductance.henries
 
 
 class InsulationReadings(_Model):
@@ -285,14 +311,20 @@ class InsulationReadings(_Model):
 
 
 class HipotReading(_Model):
-    voltage: Voltage
-    duration: Duration
+    voltage: Optional[Voltage] = None
+    duration: Optional[Duration] = None
     leakage: Optional[Current] = None
-    result: Literal["pass", "fail"]
+    result: Optional[Literal["pass", "fail"]] = None
+
+    @property
+    def complete(self) -> bool:
+        return None not in (self.voltage, self.duration, self.result)
 
     @field_validator("result", mode="before")
     @classmethod
     def _result_words(cls, value):
+        if value is None:
+            return None
         if isinstance(value, bool):
             raise PydanticCustomError("result", "expected 'pass' or 'fail'")
         if isinstance(value, str):
@@ -308,6 +340,8 @@ ContinuityWord = Literal["open", "shorted"]
 
 
 def _continuity_word(value):
+    if value is None:
+        return None
     if isinstance(value, str):
         word = value.strip().lower()
         if word in ("open", "none", "no continuity", "isolated"):
@@ -323,11 +357,14 @@ class UnitReadings(_Model):
     test_frequency: Optional[Frequency] = None
     strands: dict[str, StrandReadings] = Field(default_factory=dict)
     before_joint: dict[str, PairReadings] = Field(default_factory=dict)
-    terminals: TerminalReadings
+    terminals: TerminalReadings = Field(default_factory=TerminalReadings)
     insulation: Optional[InsulationReadings] = None
     hipot: Optional[HipotReading] = None
-    continuity: dict[str, Annotated[ContinuityWord, BeforeValidator(_continuity_word)]] = Field(
+    continuity: dict[str, Optional[Annotated[ContinuityWord, BeforeValidator(_continuity_word)]]] = Field(
         default_factory=dict)
+    taps: list[TapReading] = Field(default_factory=list, max_length=64)
+    #: QC lines the inspector waives for this unit, each with the reason.
+    waive: dict[str, Text] = Field(default_factory=dict)
     notes: Optional[Text] = None
 
     @field_validator("serial")
@@ -346,6 +383,8 @@ class MeasuredFile(_Model):
     instruments: Optional[Text] = None
     ambient: Optional[Temperature] = None
     test_frequency: Optional[Frequency] = None
+    #: QC lines waived for every unit of the file, each with the reason.
+    waive: dict[str, Text] = Field(default_factory=dict)
     units: list[UnitReadings] = Field(min_length=1, max_length=10_000)
 
 
@@ -427,7 +466,20 @@ def measured_from_dict(data: Any) -> MeasuredFile:
 
 
 def load_measured(path) -> MeasuredFile:
-    """Read a measured-values YAML file (size, depth and alias limits apply)."""
+    """Read a measured-values file: YAML (size, depth and alias limits apply), or CSV
+    (``.csv``: one row per unit, one column per QC line, see readings_form.py)."""
+    if str(path).lower().endswith(".csv"):
+        from .fileio import MAX_YAML_BYTES, read_limited
+        from .readings_form import measured_from_csv
+
+        raw = read_limited(path, MAX_YAML_BYTES)
+        if len(raw) > MAX_YAML_BYTES:
+            raise InputError(str(path), f"is larger than {MAX_YAML_BYTES} bytes; not a readings file")
+        try:
+            text = raw.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise InputError(str(path), "is not UTF-8 text") from None
+        return measured_from_csv(text, str(path))
     data = read_yaml_file(path)
     try:
         return measured_from_dict(data)

@@ -266,3 +266,113 @@ def alternative_hookups(L, R, frequency):
         out[name] = {"inductance_H": res.inductance, "resistance_ohm": res.resistance}
     out["single strand"] = {"inductance_H": float(np.asarray(L)[0, 0]), "resistance_ohm": float(R[0])}
     return out
+
+
+def _components(node_of, n):
+    """Connected pieces of the node graph, the strands as edges."""
+    parent = list(range(n))
+
+    def find(x):
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    for s in range(len(node_of) // 2):
+        parent[find(node_of[2 * s])] = find(node_of[2 * s + 1])
+    return [find(k) for k in range(n)]
+
+
+def _solve_loose(L, R, node_of, t1, t2, n, omega):
+    """MNA like :func:`_solve`, tolerating what a miswired coil can be.
+
+    A strand with both ends on one node is a shorted loop (it still couples);
+    a piece of the network not joined to the terminals gets its own reference
+    node, so its loops still carry induced current.  Returns the potential of
+    ``t1`` for 1 A into it, or None when no path joins the terminals.
+    """
+    comp = _components(node_of, n)
+    if comp[t1] != comp[t2]:
+        return None
+    refs = {comp[t2]: t2}
+    for k in range(n):
+        refs.setdefault(comp[k], k)
+    grounded = set(refs.values())
+    S = len(R)
+    Z = np.diag(R).astype(complex) + 1j * omega * np.asarray(L, dtype=float)
+    keep = [k for k in range(n) if k not in grounded]
+    col = {k: i for i, k in enumerate(keep)}
+    nv = len(keep)
+    A = np.zeros((nv + S, nv + S), dtype=complex)
+    b = np.zeros(nv + S, dtype=complex)
+    for s in range(S):
+        a_node, f_node = node_of[2 * s], node_of[2 * s + 1]
+        row = nv + s
+        if a_node in col:
+            A[row, col[a_node]] += 1
+            A[col[a_node], nv + s] += 1
+        if f_node in col:
+            A[row, col[f_node]] -= 1
+            A[col[f_node], nv + s] -= 1
+        A[row, nv:] -= Z[s]
+    if t1 not in col:
+        return None
+    b[col[t1]] = 1.0
+    try:
+        x = np.linalg.solve(A, b)
+    except np.linalg.LinAlgError:
+        return None
+    return x[col[t1]]
+
+
+def terminal_reading(L, R, node_of, t1, t2, frequency):
+    """What an LCR meter and an ohmmeter read between two nodes of any wiring.
+
+    Unlike :func:`solve_network` nothing is refused: strands may be shorted
+    out, left floating or form loops of their own, as a wiring mistake makes
+    them.  Used by sign-off to predict the readings of each wiring hypothesis.
+
+    Parameters
+    ----------
+    L : ndarray, shape (S, S)
+        Strand inductance matrix. [H]
+    R : ndarray, shape (S,)
+        Strand resistances. [ohm]
+    node_of : sequence of int, length 2 S
+        Node of each strand end, in the order A.start, A.finish, B.start, ...
+    t1, t2 : int
+        The two nodes the meter is clipped to.
+    frequency : float
+        Frequency of the inductance reading; 1 kHz when 0. [Hz]
+
+    Returns
+    -------
+    (inductance, resistance) : tuple of float
+        [H], [ohm]; ``(None, inf)`` when no path joins the two nodes.
+
+    References
+    ----------
+    .. [1] C.-W. Ho, A. E. Ruehli, P. A. Brennan, "The modified nodal approach
+       to network analysis", IEEE Trans. Circuits Syst. 22(6), 504-509, 1975.
+
+    Examples
+    --------
+    Two identical strands, k = 0.5, in series aiding read 2 L (1 + k):
+
+    >>> L = [[1e-4, 5e-5], [5e-5, 1e-4]]
+    >>> l, r = terminal_reading(L, [1.0, 1.0], [0, 1, 1, 2], 0, 2, 1e3)
+    >>> round(l * 1e6, 3), round(r, 6)
+    (300.0, 2.0)
+    """
+    R = np.asarray(R, dtype=float)
+    node_of = list(node_of)
+    n = max(node_of + [t1, t2]) + 1
+    if t1 == t2:
+        return 0.0, 0.0
+    v_dc = _solve_loose(L, R, node_of, t1, t2, n, 0.0)
+    if v_dc is None:
+        return None, float("inf")
+    f_eval = frequency if frequency > 0 else 1e3
+    omega = 2 * np.pi * f_eval
+    v_ac = _solve_loose(L, R, node_of, t1, t2, n, omega)
+    return float(v_ac.imag / omega), float(v_dc.real)

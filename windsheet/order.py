@@ -370,6 +370,8 @@ def duty_amplitudes(data: dict) -> dict:
 class Tolerances(_M):
     inductance: Fraction = 0.10
     resistance: Fraction = 0.05
+    #: Strands compared with each other (L and R); default half the L and R tolerances.
+    strand_balance: Optional[Fraction] = None
 
 
 class Insulation(_M):

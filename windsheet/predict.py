@@ -22,6 +22,7 @@ from .remedies import advice, find_remedies
 from .limits import check_engine_work, check_turns_in_all
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
+from .qc_lines import required_lines
 from .wire import copper_mass, dc_resistance
 
 #: Most turns per strand sized, as for an order's winding.turns.
@@ -474,7 +475,8 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                  "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
                  "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
         "test": {"frequency_Hz": doc.test.frequency},
-        "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance},
+        "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
+                       "strand_balance": tol.strand_balance},
         "fit": {"slots_per_layer": layout.slots_per_layer, "traverse_used_m": layout.traverse_used,
                 "traverse_m": getattr(f, "traverse", None) or getattr(f, "width", None),
                 "build_m": layout.build_height, "max_build_m": getattr(f, "max_build", None)
@@ -488,8 +490,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
             "resistance_hot_ohm": duty_net.resistance,
             "capacitance_F": st["capacitance"]["terminal_F"],
             "self_resonance_Hz": st["self_resonance_Hz"],
-            "accept": {"inductance_min_H": net.inductance * (1 - tol.inductance),
-                       "inductance_max_H": net.inductance * (1 + tol.inductance),
+            "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
                        "resistance_min_ohm": net.resistance * (1 - tol.resistance),
                        "resistance_max_ohm": net.resistance * (1 + tol.resistance)},
         },
@@ -502,6 +503,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "capacitance": st["capacitance"],
         "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
         "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
+        "qc_required": required_lines(S, bool(net.joins), True),
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
                      "stored_energy_J": energy},
@@ -516,6 +518,28 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     else:
         out["insulation"] = {**out["insulation"], "remedies": None}
     return out
+
+
+def _inductance_accept(predicted, target, tol):
+    """Terminal inductance band: the ordered target +/- tolerance when the order gives
+    one (the customer bought the target, not our estimate), else the prediction's."""
+    centre = target["inductance_H"] if target else predicted
+    return {"inductance_min_H": centre * (1 - tol), "inductance_max_H": centre * (1 + tol),
+            "inductance_basis": "target" if target else "prediction",
+            "inductance_centre_H": centre, "prediction_offset": predicted / centre - 1}
+
+
+def strand_values_at_turns(order: Order, turns: int):
+    """Strand inductance matrix [H] and resistances at 20 degC [ohm] re-sized at ``turns``.
+
+    The same engine as :func:`predict`, for the sign-off's turn-count
+    hypotheses (N - k ... N + k); raises InputError when that many turns do not fit.
+    """
+    wire = resolve_wire(order)
+    layout = _layout(order, wire, int(turns))
+    L = _inductance_matrix(order, wire, layout)
+    R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter, conductor=wire.conductor)
+    return np.asarray(L, dtype=float), np.asarray(R, dtype=float)
 
 
 def _default_ident(sid: str, strands: int) -> str:

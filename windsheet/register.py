@@ -24,14 +24,17 @@ from pathlib import Path
 from typing import Optional
 
 from .errors import InputError
+from . import register_schema as schema
 from .fileio import require_regular_file
+from .register_schema import SCHEMA_VERSION
+from .sheet_ledger import finish_pending, record_pending
+from .qc_lines import status_of
 
 DEFAULT_FILE = "windsheet-register.db"
 ENV_VAR = "WINDSHEET_REGISTER"
 APPLICATION = "windsheet-register"
 #: PRAGMA application_id, "WSHR" in ASCII: marks the file in its own header.
 APPLICATION_ID = 0x57534852
-SCHEMA_VERSION = 1
 DEFAULT_TIMEOUT_S = 10.0
 
 _SQLITE_MAGIC = b"SQLite format 3\x00"
@@ -81,6 +84,7 @@ CREATE INDEX unit_signoffs_job ON unit_signoffs(job, serial);
 """
 
 
+
 def resolve_register_path(option: Optional[str] = None) -> Path:
     """The register file: ``--register``, else ``$WINDSHEET_REGISTER``, else the working directory's."""
     if option:
@@ -126,17 +130,19 @@ def _check_header(header: bytes, label: str) -> None:
                                 "refusing to touch it — give another path with --register")
 
 
-def _check_contents(conn: sqlite3.Connection, label: str) -> None:
+def _check_contents(conn: sqlite3.Connection, label: str) -> int:
+    """Check a register's header tables, version and structure; returns its schema version."""
     try:
         ok = conn.execute("PRAGMA quick_check").fetchone()[0]
         row = conn.execute("SELECT value FROM meta WHERE key = 'application'").fetchone()
         version = conn.execute("PRAGMA user_version").fetchone()[0]
-    except sqlite3.DatabaseError as exc:
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
         if _is_locked(exc):
             raise _locked_error(label) from None
-        raise InputError(label, f"register is damaged or not a windsheet register ({exc})") from None
+        raise InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})") from None
     if ok != "ok":
-        raise InputError(label, f"register is damaged (integrity check: {ok}); restore it from a backup")
+        first = (str(ok).splitlines() or ["?"])[0][:160]
+        raise InputError(label, f"register is damaged (integrity check: {first}); restore it from a backup")
     if row is None or row[0] != APPLICATION:
         raise InputError(label, "is not a windsheet register (no application marker)")
     if version > SCHEMA_VERSION:
@@ -144,6 +150,11 @@ def _check_contents(conn: sqlite3.Connection, label: str) -> None:
                                 f"understands ({SCHEMA_VERSION}); upgrade windsheet")
     if version < 1:
         raise InputError(label, "register has no schema version; it is damaged")
+    try:
+        schema.check_structure(conn, version, label)
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
+        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+    return version
 
 
 def _is_locked(exc: Exception) -> bool:
@@ -182,10 +193,12 @@ def _create(path: Path, label: str) -> None:
             for stmt in filter(str.strip, _SCHEMA.split(";")):
                 conn.execute(stmt)
             conn.execute("INSERT INTO meta VALUES ('application', ?)", (APPLICATION,))
-            conn.execute("INSERT INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),))
+            conn.execute("INSERT INTO meta VALUES ('schema_version', '1')")
             conn.execute("INSERT INTO meta VALUES ('created_at', ?)", (_now(),))
-            conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
+            conn.execute("PRAGMA user_version = 1")
             conn.execute("COMMIT")
+            # A fresh register takes the same steps as an old one: version 1, then each migration.
+            schema.migrate(conn, 1, _now())
         finally:
             conn.close()
         with open(tmp, "rb") as fh:
@@ -208,8 +221,39 @@ def _create(path: Path, label: str) -> None:
 
 # --- The register ---------------------------------------------------------------------
 
+def _reads(method):
+    """A read of the register: damage found while reading is one line, never a traceback."""
+    import functools
+
+    @functools.wraps(method)
+    def wrapper(self, *args, **kwargs):
+        try:
+            return method(self, *args, **kwargs)
+        except InputError:
+            raise
+        except sqlite3.OperationalError as exc:
+            if _is_locked(exc):
+                raise _locked_error(self.label) from None
+            raise InputError(self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+        except (sqlite3.DatabaseError, ValueError, TypeError, AttributeError, KeyError, UnicodeError) as exc:
+            raise InputError(self.label, f"register is damaged ({type(exc).__name__}: {_one_line(exc)}); "
+                                         "restore it from a backup") from None
+    return wrapper
+
+
+def _one_line(exc) -> str:
+    if isinstance(exc, UnicodeDecodeError):
+        return "text that is not UTF-8"
+    return (str(exc).splitlines() or [""])[0][:160]
+
+
 class Register:
     """An open job register; use :func:`open_register`."""
+
+    #: Schema version of the open file (a read-only old register stays at its own).
+    version = SCHEMA_VERSION
+    #: Lines about sheets an interrupted run left, finished on opening (see sheet_ledger).
+    repairs: list = []
 
     def __init__(self, conn: sqlite3.Connection, path: Path, timeout: float):
         self.conn = conn
@@ -251,13 +295,19 @@ class Register:
     # -- issue -------------------------------------------------------------------------
 
     def record_issue(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
-                     revision: Optional[str] = None) -> int:
+                     revision: Optional[str] = None, sheet=None) -> int:
         """Record that a traveller was issued; returns the issue id.
 
-        Re-issuing the same revision with the same content (a reprint) is
-        recorded again.  The same revision with different content is refused:
-        a changed order needs a new revision.
+        Re-issuing the same revision with the same content (a reprint: the
+        same traveller as A4, Letter or HTML) is recorded as a reprint of that
+        issue, whose id is returned.  The same revision with different content
+        is refused: a changed order needs a new revision.
         """
+        return self.issue_or_reprint(predictions, order_text, order_sha256, revision, sheet)[0]
+
+    def issue_or_reprint(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
+                         revision: Optional[str] = None, sheet=None) -> tuple[int, str]:
+        """Like :meth:`record_issue`; returns ``(issue id, "issued" or "reprinted")``."""
         job = predictions.get("job") or {}
         number = job.get("number")
         if not number:
@@ -275,16 +325,27 @@ class Register:
                                      f"content (sha256 {sha[:12]}…, now {order_sha256[:12]}…); "
                                      "give the changed order a new revision")
             now = _now()
+            first = c.execute("SELECT id FROM issues WHERE job = ? AND revision = ? ORDER BY id LIMIT 1",
+                              (number, revision)).fetchone()
+            if first is not None:
+                c.execute("INSERT INTO reprints (issue_id, printed_by, printed_at) VALUES (?, ?, ?)",
+                          (first[0], job.get("issued_by"), now))
+                if sheet is not None:
+                    record_pending(c, sheet, first[0], now)
+                return int(first[0]), "reprinted"
             c.execute("INSERT OR IGNORE INTO jobs VALUES (?, ?, ?, ?)",
                       (number, job.get("part"), job.get("customer"), now))
             c.execute("UPDATE jobs SET part = ?, customer = ? WHERE number = ?",
                       (job.get("part"), job.get("customer"), number))
             cur = c.execute(
                 "INSERT INTO issues (job, revision, order_sha256, order_text, predictions_json, units_json,"
-                " issued_by, issued_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+                " issued_by, issued_at, design_state) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
                 (number, revision, order_sha256, order_text, _dumps(predictions),
-                 _dumps(list(job.get("units") or [])), job.get("issued_by"), now))
-            return int(cur.lastrowid)
+                 _dumps(list(job.get("units") or [])), job.get("issued_by"), now,
+                 schema.design_state_of(predictions)))
+            if sheet is not None:
+                record_pending(c, sheet, cur.lastrowid, now)
+            return int(cur.lastrowid), "issued"
 
     # -- sign-off ----------------------------------------------------------------------
 
@@ -306,6 +367,7 @@ class Register:
         raise InputError("job.revision", f"revision {revision} of job {number} has not been issued "
                                          f"(issued: {issued}); issue its traveller first")
 
+    @_reads
     def find_issue(self, number: str, revision: Optional[str], order_sha256: str) -> tuple[int, dict]:
         """The issue a sign-off of this order belongs to, and its recorded predictions.
 
@@ -315,7 +377,8 @@ class Register:
         return issue_id, self.issued_predictions(issue_id)
 
     def record_signoff(self, result: dict, order_sha256: Optional[str] = None,
-                       inspector: Optional[str] = None, measured_units: Optional[list] = None) -> int:
+                       inspector: Optional[str] = None, measured_units: Optional[list] = None,
+                       sheet=None) -> int:
         """Record a sign-off (the dict from :func:`windsheet.signoff.evaluate_signoff`).
 
         ``measured_units`` optionally gives the raw readings per unit (same order
@@ -333,91 +396,145 @@ class Register:
             cur = c.execute(
                 "INSERT INTO signoffs (job, issue_id, revision, order_sha256, inspector, verdict, result_json,"
                 " signed_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
-                (number, issue_id, revision, order_sha256, inspector, result["verdict"], _dumps(result), now))
+                (number, issue_id, revision, order_sha256, inspector, _column_verdict(result["verdict"]),
+             _dumps(result), now))
             signoff_id = int(cur.lastrowid)
             for k, unit in enumerate(units):
                 raw = measured_units[k] if measured_units else None
                 self._insert_unit(c, signoff_id, number, unit, raw, inspector, now)
+            if sheet is not None:
+                record_pending(c, sheet, signoff_id, now)
             return signoff_id
+
+    def mark_sheet(self, sheet_id: int, state: str) -> None:
+        """The sheet recorded as ``sheet_id`` is now ``placed`` (or ``unprinted``)."""
+        with self.transaction() as c:
+            c.execute("UPDATE sheets SET state = ? WHERE id = ?", (state, int(sheet_id)))
+
+    def finish_sheets(self) -> list[str]:
+        """Finish sheets a crashed run left pending (see :mod:`windsheet.sheet_ledger`)."""
+        if self.version < 2 or self.conn.execute(
+                "SELECT 1 FROM sheets WHERE state = 'pending' LIMIT 1").fetchone() is None:
+            return []
+        with self.transaction() as c:
+            return finish_pending(c)
 
     def _insert_unit(self, c, signoff_id, number, unit, raw, inspector, now):
         c.execute(
             "INSERT INTO unit_signoffs (signoff_id, job, serial, verdict, measurements_json, inspector,"
-            " signed_at) VALUES (?, ?, ?, ?, ?, ?, ?)",
-            (signoff_id, number, unit["serial"], unit["verdict"],
-             _dumps({"readings": raw, "lines": unit.get("lines"), "diagnosis": unit.get("diagnosis")}),
-             inspector, now))
+            " signed_at, unit_verdict) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+            (signoff_id, number, unit["serial"], _column_verdict(unit["verdict"]),
+             _dumps({"readings": raw, "lines": unit.get("lines"), "diagnosis": unit.get("diagnosis"),
+                     "verdict": unit["verdict"], "waived": unit.get("waived") or {},
+                     "design_status": unit.get("design_status")}),
+             inspector, now, unit["verdict"]))
 
     # -- reading -----------------------------------------------------------------------
 
-    def _latest_issue(self, number: str):
-        return self.conn.execute(
-            "SELECT id, revision, order_sha256, units_json, issued_at, issued_by FROM issues"
-            " WHERE job = ? ORDER BY id DESC LIMIT 1", (number,)).fetchone()
+    def _states(self, number: Optional[str] = None) -> list[dict]:
+        """Each job's state at its latest issued revision (one job, or all, newest issue first).
 
-    def job_state(self, number: str) -> dict:
-        """State of a job at its latest issued revision: issued, passed or failed."""
-        issue = self._latest_issue(number)
-        if issue is None:
-            raise InputError("job", f"job {number} is not in register {self.label}")
-        issue_id, revision, sha, units_json, issued_at, issued_by = issue
-        serials = json.loads(units_json)
-        latest = {}
-        for serial, verdict in self.conn.execute(
-                "SELECT u.serial, u.verdict FROM unit_signoffs u JOIN signoffs s ON s.id = u.signoff_id"
-                " WHERE s.job = ? AND s.revision = ? ORDER BY u.id", (number, revision)):
-            latest[serial] = verdict
-        failed = sorted(s for s, v in latest.items() if v == "fail")
-        passed = sorted(s for s, v in latest.items() if v == "pass")
-        everyone = set(serials) or set(latest)
-        if failed:
-            state = "failed"
-        elif latest and everyone <= set(passed):
-            state = "passed"
-        else:
-            state = "issued"
-        return {"number": number, "revision": revision, "order_sha256": sha, "issued_at": issued_at,
-                "issued_by": issued_by, "state": state, "units": serials,
-                "units_passed": passed, "units_failed": failed,
-                "units_not_signed": [s for s in serials if s not in latest]}
-
-    def list_jobs(self) -> list[dict]:
-        """Every job with its state, newest issue first."""
-        rows = self.conn.execute(
-            "SELECT j.number, j.part, j.customer, MAX(i.id) FROM jobs j JOIN issues i ON i.job = j.number"
-            " GROUP BY j.number ORDER BY MAX(i.id) DESC").fetchall()
+        Two queries whatever the register's size: the latest issue of each job,
+        then every unit sign-off of those revisions, read in order so the last
+        verdict of each serial stands.
+        """
+        v2 = self.version >= 2
+        design = "i.design_state" if v2 else "NULL"
+        where = "WHERE i.job = ?" if number is not None else ""
+        args = (number,) if number is not None else ()
+        latest = self.conn.execute(
+            "SELECT i.job, i.id, i.revision, i.order_sha256, i.units_json, i.issued_at, i.issued_by, "
+            f"{design}, j.part, j.customer "
+            "FROM issues i JOIN jobs j ON j.number = i.job "
+            f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where} "
+            "ORDER BY i.id DESC", args).fetchall()
+        verdict = "u.unit_verdict" if v2 else "json_extract(u.measurements_json, '$.verdict')"
+        units: dict = {}
+        for job, serial, v, col in self.conn.execute(
+                f"SELECT s.job, u.serial, {verdict}, u.verdict FROM unit_signoffs u "
+                "JOIN signoffs s ON s.id = u.signoff_id "
+                "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.job = s.job "
+                "JOIN issues i ON i.id = l.id AND i.revision = s.revision "
+                + ("WHERE s.job = ? " if number is not None else "") + "ORDER BY u.id", args):
+            units.setdefault(job, {})[serial] = v or col
         out = []
-        for number, part, customer, _ in rows:
-            st = self.job_state(number)
-            st.update(part=part, customer=customer)
-            out.append(st)
+        for job, iid, rev, sha, units_json, at, by, dstate, part, customer in latest:
+            serials = json.loads(units_json)
+            if not isinstance(serials, list):
+                raise ValueError(f"issue {iid}: units_json is not a list")
+            got = units.get(job, {})
+            passed = sorted(s for s, v in got.items() if v == "pass")
+            failed = sorted(s for s, v in got.items() if v == "fail")
+            incomplete = sorted(s for s, v in got.items() if v == "incomplete")
+            everyone = set(serials) or set(got)
+            state = ("failed" if failed else "incomplete" if incomplete
+                     else "passed" if got and everyone <= set(passed) else "issued")
+            if dstate is None:  # a version-1 register read as it is
+                dstate = schema.design_state_of(self.issued_predictions(iid))
+            out.append({"number": job, "revision": rev, "order_sha256": sha, "issued_at": at,
+                        "issued_by": by, "state": state, "units": serials, "part": part, "customer": customer,
+                        "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
+                        "units_not_signed": [s for s in serials if s not in got],
+                        "design_status": {"state": dstate}, "issue_id": iid})
         return out
 
+    @_reads
+    def job_state(self, number: str) -> dict:
+        """State of a job at its latest issued revision: issued, passed, failed or incomplete."""
+        found = self._states(number)
+        if not found:
+            raise InputError("job", f"job {number} is not in register {self.label}")
+        st = found[0]
+        st["design_status"] = status_of(self.issued_predictions(st["issue_id"]))
+        return st
+
+    @_reads
+    def list_jobs(self) -> list[dict]:
+        """Every job with its state, newest issue first."""
+        return self._states()
+
+    @_reads
     def job_history(self, number: str) -> dict:
         """Every issue and sign-off of a job, oldest first."""
         events = []
         for rid, rev, sha, at, by in self.conn.execute(
                 "SELECT id, revision, order_sha256, issued_at, issued_by FROM issues WHERE job = ? ORDER BY id",
                 (number,)):
+            status = status_of(self.issued_predictions(rid))["state"]
             events.append({"event": "issued", "id": rid, "revision": rev, "order_sha256": sha, "at": at,
-                           "by": by})
+                           "by": by, "design_status": status})
+            if self._has_reprints():
+                for pid, pby, pat in self.conn.execute(
+                        "SELECT id, printed_by, printed_at FROM reprints WHERE issue_id = ? ORDER BY id", (rid,)):
+                    events.append({"event": "reprinted", "id": pid, "revision": rev, "order_sha256": sha,
+                                   "at": pat, "by": pby, "design_status": status})
         for sid, rev, sha, insp, verdict, at in self.conn.execute(
                 "SELECT id, revision, order_sha256, inspector, verdict, signed_at FROM signoffs"
                 " WHERE job = ? ORDER BY id", (number,)):
-            units = [{"serial": s, "verdict": v} for s, v in self.conn.execute(
-                "SELECT serial, verdict FROM unit_signoffs WHERE signoff_id = ? ORDER BY id", (sid,))]
+            units = [{"serial": s, "verdict": _unit_verdict(v, m)} for s, v, m in self.conn.execute(
+                "SELECT serial, verdict, measurements_json FROM unit_signoffs WHERE signoff_id = ? ORDER BY id",
+                (sid,))]
             events.append({"event": "signed off", "id": sid, "revision": rev, "order_sha256": sha,
                            "at": at, "by": insp, "verdict": verdict, "units": units})
         if not events:
             raise InputError("job", f"job {number} is not in register {self.label}")
-        events.sort(key=lambda e: (e["at"], 0 if e["event"] == "issued" else 1, e["id"]))
+        order = {"issued": 0, "reprinted": 1}
+        events.sort(key=lambda e: (e["at"], order.get(e["event"], 2), e["id"]))
         return {"number": number, "state": self.job_state(number), "events": events}
 
+    def _has_reprints(self) -> bool:
+        return self.conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'reprints'"
+                                 ).fetchone() is not None
+
+    @_reads
     def issued_predictions(self, issue_id: int) -> dict:
         row = self.conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()
         if row is None:
             raise InputError("register", f"no issue {issue_id}")
-        return json.loads(row[0])
+        p = json.loads(row[0])
+        if not isinstance(p, dict) or not isinstance(p.get("job"), dict):
+            raise ValueError(f"issue {issue_id}: its prediction is not a prediction")
+        return p
 
 
 def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = True) -> Register:
@@ -447,27 +564,111 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
                                     "(or: windsheet register --issue ORDER.yaml)")
         _create(p, label)
     _check_header(_read_header(p, label), label)
+    _check_writable(p, label)
     try:
         conn = sqlite3.connect(str(p), timeout=timeout, isolation_level=None)
     except sqlite3.Error as exc:
         raise InputError(label, f"cannot open the register: {exc}") from None
     try:
         conn.execute(f"PRAGMA busy_timeout = {int(timeout * 1000)}")
-        _check_contents(conn, label)
+        version = _check_contents(conn, label)
+        # Content checked before anything is written, the migration included.
+        schema.check_json(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
         conn.execute("PRAGMA synchronous = FULL")
         conn.execute("PRAGMA foreign_keys = ON")
+        version = schema.migrate(conn, version, _now())
     except sqlite3.OperationalError as exc:
         conn.close()
         if _is_locked(exc):
             raise _locked_error(label) from None
+        if "readonly" in str(exc).lower():
+            raise _read_only_error(label) from None
         raise InputError(label, f"cannot open the register: {exc}") from None
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
+        conn.close()
+        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
     except BaseException:
         conn.close()
         raise
-    return Register(conn, p, timeout)
+    reg = Register(conn, p, timeout)
+    reg.version = version
+    try:
+        reg.repairs = reg.finish_sheets()
+    except BaseException:
+        reg.close()
+        raise
+    return reg
+
+
+def _read_only_error(label: str) -> InputError:
+    return InputError(label, "register is read-only here (no write permission on the file or its folder); "
+                             "nothing was recorded — list it with 'windsheet register', or ask for write access")
+
+
+def _check_writable(p: Path, label: str) -> None:
+    """Refuse to open a register for writing that cannot be written (file, or its folder for the WAL files)."""
+    folder = p.parent if str(p.parent) else Path(".")
+    if not os.access(p, os.W_OK) or not os.access(folder, os.W_OK | os.X_OK):
+        raise _read_only_error(label)
+
+
+def _sqlite_uri(p: Path, immutable: bool) -> str:
+    return f"{p.resolve().as_uri()}?mode=ro" + ("&immutable=1" if immutable else "")
+
+
+def open_register_readonly(path=None) -> Register:
+    """Open an existing register for reading only (``signoff --dry-run``).
+
+    The file is opened by SQLite in read-only mode, so not a byte of the
+    register changes; a missing, foreign or damaged file is refused as by
+    :func:`open_register`.
+    """
+    p = resolve_register_path(str(path) if path is not None else None)
+    label = str(p)
+    require_regular_file(p, "register file")
+    if not p.exists():
+        raise InputError(label, "no register here yet; issue the job's traveller first "
+                                "(or: windsheet register --issue ORDER.yaml)")
+    _check_header(_read_header(p, label), label)
+    # With no write-ahead log beside it the file holds every commit: read it immutable, so SQLite
+    # makes no -shm/-wal files (a dry run leaves the folder as it was; a read-only folder is no
+    # obstacle). A live log (a writer at work) is read through, read-only.
+    immutable = not Path(str(p) + "-wal").exists()
+    try:
+        conn = sqlite3.connect(_sqlite_uri(p, immutable), uri=True, isolation_level=None,
+                               timeout=DEFAULT_TIMEOUT_S)
+    except sqlite3.Error as exc:
+        raise InputError(label, f"cannot read the register: {exc}") from None
+    try:
+        version = _check_contents(conn, label)
+    except (sqlite3.OperationalError, UnicodeError) as exc:
+        conn.close()
+        if immutable:
+            raise InputError(label, f"cannot read the register: {exc}") from None
+        raise InputError(label, f"cannot read the register here ({exc}); its folder must let SQLite "
+                                "make its shared-memory file") from None
+    except BaseException:
+        conn.close()
+        raise
+    reg = Register(conn, p, DEFAULT_TIMEOUT_S)
+    reg.version = version
+    return reg
+
+
+def _column_verdict(verdict: str) -> str:
+    """The verdict columns hold pass or fail: a unit not proven (incomplete) is not passed.
+    The full verdict is kept in the JSON beside it."""
+    return "pass" if verdict == "pass" else "fail"
+
+
+def _unit_verdict(column: str, measurements_json: str) -> str:
+    try:
+        return json.loads(measurements_json).get("verdict") or column
+    except (ValueError, AttributeError):
+        return column
 
 
 def record_issue(register: Register, *args, **kwargs) -> int:

@@ -15,7 +15,21 @@ from markupsafe import Markup
 from .errors import InputError
 from .fmt import OHM, celsius, eng, length, mass, percent
 
-TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
+def _templates_dir() -> Path:
+    """The templates folder: inside the installed package, else the source tree's.
+
+    The wheel maps the top-level ``templates/`` into ``windsheet/templates``
+    (pyproject ``package-dir``); an editable install reads the folder in place.
+    """
+    from importlib.resources import files
+
+    packaged = files("windsheet") / "templates"
+    if packaged.is_dir():
+        return Path(str(packaged)).resolve()
+    return Path(__file__).resolve().parent.parent / "templates"
+
+
+TEMPLATES_DIR = _templates_dir()
 
 #: Page sizes by the CLI's ``--paper`` word; CSS ``@page size`` keywords.
 PAPER_SIZES = {"a4": "A4", "letter": "letter"}

@@ -52,7 +52,7 @@ def _line_row(line: dict) -> dict:
 def signoff_context(prediction: dict, result: dict) -> dict:
     units = []
     for u in result.get("units") or []:
-        units.append({"serial": u.get("serial"), "verdict": u.get("verdict"),
+        units.append({"serial": u.get("serial"), "verdict": u.get("verdict"), "design_status": u.get("design_status"),
                       "ambient": celsius(u.get("ambient_C")) if u.get("ambient_C") is not None else "—",
                       "notes": u.get("notes"),
                       "rows": [_line_row(x) for x in u.get("lines") or []],
@@ -66,9 +66,14 @@ def signoff_context(prediction: dict, result: dict) -> dict:
                        "min": measured_text(sp.get("min"), unit), "max": measured_text(sp.get("max"), unit),
                        "range": f"{rf * 100:.1f}{_NBSP}%" if rf is not None else "—"})
     same_order = (result.get("order_hash") == prediction.get("order_hash")) if result.get("order_hash") else None
+    from .qc_lines import status_words
+
+    design = result.get("design_status") or {"state": "ok", "reasons": []}
     return {"p": prediction, "r": result, "job": prediction.get("job") or {}, "units": units,
-            "header_part": header_part(prediction.get("job") or {}),
-            "spread": spread, "same_order": same_order,
+            # A design banner flags the running header as a forced issue does.
+            "header_part": header_part(prediction.get("job") or {}, bool(status_words(design))),
+            "spread": spread, "same_order": same_order, "design": design, "design_words": status_words(design),
+            "apart": list(result.get("units_apart") or []),
             "cautions": list(result.get("cautions") or []), "deferral": DEFERRAL}
 
 

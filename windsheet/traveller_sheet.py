@@ -10,6 +10,7 @@ from __future__ import annotations
 from markupsafe import Markup
 
 from .diagrams import cross_section_svg, winding_terminals, wiring_svg
+from .fmt import NBSP as _NBSP
 from .fmt import OHM, celsius, eng, length, mass, percent
 from .sheet_pdf import band, header_part, henry, joule, ohm, volt
 
@@ -267,6 +268,7 @@ def qc_items(p: dict) -> list[dict]:
     Keys follow the sign-off's line keys.  ``judged`` items get pass/fail
     boxes; the others are only recorded (they feed the sign-off's diagnosis).
     """
+    from .qc_lines import prediction_required_lines
     from .signoff import DEFAULT_MIN_INSULATION_OHM
 
     term = p.get("terminal") or {}
@@ -302,15 +304,16 @@ def qc_items(p: dict) -> list[dict]:
             items.append(item(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
                               henry(opp) if opp else "", "record (leakage)", judged=False))
     items += [
-        item("terminal.inductance", "Inductance at the terminals", henry(term.get("inductance_H")),
+        item("terminal.inductance", "Inductance at the terminals" + (
+             " (band: ordered target ± tolerance)" if acc.get("inductance_basis") == "target" else ""),
+             henry(term.get("inductance_H")) + (
+             f" ({acc['prediction_offset'] * 100:+.2f}{_NBSP}% from target)"
+             if acc.get("inductance_basis") == "target" else ""),
              band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
         item("terminal.resistance", "DC resistance at the terminals (at 20 °C)",
              ohm(term.get("resistance_ohm")),
              band(acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm"), ohm)),
     ]
-    turns = strands[0].get("turns") if strands else None
-    items.append(item("strand.turns", "Turns counted (where checked)", f"{turns}" if turns else "",
-                      f"{turns} per strand" if turns else "record"))
     ir_min = ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM
     if len(strands) > 1:
         items.append(item("continuity.strand_to_strand", "Continuity between strands", "open", "open"))
@@ -321,11 +324,13 @@ def qc_items(p: dict) -> list[dict]:
     hipot = p.get("hipot") or {}
     if (p.get("cautions") or {}).get("hipot") and hipot.get("voltage_V"):
         dur = hipot.get("duration_s")
-        items.append(item("hipot.result", f"Hipot {volt(hipot['voltage_V'])}"
+        items.append(item("hipot", f"Hipot {volt(hipot['voltage_V'])}"
                           + (f", {float(dur):g} s" if dur else "") + ": leakage, withstand",
                           "", "withstands"))
     items.append(item("ambient", "Ambient temperature at test", "", "record (°C)", judged=False))
-    return items
+    # The record prints exactly the lines the prediction requires, in its order.
+    by_key = {i["key"]: i for i in items}
+    return [by_key.get(k) or item(k, k) for k in prediction_required_lines(p)]
 
 
 def unit_tables(units: list[str]) -> list[list[str]]:

@@ -1,0 +1,129 @@
+"""The command line follows the usual conventions: -h, --version, '-', formats by extension,
+exit statuses, batches that carry on, a summary in the trade's words."""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import yaml
+from typer.testing import CliRunner
+
+from windsheet import __version__
+from windsheet.cli import app, hookup_words
+
+ROOT = Path(__file__).resolve().parent.parent
+SAMPLES = ROOT / "samples"
+SINGLE = SAMPLES / "hl-0410-single.yaml"
+BIFILAR = SAMPLES / "hl-0412-bifilar-aiding.yaml"
+runner = CliRunner()
+
+
+def _cli(*args, stdin: bytes | None = None, cwd=None):
+    return subprocess.run([sys.executable, "-m", "windsheet.cli", *map(str, args)], input=stdin,
+                          capture_output=True, cwd=cwd, timeout=300)
+
+
+def test_short_help_and_version():
+    res = runner.invoke(app, ["-h"])
+    assert res.exit_code == 0 and "Usage:" in res.stdout and "size" in res.stdout
+    res = runner.invoke(app, ["size", "-h"])
+    assert res.exit_code == 0 and "standard input" in res.stdout
+    res = runner.invoke(app, ["--version"])
+    assert res.exit_code == 0 and res.stdout.strip() == f"windsheet {__version__}"
+
+
+def test_size_reads_standard_input():
+    res = _cli("size", "-", "--json", stdin=SINGLE.read_bytes())
+    assert res.returncode == 0, res.stderr
+    from_file = json.loads(_cli("size", SINGLE, "--json").stdout)
+    # Same order, same prediction, whichever way it arrives.
+    assert json.loads(res.stdout)["terminal"] == from_file["terminal"]
+
+
+def test_traveller_to_standard_output_and_formats_by_extension(tmp_path):
+    reg = tmp_path / "r.db"
+    res = _cli("traveller", SINGLE, "-o", "-", "--register", reg)
+    assert res.returncode == 0 and res.stdout[:5] == b"%PDF-", res.stderr
+    assert not (tmp_path / "-").exists() and not (Path.cwd() / "-").exists()
+    res = _cli("traveller", SINGLE, "-o", tmp_path / "t.html", "--register", reg)
+    assert res.returncode == 0 and (tmp_path / "t.html").read_text(encoding="utf-8").lstrip().lower().startswith(
+        "<!doctype html")
+    res = _cli("traveller", SINGLE, "-o", tmp_path / "t.json", "--register", reg)
+    assert res.returncode == 0 and json.loads((tmp_path / "t.json").read_text())["job"]["number"] == "HL-0410"
+    # --format overrides the extension.
+    res = _cli("traveller", SINGLE, "-o", tmp_path / "t2.pdf", "--format", "html", "--register", reg)
+    assert res.returncode == 0 and b"<html" in (tmp_path / "t2.pdf").read_bytes()[:400].lower()
+    res = _cli("traveller", SINGLE, "-o", tmp_path / "t.txt", "--register", reg)
+    assert res.returncode == 2 and not (tmp_path / "t.txt").exists()
+    assert res.stderr.decode().count("\n") == 1 and "--format" in res.stderr.decode()
+
+
+def test_size_exits_1_on_an_insulation_fail(tmp_path):
+    doc = yaml.safe_load(BIFILAR.read_text())
+    doc["duty"]["voltage"] = "100 kV"
+    f = tmp_path / "fail.yaml"
+    f.write_text(yaml.safe_dump(doc))
+    res = _cli("size", f, "--json")
+    assert res.returncode == 1 and json.loads(res.stdout)["insulation"]["verdict"] == "fail"
+    assert _cli("size", BIFILAR).returncode == 0
+
+
+def test_batch_of_fifty_with_one_bad_order(tmp_path):
+    folder = tmp_path / "jobs"
+    folder.mkdir()
+    for i in range(49):
+        shutil.copy(SINGLE, folder / f"job-{i:02d}.yaml")
+    (folder / "job-bad.yaml").write_text(SINGLE.read_text().replace("turns: 40,", "turns: forty,"))
+    (folder / "job-00.measured.yaml").write_text("not an order")  # readings in the folder are skipped
+    res = _cli("size", folder, "--json")
+    assert res.returncode == 1
+    lines = res.stdout.decode().splitlines()
+    # JSON Lines: one object per sized order, each naming its file.
+    results = [json.loads(x) for x in lines]
+    assert len(results) == 49 and all(r["file"].endswith(".yaml") and r["strands"] for r in results)
+    err = res.stderr.decode().splitlines()
+    assert err[0].startswith(f"windsheet: {folder / 'job-bad.yaml'}: winding.turns:"), err
+    assert err[-1] == f"windsheet: sized 49 of 50 orders; 1 refused ({folder / 'job-bad.yaml'})", err
+
+
+def test_batch_takes_a_glob_the_shell_left_alone(tmp_path):
+    for name in ("a.yaml", "b.yaml"):
+        shutil.copy(SINGLE, tmp_path / name)
+    res = _cli("size", tmp_path / "*.yaml", "--json")
+    assert res.returncode == 0 and len(res.stdout.decode().splitlines()) == 2
+    res = _cli("size", tmp_path / "*.yml")
+    assert res.returncode == 2 and "no order files match" in res.stderr.decode()
+
+
+def test_traveller_batch_writes_each_and_names_the_refused(tmp_path):
+    folder = tmp_path / "jobs"
+    folder.mkdir()
+    shutil.copy(SINGLE, folder / "a.yaml")
+    shutil.copy(BIFILAR, folder / "b.yaml")
+    (folder / "c.yaml").write_text("job: [", encoding="utf-8")
+    out = tmp_path / "sheets"
+    res = _cli("traveller", folder, "-o", out, "--format", "html", "--jobs", "2", "--register", tmp_path / "r.db")
+    assert res.returncode == 1
+    assert sorted(p.name for p in out.iterdir()) == ["a.html", "b.html"]
+    assert "c.yaml" in res.stderr.decode().splitlines()[-1]
+
+
+def test_summary_speaks_the_trade():
+    res = runner.invoke(app, ["size", str(BIFILAR)])
+    assert res.exit_code == 0
+    text = res.stdout
+    assert "A finish joined to B start" in text and "T1 A start, T2 B finish" in text
+    # No Python literals in the human summary.
+    assert "[[" not in text and "['" not in text and "']" not in text
+
+
+def test_hookup_words_for_every_named_form():
+    assert hookup_words({"name": "series-opposing", "joins": [["A.finish", "B.finish"]],
+                         "terminals": ["A.start", "B.start"]}) == (
+        "series-opposing — A finish joined to B finish; terminals T1 A start, T2 B start")
+    assert hookup_words({"name": "single", "joins": [], "terminals": ["A.start", "A.finish"]}) == (
+        "single — no joins; terminals T1 A start, T2 A finish")
