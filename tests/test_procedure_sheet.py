@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import xml.etree.ElementTree as ET
 
+import pytest
+
 from windsheet import render
 from windsheet.diagrams import cross_section_svg
 from windsheet.order import parse_order
@@ -55,3 +57,29 @@ def test_bobbin_gets_a_core_assembly_step_with_the_accept_band():
     acc = p["terminal"]["accept"]
     assert render.henry(acc["inductance_min_H"]) in step["detail"]
     assert render.henry(acc["inductance_max_H"]) in step["detail"]
+
+
+def test_voltage_picture_shades_by_potential_and_marks_the_worst_pair():
+    from pathlib import Path
+
+    from windsheet.diagrams import potential_grey
+    from windsheet.order import load_order
+
+    p = predict(load_order(Path(__file__).resolve().parent.parent / "samples" / "hl-0412-bifilar-aiding.yaml"))
+    root = ET.fromstring(cross_section_svg(p["cross_section"], shade=True))
+    circles = [c for c in root.iter() if c.get("data-potential")]
+    vmax = p["cross_section"]["potential_max_Vpk"]
+    for c in circles:
+        v = float(c.get("data-potential"))
+        assert c.get("fill") == potential_grey(v / vmax)
+    # Lightness falls with potential, so greyscale print keeps the order.
+    greys = sorted((float(c.get("data-potential")), int(c.get("fill")[1:3], 16)) for c in circles)
+    assert all(a[1] >= b[1] for a, b in zip(greys, greys[1:]))
+    worst = [c for c in circles if c.get("data-worst")]
+    wa = p["worst_adjacent"]
+    assert {c.get("data-strand") for c in worst} == set(wa["strands"])
+    # The two marked turns are as far apart in potential as the worst neighbouring voltage.
+    vs = sorted(float(c.get("data-potential")) for c in worst)
+    assert vs[1] - vs[0] == pytest.approx(wa["voltage_Vpk"], rel=1e-3)
+    assert [el for el in root.iter() if el.get("data-scale") == "potential"]
+    assert 'data-figure="voltage"' in render.render_traveller_html(p)

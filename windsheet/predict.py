@@ -289,24 +289,38 @@ def _pairs(L, R, frequency):
     return out
 
 
-def _cross_section(layout, keep=6):
-    """Slots of each layer for the sketch: the first and last few."""
+def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
+    """Slots of each layer for the sketch: the first and last few, and the worst pair's.
+
+    With ``potential`` (each turn's peak potential from terminal 1 [V]), each
+    slot carries ``potential_Vpk``; the turns of the worst neighbouring pair
+    carry ``worst: true``.
+    """
     out = []
+    worst_turns = {int(t) for t in worst if t is not None}
+    full = max(layout.turns_in_layer)
     for lay_i in range(layout.layers):
         sel = np.flatnonzero(layout.layer == lay_i)
         slots = sorted(set(layout.slot[sel].tolist()))
         # A partial layer shows fewer slots after the ellipsis, in proportion to its turns.
-        full = max(layout.turns_in_layer)
         tail = keep if len(slots) >= full else max(1, round(keep * len(slots) / full) - 2)
         shown = slots if len(slots) <= keep + tail else slots[:keep] + slots[-tail:]
+        extra = {int(layout.slot[t]) for t in worst_turns if layout.layer[t] == lay_i}
+        shown = sorted(set(shown) | extra)
         rows = []
         for k in shown:
             for t in sel[layout.slot[sel] == k]:
-                rows.append({"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]})
+                row = {"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]}
+                if potential is not None:
+                    row["potential_Vpk"] = float(potential[t])
+                if int(t) in worst_turns:
+                    row["worst"] = True
+                rows.append(row)
         out.append({"layer": lay_i + 1, "turns": len(slots), "slots": rows,
-                    "elided": len(slots) > keep + tail})
+                    "elided": len(shown) < len(slots)})
     return {"layers": out, "tape_between_layers": layout.tape > 0 and layout.layers > 1,
-            "kind": layout.kind}
+            "kind": layout.kind,
+            "potential_max_Vpk": float(np.max(potential)) if potential is not None and len(potential) else None}
 
 
 def _ring(layout, most=90):
@@ -507,7 +521,8 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
                      "stored_energy_J": energy},
-        "cross_section": _cross_section(layout),
+        "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
+                                        worst=st.get("worst_pair") or (None, None)),
         "warnings": warnings,
     }
     if remedies:

@@ -65,6 +65,9 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
                                                       (p.get("form") or {}).get("kind") or "")),
         "section_wide": _widest_layer(p.get("cross_section") or {}) > 14,
         "ring_svgs": _ring_svgs(p),
+        "voltage_svg": Markup(cross_section_svg(p.get("cross_section") or {},
+                                                (p.get("form") or {}).get("kind") or "", shade=True))
+        if (p.get("cross_section") or {}).get("potential_max_Vpk") else None,
         "form_rows": form_rows(p.get("form") or {}),
         "duty_rows": duty_rows(p.get("duty") or {}),
         "picks": pick_list(p),
