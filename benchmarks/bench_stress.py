@@ -1,7 +1,7 @@
 """Benchmark of the stress map (``make bench``; ``python benchmarks/run.py stress``).
 
 On a 50,000-turn coil (20 layers × 2,500 turns of 0.1 mm wire) times, as
-medians of five runs: the neighbour search (k-d tree, every pair within the
+medians of five runs: the neighbour search (cell list, every pair within the
 stated gap), the inductance engine (:func:`windsheet.inductance.strand_matrix`),
 the per-turn flux linkage, and the whole stress check (voltage map, leads,
 partial-discharge inception per pair, capacitance, verdict).  Prints the
@@ -63,7 +63,7 @@ def main() -> int:
     t_all, out = median_time(whole, repeat=3)
     print(f"{lay.n_turns} turns, {lay.layers} layers ({lay.layer_style}): "
           f"{nb.size} neighbour pairs")
-    print(f"neighbour search (k-d tree)   median {t_nb * 1e3:8.1f} ms")
+    print(f"neighbour search (cell list)  median {t_nb * 1e3:8.1f} ms")
     print(f"inductance engine             median {t_L * 1e3:8.1f} ms")
     print(f"per-turn flux linkage         median {t_flux * 1e3:8.1f} ms")
     print(f"whole stress check            median {t_all * 1e3:8.1f} ms "

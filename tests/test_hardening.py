@@ -603,15 +603,27 @@ def test_dc_duty_records_dc():
     ({"voltage": "12 Vpp"}, "duty.voltage", "peak-to-peak"),
     ({"current": "0.1 A dc"}, "duty.current", "rms"),
     ({"waveform": "pulse", "voltage": "600 V peak"}, "duty.rise_time", "needs its rise time"),
-    # The fast-front share on the first turns is not computed yet: no verdict rather than a wrong one.
-    ({"waveform": "pulse", "voltage": "600 V peak", "rise_time": "100 ns"}, "duty.rise_time", "not computed yet"),
-    ({"rise_time": "100 ns"}, "duty.rise_time", "not computed yet"),
+    ({"ground_capacitance": "10 pH"}, "duty.ground_capacitance", "capacitance"),
+    ({"ground_capacitance": "10"}, "duty.ground_capacitance", "unit"),
     ({"ambient": "25 C"}, "duty.ambient", "did you mean '25 degC'"),
     ({"voltage": "25*2 V"}, "duty.voltage", "arithmetic"),
 ])
 def test_duty_refusals(scratch, duty, field, words):
     err = _refusal(scratch, _order(SINGLE, duty=duty))
     assert err.startswith(f"windsheet: {field}:") and words in err, err
+
+
+@pytest.mark.parametrize("duty", [
+    {"waveform": "pulse", "voltage": "600 V peak", "rise_time": "100 ns"},
+    {"rise_time": "100 ns", "ground_capacitance": "22 pF"},
+])
+def test_fast_edge_duty_is_sized_with_its_edge(scratch, duty):
+    # Once refused ("not computed yet"); now sized, with the edge's first-turn voltage judged.
+    p = _sized(scratch, _order(SINGLE, duty=duty))
+    imp = p["impulse"]
+    assert imp["first_turn_Vpk"] > imp["first_turn_uniform_Vpk"]
+    assert p["worst_adjacent"]["voltage_Vpk"] >= imp["worst_pair_Vpk"]
+    assert imp["ground_capacitance_given"] == ("ground_capacitance" in duty)
 
 
 def test_pulse_amplitudes_for_the_engine():

@@ -102,3 +102,21 @@ def test_a_traveller_beyond_the_sheet_budget_is_refused_and_nothing_is_written(t
     assert not out.exists() and not reg.exists()
     # The order itself still sizes: the budget is the sheet's, not the order's.
     assert CliRunner().invoke(app, ["size", str(f)]).exit_code == 0
+
+
+def test_a_sign_off_sheet_beyond_the_sheet_budget_is_refused_before_anything_is_recorded(tmp_path):
+    from typer.testing import CliRunner
+
+    from windsheet.cli import app
+
+    order = SAMPLES / "hl-0412-bifilar-aiding.yaml"
+    reg = tmp_path / "r.db"
+    assert CliRunner().invoke(app, ["register", "--issue", str(order), "--register", str(reg)]).exit_code == 0
+    rows = "".join(f"  - serial: HL-0412-{k:03d}\n    terminals: {{inductance: 400 uH}}\n"
+                   for k in range(limits.SHEET_UNITS + 1))
+    m = tmp_path / "m.yaml"
+    m.write_text(f"job: HL-0412\nrevision: A\ninspector: QC\nunits:\n{rows}", encoding="utf-8")
+    before = reg.read_bytes()
+    res = CliRunner().invoke(app, ["signoff", str(order), str(m), "--register", str(reg), "-o", str(tmp_path / "s.pdf")])
+    assert res.exit_code == 2 and res.stderr.startswith("windsheet: units: a sign-off sheet for 101 units"), res.output
+    assert reg.read_bytes() == before and not (tmp_path / "s.pdf").exists()

@@ -94,9 +94,22 @@ def summary_lines(p: dict) -> list[str]:
         row("", f"L accept band is the ordered target ± tolerance; prediction "
             f"{t['accept']['prediction_offset'] * 100:+.2f} % from target")
     row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
+    if t.get("resistance_ac_ohm") is not None and p.get("ac_resistance") and p["duty"]["frequency_Hz"]:
+        row("", f"R {eng(t['resistance_ac_ohm'], 'Ω')} at {eng(p['duty']['frequency_Hz'], 'Hz')} "
+            f"(AC/DC {p['ac_resistance']['ratio']:.3f}), loss {eng(t['loss_W'], 'W')} at the duty current")
     if p.get("current_sheet_inductance_H"):
         row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "
             f"correction {eng(p['current_sheet_rosa_corrected_H'], 'H')} (strand A)")
+    th = p.get("thermal")
+    if th:
+        row("Heating", f"{th['verdict'].upper()} — surface +{th['surface_rise_K']:.1f} K, hot spot "
+            f"{th['hot_spot_C']:.0f} °C (class {th['thermal_class_C'] or '—'}), "
+            f"{th['current_density_A_per_mm2']:.2f} A/mm²")
+    imp = p.get("impulse")
+    if imp:
+        row("Fast edge", f"first turn {eng(imp['first_turn_Vpk'], 'V')} peak (even share "
+            f"{eng(imp['first_turn_uniform_Vpk'], 'V')}), worst pair {eng(imp['worst_pair_Vpk'], 'V')} peak"
+            + (f", α {imp['alpha']:.3g}" if imp.get("alpha") is not None else ""))
     wa = p["worst_adjacent"]
     row("Worst adjacent", f"{eng(wa['voltage_Vpk'], 'V')} peak — {wa['where']}")
     ins = p["insulation"]
@@ -230,6 +243,11 @@ def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
         raise InputError("--out", "a dry run writes no sheet; drop --out or --dry-run")
     if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
+    if out is not None:
+        from .limits import check_sheet_units
+
+        # Checked before anything is evaluated or recorded; without -o any number is signed off.
+        check_sheet_units(len(readings.units), "units", "sign-off sheet")
     if dry_run:
         with open_register_readonly(register) as reg:
             _, issued = reg.find_issue(job.number, job.revision, o.sha256)
@@ -329,7 +347,7 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
         with open_register(register, create=True) as reg:
             issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
-        forced = " — FORCED over a failing insulation check" if p["design_status"]["state"] == "forced" else ""
+        forced = " — FORCED over a failing design check" if p["design_status"]["state"] == "forced" else ""
         # Only what was recorded: the listing is its own command.
         typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
         return
@@ -471,7 +489,7 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
 
 
 def _said_issued(p, target, forced, how):
-    note = " — FORCED over a failing insulation check" if forced else ""
+    note = " — FORCED over a failing design check" if forced else ""
     typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=True)
 
 

@@ -12,9 +12,8 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy import constants
 
-EPS0 = constants.epsilon_0
+from .constants import EPSILON_0 as EPS0
 
 #: Relative permittivity of polyurethane / polyester-imide enamel films (memory: 3–4).
 ENAMEL_EPS_R = 3.5

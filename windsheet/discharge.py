@@ -24,14 +24,12 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy import constants
 
-#: Standard atmosphere. [Pa]
-ATMOSPHERE = constants.atm
+from .constants import ATMOSPHERE, TORR
 
 # Paschen constants for air, Townsend form (Bazelyan & Raizer; A = 15 /(cm·Torr),
 # B = 365 V/(cm·Torr), gamma = 0.01), converted to SI.
-_TORR_CM = constants.torr * 1e-2  # [Pa·m]
+_TORR_CM = TORR * 1e-2  # [Pa·m]
 PASCHEN_A = 15.0 / _TORR_CM       # [1/(Pa·m)]
 PASCHEN_B = 365.0 / _TORR_CM      # [V/(Pa·m)]
 PASCHEN_GAMMA = 0.01

@@ -634,7 +634,7 @@ def _double_prefix(values, seg_len):
     starts = np.cumsum(seg_len) - seg_len
     base = np.empty(seg_len.size, dtype=np.int64)
     parts, offset = [], 0
-    for b in np.unique(bucket):
+    for b in _distinct(bucket):
         rows = np.flatnonzero(bucket == b)
         w = int(width[rows].max())
         block = np.zeros((rows.size, w))
@@ -744,11 +744,21 @@ def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch, cache=None):
     return _double_prefix(kernel[e_base[k] + _fold(i, u[k]) - e_lo[k]], lat_hi - lat_lo + 1)
 
 
+def _distinct(values):
+    """Sorted distinct integers, as ``np.unique`` gives them.
+
+    A plain ``np.unique`` call imports ``numpy.ma`` (10–25 ms of start-up);
+    these index arrays need only a sort.
+    """
+    v = np.sort(np.asarray(values).ravel())
+    return v[np.concatenate([[True], v[1:] != v[:-1]])] if v.size else v
+
+
 def _class_chunks(length):
     """Split classes (in order) into runs of about ``_CHUNK`` lattice points."""
     ends = np.searchsorted(np.cumsum(length), np.arange(_CHUNK, length.sum() + _CHUNK, _CHUNK),
                            side="right")
-    edges = np.unique(np.concatenate([[0], np.maximum(ends, 1), [length.size]]))
+    edges = _distinct(np.concatenate([[0], np.maximum(ends, 1), [length.size]]))
     return zip(edges[:-1], edges[1:])
 
 

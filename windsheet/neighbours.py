@@ -76,13 +76,99 @@ def _gap_spacing(layout: Layout, i, j):
     return np.maximum(circumference - np.abs(layout.z[j] - layout.z[i]), layout.overall_diameter)
 
 
+def _compress(cells):
+    """Renumber integer cell coordinates so that any gap of two or more becomes two.
+
+    Adjacency (a difference of 0 or 1) is all the search needs, and the
+    renumbered coordinates stay below twice the number of points, so a combined
+    cell key cannot overflow however long the traverse is in cells.
+    """
+    values, inverse = np.unique(cells, return_inverse=True)
+    steps = np.minimum(np.diff(values), 2)
+    return np.concatenate([[0], np.cumsum(steps)])[inverse.reshape(-1)]
+
+
+def _expand(start_a, count_a, start_b, count_b):
+    """Every (a, b) index pair of the products of the runs ``[start_a, +count_a)`` × ``[start_b, +count_b)``."""
+    m = count_a * count_b
+    run = np.repeat(np.arange(m.size), m)
+    local = np.arange(int(m.sum())) - np.repeat(np.cumsum(m) - m, m)
+    return (start_a[run] + local // count_b[run], start_b[run] + local % count_b[run])
+
+
+#: Cells compared with each cell besides itself: the forward half of its eight
+#: neighbours, so each pair of cells is looked at once.
+_FORWARD_CELLS = ((0, 1), (1, -1), (1, 0), (1, 1))
+
+
+def close_pairs(x, y, reach):
+    """Every pair of points in the plane no farther apart than ``reach``.
+
+    A cell list: the plane is cut into square cells of side ``reach``, the
+    points are sorted by cell, and each cell's points are compared with its own
+    and with those of its forward neighbour cells, all in array operations.
+    The cost grows as N times the points per cell.
+
+    Parameters
+    ----------
+    x, y : ndarray
+        Coordinates of the points. [m]
+    reach : float
+        Largest distance of a pair (inclusive). [m]
+
+    Returns
+    -------
+    pairs : ndarray of int, shape (n, 2)
+        Indices ``(i, j)``, ``i < j``, of each pair, in no particular order.
+
+    References
+    ----------
+    .. [1] R. W. Hockney and J. W. Eastwood, Computer Simulation Using
+       Particles, McGraw-Hill, 1981, §8-4 (chaining mesh).
+    .. [2] M. P. Allen and D. J. Tildesley, Computer Simulation of Liquids,
+       Oxford, 1987, §5.3.2 (cell structures and linked lists).
+
+    Examples
+    --------
+    >>> close_pairs(np.array([0.0, 1.0, 2.5, 0.0]), np.array([0.0, 0.0, 0.0, 1.0]), 1.0).tolist()
+    [[0, 1], [0, 3]]
+    """
+    x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+    if x.size < 2:
+        return np.empty((0, 2), dtype=int)
+    # A cell a shade wider than the reach, so rounding never puts two points
+    # within reach two cells apart.
+    side = reach * (1 + 1e-6)
+    cx = _compress(np.floor((x - x.min()) / side).astype(np.int64))
+    cy = _compress(np.floor((y - y.min()) / side).astype(np.int64))
+    width = int(cy.max()) + 3  # a spare row each side: cy ± 1 never aliases another column
+    key = cx * width + cy
+    order = np.argsort(key, kind="stable")
+    cells, start, count = np.unique(key[order], return_index=True, return_counts=True)
+    found = [_expand(start, count, start, count)]
+    for dx, dy in _FORWARD_CELLS:
+        at = np.searchsorted(cells, cells + dx * width + dy)
+        at = np.minimum(at, cells.size - 1)
+        hit = cells[at] == cells + dx * width + dy
+        found.append(_expand(start[hit], count[hit], start[at[hit]], count[at[hit]]))
+    a = np.concatenate([f[0] for f in found])
+    b = np.concatenate([f[1] for f in found])
+    a, b = order[a], order[b]
+    keep = (a != b) & ((x[a] - x[b]) ** 2 + (y[a] - y[b]) ** 2 <= reach * reach)
+    # Within one cell each pair came twice, once each way round.
+    keep &= (a < b) | (key[a] != key[b])
+    a, b = a[keep], b[keep]
+    return np.column_stack([np.minimum(a, b), np.maximum(a, b)])
+
+
 def neighbour_pairs(layout: Layout) -> Neighbours:
     """Every pair of conductors whose insulation surfaces are closer than
     :func:`neighbour_gap_limit`, diagonals included, plus each turn's next
     along its layer however far (spaced turns still stress each other).
 
-    Found by a k-d tree over the turn centres in the (r, z) section, so the
-    cost grows as N log N; computed once per layout and kept with it.
+    Found by a cell list over the turn centres in the (r, z) section
+    (:func:`close_pairs`), so the cost grows as N; computed once per layout
+    and kept with it.
 
     Parameters
     ----------
@@ -95,9 +181,10 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
 
     References
     ----------
-    .. [1] J. L. Bentley, "Multidimensional binary search trees used for
-       associative searching", Comm. ACM 18(9):509, 1975 (k-d tree;
-       :class:`scipy.spatial.cKDTree`).
+    .. [1] R. W. Hockney and J. W. Eastwood, Computer Simulation Using
+       Particles, McGraw-Hill, 1981, §8-4 (chaining mesh).
+    .. [2] M. P. Allen and D. J. Tildesley, Computer Simulation of Liquids,
+       Oxford, 1987, §5.3.2 (cell structures and linked lists).
 
     Examples
     --------
@@ -109,13 +196,10 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
     """
     if "neighbours" in layout._memo:
         return layout._memo["neighbours"]
-    from scipy.spatial import cKDTree
-
     d = layout.overall_diameter
     reach = (d + neighbour_gap_limit(layout)) * (1 + 1e-9)
     pts = layout.section_points()
-    tree = cKDTree(pts)
-    close = tree.query_pairs(reach, output_type="ndarray").reshape(-1, 2)
+    close = close_pairs(pts[:, 0], pts[:, 1], reach)
     # Next along each layer, however far; those within reach are found already.
     order = np.lexsort((layout.z, layout.layer))
     same = layout.layer[order[:-1]] == layout.layer[order[1:]]

@@ -289,6 +289,9 @@ class Duty(_M):
     operating_temperature: Optional[Temperature] = None
     between_windings: Optional[Annotated[float, Field(ge=0.0, allow_inf_nan=False)]] = None
     rise_time: Optional[RiseTime] = None
+    #: Capacitance from the whole winding to ground, core or shield, for a fast edge's
+    #: distribution; by default windsheet.fast_front.DEFAULT_GROUND_CAPACITANCE_F (10 pF), stated.
+    ground_capacitance: Optional[Annotated[float, _q("capacitance")]] = None
 
     @model_validator(mode="before")
     @classmethod
@@ -433,11 +436,6 @@ class Order:
         if job.units is not None and len(set(job.units)) != len(job.units):
             raise InputError("job.units", "serial numbers must be unique")
         _check_fractions(doc)
-        if doc.duty.waveform == "pulse" or doc.duty.rise_time is not None:
-            # The quasi-static map understates a fast edge on the first turns: no verdict beats a wrong one.
-            raise InputError("duty.rise_time", "the fast-front voltage on the first turns is not computed yet, "
-                             "so the insulation cannot be judged for a pulse or fast-edge duty; "
-                             "leave out waveform: pulse and rise_time")
 
     @property
     def units(self) -> list[str]:

@@ -16,6 +16,9 @@ from . import inductance as ind
 from . import layout as lay
 from . import fmt, stress
 from .errors import InputError
+from .ac_resistance import winding_ac_ratio
+from .fast_front import DEFAULT_GROUND_CAPACITANCE_F
+from . import heating
 from .insulation import hipot_voltage
 from .leads import lead_routes
 from .remedies import advice, find_remedies
@@ -274,6 +277,93 @@ def _lead_routes(order: Order):
     return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
 
 
+def _outer_surface(order: Order, layout):
+    """The winding's outer surface, which sheds its heat [m²], and its characteristic length [m]."""
+    f = order.doc.form
+    b = float(layout.build_height)
+    if isinstance(f, ToroidForm):
+        od, hole, h = f.outer_diameter + 2 * b, max(f.inner_diameter - 2 * b, 0.0), f.height + 2 * b
+        return math.pi * (od + hole) * h + math.pi / 2 * (od ** 2 - hole ** 2), od
+    # The outer layer's turn, out to its surface, along the traverse; the winding's ends lie
+    # against flanges or the form and are not counted (errs hot).
+    perimeter = float(np.max(layout.turn_length)) + math.pi * layout.overall_diameter
+    return perimeter * float(layout.traverse_used), perimeter / math.pi
+
+
+def _resistivity(wire, temperature_C):
+    d = wire.copper_diameter
+    return float(dc_resistance(1.0, d, temperature_C, conductor=wire.conductor)) * math.pi * d * d / 4
+
+
+def _ac_ratio(order: Order, wire, layout, temperature_C):
+    return winding_ac_ratio(order.doc.duty.frequency, wire.copper_diameter, _resistivity(wire, temperature_C),
+                            layout.layers, layout.pitch / layout.strands)
+
+
+def _heat(order: Order, wire, layout, length, L):
+    """Temperatures of the winding on its duty (:mod:`windsheet.heating`), loss rising with them.
+
+    The strand currents are found again at each temperature: a winding driven by a voltage
+    without a stated current draws less as it warms.
+    """
+    duty = order.doc.duty
+
+    def loss_at(t):
+        r = dc_resistance(length, wire.copper_diameter, t, conductor=wire.conductor)
+        i = _strand_currents(duty, _network(order, L, r, duty.frequency))
+        return float(np.sum(i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
+
+    area, size = _outer_surface(order, layout)
+    temps = heating.winding_temperatures(loss_at, area, size, float(layout.build_height), order.doc.duty.ambient)
+    return {**temps, "surface_area_m2": area, "characteristic_length_m": size}
+
+
+def _thermal(temps, wire, strand_i, order_t):
+    """The thermal report: temperatures, the class verdict, current density."""
+    verdict, reason = heating.thermal_verdict(temps["hot_spot_C"], wire.thermal_class,
+                                              converged=temps["converged"])
+    j = [float(heating.current_density(i, wire.copper_diameter)) for i in strand_i]
+    lo, hi = heating.CURRENT_DENSITY_RANGE_A_PER_MM2
+    return {**temps, "method": heating.METHOD, "emissivity": heating.EMISSIVITY,
+            "winding_conductivity_W_per_mK": heating.WINDING_CONDUCTIVITY,
+            "thermal_class_C": wire.thermal_class, "verdict": verdict, "reason": reason,
+            "operating_temperature_given_C": order_t,
+            "current_density_A_per_mm2": max(j) if j else 0.0,
+            "current_density_range_A_per_mm2": [lo, hi],
+            "current_density_basis": "common practice for naturally cooled small windings (memory)"}
+
+
+def _strand_currents(duty, duty_net):
+    """rms current in each strand at duty: the order's, or the voltage over the impedance. [A]"""
+    z = abs(complex(duty_net.resistance, 2 * math.pi * duty.frequency * duty_net.inductance))
+    i = duty.current if duty.current > 0 else (duty.voltage / z if z > 0 else 0.0)
+    return np.abs(duty_net.strand_current) * i
+
+
+def _end(name: str):
+    sid, which = name.split(".")
+    return STRAND_IDS.index(sid), 0 if which == "start" else 1
+
+
+def _edge(order: Order, net, turns: int):
+    """The fast edge a pulse or ``rise_time`` duty puts on the terminals, for stress.edge_stress."""
+    duty = order.doc.duty
+    if duty.waveform != "pulse" and duty.rise_time is None:
+        return None
+    ends = np.asarray(net.end_potential, dtype=complex)
+    if order.hookup_name == "separate":
+        # Each winding on its own circuit takes the same edge (as the network drives them in phase).
+        held = {(s, w): float(w) for s in range(ends.shape[0]) for w in (0, 1)}
+    else:
+        held = {_end(t): float(np.real(ends[_end(t)])) for t in net.terminals}
+    ties = [(_end(a), _end(b)) for group in net.joins for a, b in zip(group[:-1], group[1:])]
+    span = float(np.max(np.abs(ends[:, 1] - ends[:, 0]))) if ends.size else 1.0
+    given = duty.ground_capacitance is not None
+    return {"held": held, "ties": ties, "rise_time_s": duty.rise_time,
+            "ground_F": duty.ground_capacitance if given else DEFAULT_GROUND_CAPACITANCE_F,
+            "ground_given": given, "series_turns": int(round(turns / span)) if span > 0 else turns}
+
+
 def _pairs(L, R, frequency):
     """What each pair of strands reads linked series-aiding and series-opposing before the joint."""
     out = {}
@@ -383,6 +473,16 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
     net = _network(order, L, R20, doc.test.frequency)
     duty_net = _network(order, L, Rhot, duty.frequency)
+    temps = _heat(order, wire, layout, length, L)
+    if duty.operating_temperature is None:
+        # The order gives no running temperature: the heat balance's mean winding temperature is used.
+        t_op = temps["mean_C"]
+        Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
+        duty_net = _network(order, L, Rhot, duty.frequency)
+    elif duty.operating_temperature < temps["mean_C"] - 0.5:
+        warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
+                        f"{temps['mean_C']:.0f} °C the winding is computed to run at "
+                        f"(hot spot {temps['hot_spot_C']:.0f} °C): hot resistance and losses may read low.")
     tol = doc.tolerances
     diag = np.sqrt(np.diag(L))
     coupling = L / np.outer(diag, diag)
@@ -399,6 +499,13 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     z_duty = abs(complex(duty_net.resistance, w * duty_net.inductance))
     i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
     strand_i = np.abs(duty_net.strand_current) * i_term
+    ac = {**_ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
+    Rac = Rhot * ac["ratio"]
+    ac_terminal = _network(order, L, Rac, duty.frequency).resistance if ac["ratio"] != 1.0 else duty_net.resistance
+    strand_loss = strand_i ** 2 * Rac
+    thermal = _thermal(temps, wire, strand_i, duty.operating_temperature)
+    if thermal["verdict"] in ("fail", "marginal"):
+        warnings.append(thermal["reason"])
 
     # Each turn's share of its strand's voltage: its own resistance at the duty
     # temperature and the EMF of its own flux linkage (uniform per turn on a core).
@@ -412,7 +519,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                        pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
                        leads=leads, impregnation=doc.winding.impregnation)
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
-                       **stress_args)
+                       edge=_edge(order, duty_net, turns), **stress_args)
     if order.hookup_name == "separate" and S > 1:
         # Capacitance and resonance belong to one winding on its own; the
         # offset between windings only sets the insulation stress.
@@ -443,6 +550,9 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                                          conductor=wire.conductor)),
             "resistance_20C_ohm": float(R20[s]),
             "resistance_hot_ohm": float(Rhot[s]),
+            "resistance_ac_ohm": float(Rac[s]),
+            "loss_W": float(strand_loss[s]),
+            "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter)),
             "inductance_H": float(L[s, s]),
             "current_A": float(strand_i[s]),
         })
@@ -502,6 +612,8 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "terminal": {
             "inductance_H": net.inductance, "resistance_ohm": net.resistance,
             "resistance_hot_ohm": duty_net.resistance,
+            "resistance_ac_ohm": float(ac_terminal),
+            "loss_W": float(np.sum(strand_loss)),
             "capacitance_F": st["capacitance"]["terminal_F"],
             "self_resonance_Hz": st["self_resonance_Hz"],
             "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
@@ -513,6 +625,9 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "alternatives": alternative_hookups(L, R20, doc.test.frequency),
         "pairs": _pairs(L, R20, doc.test.frequency),
         "worst_adjacent": st["worst_adjacent"],
+        "impulse": st["impulse"],
+        "ac_resistance": ac,
+        "thermal": thermal,
         "leads": st["leads"],
         "capacitance": st["capacitance"],
         "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
@@ -520,7 +635,9 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "qc_required": required_lines(S, bool(net.joins), True),
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
-                     "stored_energy_J": energy},
+                     "stored_energy_J": energy, "surface_C": thermal["surface_C"],
+                     "hot_surface": thermal["surface_C"] >= heating.HOT_SURFACE_C,
+                     "hot_surface_limit_C": heating.HOT_SURFACE_C},
         "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
                                         worst=st.get("worst_pair") or (None, None)),
         "warnings": warnings,

@@ -75,8 +75,9 @@ def prediction_required_lines(p: dict) -> list[str]:
 # --- Design status ----------------------------------------------------------------
 
 def design_fails(p: dict) -> bool:
-    """True when the design fails a check that stops a traveller being issued."""
-    return (p.get("insulation") or {}).get("verdict") == "fail"
+    """True when the design fails a check that stops a traveller being issued (insulation or heating)."""
+    return ((p.get("insulation") or {}).get("verdict") == "fail"
+            or (p.get("thermal") or {}).get("verdict") == "fail")
 
 
 def design_status(p: dict, forced: bool = False) -> dict:
@@ -87,9 +88,13 @@ def design_status(p: dict, forced: bool = False) -> dict:
     """
     if not design_fails(p):
         return {"state": "ok", "reasons": []}
-    reasons = [str(r) for r in (p.get("insulation") or {}).get("reasons") or []]
+    ins = p.get("insulation") or {}
+    reasons = [str(r) for r in ins.get("reasons") or []] if ins.get("verdict") == "fail" else []
+    thermal = p.get("thermal") or {}
+    if thermal.get("verdict") == "fail":
+        reasons.append(f"thermal check fails: {thermal.get('reason') or 'over the thermal class'}")
     return {"state": "forced" if forced else "failing",
-            "reasons": reasons or ["the insulation check fails"]}
+            "reasons": reasons or ["the design check fails"]}
 
 
 def status_of(p: dict) -> dict:
@@ -101,7 +106,14 @@ def status_of(p: dict) -> dict:
 def status_words(st: dict) -> str:
     """Shop words for a design status, empty when the design is sound."""
     if st.get("state") == "forced":
-        return "FORCED: design fails its insulation check, issued with --force"
+        return "FORCED: design fails its " + _which(st) + ", issued with --force"
     if st.get("state") == "failing":
-        return "FAILING DESIGN: fails its insulation check"
+        return "FAILING DESIGN: fails its " + _which(st)
     return ""
+
+
+def _which(st: dict) -> str:
+    thermal = any(str(r).startswith("thermal check fails") for r in st.get("reasons") or [])
+    others = any(not str(r).startswith("thermal check fails") for r in st.get("reasons") or [])
+    return ("insulation and thermal checks" if thermal and others else "thermal check" if thermal
+            else "insulation check")

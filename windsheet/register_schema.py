@@ -81,12 +81,15 @@ def design_state_of(predictions: dict) -> str:
     'ok'
     >>> design_state_of({"design_status": {"state": "forced"}})
     'forced'
+    >>> design_state_of({"insulation": {"verdict": "pass"}, "thermal": {"verdict": "fail"}})
+    'failing'
     """
     st = (predictions.get("design_status") or {}).get("state") if isinstance(predictions, dict) else None
     if st:
         return str(st)
-    verdict = ((predictions or {}).get("insulation") or {}).get("verdict")
-    return "failing" if verdict == "fail" else "ok"
+    from .qc_lines import design_fails
+
+    return "failing" if design_fails(predictions or {}) else "ok"
 
 
 def columns(conn: sqlite3.Connection, table: str) -> set:

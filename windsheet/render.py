@@ -29,6 +29,12 @@ def check_issuable(prediction: dict, force: bool = False) -> None:
         why = "; ".join(str(r) for r in ins.get("reasons") or []) or "see the insulation check"
         raise InputError("insulation", f"insulation check fails ({why}); "
                          "not issued — fix the order, or issue with --force")
+    thermal = prediction.get("thermal") or {}
+    if thermal.get("verdict") == "fail" and not force:
+        # Enamel run over its thermal class ages fast: as much a fail as a voltage it cannot hold.
+        raise InputError("duty.current", f"thermal check fails ({thermal.get('reason')}); "
+                         "not issued — lower the current, use a heavier wire or a higher thermal class, "
+                         "or issue with --force")
 
 
 #: The CLI's ``--units`` words.

@@ -20,6 +20,8 @@ import numpy as np
 from . import capacitance as cap
 from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R
 from .discharge import construction_inception
+from .fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
+                         uniform_initial_distribution)
 from .flux_linkage import cored_turn_flux_linkage, turn_flux_linkage
 from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTOR, hipot_voltage,
                          insulation_verdict, volts)
@@ -112,10 +114,114 @@ def _lead_pair_record(layout, lead, t, voltage, where):
             "layer": int(layout.layer[t]) + 1, "layers": [None, int(layout.layer[t]) + 1], "where": where}
 
 
+def end_turn(layout: Layout, strand: int, which: int) -> int:
+    """Index of a strand's first (``which`` 0) or last (1) turn."""
+    sel = np.flatnonzero(layout.strand == strand)
+    return int(sel[np.argmin(layout.index[sel])] if which == 0 else sel[np.argmax(layout.index[sel])])
+
+
+def edge_stress(layout: Layout, nb, c, edge, peak):
+    """Every turn's potential under a fast edge, and the pair voltages it gives.
+
+    Parameters
+    ----------
+    layout : Layout
+        The winding.
+    nb : windsheet.layout.Neighbours
+        Its neighbour pairs.
+    c : ndarray
+        Each pair's capacitance. [F]
+    edge : dict
+        ``held`` {(strand, end 0/1): potential per volt of the edge},
+        ``ties`` [((strand, end), (strand, end))] joined ends,
+        ``ground_F`` [F] from the whole winding to ground (spread evenly over
+        the turns), ``ground_given`` (bool), ``rise_time_s`` [s],
+        ``series_turns`` (turns between the terminals, for the even share).
+    peak : float
+        Height of the edge. [V]
+
+    Returns
+    -------
+    v : ndarray
+        Each turn's potential per volt of the edge. [-]
+    ends : ndarray, shape (strands, 2)
+        Each strand end's potential per volt. [-]
+    dv : ndarray
+        Voltage across each neighbour pair under the edge. [V]
+    report : dict
+        ``alpha``, ``series_capacitance_F``, ``ground_capacitance_F``,
+        ``first_turn_Vpk``, ``first_turn_uniform_Vpk`` (the even share
+        V/N), ``first_turn_uniform_winding_Vpk`` (the closed form at this α, single
+        layers only),
+        ``worst_pair_Vpk``, ``worst_pair_where``, ``edge_Vpk``, ``rise_time_s``.
+
+    References
+    ----------
+    :mod:`windsheet.fast_front`.
+
+    Examples
+    --------
+    >>> from windsheet.layout import cylinder_layout
+    >>> from windsheet.neighbours import neighbour_pairs
+    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 1, 50, layers=1)
+    >>> nb = neighbour_pairs(lay)
+    >>> c = cap.pair_capacitances(lay, pairs=nb)[3]
+    >>> e = {"held": {(0, 0): 1.0, (0, 1): 0.0}, "ties": [], "ground_F": 10e-12, "ground_given": False,
+    ...      "rise_time_s": 1e-7}
+    >>> v, ends, dv, rep = edge_stress(lay, nb, c, e, 100.0)
+    >>> rep["first_turn_Vpk"] > 5 * rep["first_turn_uniform_Vpk"]
+    True
+    """
+    n = layout.n_turns
+    held = {end_turn(layout, s, w): float(val) for (s, w), val in edge["held"].items()}
+    ties = [(end_turn(layout, *a), end_turn(layout, *b)) for a, b in edge["ties"]]
+    cg = float(edge["ground_F"]) / n
+    v, _ = capacitive_distribution(n, nb.i, nb.j, c, cg, held, ties)
+    line = [t for t, val in held.items() if val == max(held.values())]
+    earth = [t for t, val in held.items() if val != max(held.values())]
+    cs = series_capacitance(n, nb.i, nb.j, c, line, earth, ties) if earth else 0.0
+    alpha = impulse_alpha(edge["ground_F"], cs) if cs > 0 else None
+    dv = np.abs(v[nb.i] - v[nb.j]) * peak
+    ends = np.array([[v[end_turn(layout, s, 0)], v[end_turn(layout, s, 1)]] for s in range(layout.strands)])
+    # The first turn: the line-end turn against the next turn of its own strand.
+    t0 = line[0]
+    s0 = int(layout.strand[t0])
+    k0 = int(layout.index[t0])
+    same = np.flatnonzero(layout.strand == s0)
+    nxt = same[np.argmin(np.abs(layout.index[same] - (k0 + 1 if k0 == 0 else k0 - 1)))]
+    first = float(abs(v[t0] - v[nxt]) * peak)
+    turns_between = max(1, int(edge.get("series_turns", n)))
+    share = peak / turns_between
+    closed = None
+    # The closed form is a turn-by-turn ladder's: a check for a single layer only.
+    if alpha is not None and math.isfinite(alpha) and layout.layers == 1:
+        closed = float(peak * (1.0 - uniform_initial_distribution(1.0 / turns_between, alpha)))
+    k = int(np.argmax(dv)) if dv.size else None
+    where = pair_record(layout, int(nb.i[k]), int(nb.j[k]), str(nb.kind[k]), dv[k])["where"] if k is not None else None
+    report = {"alpha": alpha, "series_capacitance_F": cs, "ground_capacitance_F": float(edge["ground_F"]),
+              "ground_capacitance_given": bool(edge["ground_given"]), "rise_time_s": edge.get("rise_time_s"),
+              "edge_Vpk": float(peak), "first_turn_Vpk": first, "first_turn_uniform_Vpk": float(share),
+              "first_turn_uniform_winding_Vpk": closed,
+              "worst_pair_Vpk": float(dv[k]) if k is not None else 0.0, "worst_pair_where": where,
+              "method": "initial capacitive distribution: neighbour-pair capacitances and the ground "
+                        "capacitance spread evenly over the turns (inductance carries no current yet)"}
+    return v, ends, dv, report
+
+
+def _edge_reason(rep):
+    alpha = "" if rep["alpha"] is None else f", α = {rep['alpha']:.3g}"
+    given = "given" if rep["ground_capacitance_given"] else "assumed, not given in the order"
+    return (f"Under the fast edge ({volts(rep['edge_Vpk'])} V peak, initial capacitive distribution{alpha}, "
+            f"ground capacitance {rep['ground_capacitance_F'] * 1e12:.3g} pF {given}) the first turn takes "
+            f"{volts(rep['first_turn_Vpk'])} V peak against an even share of "
+            f"{volts(rep['first_turn_uniform_Vpk'])} V, and the worst pair {volts(rep['worst_pair_Vpk'])} V peak "
+            f"({rep['worst_pair_where']}); each pair is judged at the larger of this and its steady voltage.")
+
+
 def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
            inductance_H=None, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R, tape_rating_V=None,
            derating=DERATING, pdiv_Vpk=None, pdiv_hot_factor=PDIV_HOT_FACTOR, drops=None,
-           leads=(), impregnation="none") -> dict:
+           leads=(), impregnation="none", edge=None) -> dict:
     """Voltage map, capacitance, self-resonance and insulation verdict for a duty.
 
     Parameters
@@ -151,11 +257,15 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         The leads and joint wires with the turns they touch.
     impregnation : str
         ``"none"``, ``"varnish"`` or ``"potted"``.
+    edge : dict or None
+        A fast edge of the applied peak (:func:`edge_stress`): each pair is
+        then judged at the larger of its quasi-static and its edge voltage,
+        and partial discharge as on AC (every edge may start it).
 
     Returns
     -------
     result : dict
-        ``worst_adjacent``, ``layer_Vpk``, ``leads``, ``capacitance``
+        ``impulse`` (the edge's report, or None), ``worst_adjacent``, ``layer_Vpk``, ``leads``, ``capacitance``
         {``self_F``, ``strand_to_strand_F``, ``layer_to_layer_F``,
         ``terminal_F``, ``method``}, ``self_resonance_Hz``, ``insulation``,
         ``hipot``, ``warnings``.  Plain floats, lists and strings (JSON-ready).
@@ -181,11 +291,20 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     v = turn_potentials(layout, ends, turn_drop, lead_drop)
     nb = neighbour_pairs(layout)
     dv = pair_voltages(v, nb.i, nb.j, peak)
+    i, j, kind, c, layer_C = cap.pair_capacitances(layout, eps_r, tape_eps_r, nb)
+    impulse = None
+    if edge is not None:
+        v_edge, ends_edge, dv_edge, impulse = edge_stress(layout, nb, c, edge, peak)
+        dv = np.maximum(dv, dv_edge)
 
     film = (layout.overall_diameter - layout.copper_diameter) / 2.0
     pdiv = construction_inception(nb.gap, nb.across_tape, film, eps_r, layout.tape, tape_eps_r,
                                   impregnation) if nb.size else np.zeros(0)
     lead_reports, lead_pairs = _lead_report(layout, leads, ends, v, peak)
+    if edge is not None:
+        edge_reports, edge_pairs = _lead_report(layout, leads, ends_edge, v_edge, peak)
+        lead_reports = [e if e["worst_Vpk"] > q["worst_Vpk"] else q for q, e in zip(lead_reports, edge_reports)]
+        lead_pairs = [(k, b, np.maximum(q, e)) for (k, b, q), (_, _, e) in zip(lead_pairs, edge_pairs)]
     touching = float(construction_inception([0.0], [False], film, eps_r, impregnation=impregnation)[0])
     basis = "no air path" if impregnation == "potted" else "estimated"
     if pdiv_Vpk is not None:
@@ -240,7 +359,6 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         pd_V, pd_div, pd_where = float(worst["voltage_Vpk"]), math.inf, worst["where"]
 
     # Capacitance: pairs by the energy method; Medhurst for a single-layer solenoid.
-    i, j, kind, c, layer_C = cap.pair_capacitances(layout, eps_r, tape_eps_r, nb)
     pairs_C = cap.energy_method_capacitance(c, v[i] - v[j], 1.0)
     warnings = []
     method = ("energy method over neighbour pairs (Massarini-Kazimierczuk between touching "
@@ -282,12 +400,15 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                                     enamel_Vpk=enamel_Vpk, layer_Vpk=layer_Vpk,
                                     tape_rating_V=tape_rating_V, pd_Vpk=pd_V, pdiv_Vpk=pd_div,
                                     pdiv_hot_factor=pdiv_hot_factor, pd_where=pd_where,
-                                    pdiv_basis=basis, ac=ac, impregnation=impregnation)
+                                    pdiv_basis=basis, ac=ac or edge is not None, impregnation=impregnation)
+    if impulse is not None:
+        insulation["reasons"] = list(insulation["reasons"]) + [_edge_reason(impulse)]
     insulation["pdiv_touching_Vpk"] = touching if math.isfinite(touching) else None
     insulation["layer_style"] = layout.layer_style
     worst_out = {k: worst[k] for k in ("voltage_Vpk", "where", "strands", "turns", "layer",
                                        "layers", "kind")}
     return {
+        "impulse": impulse,
         "worst_adjacent": worst_out,
         "layer_Vpk": layer_Vpk,
         "leads": lead_reports,

@@ -12,7 +12,7 @@ from markupsafe import Markup
 from .diagrams import cross_section_svg, winding_terminals, wiring_svg
 from .fmt import NBSP as _NBSP
 from .fmt import OHM, celsius, eng, length, mass, percent
-from .sheet_pdf import band, header_part, henry, joule, ohm, volt
+from .sheet_pdf import band, farad, header_part, henry, hertz, joule, ohm, volt
 
 #: Section headings in job-flow order; the tests look for each in the PDF text.
 SECTIONS = (
@@ -77,6 +77,9 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "qc_items": qc_items(p),
         "unit_tables": unit_tables((p.get("job") or {}).get("units") or []),
         "insulation_rows": insulation_rows(ins),
+        "duty_physics_rows": duty_physics_rows(p),
+        "thermal": p.get("thermal") or {},
+        "impulse_rows": impulse_rows(p.get("impulse")),
     }
 
 
@@ -168,6 +171,45 @@ def insulation_rows(ins: dict) -> list[tuple[str, str]]:
     return rows
 
 
+def duty_physics_rows(p: dict) -> list[tuple[str, str]]:
+    """AC resistance, loss, temperatures and current density on the duty, as the prediction gives them."""
+    t, ac, th = p.get("terminal") or {}, p.get("ac_resistance") or {}, p.get("thermal") or {}
+    rows = []
+    if t.get("resistance_ac_ohm") is not None and ac:
+        f = ac.get("frequency_Hz")
+        rows.append((f"Resistance at the duty frequency ({hertz(f)}), hot" if f else "Resistance on the d.c. duty, hot",
+                     f"{ohm(t['resistance_ac_ohm'])} (AC/DC {float(ac.get('ratio', 1.0)):.3f}; {ac.get('model', '')})"))
+    if t.get("loss_W") is not None:
+        rows.append(("Copper loss at the duty current", eng(t["loss_W"], "W", sig=3)))
+    if th:
+        rows.append(("Temperature rise of the surface (still air)",
+                     f"{float(th['surface_rise_K']):.1f} K, surface {celsius(th['surface_C'])}"))
+        rows.append(("Hot spot (estimate) / mean winding",
+                     f"{celsius(th['hot_spot_C'])} / {celsius(th['mean_C'])}"))
+        rows.append(("Thermal check", f"{str(th.get('verdict', '')).upper()}: {th.get('reason', '')}"))
+        lo, hi = th.get("current_density_range_A_per_mm2") or (None, None)
+        rows.append(("Current density", f"{float(th['current_density_A_per_mm2']):.2f} A/mm²"
+                     + (f" (common practice {lo:g}–{hi:g} A/mm² for natural cooling)" if lo else "")))
+        rows.append(("Heat method", th.get("method", "")))
+    return rows
+
+
+def impulse_rows(imp) -> list[tuple[str, str]]:
+    """The fast edge's share on the first turns, when the duty has one."""
+    if not imp:
+        return []
+    rows = [("Fast edge", f"{volt(imp['edge_Vpk'])} peak"
+             + (f", rise time {eng(imp['rise_time_s'], 's', sig=3)}" if imp.get("rise_time_s") else ""))]
+    rows.append(("First turn under the edge", f"{volt(imp['first_turn_Vpk'])} peak "
+                 f"(even share {volt(imp['first_turn_uniform_Vpk'])})"))
+    rows.append(("Worst pair under the edge", f"{volt(imp['worst_pair_Vpk'])} peak, {imp.get('worst_pair_where')}"))
+    if imp.get("alpha") is not None:
+        rows.append(("Distribution constant α = √(Cg/Cs)", f"{float(imp['alpha']):.3g}"))
+    rows.append(("Capacitance to ground / core / shield", farad(imp["ground_capacitance_F"])
+                 + ("" if imp.get("ground_capacitance_given") else " (assumed: give duty.ground_capacitance)")))
+    return rows
+
+
 def pick_list(p: dict) -> list[dict]:
     """Materials to draw from stores, one row each, with the quantity to pick."""
     wire = p.get("wire") or {}
@@ -250,6 +292,11 @@ def cautions(p: dict) -> list[dict]:
     elif energy is not None:
         out.append({"level": "note", "title": "Stored magnetic energy",
                     "text": f"{joule(energy)} at the duty current (½LI²)."})
+    if cau.get("hot_surface"):
+        out.append({"level": "warning", "title": "Hot surface",
+                    "text": f"On its duty the winding's surface is computed to reach about "
+                            f"{celsius(cau.get('surface_C'))} (in still air): it burns on contact. Let it "
+                            "cool before handling, and keep it guarded where people can touch it."})
     out.append({"level": "note", "title": "Ring-test fixtures",
                 "text": "The capacitor of a ring (resonance) test fixture holds charge after the "
                         "test: discharge it through a resistor before handling (energy ½CV²)."})

@@ -1,0 +1,70 @@
+"""Benchmark of start-up (``make bench ONLY=startup``; ``python benchmarks/run.py startup``).
+
+Median wall time, over fresh processes, of ``windsheet size`` on a sample,
+of ``python -c "import numpy"`` (the floor any numpy tool pays), their ratio
+against the 3× aim, and of listing the register.  Runs are interleaved so
+that a busy machine slows all of them alike.  Prints figures only; exits 1
+if a command fails.
+"""
+
+from __future__ import annotations
+
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+SAMPLE = ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"
+REPEAT = 9
+AIM = 3.0
+
+
+def windsheet_command() -> list[str]:
+    """The installed console script beside this Python, else the module."""
+    script = Path(sys.executable).with_name("windsheet")
+    return [str(script)] if script.exists() else [sys.executable, "-m", "windsheet.cli"]
+
+
+def wall_time(cmd) -> float:
+    """Wall time of one run of ``cmd`` in a fresh process. [s]"""
+    t0 = time.perf_counter()
+    subprocess.run(cmd, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, cwd=ROOT)
+    return time.perf_counter() - t0
+
+
+def main() -> int:
+    ws = windsheet_command()
+    with tempfile.TemporaryDirectory() as tmp:
+        reg = str(Path(tmp) / "register.db")
+        commands = {
+            "python -c 'import numpy'": [sys.executable, "-c", "import numpy"],
+            "windsheet size (sample)": ws + ["size", str(SAMPLE)],
+            "windsheet register (listing)": ws + ["register", "--register", reg],
+        }
+        try:
+            subprocess.run(ws + ["register", "--issue", str(SAMPLE), "--register", reg], check=True,
+                           capture_output=True, cwd=ROOT)
+            for cmd in commands.values():  # warm the file cache and the byte-code
+                wall_time(cmd)
+            times = {name: [] for name in commands}
+            for _ in range(REPEAT):
+                for name, cmd in commands.items():
+                    times[name].append(wall_time(cmd))
+        except subprocess.CalledProcessError as exc:
+            print(f"FAIL: {' '.join(exc.cmd)} exited {exc.returncode}", file=sys.stderr)
+            return 1
+    med = {name: statistics.median(t) for name, t in times.items()}
+    for name, t in med.items():
+        print(f"{name:<30} median {t * 1e3:7.0f} ms  (min {min(times[name]) * 1e3:.0f} ms, {REPEAT} runs)")
+    floor = med["python -c 'import numpy'"]
+    ratio = med["windsheet size (sample)"] / floor
+    print(f"size / import numpy = {ratio:.2f} ({'within' if ratio <= AIM else 'over'} the {AIM:.0f}× aim)")
+    print(f"register listing / import numpy = {med['windsheet register (listing)'] / floor:.2f}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,138 @@
+"""Temperature rise: the surface heat balance against an independent empirical rule and the
+textbook correlations written out; the prediction's use of it."""
+
+import math
+
+import pytest
+import yaml
+
+from windsheet import heating
+from windsheet.order import parse_order
+from windsheet.predict import predict
+
+from conftest import SAMPLES
+
+
+def mclyman_rise(power, area_m2):
+    # McLyman, Transformer and Inductor Design Handbook, 3rd ed. (2004), ch. 6: temperature rise of
+    # a naturally cooled magnetic component, ΔT = 450·ψ^0.826 °C, ψ in W/cm² (memory).
+    return 450.0 * (power / (area_m2 * 1e4)) ** 0.826
+
+
+@pytest.mark.parametrize("psi_W_per_cm2", [0.01, 0.03, 0.06])
+def test_surface_rise_agrees_with_an_empirical_rule(psi_W_per_cm2):
+    area, d = 0.01, 0.05
+    power = psi_W_per_cm2 * area * 1e4
+    got = heating.surface_rise(power, area, d, 25.0)
+    # An independent, empirical rule of the same heat balance: agreement within 10 %.
+    assert got == pytest.approx(mclyman_rise(power, area), rel=0.10)
+
+
+def test_surface_rise_solves_its_own_balance():
+    power, area, d, ta = 2.0, 0.008, 0.04, 30.0
+    rise = heating.surface_rise(power, area, d, ta)
+    ts, tk = ta + rise + 273.15, ta + 273.15
+    # Holman, Heat Transfer §7-7 (h = 1.32 (ΔT/D)^¼, air, horizontal cylinder) plus Stefan–Boltzmann
+    # radiation with ε = 0.9, written out here.
+    carried = area * (1.32 * (rise / d) ** 0.25 * rise + 0.9 * 5.670374419e-8 * (ts ** 4 - tk ** 4))
+    assert carried == pytest.approx(power, rel=1e-9)
+
+
+def test_hot_spot_of_a_slab():
+    # Carslaw & Jaeger §2.11: slab with uniform generation, one face cooled: peak q·t/(2k) above it.
+    assert heating.build_rise(1.0, 0.01, 2e-3, 0.5) == pytest.approx(100 * 2e-3 / 1.0)
+
+
+def test_runaway_is_reported():
+    # Loss rising steeply with temperature finds no balance: a fail, never a pass.
+    r = heating.winding_temperatures(lambda t: 5.0 * math.exp(t / 20.0), 0.001, 0.02, 1e-3, 25.0)
+    assert not r["converged"]
+    assert heating.thermal_verdict(r["hot_spot_C"], 155, converged=False)[0] == "fail"
+
+
+def test_current_density():
+    # 1 A in 0.5 mm copper: 1 / (π·0.25²/4·... ) = 5.093 A/mm² (definition, computed by hand).
+    assert heating.current_density(1.0, 0.5e-3) == pytest.approx(1 / (math.pi * 0.0625), rel=1e-12)
+
+
+def _multilayer(**duty):
+    doc = yaml.safe_load((SAMPLES / "hl-0418-multilayer.yaml").read_text())
+    doc["duty"].update(duty)
+    return doc
+
+
+def test_prediction_uses_the_computed_temperature():
+    doc = _multilayer()
+    doc["duty"].pop("operating_temperature", None)
+    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    th = p["thermal"]
+    assert p["duty"]["operating_temperature_C"] == pytest.approx(th["mean_C"])
+    s = p["strands"][0]
+    # IEC 60028: R(T) = R20·(1 + 0.00393·(T − 20)).
+    assert s["resistance_hot_ohm"] == pytest.approx(s["resistance_20C_ohm"] * (1 + 0.00393 * (th["mean_C"] - 20)),
+                                                    rel=1e-3)
+    # The loss the balance dissipates is I²R at that temperature (DC duty: AC ratio 1).
+    assert th["loss_W"] == pytest.approx(p["terminal"]["loss_W"], rel=1e-3)
+    assert th["surface_C"] < th["mean_C"] <= th["hot_spot_C"]
+    assert th["verdict"] in ("pass", "marginal", "fail")
+    assert th["current_density_A_per_mm2"] == pytest.approx(
+        s["current_A"] / (math.pi * (p["wire"]["copper_diameter_m"] * 1e3) ** 2 / 4))
+
+
+def test_order_temperature_below_the_computed_one_is_warned():
+    p = predict(parse_order(yaml.safe_dump(_multilayer(operating_temperature="40 degC")).encode(), "o.yaml"),
+                remedies=False)
+    assert p["duty"]["operating_temperature_C"] == 40.0
+    assert any("below the" in w and "computed to run at" in w for w in p["warnings"])
+
+
+def test_overloaded_winding_fails_its_class_and_warns():
+    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
+    th = p["thermal"]
+    assert th["hot_spot_C"] > p["wire"]["thermal_class_C"]
+    assert th["verdict"] == "fail" and p["cautions"]["hot_surface"]
+    assert any("thermal class" in w for w in p["warnings"])
+
+
+def test_traveller_shows_heating_edge_and_hot_surface():
+    from windsheet.render import render_traveller_html
+
+    doc = _multilayer(current="2.5 A", rise_time="100 ns")
+    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    html = render_traveller_html(p, forced=True)
+    th = p["thermal"]
+    assert "On the duty: AC resistance, heating" in html
+    assert f"{th['current_density_A_per_mm2']:.2f} A/mm²" in html and "common practice" in html
+    assert 'data-thermal="fail"' in html
+    assert "Hot surface" in html
+    assert "First turn under the edge" in html and "assumed: give duty.ground_capacitance" in html
+
+
+def test_summary_names_heating_and_the_edge():
+    from windsheet.cli import summary_lines
+
+    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A", rise_time="100 ns")).encode(), "o.yaml"),
+                remedies=False)
+    text = "\n".join(summary_lines(p))
+    assert f"hot spot {p['thermal']['hot_spot_C']:.0f} °C (class 155)" in text and "Heating         FAIL" in text
+    assert "Fast edge" in text and "first turn" in text
+
+
+def test_thermal_fail_is_not_issued_unless_forced():
+    from windsheet.errors import InputError
+    from windsheet.render import check_issuable
+
+    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
+    assert p["insulation"]["verdict"] != "fail" and p["thermal"]["verdict"] == "fail"
+    with pytest.raises(InputError, match="thermal check fails"):
+        check_issuable(p)
+    check_issuable(p, force=True)
+
+
+def test_voltage_driven_coil_draws_less_as_it_warms():
+    doc = _multilayer(voltage="6 V dc")
+    doc["duty"].pop("current", None)
+    doc["duty"].pop("operating_temperature", None)
+    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    # Ohm's law at the balance's own temperature: P = V²/R_hot, self-consistent.
+    assert p["thermal"]["loss_W"] == pytest.approx(6.0 ** 2 / p["terminal"]["resistance_hot_ohm"], rel=1e-3)

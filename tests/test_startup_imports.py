@@ -1,0 +1,71 @@
+"""What each command imports at start-up, read from ``sys.modules`` in a fresh process (never a timing).
+
+Start-up time is measured in ``make bench`` (benchmarks/bench_startup.py); here
+only which heavy libraries a command loads is checked.
+"""
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+SAMPLE = ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"
+
+# Runs the CLI in this process, then reports which of the watched modules it loaded.
+CHILD = """
+import json, sys
+sys.argv = ["windsheet", *sys.argv[1:]]
+from windsheet.cli import main
+try:
+    main()
+except SystemExit as e:
+    code = e.code
+else:
+    code = 0
+watched = ["numpy", "pydantic", "scipy", "scipy.spatial", "scipy.constants", "scipy.special", "yaml",
+           "typer._adapters", "windsheet.order", "windsheet.measured", "windsheet.signoff"]
+print(json.dumps({"code": code, "loaded": [m for m in watched if m in sys.modules]}), file=sys.stderr)
+"""
+
+
+def run(*args):
+    proc = subprocess.run([sys.executable, "-c", CHILD, *map(str, args)], capture_output=True,
+                          text=True, cwd=ROOT, timeout=120)
+    report = json.loads(proc.stderr.strip().splitlines()[-1])
+    return report["code"], set(report["loaded"]), proc.stdout
+
+
+@pytest.fixture(scope="module")
+def register(tmp_path_factory):
+    db = tmp_path_factory.mktemp("reg") / "r.db"
+    code, _, _ = run("register", "--issue", SAMPLE, "--register", db)
+    assert code in (0, None)
+    return db
+
+
+def check_no_heavy_imports(loaded):
+    assert not loaded & {"numpy", "scipy", "windsheet.order", "windsheet.measured", "windsheet.signoff"}, loaded
+    # typer 0.29 coerces command-line parameters through pydantic's TypeAdapter
+    # (typer._adapters); windsheet's own listing code must not be what loads it.
+    if "pydantic" in loaded:
+        assert "typer._adapters" in loaded, loaded
+
+
+@pytest.mark.parametrize("args, shows", [((), "HL-0412"), (("HL-0412",), "issued")])
+def test_register_listing_loads_neither_numpy_nor_pydantic(register, args, shows):
+    code, loaded, out = run("register", *args, "--register", register)
+    assert code in (0, None)
+    assert shows in out  # the listing really ran
+    check_no_heavy_imports(loaded)
+
+
+def test_size_does_not_load_scipy():
+    code, loaded, out = run("size", SAMPLE)
+    assert code in (0, None)
+    assert "HL-0412" in out
+    # numpy, pydantic and yaml do the work; scipy is a test reference only.
+    assert {"numpy", "pydantic", "yaml"} <= loaded
+    assert not any(m.startswith("scipy") for m in loaded), loaded
