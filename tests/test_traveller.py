@@ -404,7 +404,8 @@ def test_markup_in_the_customer_name_prints_as_text():
     p["hookup"]["description"] = "<i>italic</i>"
     p["strands"][0]["identification"] = "<u>red</u> sleeve"
     html = render.render_traveller_html(p)
-    assert "<script>" not in html and "<img" not in html and "<i>italic" not in html
+    # The sheet's own drawings are <img> with data: URLs; the order's text never becomes a tag.
+    assert "<script>" not in html and '<img src="http' not in html and "<i>italic" not in html
     # Also inside the wiring diagram's SVG, which is built outside Jinja.
     assert "<u>" not in html and "&lt;u&gt;red&lt;/u&gt; sleeve" in html
     assert "&lt;b&gt;Bold&lt;/b&gt; &amp; &lt;script&gt;" in html
@@ -579,3 +580,107 @@ def test_cli_bad_paper_is_refused(tmp_path):
                                    "--paper", "A5", "--register", str(tmp_path / "reg.db")])
     assert res.exit_code == 2 and "--paper" in res.stderr
     assert not (tmp_path / "x.pdf").exists()
+
+
+# --- pagination: every sample on A4 and on Letter, read back from the PDF's own text ----------
+
+def _page_lines(page) -> list[tuple[float, float, str]]:
+    """``(y, x, text)`` of every text run on a page, y in points from the bottom."""
+    runs = []
+
+    def visit(text, cm, tm, font_dict, font_size):
+        if text.strip():
+            runs.append((round(cm[5] + tm[5] * cm[3], 1), round(cm[4] + tm[4] * cm[0], 1),
+                         normalise(text)))
+
+    page.extract_text(visitor_text=visit)
+    return runs
+
+
+def _body_runs(page) -> list[tuple[float, float, str]]:
+    """The text runs between the running header and footer, top to bottom."""
+    height = float(page.mediabox.height)
+    # The page margins are 22 mm at the top and 20 mm at the bottom (print.css).
+    top, bottom = height - 22 / 25.4 * 72, 20 / 25.4 * 72
+    runs = [r for r in _page_lines(page) if bottom < r[0] < top]
+    return sorted(runs, key=lambda r: (-r[0], r[1]))
+
+
+def _header_baselines(page) -> set[float]:
+    height = float(page.mediabox.height)
+    return {round(y) for y, _, _ in _page_lines(page) if y >= height - 22 / 25.4 * 72}
+
+
+def _headings(html: str) -> set[str]:
+    import html as html_lib
+
+    found = re.findall(r"<h[23][^>]*>(.*?)</h[23]>", html, flags=re.S)
+    return {normalise(html_lib.unescape(re.sub(r"<[^>]+>", "", h))) for h in found}
+
+
+@lru_cache(maxsize=None)
+def _sheet_pages(stem: str, paper: str):
+    html, pdf = sample_sheet(stem, paper)
+    reader = pypdf.PdfReader(io.BytesIO(pdf))
+    return html, [_body_runs(pg) for pg in reader.pages], reader
+
+
+PAPERS = ("a4", "letter")
+
+
+@pytest.mark.parametrize("paper", PAPERS)
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_no_heading_is_left_at_the_foot_of_a_page(stem, paper):
+    html, pages, _ = _sheet_pages(stem, paper)
+    heads = _headings(html)
+    for k, runs in enumerate(pages, start=1):
+        assert runs, f"page {k} has no content"
+        for y, x, text in runs:
+            if text not in heads:
+                continue
+            # Common practice in print layout: a heading has its content below it on its page,
+            # in its own column (the two-column blocks are about 90 mm wide).
+            below = [t for yy, xx, t in runs if yy < y - 1 and abs(xx - x) < 120 and t not in heads]
+            assert below, f"page {k}: the heading {text!r} has nothing below it"
+
+
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_letter_page_one_carries_what_a4_page_one_does(stem):
+    html, a4, _ = _sheet_pages(stem, "a4")
+    _, letter, _ = _sheet_pages(stem, "letter")
+    heads = _headings(html)
+    on_a4 = {t for _, _, t in a4[0] if t in heads}
+    on_letter = {t for _, _, t in letter[0] if t in heads}
+    assert "1 Specification" in on_a4 and on_a4 <= on_letter, on_a4 - on_letter
+
+
+@pytest.mark.parametrize("paper", PAPERS)
+@pytest.mark.parametrize("stem", SAMPLE_IDS)
+def test_qc_records_last_table_stays_with_the_signatures(stem, paper):
+    _, pages, _ = _sheet_pages(stem, paper)
+    labels = [normalise(it["label"]) for it in render.qc_items(sample_prediction(stem))]
+    signed = [k for k, runs in enumerate(pages) if any(t.startswith("Inspector") for _, _, t in runs)]
+    assert len(signed) == 1
+    text = " ".join(t for _, _, t in pages[signed[0]])
+    last_table = text.rsplit("Item Predicted Accept", 1)
+    assert len(last_table) == 2, "the signatures are on a page without a QC table"
+    # Each label may wrap in its cell; its first word starts the row.
+    for label in (labels[0], labels[-1]):
+        assert label.split()[0] in last_table[1]
+
+
+FORCED_LONG_PART = FAILING_ORDER.replace('part: "Test coil"',
+                                         'part: "Common-mode choke, 2 x 12 t on T25 ferrite, potted"')
+
+
+@pytest.mark.parametrize("paper", PAPERS)
+def test_running_header_stays_on_one_line_even_when_forced(tmp_path, paper):
+    p = predict(load_order(order_yaml(tmp_path, "forced.yaml", FORCED_LONG_PART)))
+    pdf = render.render_pdf(render.render_traveller_html(p, paper=paper, forced=True))
+    reader = pypdf.PdfReader(io.BytesIO(pdf))
+    for k, page in enumerate(reader.pages, start=1):
+        assert len(_header_baselines(page)) == 1, f"page {k}: header on {_header_baselines(page)}"
+        assert "FORCED ISSUE" in normalise(page.extract_text())
+    for stem in SAMPLE_IDS:
+        for page in _sheet_pages(stem, paper)[2].pages:
+            assert len(_header_baselines(page)) == 1, stem

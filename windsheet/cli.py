@@ -394,7 +394,7 @@ def _lot_search(register, lot, as_json):
     typer.echo(_to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))
 
 
-def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
+def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | None = None):
     """Size, check and render one traveller (runs in a worker process for a batch)."""
     from .batch import load_order_arg
     from .predict import predict
@@ -413,7 +413,7 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool):
     if fmt == "json":
         data = (_to_json(p) + "\n").encode("utf-8")
     else:
-        page = render_traveller_html(p, paper=paper, forced=forced)
+        page = render_traveller_html(p, paper=paper, forced=forced, units=units)
         data = page.encode("utf-8") if fmt == "html" else render_pdf(page)
     return p, o.source.decode("utf-8", "replace"), o.sha256, forced, data
 
@@ -435,6 +435,8 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
                   fmt: Optional[str] = typer.Option(None, "--format", help="pdf, html or json (the prediction); "
                                                     "default: from the output file's extension, else pdf."),
                   paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
+                  units: Optional[str] = typer.Option(None, "--units", help="imperial (inches beside "
+                                                      "millimetres) or metric; default as the order is written."),
                   force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
                                              "fails; the sheet then says FORCED."),
                   jobs: int = typer.Option(0, "--jobs", min=0, help="Worker processes for several orders "
@@ -469,7 +471,7 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
         if not into_folder and not (out_path.parent if str(out_path.parent) else Path(".")).is_dir():
             raise InputError(out, f"cannot write: folder {str(out_path.parent)!r} does not exist")
     if not many:
-        p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force)
+        p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force, units)
         with open_register(register) as reg:
             _say_repairs(reg)
             if out == STDIN:
@@ -485,7 +487,7 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
         return
     out_path.mkdir(parents=True, exist_ok=True)
     refused = []
-    work = [(f, paper, fmt_, force) for f in files]
+    work = [(f, paper, fmt_, force, units) for f in files]
     with open_register(register) as reg, progress(len(files), "travellers") as step:
         _say_repairs(reg)
         for f, (done, err) in zip(files, _in_parallel(_traveller_worker, work, jobs)):

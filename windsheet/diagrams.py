@@ -241,7 +241,17 @@ def _draw_terminal(parent, label, end, end_xy):
 
 # --- cross-section ------------------------------------------------------------
 
-def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
+def potential_grey(fraction: float) -> str:
+    """Grey for a potential as a fraction of the highest: white at 0, dark grey at the top.
+
+    Lightness falls in a straight line, so a greyscale print keeps the order.
+    """
+    f = min(max(float(fraction), 0.0), 1.0)
+    level = int(round(255 - f * (255 - 64)))
+    return f"#{level:02x}{level:02x}{level:02x}"
+
+
+def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool = False) -> str:
     """Sketch of the winding in section: layers, the strand in each slot, layer tape.
 
     ``cross_section["layers"]`` lists, per layer from the form outwards, the
@@ -250,16 +260,20 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
     """
     layers = [layer.get("slots") or [] if isinstance(layer, dict) else layer
               for layer in cross_section.get("layers") or []]
+    counts = [layer.get("turns") if isinstance(layer, dict) else None
+              for layer in cross_section.get("layers") or []]
+    full = max([c for c in counts if c] + [0])
     tape = bool(cross_section.get("tape_between_layers"))
-    cell = 20.0
+    vmax = cross_section.get("potential_max_Vpk") if shade else None
+    cell = 22.0 if vmax else 20.0
     gap_w = 26.0
     tape_h = 6.0 if tape else 0.0
     runs = [_with_gaps(layer) for layer in layers]
     width_cells = max([_run_width(r, cell, gap_w) for r in runs] + [cell * 4])
-    margin_l, margin_r = 64.0, 16.0
+    margin_l, margin_r = 64.0, 96.0
     width = margin_l + width_cells + margin_r
     base_y = 30.0 + len(layers) * (cell + tape_h) + 14.0
-    height = base_y + 34.0
+    height = base_y + (70.0 if vmax else 34.0)
     label = "Winding cross-section" + (" (toroid, inside wall)" if kind == "toroid" else "")
     root = _svg_root(width, height, label)
 
@@ -282,12 +296,33 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
                 x += gap_w
                 continue
             s = str(item["strand"])
-            _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r=f"{cell / 2 - 1:.1f}",
-                fill=STRAND_FILLS.get(s, "#ffffff"), stroke="#000", stroke_width="1.2",
-                data_slot=str(item["slot"]), data_strand=s)
-            _text(g, x + cell / 2, y + 4, s, text_anchor="middle", font_weight="bold",
-                  fill=STRAND_TEXT.get(s, "#000000"))
+            if vmax:
+                # Shaded by potential; the strand letter sits in a white disc so it reads on any grey.
+                frac = float(item.get("potential_Vpk") or 0.0) / vmax
+                worst = bool(item.get("worst"))
+                _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r=f"{cell / 2 - 1:.1f}",
+                    fill=potential_grey(frac), stroke="#000", stroke_width="3.2" if worst else "1.0",
+                    data_slot=str(item["slot"]), data_strand=s,
+                    data_potential=f"{float(item.get('potential_Vpk') or 0.0):.4g}",
+                    data_worst="1" if worst else None)
+                _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r="5.6", fill="#fff",
+                    stroke="none")
+                _text(g, x + cell / 2, y + 3.6, s, text_anchor="middle", font_weight="bold",
+                      font_size="10")
+            else:
+                _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r=f"{cell / 2 - 1:.1f}",
+                    fill=STRAND_FILLS.get(s, "#ffffff"), stroke="#000", stroke_width="1.2",
+                    data_slot=str(item["slot"]), data_strand=s)
+                _text(g, x + cell / 2, y + 4, s, text_anchor="middle", font_weight="bold",
+                      fill=STRAND_TEXT.get(s, "#000000"))
             x += cell
+        n = counts[lay] if lay < len(counts) else None
+        if n:
+            # A partial layer ends short, where its last turn lies, and says so.
+            partial = n < full
+            _text(g, x + 6, y + 4, f"{n} of {full} turns, partial" if partial else f"{n} turns",
+                  font_size="9", font_weight="bold" if partial else None,
+                  data_partial="1" if partial else None)
         if tape and lay < len(runs) - 1:
             ty = y - cell / 2 - tape_h / 2
             _el(root, "rect", x=f"{margin_l - 4:.1f}", y=f"{ty - (tape_h - 2) / 2:.1f}",
@@ -296,7 +331,20 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder") -> str:
                 data_tape=f"{lay + 1}/{lay + 2}")
     _text(root, margin_l + width_cells, 14, "start end at left", text_anchor="end",
           font_size="9.5")
+    if vmax:
+        _potential_scale(root, margin_l, base_y + 34, vmax)
     return _to_string(root)
+
+
+def _potential_scale(root, x0, y0, vmax, steps=5):
+    """The key to the shading: five greys from 0 V to the highest potential, each labelled."""
+    g = _el(root, "g", data_scale="potential")
+    for k in range(steps):
+        f = k / (steps - 1)
+        _el(g, "rect", x=f"{x0 + k * 44:.1f}", y=f"{y0:.1f}", width="40", height="10",
+            fill=potential_grey(f), stroke="#000", stroke_width="0.8")
+        _text(g, x0 + k * 44 + 20, y0 + 22, f"{f * vmax:.3g} V", text_anchor="middle", font_size="9")
+    _text(g, x0 + steps * 44 + 4, y0 + 9, "peak, against the 0 V end; thick ring = worst pair", font_size="9")
 
 
 def _with_gaps(layer_slots):

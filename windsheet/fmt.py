@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextvars
 import math
 
 _PREFIXES = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
@@ -56,9 +57,24 @@ def _thousandths(value, sig, big, small):
     return _sig_text(v * 1e3, sig) + NBSP + small
 
 
+#: Set while a sheet is written for an order given in inches: lengths then
+#: carry inches (feet above a metre) beside the millimetres.
+IMPERIAL = contextvars.ContextVar("windsheet_imperial_lengths", default=False)
+
+
 def length(value_m, sig: int = 4) -> str:
-    """A length as the shop writes it: millimetres below a metre, metres above."""
-    return _thousandths(value_m, sig, "m", "mm")
+    """A length as the shop writes it: millimetres below a metre, metres above.
+
+    With :data:`IMPERIAL` set, inches follow in brackets (feet from a metre):
+    ``12.70 mm (0.500 in)``; 1 in = 25.4 mm exactly.
+    """
+    metric = _thousandths(value_m, sig, "m", "mm")
+    if not IMPERIAL.get() or value_m is None:
+        return metric
+    inches = float(value_m) / 0.0254
+    if abs(inches) >= 39.37:
+        return f"{metric} ({inches / 12:.1f}{NBSP}ft)"
+    return f"{metric} ({inches:.4f}{NBSP}in)" if abs(inches) < 0.1 else f"{metric} ({inches:.3f}{NBSP}in)"
 
 
 def mass(value_kg, sig: int = 3) -> str:

@@ -98,6 +98,12 @@ class Layout:
     layer_style: str = "stacked"
     layer_step: float = 0.0
     strand_spacing: float = 0.0
+    # Toroids only: each turn's angle round the core from the start, in the
+    # winding direction [rad], and the radius of layer 0's conductor centres
+    # on the inside of the core [m].  ``None`` on coaxial windings.
+    theta: np.ndarray | None = None
+    ring_radius: float = 0.0
+    spread: str = ""
     # Results derived from the geometry alone (the neighbour search), kept
     # with the layout so that each is computed once however often it is asked for.
     _memo: dict = field(default_factory=dict, compare=False, repr=False)
@@ -105,6 +111,20 @@ class Layout:
     @property
     def n_turns(self) -> int:
         return int(self.r.size)
+
+    def section_points(self) -> np.ndarray:
+        """Turn centres in the plane where the turns crowd, ``(n, 2)``. [m]
+
+        Coaxial windings: ``(r, z)``, their section through the axis.  A
+        toroid: the plane through the core's mid-height, where each turn
+        crosses the inside of the hole at radius ``ring_radius - r`` and its
+        own angle; distances there are the true ones between the wires,
+        across the start-finish gap as anywhere else.
+        """
+        if self.theta is None:
+            return np.column_stack([self.r, self.z])
+        rho = self.ring_radius - self.r
+        return np.column_stack([rho * np.cos(self.theta), rho * np.sin(self.theta)])
 
     def strand_turns(self, s: int) -> np.ndarray:
         """Indices (into the arrays) of strand ``s``'s turns, in winding order."""
@@ -161,6 +181,21 @@ def _layer_plan(turns: int, slots_max: int, layers, across: str = "the traverse"
         raise WindingDoesNotFit(
             f"{turns} turns cannot fill {n_layers} layers of {per}: use fewer layers"
         )
+    return plan
+
+
+def _inward_plan(turns: int, capacity, across: str) -> list[int]:
+    """Turns per layer when each layer holds what its own (shrinking) circle takes, filled in turn."""
+    plan, left = [], turns
+    while left > 0:
+        cap = capacity(len(plan))
+        if cap < 1 or len(plan) >= MAX_LAYERS:
+            room = sum(plan)
+            raise WindingDoesNotFit(
+                f"{turns} turns do not fit on {across}: {len(plan)} layer(s) building inward hold "
+                f"{room}; short by {turns - room} turn(s)")
+        plan.append(min(cap, left))
+        left -= plan[-1]
     return plan
 
 
@@ -416,23 +451,46 @@ def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, tur
 
 def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overall_diameter,
                   strands, turns, layers=None, pitch=None, tape=0.0,
-                  gap_deg=TOROID_GAP_DEG, layer_style=None, strand_spacing=None) -> Layout:
+                  gap_deg=TOROID_GAP_DEG, layer_style=None, strand_spacing=None,
+                  spread="even") -> Layout:
     """Lay out a winding on a toroidal core.
 
-    Turns are counted on the inner circumference, where they crowd; each layer
-    leaves ``gap_deg`` free between start and finish.
+    Turns are counted on the inner circumference, where they crowd: each
+    layer's conductor centres lie on a circle inside the hole, ``d/2`` plus
+    the layers below in from the core wall, so layers build inward and each
+    holds fewer turns than the one before.  ``spread="even"`` spaces a
+    layer's turns evenly over the circumference less ``gap_deg``; an angle
+    spreads them evenly over a sector of that angle (the rest of the ring
+    stays bare).  A layer holds at most what fits close-wound on its arc.
 
     Parameters
     ----------
     inner_diameter, outer_diameter, height : float
         Core dimensions (over any coating). [m]
     gap_deg : float
-        Angle left free between start and finish. [degree]
+        Angle left free between start and finish when spread evenly. [degree]
+    spread : "even" or float
+        ``"even"``, or the sector angle the turns are spread over. [degree]
     Other parameters as :func:`cylinder_layout`.
+
+    Returns
+    -------
+    Layout
+        With ``theta``, each turn's angle from the start, and ``z`` its arc
+        along its own layer's circle.  ``turn_length`` runs round the core's
+        rectangular section offset by the turn's build.
 
     References
     ----------
-    The start-to-finish gap of 20–30° is common practice.
+    The start-to-finish gap of 20–30° and even spreading over the core are
+    common practice; the arc capacity is the same slot rule as
+    :func:`cylinder_layout`, taken on each layer's circle inside the hole.
+
+    Examples
+    --------
+    >>> lay = toroid_layout(0.0148, 0.0253, 0.01, 0.8e-3, 0.884e-3, 2, 12)
+    >>> lay.layers, round(float(lay.theta.max()) * 180 / 3.141592653589793, 1)
+    (1, 326.4)
     """
     d = overall_diameter
     if outer_diameter <= inner_diameter:
@@ -440,7 +498,12 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
     pitch = _check_pitch(pitch, strands, d)
     spacing = _strand_spacing(strand_spacing, strands, d, pitch)
     style, step, shift = layer_geometry(layer_style, tape, pitch, strands, d, spacing)
-    usable = (360.0 - gap_deg) / 360.0
+    if spread == "even":
+        span = math.radians(360.0 - gap_deg)
+    else:
+        span = math.radians(float(spread))
+        if not 0.0 < span < 2 * math.pi:
+            raise ValueError("a sector is an angle above 0° and below 360°")
 
     def rho(lay):  # radius of the conductor centres on the inside of the core
         return inner_diameter / 2 - d / 2 - lay * step
@@ -449,15 +512,22 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
         raise FormTooSmall(
             f"wire of {d * 1e3:.3f} mm does not pass through a {inner_diameter * 1e3:.2f} mm hole "
             f"with room to wind: the hole needs more than {3 * d * 1e3:.3f} mm (three wire diameters)")
-    slots0 = _slots_across(2 * math.pi * rho(0) * usable, strands, d, pitch, spacing)
-    plan = _layer_plan(turns, slots0, layers, "the core's inner circumference")
-    # Inner layers have a shorter circumference: check each one.
+
+    def capacity(lay):
+        return _slots_across(rho(lay) * span, strands, d, pitch, spacing) if rho(lay) > d else 0
+
+    slots0 = capacity(0)
+    where = "the core's inner circumference" + (f" (a {math.degrees(span):.0f}° sector)"
+                                                 if spread != "even" else "")
+    if layers in (None, "auto"):
+        plan = _inward_plan(turns, capacity, where)
+    else:
+        plan = _layer_plan(turns, slots0, layers, where)
     for lay, n in enumerate(plan):
-        cap = _slots_across(2 * math.pi * rho(lay) * usable, strands, d, pitch, spacing) if rho(lay) > d else 0
-        if n > cap:
+        if n > capacity(lay):
             raise WindingDoesNotFit(
                 f"layer {lay + 1} needs {n} turns per strand on the inside of the core, "
-                f"there is room for {cap}; short by {n - cap} turn(s)")
+                f"there is room for {capacity(lay)}; short by {n - capacity(lay)} turn(s)")
     w = (outer_diameter - inner_diameter) / 2
 
     def length(lay):  # wire centre runs round the core section, offset by the build
@@ -466,12 +536,29 @@ def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overa
 
     r, z, layer, slot, strand, index, tl = _wind(plan, strands, pitch, d, lambda lay: lay * step, length,
                                                  lambda lay: shift * (lay % 2), spacing)
+    theta = np.empty_like(z)
+    width = _slot_width(strands, d, spacing)
+    for lay, n in enumerate(plan):
+        sel = layer == lay
+        # Slot pitch along this layer's arc: even over the span, never closer than close-wound.
+        arc = rho(lay) * span
+        p = pitch if n == 1 else max(pitch, (arc - width) / (n - 1))
+        k = slot[sel]
+        if lay % 2 == 1:  # a returning layer runs from the end of the span back to the start
+            k = (n - 1) - (plan[lay - 1] - 1 - k)
+        along = k * p + strand[sel] * spacing + d / 2
+        theta[sel] = along / rho(lay)
+        z[sel] = along
+    used = max((n - 1) * (pitch if n == 1 else max(pitch, (rho(i) * span - width) / (n - 1))) + width
+               for i, n in enumerate(plan))
     n_layers = len(plan)
+    note = (f"turns spread evenly round the core, {gap_deg:.0f}° left free between start and finish "
+            "(common practice)" if spread == "even" else
+            f"turns spread evenly over a {math.degrees(span):.0f}° sector of the core")
     return Layout(kind="toroid", strands=strands, turns_per_strand=turns, layers=n_layers,
                   slots_per_layer=slots0, pitch=pitch, copper_diameter=copper_diameter,
                   overall_diameter=d, tape=tape, r=r, z=z, layer=layer, slot=slot,
                   strand=strand, index=index, turn_length=tl, turns_in_layer=tuple(plan),
-                  build_height=d + (n_layers - 1) * step,
-                  traverse_used=(max(plan) - 1) * pitch + _slot_width(strands, d, spacing),
-                  notes=(f"{gap_deg:.0f}° left free between start and finish (common practice)",),
-                  layer_style=style, layer_step=step, strand_spacing=spacing)
+                  build_height=d + (n_layers - 1) * step, traverse_used=used,
+                  notes=(note,), layer_style=style, layer_step=step, strand_spacing=spacing,
+                  theta=theta, ring_radius=rho(0), spread="even" if spread == "even" else "sector")

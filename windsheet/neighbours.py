@@ -63,10 +63,14 @@ def neighbour_gap_limit(layout: Layout) -> float:
 def _gap_spacing(layout: Layout, i, j):
     """Centre distance of a toroid's start and finish turns across the start-finish gap.
 
-    A full layer spans (360 − gap)/360 of the circumference; the start and
-    finish face each other across the rest.  Fewer turns leave a wider gap,
-    so this is the closest case.
+    Measured between the two turns where they cross the inside of the hole,
+    at their real angles (:meth:`Layout.section_points`); a layout without
+    angles takes a full layer's span of (360 − gap)/360 of the circumference,
+    the closest case.
     """
+    if layout.theta is not None:
+        pts = layout.section_points()
+        return np.maximum(np.hypot(*(pts[j] - pts[i]).T), layout.overall_diameter)
     span = np.abs(layout.z[j] - layout.z[i]) + layout.overall_diameter
     circumference = span * 360.0 / (360.0 - TOROID_GAP_DEG)
     return np.maximum(circumference - np.abs(layout.z[j] - layout.z[i]), layout.overall_diameter)
@@ -194,12 +198,13 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
         return layout._memo["neighbours"]
     d = layout.overall_diameter
     reach = (d + neighbour_gap_limit(layout)) * (1 + 1e-9)
-    close = close_pairs(layout.r, layout.z, reach)
+    pts = layout.section_points()
+    close = close_pairs(pts[:, 0], pts[:, 1], reach)
     # Next along each layer, however far; those within reach are found already.
     order = np.lexsort((layout.z, layout.layer))
     same = layout.layer[order[:-1]] == layout.layer[order[1:]]
     a, b = order[:-1][same], order[1:][same]
-    far = np.hypot(layout.r[a] - layout.r[b], layout.z[a] - layout.z[b]) > reach
+    far = np.hypot(*(pts[a] - pts[b]).T) > reach
     pairs = np.vstack([close, np.column_stack([a[far], b[far]])])
     pairs = pairs[np.lexsort((pairs.max(axis=1), pairs.min(axis=1)))]
     # Report each pair lower layer first, then along the traverse.
@@ -208,7 +213,7 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
                                                   & (layout.z[a] > layout.z[b]))
     i, j = np.where(swap, b, a), np.where(swap, a, b)
     kind = np.where(layout.layer[i] == layout.layer[j], "side", "layer").astype(object)
-    gap = np.maximum(np.hypot(layout.r[i] - layout.r[j], layout.z[i] - layout.z[j]) - d, 0.0)
+    gap = np.maximum(np.hypot(*(pts[i] - pts[j]).T) - d, 0.0)
     across = (layout.layer[i] != layout.layer[j]) & (layout.tape > 0)
     if layout.kind == "toroid":
         first = np.flatnonzero(layout.index == 0)

@@ -223,6 +223,28 @@ class LeadRoutes(_M):
     joint: Optional[Literal["back-over-winding", "end-flange"]] = None
 
 
+def _spread(v):
+    """``even``, or a sector angle like ``270 deg`` (radians)."""
+    if isinstance(v, str) and v.strip().lower() == "even":
+        return "even"
+    try:
+        angle = parse_quantity(v, "angle", "")
+    except InputError:
+        raise ValueError("expected even, or a sector angle like '270 deg'") from None
+    if not 0.0 < angle < 2 * math.pi:
+        raise ValueError("a sector is an angle above 0 deg and below 360 deg")
+    return angle
+
+
+def _direction(v):
+    words = {"clockwise": "clockwise", "cw": "clockwise", "anticlockwise": "anticlockwise",
+             "counterclockwise": "anticlockwise", "ccw": "anticlockwise"}
+    key = re.sub(r"[\s-]", "", v).lower() if isinstance(v, str) else None
+    if key not in words:
+        raise ValueError("expected clockwise or anticlockwise")
+    return words[key]
+
+
 class Winding(_M):
     # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
     strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
@@ -240,6 +262,10 @@ class Winding(_M):
     strand_spacing: Literal["together", "even"] = "together"
     impregnation: Literal["none", "varnish", "potted"] = "none"
     leads: LeadRoutes = LeadRoutes()
+    # Toroids: turns spread evenly round the core (less the gap), or over a sector.
+    spread: Optional[Annotated[Union[Literal["even"], float], BeforeValidator(_spread)]] = None
+    # Seen from the start end (a toroid: from its top face); see the README's convention.
+    direction: Annotated[Literal["clockwise", "anticlockwise"], BeforeValidator(_direction)] = "clockwise"
 
 
 class Duty(_M):
@@ -505,7 +531,26 @@ def parse_order(data: bytes, path: str | None = None) -> Order:
         doc = OrderDoc.model_validate(raw)
     except ValidationError as exc:
         raise _validation_to_input_error(exc) from None
-    return Order(doc, data, path)
+    order = Order(doc, data, path)
+    order.imperial = written_in_imperial(raw)
+    return order
+
+
+_IMPERIAL = re.compile(r"^\s*[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*(in|inch|inches|mil|mils|thou|ft|foot|feet)\s*$",
+                       re.IGNORECASE)
+
+
+def written_in_imperial(raw) -> bool:
+    """Whether the order writes a length in inches (mil, ft) or a wire size in AWG.
+
+    The sheets then print inches (and the AWG size) beside millimetres.
+    """
+    if isinstance(raw, dict):
+        return any(written_in_imperial(v) for v in raw.values())
+    if isinstance(raw, list):
+        return any(written_in_imperial(v) for v in raw)
+    return isinstance(raw, str) and (bool(_IMPERIAL.match(raw)) or
+                                     bool(re.fullmatch(r"\s*\d+(/0)?\s*awg\s*", raw, re.IGNORECASE)))
 
 
 def load_order(path) -> Order:

@@ -65,6 +65,8 @@ def _place_turns(order: Order, wire, turns: int):
     except ValueError as exc:
         raise InputError("winding.layer_style", str(exc)) from None
     args.update(layer_style=w.layer_style, strand_spacing=w.strand_spacing)
+    if w.spread is not None and not isinstance(f, ToroidForm):
+        raise InputError("winding.spread", "applies to a toroid only (spread round the core)")
     try:
         if isinstance(f, CylinderForm):
             # Enamel is only proven to survive a mandrel of the wire's own diameter
@@ -75,8 +77,9 @@ def _place_turns(order: Order, wire, turns: int):
                     "overall diameter: the wire is thicker than the form")
             return lay.cylinder_layout(f.diameter, f.traverse, max_build=f.max_build, **args)
         if isinstance(f, ToroidForm):
+            spread = "even" if w.spread in (None, "even") else math.degrees(w.spread)
             return lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height,
-                                     gap_deg=math.degrees(f.gap), **args)
+                                     gap_deg=math.degrees(f.gap), spread=spread, **args)
         return lay.bobbin_layout(f.width, f.height, diameter=f.diameter,
                                  mean_turn_length=f.mean_turn_length, **args)
     except lay.FormTooSmall as exc:
@@ -376,21 +379,72 @@ def _pairs(L, R, frequency):
     return out
 
 
-def _cross_section(layout, keep=6):
-    """Slots of each layer for the sketch: the first and last few."""
+def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
+    """Slots of each layer for the sketch: the first and last few, and the worst pair's.
+
+    With ``potential`` (each turn's peak potential from terminal 1 [V]), each
+    slot carries ``potential_Vpk``; the turns of the worst neighbouring pair
+    carry ``worst: true``.
+    """
     out = []
+    worst_turns = {int(t) for t in worst if t is not None}
+    full = max(layout.turns_in_layer)
     for lay_i in range(layout.layers):
         sel = np.flatnonzero(layout.layer == lay_i)
         slots = sorted(set(layout.slot[sel].tolist()))
-        shown = slots if len(slots) <= 2 * keep else slots[:keep] + slots[-keep:]
+        # A partial layer shows fewer slots after the ellipsis, in proportion to its turns.
+        tail = keep if len(slots) >= full else max(1, round(keep * len(slots) / full) - 2)
+        shown = slots if len(slots) <= keep + tail else slots[:keep] + slots[-tail:]
+        extra = {int(layout.slot[t]) for t in worst_turns if layout.layer[t] == lay_i}
+        shown = sorted(set(shown) | extra)
         rows = []
         for k in shown:
             for t in sel[layout.slot[sel] == k]:
-                rows.append({"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]})
+                row = {"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]}
+                if potential is not None:
+                    row["potential_Vpk"] = float(potential[t])
+                if int(t) in worst_turns:
+                    row["worst"] = True
+                rows.append(row)
         out.append({"layer": lay_i + 1, "turns": len(slots), "slots": rows,
-                    "elided": len(slots) > 2 * keep})
+                    "elided": len(shown) < len(slots)})
     return {"layers": out, "tape_between_layers": layout.tape > 0 and layout.layers > 1,
-            "kind": layout.kind}
+            "kind": layout.kind,
+            "potential_max_Vpk": float(np.max(potential)) if potential is not None and len(potential) else None}
+
+
+def _ring(layout, most=90):
+    """A toroid's turns round the ring, for the top view: each layer's turn angles.
+
+    Angles are degrees from the start in the winding direction, one list per
+    layer and strand (at most ``most`` a layer, evenly picked, for the
+    drawing); ``gap_deg`` is the bare angle left between the first and the
+    last turn's wire edges on the inside of the hole.
+    """
+    if layout.theta is None:
+        return None
+    deg = np.degrees(layout.theta)
+    wire_deg = math.degrees(layout.overall_diameter / layout.ring_radius)
+    layers = []
+    for lay_i in range(layout.layers):
+        per_strand = {}
+        for s in range(layout.strands):
+            sel = np.flatnonzero((layout.layer == lay_i) & (layout.strand == s))
+            sel = sel[np.argsort(layout.index[sel])]
+            pick = sel if sel.size <= most else sel[np.linspace(0, sel.size - 1, most).round().astype(int)]
+            per_strand[STRAND_IDS[s]] = [round(float(a), 2) for a in deg[pick]]
+        sel = layout.layer == lay_i
+        rho = layout.ring_radius - float(layout.r[sel][0])
+        a_turns = np.sort(deg[sel & (layout.strand == 0)])
+        layers.append({"layer": lay_i + 1, "turns": int(layout.turns_in_layer[lay_i]),
+                       "pitch_deg": float(np.diff(a_turns).mean()) if a_turns.size > 1 else 0.0,
+                       "radius_m": rho, "build_m": layout.ring_radius - rho + layout.overall_diameter / 2,
+                       "from_deg": float(deg[sel].min()), "to_deg": float(deg[sel].max()),
+                       "angles_deg": per_strand})
+    return {"spread": layout.spread, "ring_radius_m": layout.ring_radius,
+            "wire_diameter_m": layout.overall_diameter,
+            "span_deg": float(deg.max() - deg.min() + wire_deg),
+            "gap_deg": float(360.0 - (deg.max() - deg.min()) - wire_deg), "layers": layers}
 
 
 def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) -> dict:
@@ -535,7 +589,10 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                     "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
                     "layer_tape_rating_V": order.tape_rating,
                     "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
-                    "close_wound": doc.winding.pitch is None, "target": target},
+                    "close_wound": doc.winding.pitch is None, "target": target,
+                    "direction": doc.winding.direction, "spread": layout.spread or None},
+        "ring": _ring(layout),
+        "sheet_units": "imperial" if getattr(order, "imperial", False) else "metric",
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
@@ -581,7 +638,8 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                      "stored_energy_J": energy, "surface_C": thermal["surface_C"],
                      "hot_surface": thermal["surface_C"] >= heating.HOT_SURFACE_C,
                      "hot_surface_limit_C": heating.HOT_SURFACE_C},
-        "cross_section": _cross_section(layout),
+        "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
+                                        worst=st.get("worst_pair") or (None, None)),
         "warnings": warnings,
     }
     if remedies:

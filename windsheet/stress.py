@@ -420,4 +420,8 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         "hipot": {"voltage_V": hipot_voltage(applied_V), "duration_s": HIPOT_DURATION_S,
                   "basis": HIPOT_BASIS},
         "warnings": warnings,
+        # For the traveller's voltage picture: each turn's peak potential from terminal 1, and
+        # the worst pair's turn indices (None when the worst is a lead).
+        "turn_potential_Vpk": np.abs(v) * peak,
+        "worst_pair": (worst.get("i"), worst.get("j")),
     }
