@@ -71,6 +71,14 @@ def clean_stale_temps(folder, name: str) -> list[Path]:
     return removed
 
 
+def _refuse_write(label: str, exc: BaseException) -> None:
+    """An OS fault while writing ``label`` as one line; anything else goes on up."""
+    if isinstance(exc, PermissionError):
+        raise InputError(label, "cannot write: permission denied") from None
+    if isinstance(exc, OSError):
+        raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+
+
 def stage_file(path, data: bytes) -> tuple[Path, str]:
     """Write ``data`` to a temporary file beside ``path`` (flushed, fsynced, permissions set).
 
@@ -108,10 +116,7 @@ def stage_file(path, data: bytes) -> tuple[Path, str]:
             os.chmod(tmp_name, 0o666 & ~umask)
     except BaseException as exc:
         discard_file(tmp_name)
-        if isinstance(exc, PermissionError):
-            raise InputError(label, "cannot write: permission denied") from None
-        if isinstance(exc, OSError):
-            raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+        _refuse_write(label, exc)
         raise
     return target, tmp_name
 
@@ -156,10 +161,7 @@ def staged_write(path, data: bytes):
         place_file(tmp_name, target)
     except BaseException as exc:
         discard_file(tmp_name)
-        if isinstance(exc, PermissionError):
-            raise InputError(label, "cannot write: permission denied") from None
-        if isinstance(exc, OSError):
-            raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+        _refuse_write(label, exc)
         raise
 
 
