@@ -428,3 +428,16 @@ def test_any_positive_readings_evaluate_to_json(where, L, R):
     json.dumps(r, allow_nan=False)
     assert r["verdict"] in ("pass", "fail")
     assert math.isfinite(r["units"][0]["lines"][0]["measured"])
+
+
+def test_resistance_is_corrected_to_20C_with_the_conductors_own_coefficient():
+    from windsheet import signoff_lines as sl
+    from windsheet.measured import ResistanceReading
+
+    # IEC 60028: copper 0.00393 /K; 61 % IACS aluminium 0.00403 /K (handbook table, see conductors.csv).
+    reading = ResistanceReading(value=1.1, open=False)
+    cu = sl.resistance_line("terminal.resistance", "R", reading, 30.0, 1.0, 0.05, "x")
+    al = sl.resistance_line("terminal.resistance", "R", reading, 30.0, 1.0, 0.05, "x", conductor="aluminium")
+    assert cu["measured"] == pytest.approx(1.1 / (1 + 0.00393 * 10), rel=1e-12)
+    assert al["measured"] == pytest.approx(1.1 / (1 + 0.00403 * 10), rel=1e-12)
+    assert "aluminium" in al["note"]

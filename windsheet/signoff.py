@@ -44,6 +44,11 @@ def _fact(scope, basis, text):
             "log_distance": None, "log_distance_as_ordered": None}
 
 
+def _conductor(prediction) -> str:
+    # An aluminium winding is corrected to 20 °C with aluminium's coefficient, not copper's.
+    return (prediction.get("wire") or {}).get("conductor") or "copper"
+
+
 def _min_insulation(prediction) -> float:
     ins = prediction.get("insulation") or {}
     return float(ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM)
@@ -69,7 +74,7 @@ def _strand_lines(prediction, unit, base, strands, ambient, f_default, tol_L, to
         if sr.resistance is not None:
             r_line = sl.resistance_line(f"strand.{sid}.resistance", f"Resistance, strand {sid}",
                                         sr.resistance, ambient, sp["resistance_20C_ohm"], tol_R,
-                                        join_path(path, "resistance"))
+                                        join_path(path, "resistance"), _conductor(prediction))
             if r_line["measured"] is not None:
                 strand_R[sid] = r_line["measured"]
             lines.append(r_line)
@@ -158,7 +163,7 @@ def _terminal_lines(prediction, unit, base, ambient, f_default, resize):
         r_line = sl.resistance_line("terminal.resistance", "Resistance at terminals", t.resistance, ambient,
                                     term["resistance_ohm"],
                                     (acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm")),
-                                    join_path(base, "terminals", "resistance"))
+                                    join_path(base, "terminals", "resistance"), _conductor(prediction))
         lines.append(r_line)
     finding = None
     if any(x is not None and x["result"] == "fail" for x in (l_line, r_line)):

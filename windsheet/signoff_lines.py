@@ -8,7 +8,7 @@ unit is INCOMPLETE, a verdict of its own that never counts as passed.
 from __future__ import annotations
 
 from .errors import InputError
-from .measured import ALPHA_COPPER_20C, InductanceReading, resistance_at_20C
+from .measured import InductanceReading, resistance_at_20C
 
 #: Unit verdicts, worst first: a failed line outranks a missing one.
 VERDICTS = ("fail", "incomplete", "pass")
@@ -61,8 +61,9 @@ def freq_note(reading: dict) -> str:
     return f"at {f / 1e3:.4g} kHz" if f else ""
 
 
-def resistance_line(key, item, reading, ambient, predicted, tol_or_band, path):
-    """A resistance line corrected to 20 °C; ``tol_or_band`` is a fraction or (lo, hi)."""
+def resistance_line(key, item, reading, ambient, predicted, tol_or_band, path, conductor="copper"):
+    """A resistance line corrected to 20 °C with the conductor's own coefficient;
+    ``tol_or_band`` is a fraction or (lo, hi)."""
     lo, hi = (band(predicted, tol_or_band) if not isinstance(tol_or_band, tuple) else tol_or_band)
     if reading.open:
         return line(key, item, "ohm", None, predicted, lo, hi, result="fail",
@@ -70,9 +71,12 @@ def resistance_line(key, item, reading, ambient, predicted, tol_or_band, path):
     if ambient is None:
         raise InputError(path, "needs the ambient temperature to correct it to 20 °C; "
                                "give 'ambient: 21 degC' for the unit or the whole file")
-    r20 = float(resistance_at_20C(reading.value, ambient))
+    from .wire import conductor as conductor_data
+
+    alpha = conductor_data(conductor)["temperature_coefficient_20C"]
+    r20 = float(resistance_at_20C(reading.value, ambient, conductor=conductor))
     note = (f"{reading.value:.5g} Ω at {ambient:.3g} °C, corrected to 20 °C "
-            f"(α {ALPHA_COPPER_20C}/K)")
+            f"(α {alpha}/K, {conductor})")
     return line(key, item, "ohm", r20, predicted, lo, hi,
                 reading={"resistance_ohm": reading.value, "ambient_C": ambient}, note=note)
 
