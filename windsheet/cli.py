@@ -527,92 +527,6 @@ def _in_parallel(fn, work: list, jobs: int = 0):
         yield from pool.map(fn, work)
 
 
-@app.command("materials")
-@guarded
-def materials_cmd(orders: list[Path] = typer.Argument(..., help="Orders (YAML files) or folders of orders."),
-                  out: Optional[Path] = typer.Option(None, "-o", "--out", help="Write the bill here: .csv, "
-                                                     ".json or .pdf (by the file's ending)."),
-                  as_json: bool = typer.Option(False, "--json", help="Print the bill as JSON (metres, kilograms)."),
-                  reels: Optional[Path] = typer.Option(None, "--reels", help="The shop's reel list (CSV: size_mm, "
-                                                       "reel_kg; optional standard, grade, conductor, thermal_class, source)."),
-                  paper: str = typer.Option("a4", "--paper", help="Paper size of the PDF: a4 or letter.")):
-    """Bill of materials for a set of orders: per job and in total (wire, tape, sleeving, forms, labels)."""
-    from .materials import bill_csv, bill_json_ready, bill_of_materials, bill_rows, load_reels
-    from .order import load_order
-    from .predict import predict
-    from .render import order_files
-
-    kinds = {".csv", ".json", ".pdf"}
-    if out is not None:
-        if out.suffix.lower() not in kinds:
-            raise InputError(str(out), "expected a file ending in .csv, .json or .pdf")
-        if not (out.parent if str(out.parent) else Path(".")).is_dir():
-            raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
-    reel_rows = load_reels(reels) if reels is not None else None
-    files = [f for o in orders for f in order_files(o)]
-    numbers = {}
-    predictions = []
-    for f in files:
-        p = predict(load_order(f), remedies=False)
-        number = p["job"]["number"]
-        if number in numbers:
-            raise InputError(str(f), f"job {number} is also in {numbers[number]}; give each job once")
-        numbers[number] = str(f)
-        predictions.append(p)
-    bill = bill_of_materials(predictions, reel_rows)
-    if out is not None:
-        from .fileio import atomic_write_bytes
-
-        kind = out.suffix.lower()
-        if kind == ".csv":
-            data = bill_csv(bill).encode("utf-8")
-        elif kind == ".json":
-            data = (_to_json(bill_json_ready(bill)) + "\n").encode("utf-8")
-        else:
-            from .records_render import materials_html
-            from .render import render_pdf
-
-            data = render_pdf(materials_html(bill, paper))
-        atomic_write_bytes(out, data)
-        typer.echo(f"bill of materials for {len(predictions)} job(s): {out}", err=True)
-    if as_json:
-        typer.echo(_to_json(bill_json_ready(bill)))
-    elif out is None:
-        for r in bill_rows(bill):
-            if r["scope"] == "TOTAL":
-                typer.echo(f"{r['category']:<9} {r['quantity']:>12,} {r['unit']:<6} {r['item']}")
-
-
-@app.command("report")
-@guarded
-def report_cmd(out: Optional[Path] = typer.Option(None, "-o", "--out", help="Write the QC report PDF here."),
-               as_json: bool = typer.Option(False, "--json", help="Print the report as JSON."),
-               register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
-                                                      "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
-               paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
-    """QC report from the register: the shop's bias per family, control charts with run rules."""
-    from .register import open_register
-    from .report import report_charts, report_from_register
-
-    if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
-        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
-    with open_register(register, create=False) as reg:
-        rep = report_from_register(reg)
-    if not rep["units"]:
-        raise InputError(str(rep["register"]), "no unit is signed off in this register yet; nothing to report")
-    if out is not None:
-        from .fileio import atomic_write_bytes
-        from .records_render import report_html
-        from .render import render_pdf
-
-        atomic_write_bytes(out, render_pdf(report_html(rep, report_charts(rep), paper)))
-        typer.echo(f"QC report of {rep['units']} unit(s): {out}", err=True)
-    if as_json:
-        typer.echo(_to_json(rep))
-    elif out is None:
-        typer.echo("\n".join(rep["statements"]))
-
-
 @app.command("demo")
 @guarded
 def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the demo sheets."),
@@ -682,153 +596,19 @@ def _demo_records(out: Path, predictions: list) -> None:
                f"(qc-report.pdf, .json, sample-register.db; invented data) written to {out.resolve()}")
 
 
+# The other commands, one module per concern; importing them registers them on ``app``
+# (run as ``python -m windsheet.cli``, the imported module does this; see the end).
+if __name__ != "__main__":
+    from . import cli_bench, cli_records, cli_tables  # noqa: E402,F401
+    from .cli_bench import bench_address, bench_token  # noqa: E402,F401 - re-exported
+
+
 def main():  # console-script entry point
     app()
 
 
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    # python -m windsheet.cli: run the imported module's app, on which every command is registered.
+    from windsheet.cli import main as _main
 
-
-# ---------------------------------------------------------------- wire tables
-def _wire_lines(records: list[dict], conductor: str) -> list[str]:
-    """Aligned text of wire-table rows, millimetres and volts for the shop."""
-    from .wire import dc_resistance
-
-    def mm(x):
-        return "—" if x is None else f"{x * 1e3:.3f}"
-    head = ("standard", "nominal mm", "grade", "min incr", "min OD", "max OD", "breakdown V", "test",
-            f"Ω/m 20°C {conductor}", "least sure")
-    out = [head]
-    for r in records:
-        d = r["nominal_diameter_m"]
-        size = r["series"] if r["standard"].startswith("NEMA") else mm(d)
-        rpm = float(dc_resistance(1.0, d, conductor=conductor))
-        out.append((r["standard"], size, str(r["grade"]), mm(r["min_increase_m"]), mm(r["min_overall_diameter_m"]),
-                    mm(r["max_overall_diameter_m"]), "—" if r["min_breakdown_V"] is None else f"{r['min_breakdown_V']:.0f}",
-                    r["breakdown_test"] or "—", f"{rpm:.4g}", r["least_sure"] or "—"))
-    widths = [max(len(row[i]) for row in out) for i in range(len(head))]
-    return ["  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip() for row in out]
-
-
-@app.command("wires")
-@guarded
-def wires_cmd(size: Optional[list[str]] = typer.Argument(None, help="One size: '0.5 mm', '28 SWG' or '22 AWG'."),
-              smallest: Optional[str] = typer.Option(None, "--from", help="Smallest nominal diameter, like '0.1 mm'."),
-              largest: Optional[str] = typer.Option(None, "--to", help="Largest nominal diameter, like '0.5 mm'."),
-              grade: Optional[int] = typer.Option(None, "--grade", min=1, max=3, help="Grade 1, 2 or 3."),
-              standard: Optional[str] = typer.Option(None, "--standard", help="iec (IEC 60317-0-1) or nema (NEMA MW 1000)."),
-              conductor: str = typer.Option("copper", "--conductor", help="copper or aluminium (resistance column)."),
-              as_json: bool = typer.Option(False, "--json", help="Print the rows as JSON (SI units).")):
-    """List the wire tables (IEC 60317-0-1 grades, NEMA MW 1000 builds), or everything known for one size."""
-    from . import wire_tables as tables
-    from .units import parse_quantity
-
-    cond = conductor.strip().lower().replace("aluminum", "aluminium")
-    if cond not in ("copper", "aluminium"):
-        raise InputError("--conductor", f"expected copper or aluminium, got {conductor!r}")
-    std = None
-    if standard:
-        key = standard.strip().lower()
-        std = tables.IEC if key.startswith("iec") else tables.NEMA if key.startswith("nema") else None
-        if std is None:
-            raise InputError("--standard", f"expected iec or nema, got {standard!r}")
-    if size:
-        text = " ".join(size)
-        try:
-            report = tables.size_report(text)
-        except tables.NotInTable as exc:
-            raise InputError("size", str(exc)) from None
-        rows = [r for r in report["rows"] if (grade is None or r["grade"] == grade)
-                and (std is None or r["standard"] == std)]
-        if as_json:
-            typer.echo(_to_json({**report, "rows": rows}))
-            return
-        typer.echo(f"{report['size']}: conductor diameter {report['diameter_m'] * 1e3:.4f} mm "
-                   f"({report['diameter_source']})")
-        typer.echo("\n".join(_wire_lines(rows, cond)))
-        for r in rows:
-            rule = f" — {r['rule']}" if r["rule"] else ""
-            typer.echo(f"{r['standard']} grade {r['grade']}{rule}:")
-            for q, s in r["sources"].items():
-                typer.echo(f"  {q}: {s['source']} ({s['sureness']})")
-        return
-    lo = parse_quantity(smallest, "length", "--from") if smallest else 0.0
-    hi = parse_quantity(largest, "length", "--to") if largest else float("inf")
-    records = [tables.row_record(r) for r in tables.listing(std, grade, lo, hi)]
-    if as_json:
-        typer.echo(_to_json(records))
-    else:
-        typer.echo("\n".join(_wire_lines(records, cond)))
-
-
-# ---------------------------------------------------------------- the bench page
-LOOPBACK_HOSTS = ("127.0.0.1", "localhost", "::1")
-
-
-def bench_address(host: str, port: int, token: Optional[str]) -> str:
-    """The address to open, with the token when there is one."""
-    shown = f"[{host}]" if ":" in host else host
-    return f"http://{shown}:{port}/" + (f"?token={token}" if token else "")
-
-
-def bench_token(host: str, token: Optional[str], token_given: bool) -> Optional[str]:
-    """The access token the server will demand: none on loopback unless given, else given or new."""
-    import secrets
-
-    if token_given:
-        token = (token or "").strip()
-        if len(token) < 16 or not token.isascii() or not token.isprintable() or " " in token:
-            raise InputError("--token", "expected at least 16 printable characters, no spaces")
-        return token
-    if host in LOOPBACK_HOSTS:
-        return None
-    return secrets.token_urlsafe(24)
-
-
-@app.command("bench")
-@guarded
-def bench_cmd(register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
-                                                     "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
-              host: str = typer.Option("127.0.0.1", "--host", help="Address to listen on; anything but "
-                                       "loopback needs a token (one is made and printed unless --token)."),
-              port: int = typer.Option(8765, "--port", help="Port to listen on (0: any free port)."),
-              token: Optional[str] = typer.Option(None, "--token", help="Access token every request must "
-                                                  "carry (at least 16 characters).")):
-    """Serve the bench page: enter readings in a browser, see each line's verdict, sign off."""
-    from .register import resolve_register_path
-
-    path = resolve_register_path(register)
-    secret = bench_token(host, token, token is not None)
-    if host not in LOOPBACK_HOSTS and not secret:  # pragma: no cover - bench_token always makes one
-        raise InputError("--host", "a non-loopback address needs a token")
-    if not 0 <= port <= 65535:
-        raise InputError("--port", "expected a port number from 0 to 65535")
-    from .bench_app.service import open_bench_register
-
-    open_bench_register(path).close()  # a missing or foreign register is refused before listening
-    import socket
-
-    import uvicorn
-
-    from .bench_app.app import create_app
-
-    family = socket.AF_INET6 if ":" in host else socket.AF_INET
-    sock = socket.socket(family, socket.SOCK_STREAM)
-    sock.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
-    try:
-        sock.bind((host, port))
-        sock.listen(128)  # listening before the address is printed
-    except OSError as exc:
-        sock.close()
-        raise InputError("--port", f"cannot listen on {host}:{port}: {exc.strerror or exc}") from None
-    actual = sock.getsockname()[1]
-    typer.echo(f"windsheet bench: register {path}", err=True)
-    typer.echo(f"windsheet bench: open {bench_address(host, actual, secret)}  (Ctrl-C stops)", err=True)
-    # On loopback without a token, only loopback names: refuses a rebound outside name.
-    hosts = None if secret else ["127.0.0.1", "localhost", "::1", "[::1]"]
-    config = uvicorn.Config(create_app(path, token=secret, allowed_hosts=hosts), log_level="warning",
-                            access_log=False,
-                            server_header=False)
-    server = uvicorn.Server(config)
-    server.run(sockets=[sock])
+    sys.exit(_main())
