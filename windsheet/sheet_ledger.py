@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Optional
 
+from .errors import InputError
 from .fileio import discard_file, place_file, stage_file
 
 
@@ -71,11 +72,16 @@ def recorded_sheet(register, kind: str, target, data: bytes):
     except BaseException:
         discard_file(staged)
         raise
-    if sheet.id is None:  # the block recorded nothing: nothing to keep in step
+    try:
         place_file(staged, target)
-        return
-    place_file(staged, target)
-    register.mark_sheet(sheet.id, "placed")
+    except OSError as exc:
+        if sheet.id is None:  # nothing recorded: nothing to finish later
+            discard_file(staged)
+            raise InputError(str(target), f"cannot write: {exc.strerror or exc}") from None
+        raise InputError(str(target), f"recorded, but the sheet could not be put in place ({exc.strerror or exc}); "
+                                      "the next windsheet run that writes the register finishes it") from None
+    if sheet.id is not None:
+        register.mark_sheet(sheet.id, "placed")
 
 
 def _file_sha(path: Path) -> Optional[str]:
