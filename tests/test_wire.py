@@ -120,7 +120,7 @@ def test_swg_breakdown_matches_is_table(swg):
     assert tables.next_larger_row(d, 1).test == ("cylinder" if d <= 0.1e-3 else "twisted pair")
 
 
-# Heermann's DIN EN 60317-0-1 sheet and SH-wire's table (seen in a secondary transcription) list these
+# Heermann's DIN EN 60317-0-1 sheet and SH-wire's table (seen in a secondary copy) list these
 # intermediate (R40) sizes; the next-larger-row rule used for the computed R40 rows must give them.
 @pytest.mark.parametrize("nominal, g1, g2", [(1.320, 1.388, 1.422), (1.500, 1.570, 1.606),
                                              (1.700, 1.772, 1.809), (1.900, 1.974, 2.012), (2.120, 2.196, 2.235)])
