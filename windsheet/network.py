@@ -153,15 +153,19 @@ def check_hookup(joins, terminals, strands):
     return node_of, t1, t2, n
 
 
-def _solve(L, R, node_of, t1, t2, n, omega):
-    """MNA: node potentials (t2 grounded) and branch currents for 1 A into t1."""
+def _mna_matrix(L, R, node_of, n, grounded, omega):
+    """The modified-nodal-analysis matrix of the strands as coupled branches.
+
+    Unknowns: the potentials of the nodes not in ``grounded`` (indexed by
+    the returned ``col``), then the ``S`` branch currents.  Returns
+    ``(A, col, nv)``, ``nv`` the number of node unknowns.
+    """
     S = len(R)
     Z = np.diag(R).astype(complex) + 1j * omega * np.asarray(L, dtype=float)
-    keep = [k for k in range(n) if k != t2]
+    keep = [k for k in range(n) if k not in grounded]
     col = {k: i for i, k in enumerate(keep)}
     nv = len(keep)
     A = np.zeros((nv + S, nv + S), dtype=complex)
-    b = np.zeros(nv + S, dtype=complex)
     for s in range(S):
         a_node, f_node = node_of[2 * s], node_of[2 * s + 1]
         # Branch equation: V_a - V_f - Z i = 0
@@ -173,6 +177,13 @@ def _solve(L, R, node_of, t1, t2, n, omega):
             A[row, col[f_node]] -= 1
             A[col[f_node], nv + s] -= 1   # and enters f_node
         A[row, nv:] -= Z[s]
+    return A, col, nv
+
+
+def _solve(L, R, node_of, t1, t2, n, omega):
+    """MNA: node potentials (t2 grounded) and branch currents for 1 A into t1."""
+    A, col, nv = _mna_matrix(L, R, node_of, n, {t2}, omega)
+    b = np.zeros(A.shape[0], dtype=complex)
     b[col[t1]] = 1.0
     x = np.linalg.solve(A, b)
     v = np.zeros(n, dtype=complex)
@@ -297,24 +308,8 @@ def _solve_loose(L, R, node_of, t1, t2, n, omega):
     refs = {comp[t2]: t2}
     for k in range(n):
         refs.setdefault(comp[k], k)
-    grounded = set(refs.values())
-    S = len(R)
-    Z = np.diag(R).astype(complex) + 1j * omega * np.asarray(L, dtype=float)
-    keep = [k for k in range(n) if k not in grounded]
-    col = {k: i for i, k in enumerate(keep)}
-    nv = len(keep)
-    A = np.zeros((nv + S, nv + S), dtype=complex)
-    b = np.zeros(nv + S, dtype=complex)
-    for s in range(S):
-        a_node, f_node = node_of[2 * s], node_of[2 * s + 1]
-        row = nv + s
-        if a_node in col:
-            A[row, col[a_node]] += 1
-            A[col[a_node], nv + s] += 1
-        if f_node in col:
-            A[row, col[f_node]] -= 1
-            A[col[f_node], nv + s] -= 1
-        A[row, nv:] -= Z[s]
+    A, col, nv = _mna_matrix(L, R, node_of, n, set(refs.values()), omega)
+    b = np.zeros(A.shape[0], dtype=complex)
     if t1 not in col:
         return None
     b[col[t1]] = 1.0
