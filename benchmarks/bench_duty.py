@@ -9,29 +9,15 @@ every prediction.
 
 from __future__ import annotations
 
-import statistics
-import time
 from types import SimpleNamespace
 
 import numpy as np
 
+from timing import median_time
 from windsheet import stress
 from windsheet.ac_resistance import winding_ac_ratio
 from windsheet.heating import winding_temperatures
 from windsheet.layout import cylinder_layout
-
-REPEAT = 3
-
-
-def median_time(fn, repeat=REPEAT):
-    """Median wall time of ``repeat`` calls, and the last result. [s]"""
-    times, out = [], None
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times), out
-
 
 def main():
     lay = cylinder_layout(0.02, 0.3, 0.1e-3, 0.118e-3, 1, 50_000, layers=20)

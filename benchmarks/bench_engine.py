@@ -18,13 +18,13 @@ Exits 1 if the fast and plain sums disagree by more than 1e-9 relative.
 from __future__ import annotations
 
 import math
-import statistics
 import sys
 import time
 
 import numpy as np
 import yaml
 
+from timing import median_time
 from windsheet import limits
 from windsheet import predict as P
 from windsheet.inductance import loop_self_inductance, maxwell_mutual, strand_matrix, strand_matrix_bruteforce
@@ -33,16 +33,6 @@ from windsheet.order import parse_order, resolve_wire
 
 #: Largest relative disagreement allowed between the fast and the plain sum.
 AGREEMENT = 1e-9
-
-
-def median_time(fn, *args, repeat=3):
-    """Median wall time of ``repeat`` calls, and the last result. [s]"""
-    times, out = [], None
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn(*args)
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times), out
 
 
 def ten_layer_coil(strands):

@@ -10,12 +10,12 @@ largest size. Medians of 3; no pass/fail on time.
 from __future__ import annotations
 
 import json
-import statistics
 import subprocess
 import sys
 import tempfile
-import time
 from pathlib import Path
+
+from timing import median_time
 
 ROOT = Path(__file__).resolve().parent.parent
 SIZES = (100, 1_000, 10_000)
@@ -36,15 +36,6 @@ def _fill(path: Path, n: int, prediction: dict) -> None:
                                f"{k:064x}", "QC")
 
 
-def _median(fn, runs=3) -> float:
-    times = []
-    for _ in range(runs):
-        t = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t)
-    return statistics.median(times)
-
-
 def main() -> int:
     from windsheet.order import load_order
     from windsheet.predict import predict
@@ -59,20 +50,20 @@ def main() -> int:
         for n in SIZES:
             path = Path(tmp) / f"r{n}.db"
             _fill(path, n, prediction)
-            wall = _median(lambda: subprocess.run(cli + ["register", "--register", str(path)],
-                                                  capture_output=True, check=True))
+            wall = median_time(lambda: subprocess.run(cli + ["register", "--register", str(path)],
+                                                      capture_output=True, check=True))[0]
 
             def listing():
                 with open_register_readonly(path) as reg:
                     assert len(reg.list_jobs()) == n
-            inproc = _median(listing)
+            inproc = median_time(listing)[0]
             per_job[n] = inproc / n
             print(f"{n:>7}  {wall:>13.3f} s  {inproc:>8.3f} s  {per_job[n] * 1e6:>6.1f} µs  "
                   f"{path.stat().st_size / 1e6:.0f} MB", flush=True)
         order = ROOT / "samples" / "hl-0410-single.yaml"
         big = Path(tmp) / f"r{SIZES[-1]}.db"
-        issue = _median(lambda: subprocess.run(cli + ["register", "--issue", str(order), "--register", str(big)],
-                                               capture_output=True), runs=1)
+        issue = median_time(lambda: subprocess.run(cli + ["register", "--issue", str(order), "--register", str(big)],
+                                                   capture_output=True), repeat=1)[0]
         print(f"register --issue at {SIZES[-1]:,} jobs: {issue:.3f} s (sizes the order, checks and records)")
     ratio = per_job[SIZES[-1]] / per_job[SIZES[0]]
     print(f"per-job time, {SIZES[-1]:,} against {SIZES[0]} jobs: {ratio:.2f}x (1 is flat; quadratic would be "

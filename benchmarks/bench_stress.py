@@ -12,13 +12,12 @@ search finds a pair count other than the geometry gives.
 from __future__ import annotations
 
 import dataclasses
-import statistics
 import sys
-import time
 from types import SimpleNamespace
 
 import numpy as np
 
+from timing import median_time
 from windsheet import stress
 from windsheet.flux_linkage import turn_flux_linkage
 from windsheet.inductance import strand_matrix
@@ -27,16 +26,6 @@ from windsheet.neighbours import neighbour_pairs
 from windsheet.leads import lead_routes
 
 REPEAT = 5
-
-
-def median_time(fn, repeat=REPEAT):
-    """Median wall time of ``repeat`` calls, and the last result. [s]"""
-    times, out = [], None
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times), out
 
 
 def coil():
@@ -48,7 +37,7 @@ def coil():
 def main() -> int:
     lay = coil()
     fresh = lambda: dataclasses.replace(lay, _memo={})  # noqa: E731 - no cached neighbours
-    t_nb, nb = median_time(lambda: neighbour_pairs(fresh()))
+    t_nb, nb = median_time(lambda: neighbour_pairs(fresh()), repeat=REPEAT)
     t_L, L = median_time(lambda: strand_matrix(lay), repeat=3)
     t_flux, _ = median_time(lambda: turn_flux_linkage(lay, [1.0]), repeat=3)
     net = SimpleNamespace(end_potential=np.array([[0.0, 1.0]], dtype=complex),

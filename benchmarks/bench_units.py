@@ -12,22 +12,13 @@ from __future__ import annotations
 import statistics
 import subprocess
 import sys
-import time
 from pathlib import Path
+
+from timing import median_time
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLE = ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"
 EXPRESSIONS = ("9**9**9 mm", "9**9**8 mm", "25*2 mm", "40 mm + 10 mm")
-
-
-def median_time(fn, repeat):
-    """Median wall time of ``repeat`` calls. [s]"""
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times)
 
 
 def fresh_process(code):
@@ -45,7 +36,7 @@ def main() -> int:
     from windsheet.units import read_quantity
 
     bad = 0
-    read = median_time(lambda: read_quantity("61.2 uH", "inductance", "f"), 2000)
+    read = median_time(lambda: read_quantity("61.2 uH", "inductance", "f"), repeat=2000)[0]
     print(f"read_quantity('61.2 uH'): median {read * 1e6:.1f} us")
     for text in EXPRESSIONS:
         def refuse(text=text):
@@ -55,14 +46,14 @@ def main() -> int:
                 return
             raise AssertionError(text)
         try:
-            t = median_time(refuse, 200)
+            t = median_time(refuse, repeat=200)[0]
         except AssertionError:
             print(f"FAIL: {text!r} was accepted")
             bad = 1
             continue
         print(f"refuse {text!r}: median {t * 1e6:.1f} us")
     data = SAMPLE.read_bytes()
-    order = median_time(lambda: parse_order(data, str(SAMPLE)), 50)
+    order = median_time(lambda: parse_order(data, str(SAMPLE)), repeat=50)[0]
     print(f"parse_order({SAMPLE.name}): median {order * 1e3:.2f} ms")
 
     first = fresh_process(

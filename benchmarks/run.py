@@ -15,6 +15,7 @@ HERE = Path(__file__).resolve().parent
 
 
 def main(argv=None) -> int:
+    sys.path.insert(0, str(HERE))  # the shared timing helper (timing.py)
     only = set((argv if argv is not None else sys.argv[1:]))
     worst = 0
     for path in sorted(HERE.glob("bench_*.py")):
