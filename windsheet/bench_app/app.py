@@ -282,15 +282,17 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         prediction, last = await with_register(_pdf, number)
         # Rendered outside the register's thread: saves go on meanwhile.
         data = await run_in_threadpool(service.signoff_sheet_pdf, prediction, last)
-        return Response(data, media_type="application/pdf",
-                        headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-signoff.pdf"'})
+        return _attachment(data, "application/pdf", number, "-signoff.pdf")
+
+    def _document(reg, number, who):
+        """The job's saved entries as a measured-values document."""
+        state, prediction = service.issued(reg, number)
+        drafts = service.load_drafts(reg, number, state["revision"])
+        return signoff_document(prediction, state, drafts, who, None)
 
     def _csv(reg, number, who):
         """The readings in the sign-off's CSV form: ``windsheet signoff ORDER this.csv`` reads it."""
-        state, prediction = service.issued(reg, number)
-        drafts = service.load_drafts(reg, number, state["revision"])
-        doc = signoff_document(prediction, state, drafts, who, None)
-        return _csv_text(readings_csv_rows(doc))
+        return _csv_text(readings_csv_rows(_document(reg, number, who)))
 
     def _drafts_csv(reg, number):
         """Every saved entry with its version, who saved it and when."""
@@ -306,28 +308,21 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         number = request.path_params["number"]
         who = (request.query_params.get("inspector") or "").strip()[:200] or None
         text = await with_register(_csv, number, who)
-        return Response(text, media_type="text/csv; charset=utf-8",
-                        headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-readings.csv"'})
+        return _attachment(text, "text/csv; charset=utf-8", number, "-readings.csv")
 
     async def drafts_csv(request: Request):
         number = request.path_params["number"]
         text = await with_register(_drafts_csv, number)
-        return Response(text, media_type="text/csv; charset=utf-8",
-                        headers={"Content-Disposition": f'attachment; filename="{_safe(number)}-entries.csv"'})
+        return _attachment(text, "text/csv; charset=utf-8", number, "-entries.csv")
 
     def _yaml(reg, number, who):
-        state, prediction = service.issued(reg, number)
-        drafts = service.load_drafts(reg, number, state["revision"])
-        doc = signoff_document(prediction, state, drafts, who, None)
-        return yaml.safe_dump(doc, sort_keys=False, allow_unicode=True)
+        return yaml.safe_dump(_document(reg, number, who), sort_keys=False, allow_unicode=True)
 
     async def measured_yaml(request: Request):
         number = request.path_params["number"]
         who = (request.query_params.get("inspector") or "").strip()[:200] or None
         text = await with_register(_yaml, number, who)
-        return Response(text, media_type="application/yaml; charset=utf-8",
-                        headers={"Content-Disposition":
-                                 f'attachment; filename="{_safe(number)}.measured.yaml"'})
+        return _attachment(text, "application/yaml; charset=utf-8", number, ".measured.yaml")
 
     async def static(request: Request):
         name = request.path_params["name"]
@@ -388,6 +383,12 @@ def _field_ok(serial: str, field: str) -> bool:
 def _int(value) -> int:
     text = str(value or "0")
     return int(text) if text.isdigit() and len(text) < 12 else -1
+
+
+def _attachment(body, media_type: str, number: str, suffix: str) -> Response:
+    """A download named after the job (only safe characters reach the header)."""
+    return Response(body, media_type=media_type,
+                    headers={"Content-Disposition": f'attachment; filename="{_safe(number)}{suffix}"'})
 
 
 def _safe(number: str) -> str:
