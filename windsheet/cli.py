@@ -604,6 +604,11 @@ if __name__ != "__main__":
 
 
 def main():  # console-script entry point
+    import os
+
+    # windsheet uses no pydantic plugins; without this, pydantic scans every
+    # installed distribution's entry points when it builds the first model.
+    os.environ.setdefault("PYDANTIC_DISABLE_PLUGINS", "__all__")
     app()
 
 
