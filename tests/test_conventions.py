@@ -127,3 +127,49 @@ def test_hookup_words_for_every_named_form():
         "series-opposing — A finish joined to B finish; terminals T1 A start, T2 B start")
     assert hookup_words({"name": "single", "joins": [], "terminals": ["A.start", "A.finish"]}) == (
         "single — no joins; terminals T1 A start, T2 A finish")
+
+
+def _issued_register(tmp_path):
+    reg = tmp_path / "r.db"
+    assert runner.invoke(app, ["traveller", str(BIFILAR), "-o", str(tmp_path / "t.html"),
+                               "--register", str(reg)]).exit_code == 0
+    return reg
+
+
+def test_signoff_batch_pairs_readings_with_their_job_and_fails_on_the_reversed_unit(tmp_path):
+    # The samples folder holds every order and both HL-0412 readings files; the
+    # reversed-strand file's unit -02 reads the leakage only (2.71 uH against ~400 uH).
+    reg = _issued_register(tmp_path)
+    res = _cli("signoff", SAMPLES, "--register", reg, "--json")
+    assert res.returncode == 1, res.stderr
+    rows = [json.loads(line) for line in res.stdout.decode().splitlines()]
+    by_file = {Path(r["file"]).name: r for r in rows}
+    assert set(by_file) == {"HL-0412.measured.yaml", "HL-0412-reversed.measured.yaml"}
+    assert (by_file["HL-0412.measured.yaml"]["units_passed"], by_file["HL-0412.measured.yaml"]["units_failed"]) == (4, 0)
+    assert (by_file["HL-0412-reversed.measured.yaml"]["units_passed"],
+            by_file["HL-0412-reversed.measured.yaml"]["units_failed"]) == (3, 1)
+    assert res.stderr.decode().splitlines()[-1] == (
+        "windsheet: signed off 2 of 2 readings files — units 7 pass, 1 fail, 0 incomplete")
+
+
+def test_signoff_batch_names_readings_without_an_order_and_goes_on(tmp_path):
+    reg = _issued_register(tmp_path)
+    stray = yaml.safe_load((SAMPLES / "HL-0412.measured.yaml").read_text(encoding="utf-8"))
+    stray["job"] = "HL-9999"
+    (tmp_path / "stray.measured.yaml").write_text(yaml.safe_dump(stray), encoding="utf-8")
+    res = _cli("signoff", BIFILAR, SAMPLES / "HL-0412.measured.yaml", tmp_path / "stray.measured.yaml",
+               "--register", reg, "--dry-run")
+    err = res.stderr.decode().splitlines()
+    assert res.returncode == 1
+    assert any("stray.measured.yaml" in e and "no order for job HL-9999" in e for e in err)
+    assert err[-1].startswith("windsheet: signed off 1 of 2 readings files — units 4 pass, 0 fail")
+    assert "stray.measured.yaml" in err[-1] and "(dry run: nothing recorded)" in err[-1]
+
+
+def test_signoff_batch_writes_one_sheet_per_readings_file_into_a_folder(tmp_path):
+    reg = _issued_register(tmp_path)
+    sheets = tmp_path / "sheets"
+    res = _cli("signoff", BIFILAR, f"{SAMPLES}/*.measured.yaml", "--register", reg, "-o", sheets, "--format", "html")
+    assert res.returncode == 1, res.stderr
+    assert sorted(p.name for p in sheets.iterdir()) == ["HL-0412-reversed.signoff.html", "HL-0412.signoff.html"]
+    assert "FAIL" in (sheets / "HL-0412-reversed.signoff.html").read_text(encoding="utf-8")

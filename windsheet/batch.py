@@ -66,6 +66,70 @@ def expand_orders(args) -> list[str]:
     return list(dict.fromkeys(out))
 
 
+READINGS_SUFFIXES = (".measured.yaml", ".measured.yml", ".csv")
+
+
+def _yaml_top(path: str):
+    from .fileio import MAX_YAML_BYTES, parse_yaml_bytes, read_limited
+
+    try:
+        return parse_yaml_bytes(read_limited(path, MAX_YAML_BYTES), path)
+    except (InputError, OSError):
+        return None
+
+
+def is_readings_file(path: str) -> bool:
+    """Whether a file holds bench readings rather than an order.
+
+    By name (``*.measured.yaml``, ``*.csv``), else by content: readings name
+    their job as text and list ``units``; an order's ``job`` is a mapping.
+    An unreadable file counts as an order, so that its fault is reported
+    when it is read as one.
+    """
+    if path.lower().endswith(READINGS_SUFFIXES):
+        return True
+    doc = _yaml_top(path)
+    return isinstance(doc, dict) and "units" in doc and not isinstance(doc.get("job"), dict)
+
+
+def is_order_file(path: str) -> bool:
+    """Whether a file reads as an order (a YAML mapping whose ``job`` is a mapping)."""
+    if path.lower().endswith(READINGS_SUFFIXES):
+        return False
+    doc = _yaml_top(path)
+    return isinstance(doc, dict) and isinstance(doc.get("job"), dict)
+
+
+def names_many(arg: str) -> bool:
+    """Whether an argument is a folder or an unexpanded glob, rather than one file."""
+    p = Path(arg)
+    return p.is_dir() or (glob.has_magic(arg) and not p.exists())
+
+
+def expand_signoff_paths(args) -> tuple[list[str], list[str]]:
+    """The orders and the readings files that sign-off arguments name.
+
+    Arguments are files, folders or globs as in :func:`expand_orders`; a
+    folder gives its orders and its readings (``*.measured.yaml``, ``*.csv``).
+    """
+    found: list[str] = []
+    for a in map(str, args):
+        p = Path(a)
+        if p.is_dir():
+            found += sorted(str(q) for q in p.iterdir() if q.is_file() and (
+                _is_order_file(q) or q.name.lower().endswith(READINGS_SUFFIXES)))
+        elif glob.has_magic(a) and not p.exists():
+            hits = sorted(glob.glob(a))
+            if not hits:
+                raise InputError(a, "no files match this pattern")
+            found += hits
+        else:
+            found.append(a)
+    found = list(dict.fromkeys(found))
+    readings = [f for f in found if Path(f).is_file() and is_readings_file(f)]
+    return [f for f in found if f not in readings], readings
+
+
 def read_stdin(max_bytes: int, what: str = "order") -> bytes:
     """Standard input's bytes, refused past ``max_bytes`` without reading it all."""
     data = sys.stdin.buffer.read(max_bytes + 1)

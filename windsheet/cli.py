@@ -203,93 +203,9 @@ def _insulation_fails(p: dict) -> bool:
     return (p.get("insulation") or {}).get("verdict") == "fail"
 
 
-@app.command()
-@guarded
-def signoff(order: Path = typer.Argument(..., help="The order, a YAML file."),
-            measured: Path = typer.Argument(..., help="The bench readings, a YAML file (see samples/*.measured.yaml)."),
-            as_json: bool = typer.Option(False, "--json", help="Print the sign-off as JSON (SI units)."),
-            register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
-                                                   "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
-            inspector: Optional[str] = typer.Option(None, "--inspector", help="Who signs the units off."),
-            out: Optional[Path] = typer.Option(None, "-o", "--out", help="Also write the sign-off sheet here "
-                                               "(PDF, or HTML with --html)."),
-            html: bool = typer.Option(False, "--html", help="Write the sheet as HTML (same as --format html)."),
-            fmt: Optional[str] = typer.Option(None, "--format", help="pdf or html; default from the "
-                                              "sheet's extension, else pdf."),
-            paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
-            dry_run: bool = typer.Option(False, "--dry-run", help="Evaluate and print only: record nothing "
-                                         "(the register file is opened read-only) and write no sheet.")):
-    """Sign off measured units against the issued traveller.
-
-    Exit status: 0 every unit passes, 1 any unit fails, 3 none fails but some
-    are incomplete (a required QC line not read), 2 bad input.
-    """
-    from .batch import output_format
-
-    html = output_format(out, fmt, html, allowed=("pdf", "html")) == "html"
-    from .measured import load_measured
-    from .order import load_order
-    from .register import open_register, open_register_readonly
-    from .signoff import evaluate_signoff, exit_status
-    from .signoff import summary_lines as signoff_lines
-
-    o = load_order(order)
-    readings = load_measured(measured)
-    who = (inspector or "").strip() or readings.inspector
-    if not who:
-        raise InputError("inspector", "name the inspector with --inspector or 'inspector:' in the measured file")
-    job = o.doc.job
-    if dry_run and out is not None:
-        raise InputError("--out", "a dry run writes no sheet; drop --out or --dry-run")
-    if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
-        raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
-    if out is not None:
-        from .limits import check_sheet_units
-
-        # Checked before anything is evaluated or recorded; without -o any number is signed off.
-        check_sheet_units(len(readings.units), "units", "sign-off sheet")
-    if dry_run:
-        with open_register_readonly(register) as reg:
-            _, issued = reg.find_issue(job.number, job.revision, o.sha256)
-        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
-        typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng) + ["(dry run: nothing recorded)"]))
-        raise typer.Exit(exit_status(result))
-    with open_register(register, create=False) as reg:
-        _say_repairs(reg)
-        _, issued = reg.find_issue(job.number, job.revision, o.sha256)
-        result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(o))
-        units = [u.model_dump(mode="json") for u in readings.units]
-        if out is None:
-            reg.record_signoff(result, o.sha256, who, measured_units=units)
-        else:
-            from .sheet_ledger import recorded_sheet
-
-            from .report import family_chart_svg
-
-            chart = family_chart_svg(reg, issued, result)
-            with recorded_sheet(reg, "signoff", out, _signoff_sheet(issued, result, html, paper, chart)) as sheet:
-                reg.record_signoff(result, o.sha256, who, measured_units=units, sheet=sheet)
-    typer.echo(_to_json(result) if as_json else "\n".join(signoff_lines(result, eng)))
-    raise typer.Exit(exit_status(result))
-
-
 def _say_repairs(reg):
     for line in getattr(reg, "repairs", []) or []:
         typer.echo(f"windsheet: {line}", err=True)
-
-
-def _resizer(order):
-    """The engine re-sizing this order at another turn count, for the diagnosis."""
-    from .predict import strand_values_at_turns
-
-    return functools.partial(strand_values_at_turns, order)
-
-
-def _signoff_sheet(prediction, result, html, paper, qc_chart_svg=None) -> bytes:
-    from .render import render_pdf, render_signoff_html
-
-    page = render_signoff_html(prediction, result, paper=paper, qc_chart_svg=qc_chart_svg)
-    return page.encode("utf-8") if html else render_pdf(page)
 
 
 @app.command("readings-form")
@@ -539,6 +455,7 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     from .measured import load_measured
     from .render import order_files, render_pdf, render_traveller_html
     from .signoff import evaluate_signoff
+    from .cli_signoff import _resizer, _signoff_sheet
 
     folder = samples or Path(__file__).resolve().parent.parent / "samples"
     files = order_files(folder)
@@ -599,7 +516,7 @@ def _demo_records(out: Path, predictions: list) -> None:
 # The other commands, one module per concern; importing them registers them on ``app``
 # (run as ``python -m windsheet.cli``, the imported module does this; see the end).
 if __name__ != "__main__":
-    from . import cli_bench, cli_records, cli_tables  # noqa: E402,F401
+    from . import cli_bench, cli_records, cli_signoff, cli_tables  # noqa: E402,F401
     from .cli_bench import bench_address, bench_token  # noqa: E402,F401 - re-exported
 
 
