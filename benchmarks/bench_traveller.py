@@ -4,14 +4,18 @@ The budget is the whole command, ``windsheet traveller ORDER -o X.pdf``, at
 most 2 s on a 2-core machine: a fresh process reads the order, sizes it,
 writes the HTML, lays it out and writes the PDF, and records the issue.
 Prints the medians of the whole command (wall and CPU time of the child
-process) for every sample, and the split of one in-process render into its
-steps (CPU time, so that other work sharing the machine counts less).  Exits
+process) for every sample, the main sample again with the PDF worker off
+(``WINDSHEET_PDF_WORKER=0``: everything in one process), and the split of one
+in-process render into its steps (CPU time, so that other work sharing the
+machine counts less).  The budget is judged on wall time, what the planner
+waits for; CPU is printed beside it because the worker overlaps two cores.  Exits
 1 if a PDF comes out empty or without its QC record.
 """
 
 from __future__ import annotations
 
 import io
+import os
 import resource
 import statistics
 import subprocess
@@ -27,12 +31,13 @@ BUDGET_S = 2.0
 REPEAT = 5
 
 
-def whole_command(order: Path, out: Path, register: Path) -> tuple[float, float]:
+def whole_command(order: Path, out: Path, register: Path, worker: bool = True) -> tuple[float, float]:
     """Wall and CPU time (user + system) of one ``windsheet traveller`` process. [s]"""
+    env = dict(os.environ, WINDSHEET_PDF_WORKER="1" if worker else "0")
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t0 = time.perf_counter()
     subprocess.run([sys.executable, "-m", "windsheet.cli", "traveller", str(order), "-o", str(out),
-                    "--register", str(register)], check=True, capture_output=True, cwd=ROOT)
+                    "--register", str(register)], check=True, capture_output=True, cwd=ROOT, env=env)
     wall = time.perf_counter() - t0
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
@@ -71,9 +76,12 @@ def main() -> int:
             wall = statistics.median(r[0] for r in runs)
             cpu = statistics.median(r[1] for r in runs)
             pages = len(pypdf.PdfReader(tmp / f"{order.stem}.pdf").pages)
-            mark = "" if cpu <= BUDGET_S else "  OVER BUDGET (CPU)"
+            mark = "" if wall <= BUDGET_S else "  OVER BUDGET"
             print(f"  {order.stem:28s} wall {wall:5.2f} s  cpu {cpu:5.2f} s  "
-                  f"cpu/budget {cpu / BUDGET_S:4.2f}  {pages} pages{mark}")
+                  f"wall/budget {wall / BUDGET_S:4.2f}  {pages} pages{mark}")
+        runs = [whole_command(MAIN, tmp / "one.pdf", tmp / "reg.db", worker=False) for _ in range(REPEAT)]
+        print(f"  {MAIN.stem}, PDF worker off: wall {statistics.median(r[0] for r in runs):5.2f} s  "
+              f"cpu {statistics.median(r[1] for r in runs):5.2f} s")
     steps(MAIN)  # imports and caches warm
     split = [steps(MAIN) for _ in range(REPEAT)]
     for key in ("size", "html", "pdf"):

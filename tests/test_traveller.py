@@ -684,3 +684,37 @@ def test_running_header_stays_on_one_line_even_when_forced(tmp_path, paper):
     for stem in SAMPLE_IDS:
         for page in _sheet_pages(stem, paper)[2].pages:
             assert len(_header_baselines(page)) == 1, stem
+
+
+def test_the_pdf_worker_gives_the_same_bytes_as_the_in_process_render():
+    # The forked worker must be a pure speed-up: the same sheet, byte for byte.
+    from windsheet.pdf_worker import PdfWorker
+
+    html, in_process = sample_sheet(SAMPLE_IDS[0])
+    worker = PdfWorker()
+    try:
+        assert worker(html) == in_process
+    finally:
+        worker.close()
+    assert not worker._proc.is_alive()
+
+
+def test_the_pdf_worker_falls_back_to_rendering_in_process_if_it_dies():
+    from windsheet.pdf_worker import PdfWorker
+
+    worker = PdfWorker()
+    try:
+        worker._proc.kill()
+        worker._proc.join()
+        html, in_process = sample_sheet(SAMPLE_IDS[0])
+        assert worker(html) == in_process  # rendered here rather than lost
+    finally:
+        worker.close()
+
+
+def test_a_refused_order_writes_nothing_with_the_pdf_worker_on(tmp_path, monkeypatch):
+    monkeypatch.setenv("WINDSHEET_PDF_WORKER", "1")
+    order = order_yaml(tmp_path, "fail.yaml", FAILING_ORDER)
+    res = CliRunner().invoke(app, ["traveller", str(order), "-o", str(tmp_path / "x.pdf"),
+                                   "--register", str(tmp_path / "reg.db")])
+    assert res.exit_code == 2 and not (tmp_path / "x.pdf").exists()

@@ -310,8 +310,11 @@ def _lot_search(register, lot, as_json):
     typer.echo(_to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))
 
 
-def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | None = None):
-    """Size, check and render one traveller (runs in a worker process for a batch)."""
+def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | None = None, pdf=None):
+    """Size, check and render one traveller (runs in a worker process for a batch).
+
+    ``pdf`` renders the HTML to PDF bytes (default :func:`render_pdf`, in process).
+    """
     from .batch import load_order_arg
     from .predict import predict
     from .qc_lines import design_fails, design_status
@@ -330,7 +333,7 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | Non
         data = (_to_json(p) + "\n").encode("utf-8")
     else:
         page = render_traveller_html(p, paper=paper, forced=forced, units=units)
-        data = page.encode("utf-8") if fmt == "html" else render_pdf(page)
+        data = page.encode("utf-8") if fmt == "html" else (pdf or render_pdf)(page)
     return p, o.source.decode("utf-8", "replace"), o.sha256, forced, data
 
 
@@ -387,7 +390,11 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
         if not into_folder and not (out_path.parent if str(out_path.parent) else Path(".")).is_dir():
             raise InputError(out, f"cannot write: folder {str(out_path.parent)!r} does not exist")
     if not many:
-        p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force, units)
+        from .pdf_worker import pdf_renderer
+
+        # WeasyPrint loads in a second process while this one sizes the order.
+        with pdf_renderer(fmt_ == "pdf") as pdf:
+            p, source, sha, forced, data = _traveller_job(files[0], paper, fmt_, force, units, pdf=pdf)
         with open_register(register) as reg:
             _say_repairs(reg)
             if out == STDIN:
