@@ -15,6 +15,8 @@ from __future__ import annotations
 
 import xml.etree.ElementTree as ET
 
+from .fmt import length
+
 SVG_NS = "http://www.w3.org/2000/svg"
 
 # Wiring-diagram geometry, in SVG user units (drawn at 1 unit = 1 px, scaled by CSS).
@@ -106,7 +108,7 @@ def _nets(hookup):
     return [tuple(str(e) for e in join) for join in hookup.get("joins") or [] if len(join) >= 2]
 
 
-def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None) -> str:
+def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None, pins=None) -> str:
     """Wiring diagram of a hookup as an SVG string.
 
     Every strand is a coil symbol on its own row, start on the left (with the
@@ -126,6 +128,9 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None
     routes : sequence of (str, str), optional
         ``(end, how its lead is dressed)`` pairs, printed under the diagram
         (``data-route`` on each line).
+    pins : dict, optional
+        Strand end -> pin (``{"A.start": "1"}``): printed under each terminal
+        box, and as a pin box under a joint made on a pin.
     """
     ids = [str(s) for s in strand_ids]
     labels = labels or {}
@@ -157,7 +162,7 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None
     right_edge = max([_FINISH_X + 22.0] + [x for x in lane_x.values() if x > _FINISH_X]) + _TERMINAL_PAD
     shift = 40.0 - left_edge  # keep the left terminals inside the viewBox
     width = right_edge + shift + 40.0
-    height = _TOP + (len(ids) - 1) * _ROW_H + _TERMINAL_DROP + 17.0 + 12.0
+    height = _TOP + (len(ids) - 1) * _ROW_H + _TERMINAL_DROP + 17.0 + 12.0 + (12.0 if pins else 0.0)
     routes = list(routes or [])
     notes_y = height + 4.0
     height += 13.0 * len(routes) + (6.0 if routes else 0.0)
@@ -188,11 +193,26 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None
             dx = 6 if which == "start" else -6
             _text(g, x + dx, y - 8, f"{s} {which}", text_anchor=anchor, font_size="9.5")
 
+    pins = dict(pins or {})
     for n_i, net in enumerate(nets):
-        _draw_net(top, net, lane_x[net], end_xy, row_y, ids, n_i)
+        g, bottom = _draw_net(top, net, lane_x[net], end_xy, row_y, ids, n_i)
+        on_pin = sorted({pins[e] for e in net if e in pins and e not in terminals})
+        if on_pin:
+            # A joint made on a pin: the pin hangs below the joint's lane.
+            x = lane_x[net]
+            y = bottom + _TERMINAL_DROP
+            _el(g, "rect", x=f"{x - 16:.1f}", y=f"{y:.1f}", width="32", height="15", fill="#fff",
+                stroke="#000", stroke_width="1.4", data_pin=" ".join(on_pin))
+            _text(g, x, y + 11, "pin " + "/".join(on_pin), text_anchor="middle", font_size="8.5",
+                  stroke="none", fill="#000")
+            _line(g, x, bottom, x, y)
 
     for t_i, end in enumerate(terminals):
-        _draw_terminal(top, f"T{t_i + 1}", end, end_xy)
+        t = _draw_terminal(top, f"T{t_i + 1}", end, end_xy)
+        if end in pins:
+            x, y = end_xy[end]
+            _text(t, x, y + _TERMINAL_DROP + 28, f"pin {pins[end]}", text_anchor="middle",
+                  font_size="9", data_pin=pins[end])
     for k, (end, how) in enumerate(routes):
         _text(root, 12.0, notes_y + 13.0 * k, _clip(f"{end} lead: {how}", 90), font_size="9",
               data_route=str(end))
@@ -200,7 +220,7 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None
 
 
 def _draw_net(parent, net, x_lane, end_xy, row_y, ids, n_i):
-    """Lines from every end of one joint to its lane, and the lane itself."""
+    """Lines from every end of one joint to its lane, and the lane itself; returns (group, lane's lowest y)."""
     g = _el(parent, "g", data_join=" ".join(net), stroke="#000", stroke_width="1.6",
             stroke_dasharray=None)
     on_left = x_lane < _START_X
@@ -220,7 +240,7 @@ def _draw_net(parent, net, x_lane, end_xy, row_y, ids, n_i):
     _line(g, x_lane, min(ys), x_lane, max(ys))
     for y in ys:
         _el(g, "circle", cx=f"{x_lane:.1f}", cy=f"{y:.1f}", r="2.6", fill="#000", stroke="none")
-    return g
+    return g, max(ys)
 
 
 def _draw_terminal(parent, label, end, end_xy):
@@ -251,12 +271,15 @@ def potential_grey(fraction: float) -> str:
     return f"#{level:02x}{level:02x}{level:02x}"
 
 
-def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool = False) -> str:
+def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool = False,
+                      placement: dict | None = None) -> str:
     """Sketch of the winding in section: layers, the strand in each slot, layer tape.
 
     ``cross_section["layers"]`` lists, per layer from the form outwards, the
     slots the engine chose to show (``{"slot": k, "strand": "A"}``); where the
     listed slot numbers jump, the slots in between are drawn as an ellipsis.
+    ``placement`` (the prediction's ``fit.placement``) draws margin tape at
+    both ends and says where the first turn lies.
     """
     layers = [layer.get("slots") or [] if isinstance(layer, dict) else layer
               for layer in cross_section.get("layers") or []]
@@ -320,7 +343,9 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
         if n:
             # A partial layer ends short, where its last turn lies, and says so.
             partial = n < full
-            _text(g, x + 6, y + 4, f"{n} of {full} turns, partial" if partial else f"{n} turns",
+            # Clear of the finish-end margin tape, where there is one.
+            dx = 36 if (placement or {}).get("margin_m") and not partial else 6
+            _text(g, x + dx, y + 4, f"{n} of {full} turns, partial" if partial else f"{n} turns",
                   font_size="9", font_weight="bold" if partial else None,
                   data_partial="1" if partial else None)
         if tape and lay < len(runs) - 1:
@@ -331,9 +356,33 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
                 data_tape=f"{lay + 1}/{lay + 2}")
     _text(root, margin_l + width_cells, 14, "start end at left", text_anchor="end",
           font_size="9.5")
+    _placement_marks(root, placement or {}, margin_l, width_cells, base_y,
+                     len(layers) * (cell + tape_h))
     if vmax:
         _potential_scale(root, margin_l, base_y + 34, vmax)
     return _to_string(root)
+
+
+def _placement_marks(root, place, x0, width, base_y, build):
+    """Margin tape as hatched blocks at both ends; the first turn's position in words."""
+    margin = place.get("margin_m") or 0.0
+    if margin:
+        for x in (x0 - 30.0, x0 + width + 6.0):
+            _el(root, "rect", x=f"{x:.1f}", y=f"{base_y - build:.1f}", width="24", height=f"{build:.1f}",
+                fill="url(#margin-hatch)", stroke="#000", stroke_width="1", data_margin=f"{margin:.6g}")
+        pat = _el(_el(root, "defs"), "pattern", id="margin-hatch", width="5", height="5",
+                  patternUnits="userSpaceOnUse", patternTransform="rotate(45)")
+        _line(pat, 0, 0, 0, 5, stroke="#000", stroke_width="1.2")
+    lines = ([f"first turn {length(place['first_turn_m'])} from the start end"]
+             if place.get("first_turn_m") is not None else []) + ([f"margin tape {length(margin)} each end"]
+                                                                   if margin else [])
+    height = float(root.get("height"))
+    for k, words in enumerate(lines):
+        _text(root, 6, height + 11 + 12 * k, words, font_size="9", data_placement=str(k + 1))
+    if lines:
+        height += 12 * len(lines) + 4
+        root.set("height", f"{height:.1f}")
+        root.set("viewBox", f"0 0 {root.get('viewBox').split()[2]} {height:.1f}")
 
 
 def _potential_scale(root, x0, y0, vmax, steps=5):

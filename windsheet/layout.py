@@ -420,9 +420,81 @@ def cylinder_layout(diameter, traverse, copper_diameter, overall_diameter, stran
                   layer_style=style, layer_step=step, strand_spacing=spacing)
 
 
+def usable_traverse(traverse, margin=0.0, end="start-end", offset=0.0):
+    """Width left for the winding once margin tape and the start offset are taken off. [m]
+
+    Parameters
+    ----------
+    traverse : float
+        Length of the traverse (a bobbin's window width). [m]
+    margin : float
+        Margin tape width at each end of the traverse. [m]
+    end : {"start-end", "finish-end", "centre"}
+        The end the winding is placed from (``centre``: centred, no offset).
+    offset : float
+        Distance from that end's margin (or flange) to the winding's edge. [m]
+
+    Returns
+    -------
+    float
+        Usable width [m]; zero or below when nothing fits.
+
+    References
+    ----------
+    Margin-wound construction, creepage margins at both ends of the traverse (common practice).
+
+    Examples
+    --------
+    >>> round(usable_traverse(0.015, margin=0.002, offset=0.001) * 1e3, 3)
+    10.0
+    """
+    return traverse - 2 * margin - (0.0 if end == "centre" else offset)
+
+
+def traverse_placement(traverse, used, margin=0.0, end="start-end", offset=0.0) -> dict:
+    """Where the winding lies on the traverse, measured from the start end. [m]
+
+    Parameters
+    ----------
+    traverse : float
+        Length of the traverse. [m]
+    used : float
+        Axial width the winding takes (:attr:`Layout.traverse_used`). [m]
+    margin, end, offset
+        As :func:`usable_traverse`.
+
+    Returns
+    -------
+    dict
+        ``first_turn_m`` (start end to the winding's start edge), ``bare_start_m``
+        and ``bare_finish_m`` (bare traverse between margin tape and winding at
+        each end), ``margin_m``, ``end`` and ``offset_m``.
+
+    References
+    ----------
+    Plain geometry on the traverse.
+
+    Examples
+    --------
+    >>> p = traverse_placement(0.060, 0.037, end="centre")
+    >>> round(p["first_turn_m"] * 1e3, 1), round(p["bare_finish_m"] * 1e3, 1)
+    (11.5, 11.5)
+    """
+    room = traverse - 2 * margin - used
+    if end == "centre":
+        before = room / 2
+    elif end == "finish-end":
+        before = room - offset
+    else:
+        before = offset
+    return {"end": end, "offset_m": offset, "margin_m": margin, "first_turn_m": margin + before,
+            "bare_start_m": before, "bare_finish_m": room - before}
+
+
 def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, turns,
                   diameter=None, mean_turn_length=None, layers=None, pitch=None,
-                  tape=0.0, layer_style=None, strand_spacing=None) -> Layout:
+                  tape=0.0, layer_style=None, strand_spacing=None,
+                  across="the bobbin's width") -> Layout:
     """Lay out a winding in a bobbin window.
 
     Parameters
@@ -446,7 +518,7 @@ def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, tur
     return cylinder_layout(diameter, width, copper_diameter, overall_diameter, strands, turns,
                            layers=layers, pitch=pitch, tape=tape, max_build=height, kind="bobbin",
                            layer_style=layer_style, strand_spacing=strand_spacing,
-                           across="the bobbin's width", build_limit="the bobbin's height")
+                           across=across, build_limit="the bobbin's height")
 
 
 def toroid_layout(inner_diameter, outer_diameter, height, copper_diameter, overall_diameter,

@@ -10,6 +10,7 @@ handled the same way.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 
 import numpy as np
@@ -151,6 +152,66 @@ def check_hookup(joins, terminals, strands):
         if node_of[2 * s] not in seen:
             raise HookupError("hookup", f"strand {STRAND_IDS[s]} is not connected to the terminals")
     return node_of, t1, t2, n
+
+
+def _pin_label(value, where):
+    if isinstance(value, bool) or not isinstance(value, (int, str)) or not re.fullmatch(
+            r"[A-Za-z0-9][A-Za-z0-9+/-]{0,7}", str(value).strip()):
+        raise HookupError(where, "expected a pin number or name, like 1 or S2 (up to 8 letters and digits)")
+    return str(value).strip()
+
+
+def pin_assignment(terminations, joins, terminals, brought_out, strands) -> list[dict]:
+    """The pin each strand end is soldered to, checked against the hookup.
+
+    Parameters
+    ----------
+    terminations : dict
+        Strand end -> pin, as the order writes it (``{"A.start": 1, "B.finish": "S2"}``).
+    joins, terminals : list
+        The hookup's joins and its two terminals (normalised ends).
+    brought_out : list of str
+        Every end brought out as a terminal (a ``separate`` hookup: every end).
+    strands : int
+        Number of strands.
+
+    Returns
+    -------
+    list of dict
+        ``{"pin", "ends"}`` per pin, in the order the pins are first named.
+
+    Raises
+    ------
+    HookupError
+        At ``terminations.<end>``: an end that does not exist or is named twice,
+        two ends on one pin that the hookup does not join (a short); at
+        ``terminations``: a terminal left without a pin.
+
+    References
+    ----------
+    Pin-out of a wound component on a bobbin or header (common practice): a
+    pin carries one node; a joint may be made on its pin.
+    """
+    if not isinstance(terminations, dict) or not terminations:
+        raise HookupError("terminations", "expected a mapping of strand end to pin, like {A.start: 1, A.finish: 2}")
+    node_of = _nodes(joins, terminals, strands)[0]
+    pins, node_at_pin, seen = {}, {}, {}
+    for key, value in terminations.items():
+        where = f"terminations.{key}"
+        idx = _end_index(str(key), strands, where)
+        end = f"{STRAND_IDS[idx // 2]}.{'finish' if idx % 2 else 'start'}"
+        if end in seen:
+            raise HookupError(where, f"{end} is given a pin twice")
+        seen[end] = pin = _pin_label(value, where)
+        if pin in node_at_pin and node_at_pin[pin] != node_of[idx]:
+            raise HookupError(where, f"pin {pin} already carries {pins[pin][0]}, which the hookup does not "
+                              f"join to {end}: the pin would short them")
+        node_at_pin[pin] = node_of[idx]
+        pins.setdefault(pin, []).append(end)
+    missing = [e for e in brought_out if e not in seen]
+    if missing:
+        raise HookupError("terminations", f"gives no pin to {', '.join(missing)}; every lead brought out needs one")
+    return [{"pin": pin, "ends": ends} for pin, ends in pins.items()]
 
 
 def _mna_matrix(L, R, node_of, n, grounded, omega):

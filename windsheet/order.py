@@ -19,7 +19,7 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Fiel
 
 from .errors import InputError, field_name, join_path
 from .fileio import parse_yaml_bytes, read_limited
-from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup
+from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup, pin_assignment
 from .units import SINE_CREST, parse_percent, parse_quantity, read_quantity
 
 #: Orders are small; anything larger is not an order. [bytes]
@@ -142,12 +142,20 @@ class Job(_M):
     notes: Annotated[str, Field(max_length=2000)] = ""
 
 
+class MarginTape(_M):
+    """Tape laid at each end of the traverse, built up to the winding's height, for creepage."""
+    width: Length
+    material: Text = "margin tape"
+
+
 class CylinderForm(_M):
     kind: choice("cylinder")
     diameter: Length
     traverse: Length
     max_build: Optional[Length] = None
     material: Text = "non-magnetic former"
+    #: Width at each end of the traverse (or ``{width, material}``).
+    margin_tape: Optional[Union[Length, MarginTape]] = None
 
 
 class ToroidForm(_M):
@@ -169,6 +177,9 @@ class BobbinForm(_M):
     diameter: Optional[Length] = None
     mean_turn_length: Optional[Length] = None
     material: Text = "bobbin on core"
+    #: The core's gap as assembled (from the core's data; ``al`` is the AL at this gap); 0 = ungapped.
+    gap: Optional[Length0] = None
+    margin_tape: Optional[Union[Length, MarginTape]] = None
 
 
 def _form_kind(v):
@@ -245,6 +256,34 @@ def _direction(v):
     return words[key]
 
 
+_ENDS = {"start-end": "start-end", "start": "start-end", "start-flange": "start-end",
+         "finish-end": "finish-end", "finish": "finish-end", "finish-flange": "finish-end",
+         "centre": "centre", "center": "centre", "middle": "centre"}
+
+
+def _end(v):
+    if _lower(v) not in _ENDS:
+        raise ValueError("expected start-end, finish-end or centre")
+    return _ENDS[_lower(v)]
+
+
+class WindingStart(_M):
+    """Where the winding sits on the traverse: ``offset`` in from the named end (inside any margin tape)."""
+    end: Annotated[Literal["start-end", "finish-end", "centre"], BeforeValidator(_end)] = Field("start-end", alias="from")
+    offset: Length0 = 0.0
+
+
+def _start(v):
+    """``start-end``, ``finish-end`` or ``centre``; a length (in from the start end); or ``{from, offset}``."""
+    if isinstance(v, str) and _lower(v) in _ENDS:
+        return {"from": v}
+    if isinstance(v, (str, int, float)) and not isinstance(v, bool):
+        return {"offset": v}
+    if not isinstance(v, (dict, WindingStart)):
+        raise ValueError("expected start-end, finish-end, centre, an offset like '2 mm', or {from: start-end, offset: 2 mm}")
+    return v
+
+
 class Winding(_M):
     # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
     strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
@@ -266,6 +305,8 @@ class Winding(_M):
     spread: Optional[Annotated[Union[Literal["even"], float], BeforeValidator(_spread)]] = None
     # Seen from the start end (a toroid: from its top face); see the README's convention.
     direction: Annotated[Literal["clockwise", "anticlockwise"], BeforeValidator(_direction)] = "clockwise"
+    # Cylinders and bobbins: where the first turn goes (default: hard against the start end).
+    start: Annotated[WindingStart, BeforeValidator(_start)] = WindingStart()
 
 
 class Duty(_M):
@@ -396,6 +437,8 @@ class OrderDoc(_M):
     wire: WireSpec
     winding: Winding
     hookup: Any
+    #: Strand end -> pin (``{A.start: 1, B.finish: 4}``), checked against the hookup in :class:`Order`.
+    terminations: Any = None
     duty: Duty
     tolerances: Tolerances = Tolerances()
     insulation: Insulation = Insulation()
@@ -430,6 +473,23 @@ class Order:
                 raise InputError("form.gap", "expected an angle between 0 deg and 180 deg, like '30 deg'")
         if isinstance(f, BobbinForm) and (f.diameter is None) == (f.mean_turn_length is None):
             raise InputError("form", "a bobbin needs either diameter or mean_turn_length")
+        self.pins = []
+        if doc.terminations is not None:
+            out = self.terminals + ([f"{s}.{e}" for s in self.strand_ids for e in ("start", "finish")
+                                     if f"{s}.{e}" not in self.terminals] if self.hookup_name == "separate" else [])
+            try:
+                self.pins = pin_assignment(doc.terminations, self.joins, self.terminals, out, w.strands)
+            except HookupError as exc:
+                raise InputError(exc.where, str(exc)) from None
+        m = getattr(f, "margin_tape", None)
+        self.margin, self.margin_material = ((m.width, m.material) if isinstance(m, MarginTape)
+                                             else (m or 0.0, "margin tape"))
+        if isinstance(f, ToroidForm) and "start" in w.model_fields_set:
+            raise InputError("winding.start", "applies to a cylinder or bobbin; a toroid starts at the mark "
+                             "on its top face and leaves form.gap free")
+        if w.start.end == "centre" and w.start.offset:
+            raise InputError("winding.start.offset", "a centred winding takes no offset; "
+                             "give from: start-end or finish-end with the offset")
         job = doc.job
         if job.units is not None and len(job.units) != job.quantity:
             raise InputError("job.units", f"lists {len(job.units)} serial numbers for a quantity of {job.quantity}")

@@ -67,6 +67,8 @@ def _place_turns(order: Order, wire, turns: int):
     args.update(layer_style=w.layer_style, strand_spacing=w.strand_spacing)
     if w.spread is not None and not isinstance(f, ToroidForm):
         raise InputError("winding.spread", "applies to a toroid only (spread round the core)")
+    if not isinstance(f, ToroidForm):
+        width, across = _winding_width(order)
     try:
         if isinstance(f, CylinderForm):
             # Enamel is only proven to survive a mandrel of the wire's own diameter
@@ -75,18 +77,30 @@ def _place_turns(order: Order, wire, turns: int):
                 raise lay.FormTooSmall(
                     f"{f.diameter * 1e3:.3f} mm is smaller than the wire's {wire.overall_diameter * 1e3:.3f} mm "
                     "overall diameter: the wire is thicker than the form")
-            return lay.cylinder_layout(f.diameter, f.traverse, max_build=f.max_build, **args)
+            return lay.cylinder_layout(f.diameter, width, max_build=f.max_build, across=across, **args)
         if isinstance(f, ToroidForm):
             spread = "even" if w.spread in (None, "even") else math.degrees(w.spread)
             return lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height,
                                      gap_deg=math.degrees(f.gap), spread=spread, **args)
-        return lay.bobbin_layout(f.width, f.height, diameter=f.diameter,
-                                 mean_turn_length=f.mean_turn_length, **args)
+        return lay.bobbin_layout(width, f.height, diameter=f.diameter,
+                                 mean_turn_length=f.mean_turn_length, across=across, **args)
     except lay.FormTooSmall as exc:
         raise InputError("form.inner_diameter" if isinstance(f, ToroidForm) else "form.diameter", str(exc)) from None
     except lay.WindingDoesNotFit as exc:
         raise InputError("winding.turns" if order.doc.winding.turns else "winding.target_inductance",
                          f"does not fit: {exc}") from None
+
+
+def _winding_width(order: Order) -> tuple[float, str]:
+    """The traverse left for turns once margin tape and the start offset are off, and its name. [m]"""
+    f, start = order.doc.form, order.doc.winding.start
+    traverse, name = (f.width, "the bobbin's width") if isinstance(f, BobbinForm) else (f.traverse, "the traverse")
+    width = lay.usable_traverse(traverse, order.margin, start.end, start.offset)
+    if width <= 0:
+        field = "form.margin_tape" if order.margin and 2 * order.margin >= traverse else "winding.start.offset"
+        raise InputError(field, f"leaves no room to wind: {name} is {traverse * 1e3:.3f} mm")
+    less = [w for w, on in (("margins", order.margin), ("start offset", start.offset and start.end != "centre")) if on]
+    return width, (f"{name} less its {' and '.join(less)} ({width * 1e3:.3f} mm)" if less else name)
 
 
 def _al(order: Order):
@@ -576,7 +590,10 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                  "height_m": getattr(f, "height", None), "width_m": getattr(f, "width", None),
                  "mean_turn_length_m": getattr(f, "mean_turn_length", None),
                  "al_H": _al(order), "permeability": getattr(f, "permeability", None),
-                 "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None},
+                 "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
+                 "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
+                 "margin_tape_m": order.margin or None,
+                 "margin_tape_material": order.margin_material if order.margin else None},
         "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
                  "overall_diameter_m": wire.overall_diameter, "grade": wire.grade,
                  "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source,
@@ -595,6 +612,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "sheet_units": "imperial" if getattr(order, "imperial", False) else "metric",
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
+        "terminations": [dict(t) for t in order.pins],
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
                  "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
                  "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
@@ -604,7 +622,10 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "fit": {"slots_per_layer": layout.slots_per_layer, "traverse_used_m": layout.traverse_used,
                 "traverse_m": getattr(f, "traverse", None) or getattr(f, "width", None),
                 "build_m": layout.build_height, "max_build_m": getattr(f, "max_build", None)
-                or (f.height if isinstance(f, BobbinForm) else None), "fits": True, "notes": list(layout.notes)},
+                or (f.height if isinstance(f, BobbinForm) else None), "fits": True, "notes": list(layout.notes),
+                "placement": None if isinstance(f, ToroidForm) else lay.traverse_placement(
+                    getattr(f, "traverse", None) or f.width, layout.traverse_used, order.margin,
+                    doc.winding.start.end, doc.winding.start.offset)},
         "strands": strands,
         "layers": layout.layers,
         "inductance_matrix_H": L.tolist(),

@@ -7,7 +7,8 @@ from __future__ import annotations
 
 from .fmt import length
 from .sheet_pdf import henry, volt
-from .traveller_sheet import form_rows, terminal_names
+from .traveller_sheet import form_rows, pin_rows, pins_of_ends, terminal_names
+
 
 def _step(title, detail="", record=()):
     return {"title": title, "detail": detail, "record": list(record)}
@@ -52,6 +53,8 @@ def procedure_steps(p: dict) -> list[dict]:
         f"copper Ø {length(wire.get('copper_diameter_m'))}. Measure the overall diameter.",
         ["overall Ø measured"]))
 
+    if form.get("margin_tape_m") and not toroid:
+        steps.append(_margin_tape_step(p))
     if n == 1:
         start_text = (f"Anchor the start of strand {ids[0]} leaving {lead}; "
                       f"tag it \"{ids[0]} start\".")
@@ -137,17 +140,21 @@ def procedure_steps(p: dict) -> list[dict]:
             f"links.{expect} Aiding must read well above opposing; if not, a start and finish "
             "are swapped in the tags.",
             [f"{a}+{b} aiding / opposing" for a, b in pairs]))
+        pin_of = pins_of_ends(p)
         for j in joins:
             via = [routes[e]["route_text"] for e in j if e in routes and e.endswith(".finish")
                    and routes[e].get("joint") and ".start" in routes[e]["joint"]]
+            on = sorted({pin_of[e] for e in j if e in pin_of})
+            how = ("Per the wiring diagram: strip the enamel, twist, solder; sleeve the joint." if not on else
+                   f"Made on pin {' and pin '.join(on)}: strip each end, wrap it on its pin and solder "
+                   "it there when terminating" + (" (the pins are one node)" if len(on) > 1 else "") + "."
+                   + ("" if all(e in pin_of for e in j) else
+                      " Ends without a pin are twisted and soldered to the others first."))
             steps.append(_step(f"Make the joint {' + '.join(j)}",
-                               "Per the wiring diagram: strip the enamel, twist, solder; "
-                               "sleeve the joint." + (f" Joint lead {via[0]}." if via else ""),
-                               ["joined"]))
-    sleeve = ", ".join(f"{t} = {end}" for t, end in terminal_names(hookup, ids))
-    steps.append(_step("Sleeve and terminate",
-                       f"Sleeve every lead; terminate and mark the terminals: {sleeve}.",
-                       ["marked"]))
+                               how + (f" Joint lead {via[0]}." if via else ""), ["joined"]))
+    steps.append(_terminate_step(p, ids))
+    if kind == "bobbin":
+        steps.append(_core_assembly_step(p))  # before the hipot: it tests winding to core
     cau = p.get("cautions") or {}
     hipot = p.get("hipot") or {}
     if cau.get("hipot") and hipot.get("voltage_V"):
@@ -159,8 +166,6 @@ def procedure_steps(p: dict) -> list[dict]:
             f"{volt(hipot['voltage_V'])}{f' for {float(dur):g} s' if dur else ''} {where}. "
             f"Basis: {hipot.get('basis', '—')}. See the cautions.",
             ["leakage", "result"]))
-    if kind == "bobbin":
-        steps.append(_core_assembly_step(p))
     steps.append(_step("Final measurements",
                        "Terminal inductance and DC resistance at the terminals "
                        f"{' – '.join(t for t, _ in terminal_names(hookup, ids))}; insulation resistance; "
@@ -198,12 +203,50 @@ def _toroid_spacing(p: dict, lay: int) -> str:
 def _where_to_start(p: dict) -> str:
     """Where on the traverse the first turn goes, and the room the winding leaves."""
     fit = p.get("fit") or {}
+    place = fit.get("placement") or {}
     used, room = fit.get("traverse_used_m"), fit.get("traverse_m")
-    if not used or not room:
-        return "Start hard against the start flange."
-    spare = room - used
-    return (f"Start hard against the start flange (the start end); the winding takes {length(used)} "
-            f"of the {length(room)} traverse, leaving {length(spare)} bare at the finish end.")
+    if not used or not room or not place:
+        return "Start hard against the start flange (the start end)."
+    margin = place.get("margin_m") or 0.0
+    edge = "the margin tape at the start end" if margin else "the start flange (the start end)"
+    before, after = place["bare_start_m"], place["bare_finish_m"]
+    where = (f"Start hard against {edge}" if before < 1e-5 else
+             f"Start {length(before)} in from {edge}: measure and mark it, so the first turn's edge "
+             f"lies {length(place['first_turn_m'])} from the start end")
+    inside = f" between the margin tapes ({length(margin)} each end)" if margin else ""
+    return (f"{where}. The winding takes {length(used)} of the {length(room)} traverse, leaving "
+            + (f"{length(before)} bare at the start end and " if before >= 1e-5 else "")
+            + f"{length(after)} bare at the finish end{inside}.")
+
+
+def _initial(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _margin_tape_step(p: dict) -> dict:
+    """Creepage margins: tape at each end of the traverse, as high as the winding."""
+    form, fit = p.get("form") or {}, p.get("fit") or {}
+    return _step("Lay the margin tape",
+                 f"{_initial(form.get('margin_tape_material') or 'margin tape')}, {length(form['margin_tape_m'])} wide, "
+                 "hard against each end of the traverse; build each up in wraps to the winding's height "
+                 f"(about {length(fit.get('build_m'))}) as the layers go on. No turn may ride up on a margin: "
+                 "it sets the creepage distance from the winding to the core and flanges.",
+                 ["start margin", "finish margin"])
+
+
+def _terminate_step(p: dict, ids) -> dict:
+    """Sleeve the leads and bring them to the terminals, or to the pins the order names."""
+    hookup = p.get("hookup") or {}
+    sleeve = ", ".join(f"{t} = {end}" for t, end in terminal_names(hookup, ids))
+    rows = pin_rows(p)
+    if not rows:
+        return _step("Sleeve and terminate", f"Sleeve every lead; terminate and mark the terminals: {sleeve}.",
+                     ["marked"])
+    return _step("Terminate on the pins",
+                 "Sleeve every lead up to its pin; wrap each end on its pin and solder it: "
+                 + "; ".join(f"{pin} = {ends}" for pin, ends in rows)
+                 + ". Check each pin against the wiring diagram before soldering; a lead on the wrong pin "
+                 "reads as a wiring fault at sign-off.", [pin for pin, _ in rows])
 
 
 def _core_assembly_step(p: dict) -> dict:
@@ -211,8 +254,10 @@ def _core_assembly_step(p: dict) -> dict:
     form = p.get("form") or {}
     acc = (p.get("terminal") or {}).get("accept") or {}
     lo, hi = acc.get("inductance_min_H"), acc.get("inductance_max_H")
-    gap = form.get("gap_m")
-    how = (f"Fit the core halves with a gap of {length(gap)} (spacer in each outer leg or ground centre leg, "
+    gap = form.get("core_gap_m")
+    how = ("Fit the ungapped core halves through the bobbin, mating faces clean and touching; clamp or bond "
+           "them." if gap == 0 else
+           f"Fit the core halves with a gap of {length(gap)} (spacer in each outer leg or ground centre leg, "
            "per the core's data); clamp or bond them." if gap else
            "Fit the core halves through the bobbin and clamp them; if the core is gapped, adjust the "
            f"gap (spacers) until the inductance at the terminals reads {henry(lo)} – {henry(hi)} at the "

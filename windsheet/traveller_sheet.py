@@ -60,9 +60,11 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
         "strand_ids": ids,
         "terminal_names": terminal_names(hookup, ids),
         "joins_text": [" + ".join(j) for j in hookup.get("joins") or []],
-        "wiring_svg": Markup(wiring_svg(hookup, ids, labels, lead_notes(p))),
+        "wiring_svg": Markup(wiring_svg(hookup, ids, labels, lead_notes(p), pins_of_ends(p))),
+        "pin_rows": pin_rows(p),
         "cross_section_svg": svg_image(cross_section_svg(p.get("cross_section") or {},
-                                                      (p.get("form") or {}).get("kind") or "")),
+                                                      (p.get("form") or {}).get("kind") or "",
+                                                      placement=(p.get("fit") or {}).get("placement"))),
         "section_wide": _widest_layer(p.get("cross_section") or {}) > 14,
         "ring_svgs": _ring_svgs(p),
         "voltage_svg": svg_image(cross_section_svg(p.get("cross_section") or {},
@@ -94,6 +96,19 @@ def lead_notes(p: dict) -> list[tuple[str, str]]:
     return out
 
 
+def pins_of_ends(p: dict) -> dict:
+    """Strand end -> pin, from the order's terminations (empty when it names none)."""
+    return {end: t["pin"] for t in p.get("terminations") or [] for end in t["ends"]}
+
+
+def pin_rows(p: dict) -> list[tuple[str, str]]:
+    """``("pin 1", "A.start (T1)")`` per pin, terminals named as on the wiring diagram."""
+    ids = [s["id"] for s in p.get("strands") or []]
+    term = {end: t for t, end in terminal_names(p.get("hookup") or {}, ids)}
+    return [(f"pin {t['pin']}", " + ".join(f"{e} ({term[e]})" if e in term else e for e in t["ends"]))
+            for t in p.get("terminations") or []]
+
+
 def _widest_layer(cross_section: dict) -> int:
     layers = cross_section.get("layers") or []
     return max([len(l.get("slots") or [] if isinstance(l, dict) else l) for l in layers] + [0])
@@ -121,6 +136,10 @@ def form_rows(form: dict) -> list[tuple[str, str]]:
         rows.append(("Relative permeability", f"{float(form['permeability']):g}"))
     if form.get("gap_deg") is not None:
         rows.append(("Start–finish gap", f"{float(form['gap_deg']):.0f}°"))
+    if form.get("core_gap_m") is not None:
+        rows.append(("Core gap", length(form["core_gap_m"]) if form["core_gap_m"] else "none (ungapped)"))
+    if form.get("margin_tape_m"):
+        rows.append(("Margin tape", f"{length(form['margin_tape_m'])} at each end"))
     return rows
 
 
@@ -237,6 +256,12 @@ def pick_list(p: dict) -> list[dict]:
                               f"{length(w['layer_tape_m'])} thick"
                               + (f", rated {volt(rating)}" if rating else "") + ", full traverse width",
                       "qty": f"{layers - 1} wrap(s) per unit"})
+    if form.get("margin_tape_m"):
+        picks.append({"item": "Margin tape",
+                      "spec": f"{form.get('margin_tape_material') or 'margin tape'}, "
+                              f"{length(form['margin_tape_m'])} wide, built to "
+                              f"{length((p.get('fit') or {}).get('build_m'))}",
+                      "qty": "2 strips per unit (one at each end of the traverse)"})
     ends = 2 * len(p.get("strands") or [])
     picks.append({"item": "Sleeving",
                   "spec": "over every joint and lead, rated for the duty and thermal class "
