@@ -83,3 +83,101 @@ def test_voltage_picture_shades_by_potential_and_marks_the_worst_pair():
     assert vs[1] - vs[0] == pytest.approx(wa["voltage_Vpk"], rel=1e-3)
     assert [el for el in root.iter() if el.get("data-scale") == "potential"]
     assert 'data-figure="voltage"' in render.render_traveller_html(p)
+
+
+# --- where the winding sits, margin tape, core gap, pins --------------------------
+
+BOBBIN = ("{kind: bobbin, al: 250 nH, width: 15 mm, height: 5 mm, mean_turn_length: 52 mm, "
+          "gap: 0.3 mm, margin_tape: 2 mm}")
+
+
+def test_margin_tape_and_start_offset_take_room_off_the_traverse():
+    # Independent count: close-wound 0.5 mm grade-2 wire, one strand; slots = floor((width - d) / d) + 1.
+    plain = sized(turns=20)
+    d = plain["wire"]["overall_diameter_m"]
+    assert plain["fit"]["slots_per_layer"] == int((0.030 - d) / d + 1e-9) + 1
+    p = sized(form="{kind: cylinder, diameter: 20 mm, traverse: 30 mm, margin_tape: 3 mm}", turns=20,
+              extra=", start: {from: start-end, offset: 2 mm}")
+    usable = 0.030 - 2 * 0.003 - 0.002
+    assert p["fit"]["slots_per_layer"] == int((usable - d) / d + 1e-9) + 1
+    place = p["fit"]["placement"]
+    assert place["first_turn_m"] == pytest.approx(0.005)
+    # The three stretches of the traverse add back up to it.
+    assert 2 * place["margin_m"] + place["bare_start_m"] + p["fit"]["traverse_used_m"] + place["bare_finish_m"] \
+        == pytest.approx(0.030)
+    steps = {s["title"]: s for s in render.procedure_steps(p)}
+    assert "Lay the margin tape" in steps
+    assert render.length(0.002) + " in from the margin tape" in steps["Anchor and label the start"]["detail"]
+    assert "Margin tape" in {row["item"] for row in render.pick_list(p)}
+
+
+def test_centred_and_finish_end_placements():
+    centre = sized(turns=20, extra=", start: centre")["fit"]["placement"]
+    assert centre["bare_start_m"] == pytest.approx(centre["bare_finish_m"])
+    finish = sized(turns=20, extra=", start: {from: Finish-End, offset: 1 mm}")["fit"]["placement"]
+    assert finish["bare_finish_m"] == pytest.approx(0.001)
+
+
+@pytest.mark.parametrize("extra, form, field", [
+    (", start: {from: top}", CYL, "winding.start.from"),
+    (", start: {from: centre, offset: 1 mm}", CYL, "winding.start.offset"),
+    (", start: 30 mm", CYL, "winding.start.offset"),
+    ("", "{kind: cylinder, diameter: 20 mm, traverse: 30 mm, margin_tape: 15 mm}", "form.margin_tape"),
+    (", start: 1 mm", "{kind: toroid, inner_diameter: 20 mm, outer_diameter: 30 mm, height: 10 mm, al: 1 uH}",
+     "winding.start"),
+])
+def test_bad_placement_is_refused_at_its_field(extra, form, field):
+    from windsheet.errors import InputError
+
+    with pytest.raises(InputError) as exc:
+        sized(form=form, turns=20, extra=extra)
+    assert exc.value.path == field
+
+
+def test_bobbin_core_gap_is_stated_and_the_core_is_fitted_before_the_hipot():
+    p = sized(form=BOBBIN, turns=35)
+    titles = [s["title"] for s in render.procedure_steps(p)]
+    step = [s for s in render.procedure_steps(p) if s["title"] == "Assemble and gap the core"][0]
+    assert render.length(0.0003) in step["detail"]
+    hipot = [t for t in titles if t.startswith("Hipot")]
+    if hipot:  # the hipot tests winding to core, so the core must be on
+        assert titles.index("Assemble and gap the core") < titles.index(hipot[0])
+    assert ("Core gap", render.length(0.0003)) in render.form_rows(p["form"])
+
+
+BIFILAR = BASE.replace("hookup: single", "hookup: series-aiding\nterminations: {terms}")
+
+
+def bifilar(terms):
+    return predict(parse_order(BIFILAR.format(form=BOBBIN, turns=35, extra=", strands: 2", terms=terms).encode()))
+
+
+def test_terminations_reach_the_diagram_and_the_procedure():
+    p = bifilar("{A.start: 1, a.finish: 2, B.start: 2, B.finish: 4}")
+    assert p["terminations"] == [{"pin": "1", "ends": ["A.start"]}, {"pin": "2", "ends": ["A.finish", "B.start"]},
+                                 {"pin": "4", "ends": ["B.finish"]}]
+    steps = {s["title"]: s for s in render.procedure_steps(p)}
+    assert steps["Terminate on the pins"]["record"] == ["pin 1", "pin 2", "pin 4"]
+    assert "pin 4 = B.finish (T2)" in steps["Terminate on the pins"]["detail"]
+    assert steps["Make the joint A.finish + B.start"]["detail"].startswith("Made on pin 2")
+    from windsheet.diagrams import wiring_svg
+    from windsheet.traveller_sheet import pins_of_ends
+
+    root = ET.fromstring(wiring_svg(p["hookup"], ["A", "B"], pins=pins_of_ends(p)))
+    pins = {el.get("data-pin") for el in root.iter() if el.get("data-pin")}
+    assert pins == {"1", "2", "4"}
+
+
+@pytest.mark.parametrize("terms, field", [
+    ("{A.start: 1, A.finish: 1, B.start: 2, B.finish: 4}", "terminations.A.finish"),  # shorts strand A
+    ("{A.start: 1, A.finish: 2}", "terminations"),  # B.finish, a terminal, has no pin
+    ("{A.start: 1, C.start: 2, B.finish: 3}", "terminations.C.start"),
+    ("{A.start: true, B.finish: 2}", "terminations.A.start"),
+    ("[1, 2]", "terminations"),
+])
+def test_bad_terminations_are_refused_at_their_field(terms, field):
+    from windsheet.errors import InputError
+
+    with pytest.raises(InputError) as exc:
+        bifilar(terms)
+    assert exc.value.path == field
