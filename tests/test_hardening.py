@@ -30,7 +30,7 @@ runner = CliRunner()
 
 SAMPLE_DOCS = [yaml.safe_load(p.read_text()) for p in sample_orders()]
 MEASURED_DOCS = [yaml.safe_load(p.read_text()) for p in sorted(SAMPLES.glob("*.measured.yaml"))]
-SECTIONS = {"job", "form", "wire", "winding", "hookup", "duty", "tolerances", "insulation", "test"}
+SECTIONS = {"job", "form", "wire", "winding", "hookup", "duty", "tolerances", "insulation", "test", "terminations"}
 PROPERTY = settings(max_examples=200, deadline=None, derandomize=True,
                     suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 

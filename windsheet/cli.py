@@ -81,7 +81,13 @@ def summary_lines(p: dict) -> list[str]:
     row("Fit", f"{fit['slots_per_layer']} slots per layer, traverse used {eng(fit['traverse_used_m'], 'm')}"
         + (f" of {eng(fit['traverse_m'], 'm')}" if fit.get("traverse_m") else "")
         + f", build {eng(fit['build_m'], 'm')}")
+    place = fit.get("placement") or {}
+    if place.get("margin_m") or place.get("bare_start_m", 0) > 1e-5:
+        row("Placement", f"first turn {eng(place['first_turn_m'], 'm')} from the start end"
+            + (f", margin tape {eng(place['margin_m'], 'm')} each end" if place.get("margin_m") else ""))
     row("Hookup", hookup_words(p["hookup"]))
+    if p.get("terminations"):
+        row("Pins", ", ".join(f"pin {t['pin']} {' + '.join(t['ends'])}" for t in p["terminations"]))
     for s in p["strands"]:
         row(f"Strand {s['id']}", f"{eng(s['inductance_H'], 'H')}, {eng(s['resistance_20C_ohm'], 'Ω')} at 20 °C, "
             f"{s['wire_length_m']:.2f} m ({s['wire_length_with_scrap_m']:.2f} m with scrap), "
