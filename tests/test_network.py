@@ -94,3 +94,18 @@ def test_separate_windings_offset():
     res = separate_windings(LM, np.array([1.0, 1.0]), between=100.0)
     assert np.allclose(res.end_potential, [[0, 1], [100, 101]])
     assert res.inductance == L1
+
+
+def test_separate_windings_need_a_pin_for_every_end():
+    # Each strand of a separate hookup is its own winding: all four ends come out (T1..T4).
+    from windsheet.network import HookupError, brought_out, named_hookup, pin_assignment
+
+    joins, terms = named_hookup("separate", 2)
+    out = brought_out("separate", terms, "AB")
+    assert out == ["A.start", "A.finish", "B.start", "B.finish"]
+    pins = pin_assignment({"A.start": 1, "A.finish": 2, "B.start": 5, "B.finish": 6}, joins, terms, out, 2)
+    assert [p["pin"] for p in pins] == ["1", "2", "5", "6"]
+    with pytest.raises(HookupError, match="B.finish"):
+        pin_assignment({"A.start": 1, "A.finish": 2, "B.start": 5}, joins, terms, out, 2)
+    with pytest.raises(HookupError, match="short"):  # two windings on one pin
+        pin_assignment({"A.start": 1, "A.finish": 2, "B.start": 2, "B.finish": 6}, joins, terms, out, 2)

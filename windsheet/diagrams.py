@@ -88,19 +88,10 @@ def _coil_path(x0, x1, y, bumps=5):
 
 
 def winding_terminals(hookup: dict, strand_ids) -> list[str]:
-    """The ends brought out as terminals, in T1, T2, … order.
+    """The ends brought out as terminals, in T1, T2, … order (see :func:`windsheet.network.brought_out`)."""
+    from .network import brought_out
 
-    A ``separate`` hookup lists only the first winding's pair; every strand
-    there is its own winding, so each strand's start and finish follow as
-    T3/T4, T5/T6, ….
-    """
-    terminals = [str(t) for t in hookup.get("terminals") or []]
-    if hookup.get("name") == "separate":
-        for s in strand_ids:
-            for end in (f"{s}.start", f"{s}.finish"):
-                if end not in terminals:
-                    terminals.append(end)
-    return terminals
+    return brought_out(hookup.get("name") or "", hookup.get("terminals"), strand_ids)
 
 
 def _nets(hookup):

@@ -154,6 +154,19 @@ def check_hookup(joins, terminals, strands):
     return node_of, t1, t2, n
 
 
+def brought_out(name: str, terminals, strand_ids) -> list[str]:
+    """The ends brought out as terminals, in T1, T2, … order.
+
+    A ``separate`` hookup lists only the first winding's pair; every strand
+    there is its own winding, so each strand's start and finish follow as
+    T3/T4, T5/T6, ….
+    """
+    out = [str(t) for t in terminals or []]
+    if name == "separate":
+        out += [e for s in strand_ids for e in (f"{s}.start", f"{s}.finish") if e not in out]
+    return out
+
+
 def _pin_label(value, where):
     if isinstance(value, bool) or not isinstance(value, (int, str)) or not re.fullmatch(
             r"[A-Za-z0-9][A-Za-z0-9+/-]{0,7}", str(value).strip()):

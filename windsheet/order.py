@@ -19,7 +19,8 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Fiel
 
 from .errors import InputError, field_name, join_path
 from .fileio import parse_yaml_bytes, read_limited
-from .network import NAMED_HOOKUPS, STRAND_IDS, HookupError, check_hookup, named_hookup, pin_assignment
+from .network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
+                      pin_assignment)
 from .units import SINE_CREST, parse_percent, parse_quantity, read_quantity
 
 #: Orders are small; anything larger is not an order. [bytes]
@@ -475,8 +476,7 @@ class Order:
             raise InputError("form", "a bobbin needs either diameter or mean_turn_length")
         self.pins = []
         if doc.terminations is not None:
-            out = self.terminals + ([f"{s}.{e}" for s in self.strand_ids for e in ("start", "finish")
-                                     if f"{s}.{e}" not in self.terminals] if self.hookup_name == "separate" else [])
+            out = brought_out(self.hookup_name, self.terminals, self.strand_ids)
             try:
                 self.pins = pin_assignment(doc.terminations, self.joins, self.terminals, out, w.strands)
             except HookupError as exc:
