@@ -345,6 +345,11 @@ def test_cross_section_shows_every_listed_slot_and_the_layer_tape(stem):
         drawn = sorted((int(c.get("data-slot")), c.get("data-strand")) for c in g.iter(f"{SVG}circle"))
         listed = sorted((s["slot"], s["strand"]) for s in layer["slots"])
         assert drawn == listed
+        # Each slot's letter is a stroked glyph that refers to its strand's path.
+        marks = [u.get("data-mark") for u in g.iter(f"{SVG}use")]
+        assert marks == [s for _, s in sorted((s["slot"], s["strand"]) for s in layer["slots"])]
+    glyphs = {p.get("id") for p in root.iter(f"{SVG}path") if p.get("id", "").startswith("strand-")}
+    assert glyphs == {f"strand-{s['strand']}" for layer in cs["layers"] for s in layer["slots"]}
     tapes = [r for r in root.iter(f"{SVG}rect") if r.get("data-tape")]
     assert len(tapes) == (len(cs["layers"]) - 1 if cs["tape_between_layers"] else 0)
 
@@ -395,6 +400,23 @@ def test_qc_record_has_a_column_for_every_serial_number(stem):
         assert u in text
     assert "Inspector" in text and "Date" in text
 
+
+
+def test_qc_cells_carry_tick_boxes_only_where_the_item_is_judged():
+    """P/F boxes are the cell's background (print.css); record-only items get none."""
+    p = sample_prediction("hl-0412-bifilar-aiding")
+    html = sample_sheet("hl-0412-bifilar-aiding")[0]
+    items = render.qc_items(p)
+    for it in items:
+        row = re.search(rf'<tr data-qc="{re.escape(it["key"])}">.*?</tr>', html, re.S).group(0)
+        cells = re.findall(r'<td class="unit (judged|recordonly)"></td>', row)
+        assert cells == ["judged" if it["judged"] else "recordonly"] * len(p["job"]["units"])
+    assert any(not it["judged"] for it in items) and any(it["judged"] for it in items)
+    # The stylesheet draws both boxes for judged cells and leaves record-only cells grey.
+    css = (render.TEMPLATES_DIR / "print.css").read_text()
+    rule = css[css.index("table.qc td.unit.judged"):]
+    rule = rule[:rule.index("}")]
+    assert rule.count("%3Crect x=") == 2 and "print-color-adjust: exact" in css
 
 # --- escaping and the URL fetcher ---------------------------------------------------------
 

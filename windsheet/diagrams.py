@@ -46,6 +46,33 @@ def _text(parent, x, y, text, **attrs):
     return t
 
 
+#: Strand letters drawn as strokes, 7 units tall about their centre.  A path costs
+#: the PDF renderer a fraction of a laid-out text run, and a cross-section has one per turn.
+_STRAND_GLYPHS = {
+    "A": "M-2.7 3.5L0-3.5L2.7 3.5M-1.6 0.9H1.6",
+    "B": "M-2.2 0H0.4A1.75 1.75 0 0 0 0.4-3.5H-2.2V3.5H0.6A1.75 1.75 0 0 0 0.6 0",
+    "C": "M2.4-2.3A2.9 3.5 0 1 0 2.4 2.3",
+    "D": "M-2.3-3.5V3.5H-0.6A2.9 3.5 0 0 0-0.6-3.5Z",
+}
+
+
+def _strand_mark(root, parent, x, y, strand, colour="#000000"):
+    """The strand's letter centred on (x, y): a stroked glyph, or text for any other name."""
+    if strand not in _STRAND_GLYPHS:
+        return _text(parent, x, y + 3.6, strand, text_anchor="middle", font_weight="bold",
+                     font_size="10", fill=colour)
+    ref = f"strand-{strand}"
+    if root.find(f"./defs/path[@id='{ref}']") is None:
+        defs = root.find("./defs")
+        if defs is None:
+            defs = ET.Element("defs")
+            root.insert(0, defs)
+        _el(defs, "path", id=ref, d=_STRAND_GLYPHS[strand], fill="none",
+            stroke_linecap="round", stroke_linejoin="round")
+    return _el(parent, "use", href=f"#{ref}", x=f"{x:.1f}", y=f"{y:.1f}", stroke=colour,
+               stroke_width="1.5", data_mark=strand)
+
+
 def _line(parent, x1, y1, x2, y2, **attrs):
     return _el(parent, "line", x1=f"{x1:.1f}", y1=f"{y1:.1f}", x2=f"{x2:.1f}", y2=f"{y2:.1f}",
                **attrs)
@@ -284,7 +311,8 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
     tape_h = 6.0 if tape else 0.0
     runs = [_with_gaps(layer) for layer in layers]
     width_cells = max([_run_width(r, cell, gap_w) for r in runs] + [cell * 4])
-    margin_l, margin_r = 64.0, 96.0
+    # Room on the left for margin tape clear of the layer labels and arrows.
+    margin_l, margin_r = (76.0 if (placement or {}).get("margin_m") else 64.0), 96.0
     width = margin_l + width_cells + margin_r
     base_y = 30.0 + len(layers) * (cell + tape_h) + 14.0
     height = base_y + (70.0 if vmax else 34.0)
@@ -321,14 +349,12 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
                     data_worst="1" if worst else None)
                 _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r="5.6", fill="#fff",
                     stroke="none")
-                _text(g, x + cell / 2, y + 3.6, s, text_anchor="middle", font_weight="bold",
-                      font_size="10")
+                _strand_mark(root, g, x + cell / 2, y, s)
             else:
                 _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r=f"{cell / 2 - 1:.1f}",
                     fill=STRAND_FILLS.get(s, "#ffffff"), stroke="#000", stroke_width="1.2",
                     data_slot=str(item["slot"]), data_strand=s)
-                _text(g, x + cell / 2, y + 4, s, text_anchor="middle", font_weight="bold",
-                      fill=STRAND_TEXT.get(s, "#000000"))
+                _strand_mark(root, g, x + cell / 2, y, s, STRAND_TEXT.get(s, "#000000"))
             x += cell
         n = counts[lay] if lay < len(counts) else None
         if n:
