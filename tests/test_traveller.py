@@ -734,6 +734,49 @@ def test_the_pdf_worker_falls_back_to_rendering_in_process_if_it_dies():
         worker.close()
 
 
+@pytest.mark.parametrize("argv, wanted", [
+    (["traveller", "{order}", "-o", "x.pdf"], True),
+    (["traveller", "{order}", "--out=x.pdf", "--paper", "letter"], True),
+    (["traveller", "{order}", "-o", "x"], True),                      # no extension: PDF
+    (["traveller", "{order}", "-o", "x.pdf", "--format", "html"], False),
+    (["traveller", "{order}", "-o", "x.HTML"], False),
+    (["traveller", "{order}", "-o", "x.pdf", "--html"], False),
+    (["traveller", "{order}", "{order}", "-o", "out"], False),        # a batch has its own workers
+    (["traveller", "{folder}", "-o", "out"], False),
+    (["traveller", "samples/*.yaml", "-o", "out"], False),
+    (["size", "{order}"], False),
+    ([], False),
+])
+def test_the_early_pdf_worker_starts_only_for_one_pdf(argv, wanted, tmp_path):
+    from windsheet.pdf_worker import wants_one_pdf
+
+    order = tmp_path / "o.yaml"
+    order.write_text("x")
+    args = [a.format(order=order, folder=tmp_path) for a in argv]
+    assert wants_one_pdf(args) is wanted
+
+
+def test_an_early_worker_is_taken_over_or_stopped(monkeypatch, tmp_path):
+    from windsheet import pdf_worker
+
+    monkeypatch.setenv("WINDSHEET_PDF_WORKER", "1")
+    monkeypatch.setattr(pdf_worker.os, "cpu_count", lambda: 2)
+    argv = ["traveller", str(SAMPLES[0]), "-o", str(tmp_path / "x.pdf")]
+    pdf_worker.start_early(argv)
+    early = pdf_worker._early
+    assert isinstance(early, pdf_worker.PdfWorker)
+    html, in_process = sample_sheet(SAMPLE_IDS[0])
+    with pdf_worker.pdf_renderer(True) as pdf:
+        assert pdf is early and pdf(html) == in_process
+    assert pdf_worker._early is None and not early._proc.is_alive()
+    # Started, then not wanted (the order turned out to want HTML): stopped, and rendering is in process.
+    pdf_worker.start_early(argv)
+    early = pdf_worker._early
+    with pdf_worker.pdf_renderer(False) as pdf:
+        assert pdf is render.render_pdf
+    assert pdf_worker._early is None and not early._proc.is_alive()
+
+
 def test_a_refused_order_writes_nothing_with_the_pdf_worker_on(tmp_path, monkeypatch):
     monkeypatch.setenv("WINDSHEET_PDF_WORKER", "1")
     order = order_yaml(tmp_path, "fail.yaml", FAILING_ORDER)
