@@ -154,8 +154,9 @@ def bifilar(terms):
 
 def test_terminations_reach_the_diagram_and_the_procedure():
     p = bifilar("{A.start: 1, a.finish: 2, B.start: 2, B.finish: 4}")
-    assert p["terminations"] == [{"pin": "1", "ends": ["A.start"]}, {"pin": "2", "ends": ["A.finish", "B.start"]},
-                                 {"pin": "4", "ends": ["B.finish"]}]
+    assert [(t["pin"], t["ends"]) for t in p["terminations"]] == [
+        ("1", ["A.start"]), ("2", ["A.finish", "B.start"]), ("4", ["B.finish"])]
+    assert len({t["node"] for t in p["terminations"]}) == 3  # three nodes, one pin each
     steps = {s["title"]: s for s in render.procedure_steps(p)}
     assert steps["Terminate on the pins"]["record"] == ["pin 1", "pin 2", "pin 4"]
     assert "pin 4 = B.finish (T2)" in steps["Terminate on the pins"]["detail"]
@@ -166,6 +167,38 @@ def test_terminations_reach_the_diagram_and_the_procedure():
     root = ET.fromstring(wiring_svg(p["hookup"], ["A", "B"], pins=pins_of_ends(p)))
     pins = {el.get("data-pin") for el in root.iter() if el.get("data-pin")}
     assert pins == {"1", "2", "4"}
+
+
+def test_a_joint_lead_on_a_pin_is_routed_to_that_pin():
+    # The default joint route would say "joint made at the start end"; on a pin it ends there.
+    p = bifilar("{A.start: 1, A.finish: 2, B.start: 2, B.finish: 4}")
+    steps = {s["title"]: s for s in render.procedure_steps(p)}
+    joint = steps["Make the joint A.finish + B.start"]["detail"]
+    assert "to pin 2" in joint and "start end" not in joint
+    from windsheet.traveller_sheet import lead_notes
+
+    assert "start end" not in dict(lead_notes(p))["A.finish"]
+    # Without pins the joint is made in the winding, at the start end.
+    loose = predict(parse_order(BIFILAR.replace("terminations: {terms}\n", "").format(
+        form=BOBBIN, turns=35, extra=", strands: 2").encode()))
+    steps = {s["title"]: s for s in render.procedure_steps(loose)}
+    assert "joint made at the start end" in steps["Make the joint A.finish + B.start"]["detail"]
+
+
+def test_a_node_spread_over_two_pins_is_linked_for_the_bench():
+    # A joint whose ends sit on two pins is open until the board joins them (common practice
+    # on PCB-mount parts): the operator links the pins for every bench test.
+    p = bifilar("{A.start: 1, A.finish: 2, B.start: 3, B.finish: 4}")
+    nodes = {t["pin"]: t["node"] for t in p["terminations"]}
+    assert nodes["2"] == nodes["3"] and len(set(nodes.values())) == 3
+    steps = {s["title"]: s for s in render.procedure_steps(p)}
+    term = steps["Terminate on the pins"]
+    assert "Pins 2 and 3 carry one node (A.finish + B.start)" in term["detail"]
+    assert term["record"] == ["pin 1", "pin 2", "pin 3", "pin 4", "link 2+3"]
+    assert "link them on the bench" in steps["Make the joint A.finish + B.start"]["detail"]
+    # One pin per node: no link asked for.
+    one = bifilar("{A.start: 1, A.finish: 2, B.start: 2, B.finish: 4}")
+    assert not any(r.startswith("link") for s in render.procedure_steps(one) for r in s["record"])
 
 
 @pytest.mark.parametrize("terms, field", [

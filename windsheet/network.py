@@ -191,7 +191,9 @@ def pin_assignment(terminations, joins, terminals, brought_out, strands) -> list
     Returns
     -------
     list of dict
-        ``{"pin", "ends"}`` per pin, in the order the pins are first named.
+        ``{"pin", "ends", "node"}`` per pin, in the order the pins are first named;
+        ``node`` numbers the hookup's nodes, so pins with one ``node`` are joined
+        only by what they are soldered into (the board, or a bench link).
 
     Raises
     ------
@@ -224,7 +226,7 @@ def pin_assignment(terminations, joins, terminals, brought_out, strands) -> list
     missing = [e for e in brought_out if e not in seen]
     if missing:
         raise HookupError("terminations", f"gives no pin to {', '.join(missing)}; every lead brought out needs one")
-    return [{"pin": pin, "ends": ends} for pin, ends in pins.items()]
+    return [{"pin": pin, "ends": ends, "node": int(node_at_pin[pin])} for pin, ends in pins.items()]
 
 
 def _mna_matrix(L, R, node_of, n, grounded, omega):

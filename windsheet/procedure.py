@@ -7,7 +7,8 @@ from __future__ import annotations
 
 from .fmt import length
 from .sheet_pdf import henry, volt
-from .traveller_sheet import form_rows, pin_rows, pins_of_ends, terminal_names
+from .traveller_sheet import (form_rows, lead_route_words, linked_pins, pin_rows, pins_of_ends,
+                              terminal_names)
 
 
 def _step(title, detail="", record=()):
@@ -67,7 +68,7 @@ def procedure_steps(p: dict) -> list[dict]:
         start_text += (" Mark the start position on the core; the finish must stop short of it "
                        "by the gap shown below.")
     routes = {lead["lead"]: lead for lead in p.get("leads") or []}
-    start_routes = sorted({routes[f"{s}.start"]["route_text"] for s in ids if f"{s}.start" in routes})
+    start_routes = sorted({lead_route_words(p, routes[f"{s}.start"]) for s in ids if f"{s}.start" in routes})
     if start_routes:
         start_text += f" Start lead{'s' if n > 1 else ''}: {'; '.join(start_routes)}."
     if not toroid:
@@ -104,7 +105,7 @@ def procedure_steps(p: dict) -> list[dict]:
                            f"Stop so that {gap_text} of the core stays bare between the starts and "
                            "the finishes (common practice: 20–30°); start and finish leads must "
                            "not touch or cross.", ["gap checked"]))
-    finish_routes = sorted({f"{end}: {r['route_text']}" for end, r in routes.items()
+    finish_routes = sorted({f"{end}: {lead_route_words(p, r)}" for end, r in routes.items()
                             if end.endswith(".finish")})
     steps.append(_step("Secure the finish" + ("es" if n > 1 else ""),
                        f"Tape or tie the finish{'es' if n > 1 else ''} leaving {lead}; "
@@ -142,12 +143,14 @@ def procedure_steps(p: dict) -> list[dict]:
             [f"{a}+{b} aiding / opposing" for a, b in pairs]))
         pin_of = pins_of_ends(p)
         for j in joins:
-            via = [routes[e]["route_text"] for e in j if e in routes and e.endswith(".finish")
+            via = [lead_route_words(p, routes[e]) for e in j if e in routes and e.endswith(".finish")
                    and routes[e].get("joint") and ".start" in routes[e]["joint"]]
             on = sorted({pin_of[e] for e in j if e in pin_of})
             how = ("Per the wiring diagram: strip the enamel, twist, solder; sleeve the joint." if not on else
                    f"Made on pin {' and pin '.join(on)}: strip each end, wrap it on its pin and solder "
-                   "it there when terminating" + (" (the pins are one node)" if len(on) > 1 else "") + "."
+                   "it there when terminating"
+                   + (" (the board joins these pins; link them on the bench, see Terminate)"
+                      if len(on) > 1 else "") + "."
                    + ("" if all(e in pin_of for e in j) else
                       " Ends without a pin are twisted and soldered to the others first."))
             steps.append(_step(f"Make the joint {' + '.join(j)}",
@@ -242,11 +245,17 @@ def _terminate_step(p: dict, ids) -> dict:
     if not rows:
         return _step("Sleeve and terminate", f"Sleeve every lead; terminate and mark the terminals: {sleeve}.",
                      ["marked"])
+    links = linked_pins(p)
+    link_text = "".join(
+        f" Pins {' and '.join(pins)} carry one node ({' + '.join(ends)}) that only the board joins: "
+        "link them with a short wire for every bench test, and remove the link before dispatch."
+        for pins, ends in links)
     return _step("Terminate on the pins",
                  "Sleeve every lead up to its pin; wrap each end on its pin and solder it: "
                  + "; ".join(f"{pin} = {ends}" for pin, ends in rows)
                  + ". Check each pin against the wiring diagram before soldering; a lead on the wrong pin "
-                 "reads as a wiring fault at sign-off.", [pin for pin, _ in rows])
+                 "reads as a wiring fault at sign-off." + link_text,
+                 [pin for pin, _ in rows] + [f"link {'+'.join(pins)}" for pins, _ in links])
 
 
 def _core_assembly_step(p: dict) -> dict:

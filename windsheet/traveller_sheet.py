@@ -85,11 +85,39 @@ def traveller_context(p: dict, forced: bool = False) -> dict:
     }
 
 
+#: A joint lead's route in words when its joint is made on a pin, not in the winding.
+_ROUTE_TO_PIN = {"back-over-winding": "laid back over the winding to pin {pin}, where the joint is made"}
+
+
+def lead_route_words(p: dict, lead: dict) -> str:
+    """A lead's route in words; a joint lead ends on its joint's pin when the order names one."""
+    pin_of = pins_of_ends(p)
+    ends = [lead["lead"]] + [e.strip() for e in str(lead.get("joint") or "").split("+") if e.strip()]
+    pin = next((pin_of[e] for e in ends if e in pin_of), None)
+    if pin is not None and lead.get("joint") and lead.get("route") in _ROUTE_TO_PIN:
+        return _ROUTE_TO_PIN[lead["route"]].format(pin=pin)
+    return lead.get("route_text") or lead.get("route") or ""
+
+
+def linked_pins(p: dict) -> list[tuple[list[str], list[str]]]:
+    """``(pins, ends)`` for every node the order spreads over more than one pin.
+
+    Such pins are joined only by the board they are soldered into, so on the
+    bench they must be linked for every test.
+    """
+    by_node = {}
+    for t in p.get("terminations") or []:
+        if "node" in t:
+            by_node.setdefault(t["node"], []).append(t)
+    return [([str(t["pin"]) for t in ts], [e for t in ts for e in t["ends"]])
+            for ts in by_node.values() if len(ts) > 1]
+
+
 def lead_notes(p: dict) -> list[tuple[str, str]]:
     """``(end, route in words)`` for every lead the prediction routes, joints named."""
     out = []
     for lead in p.get("leads") or []:
-        how = lead.get("route_text") or lead.get("route") or ""
+        how = lead_route_words(p, lead)
         if lead.get("joint"):
             how = f"{how} (joint {lead['joint']})"
         out.append((lead["lead"], how))
