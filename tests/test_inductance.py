@@ -10,24 +10,26 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad
 
-from windsheet.inductance import (
-    MU0,
+from windsheet.coil_formulas import (
     brooks_inductance,
     cored_strand_matrix,
     current_sheet_inductance,
-    loop_self_inductance,
     lundin_nagaoka,
-    maxwell_mutual,
     nagaoka_coefficient,
     rosa_corrected_inductance,
     rosa_km,
     rosa_ks,
-    strand_matrix,
-    strand_matrix_bruteforce,
     toroid_al,
     two_wire_inductance_per_length,
     wheeler_multilayer,
     wheeler_single_layer,
+)
+from windsheet.inductance import (
+    MU0,
+    loop_self_inductance,
+    maxwell_mutual,
+    strand_matrix,
+    strand_matrix_bruteforce,
 )
 from windsheet.layout import WindingDoesNotFit, cylinder_layout, toroid_layout
 

@@ -12,6 +12,7 @@ import math
 
 import numpy as np
 
+from . import coil_formulas as cf
 from . import inductance as ind
 from . import layout as lay
 from . import fmt, stress
@@ -108,7 +109,7 @@ def _al(order: Order):
     if isinstance(f, ToroidForm):
         if f.al is not None:
             return f.al
-        return float(ind.toroid_al(f.permeability, f.inner_diameter, f.outer_diameter, f.height))
+        return float(cf.toroid_al(f.permeability, f.inner_diameter, f.outer_diameter, f.height))
     if isinstance(f, BobbinForm):
         return f.al
     return None
@@ -124,11 +125,11 @@ def _inductance_matrix(order: Order, wire, layout, kernels=None):
     if al is None:
         return ind.strand_matrix(layout, kernels)
     S = layout.strands
-    L = ind.cored_strand_matrix([layout.turns_per_strand] * S, al, order.doc.winding.coupling)
+    L = cf.cored_strand_matrix([layout.turns_per_strand] * S, al, order.doc.winding.coupling)
     if S > 1:
         # Leakage between side-by-side strands on a core: the two-wire line
         # inductance along the strand, split between the pair (common practice).
-        lp = float(ind.two_wire_inductance_per_length(wire.overall_diameter, wire.copper_diameter))
+        lp = float(cf.two_wire_inductance_per_length(wire.overall_diameter, wire.copper_diameter))
         L = L + np.eye(S) * lp * layout.strand_length() / 2
     return L
 
@@ -505,8 +506,8 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     rosa = None
     if isinstance(doc.form, CylinderForm) and layout.layers == 1:
         r0 = float(layout.r[0])
-        current_sheet = float(ind.current_sheet_inductance(r0, turns * layout.pitch, turns))
-        rosa = float(ind.rosa_corrected_inductance(r0, layout.pitch, wire.copper_diameter, turns))
+        current_sheet = float(cf.current_sheet_inductance(r0, turns * layout.pitch, turns))
+        rosa = float(cf.rosa_corrected_inductance(r0, layout.pitch, wire.copper_diameter, turns))
 
     # Terminal current at duty: the order's current, or the voltage over the impedance.
     w = 2 * math.pi * duty.frequency
