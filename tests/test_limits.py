@@ -37,8 +37,8 @@ def refusal(doc):
 
 
 def test_probe_order_of_four_strands_100k_turns_200_layers_is_refused_before_layout(monkeypatch):
-    import windsheet.predict as P
-    monkeypatch.setattr(P, "_place_turns", lambda *a: pytest.fail("laid out an order over budget"))
+    import windsheet.sizing as S
+    monkeypatch.setattr(S, "place_turns", lambda *a: pytest.fail("laid out an order over budget"))
     err = refusal(order(4, 100_000, 200, 500))
     assert err.path == "winding.turns"
     assert "400000 turns in all" in err.message and f"{limits.TURNS_IN_ALL:,}" in err.message

@@ -15,7 +15,8 @@ from windsheet import wiring_hypotheses as wh
 from windsheet.measured import measured_from_dict
 from windsheet.network import terminal_reading
 from windsheet.order import load_order, parse_order
-from windsheet.predict import predict, strand_values_at_turns
+from windsheet.predict import predict
+from windsheet.sizing import strand_values_at_turns
 from windsheet.signoff import evaluate_signoff, exit_status
 
 from conftest import SAMPLES

@@ -12,7 +12,8 @@ from windsheet.cli import app
 from windsheet.errors import InputError
 from windsheet.inductance import loop_self_inductance
 from windsheet.order import parse_order
-from windsheet.predict import _bracket_turns, predict
+from windsheet.predict import predict
+from windsheet.target_turns import _bracket_turns
 
 from conftest import SAMPLES
 

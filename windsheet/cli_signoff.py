@@ -213,7 +213,7 @@ def _sign(reg, order, readings, who: str, *, dry_run: bool = False, sheet_to: Op
 
 def _resizer(order):
     """The engine re-sizing this order at another turn count, for the diagnosis."""
-    from .predict import strand_values_at_turns
+    from .sizing import strand_values_at_turns
 
     return functools.partial(strand_values_at_turns, order)
 

@@ -13,9 +13,8 @@ import math
 import numpy as np
 
 from . import coil_formulas as cf
-from . import inductance as ind
 from . import layout as lay
-from . import fmt, stress
+from . import sizing, stress
 from .errors import InputError
 from .ac_resistance import winding_ac_ratio
 from .fast_front import DEFAULT_GROUND_CAPACITANCE_F
@@ -23,14 +22,12 @@ from . import heating
 from .insulation import hipot_voltage
 from .leads import lead_routes
 from .remedies import advice, find_remedies
-from .limits import check_engine_work, check_turns_in_all
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
 from .qc_lines import required_lines
+from .target_turns import solve_turns
 from .wire import copper_mass, dc_resistance
 
-#: Most turns per strand sized, as for an order's winding.turns.
-MAX_TURNS = 100_000
 
 HOOKUP_TEXT = {
     "single": "one strand between the two terminals",
@@ -41,235 +38,6 @@ HOOKUP_TEXT = {
     "separate": "each strand a winding of its own, brought out on its own leads",
     "custom": "joins and terminals as listed in the order",
 }
-
-
-def _layout(order: Order, wire, turns: int):
-    """The order's layout at ``turns`` per strand, within the work budgets (windsheet.limits)."""
-    field = "winding.turns" if order.doc.winding.turns else "winding.target_inductance"
-    check_turns_in_all(turns, order.doc.winding.strands, field)
-    layout = _place_turns(order, wire, turns)
-    check_engine_work(layout.turns_per_strand, layout.layers, layout.strands, field)
-    return layout
-
-
-def _place_turns(order: Order, wire, turns: int):
-    f, w = order.doc.form, order.doc.winding
-    layers = None if w.layers == "auto" else w.layers
-    args = dict(copper_diameter=wire.copper_diameter, overall_diameter=wire.overall_diameter,
-                strands=w.strands, turns=turns, layers=layers, pitch=w.pitch, tape=order.tape)
-    # Checked first, so that a style the construction cannot take is refused at its own field.
-    try:
-        lay.layer_geometry(w.layer_style, order.tape, w.pitch or w.strands * wire.overall_diameter,
-                           w.strands, wire.overall_diameter,
-                           (w.pitch or w.strands * wire.overall_diameter) / w.strands
-                           if w.strand_spacing == "even" else wire.overall_diameter)
-    except ValueError as exc:
-        raise InputError("winding.layer_style", str(exc)) from None
-    args.update(layer_style=w.layer_style, strand_spacing=w.strand_spacing)
-    if w.spread is not None and not isinstance(f, ToroidForm):
-        raise InputError("winding.spread", "applies to a toroid only (spread round the core)")
-    if not isinstance(f, ToroidForm):
-        width, across = _winding_width(order)
-    try:
-        if isinstance(f, CylinderForm):
-            # Enamel is only proven to survive a mandrel of the wire's own diameter
-            # (IEC 60851-3 mandrel winding test, memory); a thinner form is refused.
-            if f.diameter < wire.overall_diameter:
-                raise lay.FormTooSmall(
-                    f"{f.diameter * 1e3:.3f} mm is smaller than the wire's {wire.overall_diameter * 1e3:.3f} mm "
-                    "overall diameter: the wire is thicker than the form")
-            return lay.cylinder_layout(f.diameter, width, max_build=f.max_build, across=across, **args)
-        if isinstance(f, ToroidForm):
-            spread = "even" if w.spread in (None, "even") else math.degrees(w.spread)
-            return lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height,
-                                     gap_deg=math.degrees(f.gap), spread=spread, **args)
-        return lay.bobbin_layout(width, f.height, diameter=f.diameter,
-                                 mean_turn_length=f.mean_turn_length, across=across, **args)
-    except lay.FormTooSmall as exc:
-        raise InputError("form.inner_diameter" if isinstance(f, ToroidForm) else "form.diameter", str(exc)) from None
-    except lay.WindingDoesNotFit as exc:
-        raise InputError("winding.turns" if order.doc.winding.turns else "winding.target_inductance",
-                         f"does not fit: {exc}") from None
-
-
-def _winding_width(order: Order) -> tuple[float, str]:
-    """The traverse left for turns once margin tape and the start offset are off, and its name. [m]"""
-    f, start = order.doc.form, order.doc.winding.start
-    traverse, name = (f.width, "the bobbin's width") if isinstance(f, BobbinForm) else (f.traverse, "the traverse")
-    width = lay.usable_traverse(traverse, order.margin, start.end, start.offset)
-    if width <= 0:
-        field = "form.margin_tape" if order.margin and 2 * order.margin >= traverse else "winding.start.offset"
-        raise InputError(field, f"leaves no room to wind: {name} is {traverse * 1e3:.3f} mm")
-    less = [w for w, on in (("margins", order.margin), ("start offset", start.offset and start.end != "centre")) if on]
-    return width, (f"{name} less its {' and '.join(less)} ({width * 1e3:.3f} mm)" if less else name)
-
-
-def _al(order: Order):
-    f = order.doc.form
-    if isinstance(f, ToroidForm):
-        if f.al is not None:
-            return f.al
-        return float(cf.toroid_al(f.permeability, f.inner_diameter, f.outer_diameter, f.height))
-    if isinstance(f, BobbinForm):
-        return f.al
-    return None
-
-
-def _strand_lengths(order: Order, layout):
-    """Wire per strand: its turns plus two leads. [m]"""
-    return layout.strand_length() + 2 * order.doc.winding.lead_length
-
-
-def _inductance_matrix(order: Order, wire, layout, kernels=None):
-    al = _al(order)
-    if al is None:
-        return ind.strand_matrix(layout, kernels)
-    S = layout.strands
-    L = cf.cored_strand_matrix([layout.turns_per_strand] * S, al, order.doc.winding.coupling)
-    if S > 1:
-        # Leakage between side-by-side strands on a core: the two-wire line
-        # inductance along the strand, split between the pair (common practice).
-        lp = float(cf.two_wire_inductance_per_length(wire.overall_diameter, wire.copper_diameter))
-        L = L + np.eye(S) * lp * layout.strand_length() / 2
-    return L
-
-
-def _network(order: Order, L, R, frequency):
-    if order.hookup_name == "separate":
-        duty = order.doc.duty
-        between = duty.between_windings if duty.between_windings is not None else duty.voltage
-        return separate_windings(L, R, between / duty.voltage if duty.voltage > 0 else 0.0)
-    return solve_network(L, R, order.joins, order.terminals, frequency, hookup=order.hookup_name)
-
-
-def _terminal_inductance(order, wire, turns, kernels=None):
-    layout = _layout(order, wire, turns)
-    L = _inductance_matrix(order, wire, layout, kernels)
-    R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter, conductor=wire.conductor)
-    return _network(order, L, R, order.doc.test.frequency).inductance
-
-
-def _estimate_turns(values, target):
-    """Turns per strand estimated to give the target, from the counts sized so far.
-
-    ``values`` maps counts tried to their terminal inductance (``None``: not
-    sized).  Terminal inductance grows about as a power of the turns, so the
-    estimate is a secant on log L against log N through the two sized counts
-    nearest the target; with one count only the power is taken as 2.
-    """
-    sized = sorted((n for n, v in values.items() if v is not None),
-                   key=lambda n: abs(math.log(values[n] / target)))
-    a = sized[0]
-    power = 2.0
-    if len(sized) > 1:
-        b = sized[1]
-        if values[b] != values[a]:
-            power = min(4.0, max(0.5, math.log(values[b] / values[a]) / math.log(b / a)))
-    return a * (target / values[a]) ** (1.0 / power)
-
-
-def _bracket_turns(inductance_at, target, start=10, max_turns=MAX_TURNS):
-    """Adjacent whole turn counts ``lo``, ``lo + 1`` either side of the target.
-
-    ``inductance_at(n)`` gives the terminal inductance at ``n`` turns per
-    strand, or ``None`` when ``n`` turns cannot be sized (they do not fit,
-    or exceed the work budget).  Inductance rises with the turns, so counts
-    that overshoot and counts that cannot be sized bound the search from
-    above.  A secant in log-log takes a handful of evaluations, each kept
-    inside the bracket; after eight the search halves the bracket instead.
-
-    Returns
-    -------
-    lo, hi : int or None
-        Largest count tried at or below the target (``None``: even one turn
-        overshoots) and the smallest tried above it or not sizable.
-    values : dict
-        Every count tried and its inductance (``None``: not sized). [H]
-    need : float or None
-        Set when the search stopped because the target needs at least ``hi``
-        turns, which cannot be sized, or more than ``max_turns``: the
-        estimated turns per strand.
-    """
-    values, lo, hi, n = {}, None, None, max(1, min(start, max_turns))
-    for step in range(200):
-        v = values[n] = inductance_at(n)
-        if v is None or v > target:
-            hi = n if hi is None else min(hi, n)
-        else:
-            lo = n if lo is None else max(lo, n)
-        if hi == 1 or (lo is not None and hi is not None and hi - lo == 1):
-            break
-        if all(x is None for x in values.values()):
-            n = max(1, hi // 2)                       # nothing sized yet: look lower
-            continue
-        guess = _estimate_turns(values, target)
-        if (hi is None and guess > max_turns) or (hi is not None and values[hi] is None and guess >= hi):
-            return lo, hi, values, guess
-        if step >= 8 and lo is not None and hi is not None:
-            n = (lo + hi) // 2
-        else:
-            n = int(round(guess))
-            n = max(n, lo + 1) if lo is not None else n
-            n = min(n, hi - 1) if hi is not None else n
-            n = max(1, min(n, max_turns))
-    return lo, hi, values, None
-
-
-def solve_turns(order: Order, wire):
-    """Turns per strand for the order's target inductance.
-
-    Brackets the target between two adjacent whole turn counts (a few
-    evaluations of the engine, sharing their kernels) and takes the nearer
-    by log error.  A target
-    that no whole count meets within the order's inductance tolerance is
-    refused, naming the nearest counts and what they give.
-    """
-    target = order.doc.winding.target_inductance
-    tol = order.doc.tolerances.inductance
-    errors = {}
-    kernels = {}                 # one form and wire throughout: steps share their kernels
-
-    def inductance_at(n):
-        try:
-            got = _terminal_inductance(order, wire, n, kernels)
-        except InputError as exc:
-            errors[n] = exc
-            return None
-        if got <= 0:
-            raise InputError("hookup", "this hookup has no net inductance; a target inductance cannot be met")
-        return got
-
-    lo, hi, values, need = _bracket_turns(inductance_at, target)
-    if need is not None and hi is None:
-        raise InputError("winding.target_inductance", f"needs about {need:.0f} turns per strand, more than the "
-                         f"{MAX_TURNS} windsheet sizes: choose a larger form, a core, or a smaller target")
-    candidates = {k: values[k] for k in (lo, hi) if k is not None and values.get(k) is not None}
-    if not candidates:
-        raise errors[hi]                                   # not even one turn can be sized
-    best = min(candidates, key=lambda k: abs(math.log(candidates[k] / target)))
-    if abs(candidates[best] / target - 1) > tol:
-        if hi in errors:                                   # the turns needed cannot be sized
-            raise InputError(errors[hi].path, f"needs {hi} or more turns per strand: {errors[hi].message}")
-        raise InputError("winding.target_inductance", _unreachable(target, tol, lo, hi, values))
-    exact = best * math.sqrt(target / candidates[best])
-    return best, {"inductance_H": target, "turns_exact": exact, "turns_chosen": best,
-                  "inductance_at_chosen_H": candidates[best],
-                  "error": candidates[best] / target - 1, "fits": True}
-
-
-def _unreachable(target, tol, lo, hi, values):
-    """Why no whole turn count meets the target, with the nearest counts' values."""
-    def henry(x, trim=False):
-        return fmt.eng(x, "H", trim=trim, sep=" ")
-
-    band = "±" + fmt.percent(tol).replace(fmt.NBSP, " ")
-    if lo is None:
-        near = f"the fewest, 1 turn, gives {henry(values[1])}"
-    else:
-        near = f"{lo} turn{'s give' if lo > 1 else ' gives'} {henry(values[lo])}, {hi} turns {henry(values[hi])}"
-    return (f"{henry(target, trim=True)} cannot be met in whole turns within the {band} inductance tolerance: "
-            f"{near}. Give a target within {band} of a whole-turn value, widen the tolerance, "
-            "or change the form or wire")
 
 
 def _hz(x):
@@ -325,7 +93,7 @@ def _heat(order: Order, wire, layout, length, L):
 
     def loss_at(t):
         r = dc_resistance(length, wire.copper_diameter, t, conductor=wire.conductor)
-        i = _strand_currents(duty, _network(order, L, r, duty.frequency))
+        i = _strand_currents(duty, sizing.network_at(order, L, r, duty.frequency))
         return float(np.sum(i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
 
     area, size = _outer_surface(order, layout)
@@ -477,23 +245,23 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         turns, target = solve_turns(order, wire)
     else:
         turns = doc.winding.turns
-    layout = _layout(order, wire, turns)
+    layout = sizing.layout_at(order, wire, turns)
     warnings.extend(layout.notes)
     S = layout.strands
-    L = _inductance_matrix(order, wire, layout)
-    length = _strand_lengths(order, layout)
+    L = sizing.inductance_matrix(order, wire, layout)
+    length = sizing.strand_lengths(order, layout)
     duty = doc.duty
     t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
     R20 = dc_resistance(length, wire.copper_diameter, conductor=wire.conductor)
     Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
-    net = _network(order, L, R20, doc.test.frequency)
-    duty_net = _network(order, L, Rhot, duty.frequency)
+    net = sizing.network_at(order, L, R20, doc.test.frequency)
+    duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
     temps = _heat(order, wire, layout, length, L)
     if duty.operating_temperature is None:
         # The order gives no running temperature: the heat balance's mean winding temperature is used.
         t_op = temps["mean_C"]
         Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
-        duty_net = _network(order, L, Rhot, duty.frequency)
+        duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
     elif duty.operating_temperature < temps["mean_C"] - 0.5:
         warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
                         f"{temps['mean_C']:.0f} °C the winding is computed to run at "
@@ -516,7 +284,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     strand_i = np.abs(duty_net.strand_current) * i_term
     ac = {**_ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
     Rac = Rhot * ac["ratio"]
-    ac_terminal = _network(order, L, Rac, duty.frequency).resistance if ac["ratio"] != 1.0 else duty_net.resistance
+    ac_terminal = sizing.network_at(order, L, Rac, duty.frequency).resistance if ac["ratio"] != 1.0 else duty_net.resistance
     strand_loss = strand_i ** 2 * Rac
     thermal = _thermal(temps, wire, strand_i, duty.operating_temperature)
     if thermal["verdict"] in ("fail", "marginal"):
@@ -525,7 +293,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     # Each turn's share of its strand's voltage: its own resistance at the duty
     # temperature and the EMF of its own flux linkage (uniform per turn on a core).
     ohm_per_m = float(dc_resistance(1.0, wire.copper_diameter, t_op))
-    cored = _al(order) is not None
+    cored = sizing.core_al(order) is not None
     drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
                                  doc.winding.lead_length)
     leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
@@ -590,7 +358,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                  "outer_diameter_m": getattr(f, "outer_diameter", None),
                  "height_m": getattr(f, "height", None), "width_m": getattr(f, "width", None),
                  "mean_turn_length_m": getattr(f, "mean_turn_length", None),
-                 "al_H": _al(order), "permeability": getattr(f, "permeability", None),
+                 "al_H": sizing.core_al(order), "permeability": getattr(f, "permeability", None),
                  "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
                  "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
                  "margin_tape_m": order.margin or None,
@@ -681,19 +449,6 @@ def _inductance_accept(predicted, target, tol):
     return {"inductance_min_H": centre * (1 - tol), "inductance_max_H": centre * (1 + tol),
             "inductance_basis": "target" if target else "prediction",
             "inductance_centre_H": centre, "prediction_offset": predicted / centre - 1}
-
-
-def strand_values_at_turns(order: Order, turns: int):
-    """Strand inductance matrix [H] and resistances at 20 degC [ohm] re-sized at ``turns``.
-
-    The same engine as :func:`predict`, for the sign-off's turn-count
-    hypotheses (N - k ... N + k); raises InputError when that many turns do not fit.
-    """
-    wire = resolve_wire(order)
-    layout = _layout(order, wire, int(turns))
-    L = _inductance_matrix(order, wire, layout)
-    R = dc_resistance(_strand_lengths(order, layout), wire.copper_diameter, conductor=wire.conductor)
-    return np.asarray(L, dtype=float), np.asarray(R, dtype=float)
 
 
 def _default_ident(sid: str, strands: int) -> str:

@@ -338,7 +338,7 @@ def evaluate_signoff(prediction: dict, measured: MeasuredFile, inspector: Option
         Overrides the inspector named in the file.
     resize : callable, optional
         ``resize(turns) -> (L matrix [H], R [ohm])``, the engine re-sizing the
-        order at another turn count (predict.strand_values_at_turns); without
+        order at another turn count (sizing.strand_values_at_turns); without
         it no turn count is claimed.
 
     Returns

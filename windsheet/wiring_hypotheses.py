@@ -6,7 +6,7 @@ open or shorted, a terminal on the wrong end, series instead of parallel) and
 evaluated through the hookup network (network.py) with the coil's own strand
 inductance matrix and resistances from the prediction.  A turn-count
 hypothesis is re-sized by the engine at N - k ... N + k (a ``resize``
-callable, predict.strand_values_at_turns) and rejected when the resistance
+callable, sizing.strand_values_at_turns) and rejected when the resistance
 disagrees beyond its tolerance.
 
 A wiring is a node label for each strand end plus the two terminal nodes.

@@ -97,7 +97,7 @@ def _resizer(order_text: Optional[str]):
     import functools
 
     from ..order import parse_order
-    from ..predict import strand_values_at_turns
+    from ..sizing import strand_values_at_turns
 
     if order_text not in _ORDERS:
         if len(_ORDERS) > 16:
