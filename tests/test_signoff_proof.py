@@ -1,7 +1,7 @@
 """Sign-off passes only what it has proven: required lines, strand balance, wiring diagnosis.
 
 Every reading here is simulated from the engine: the order is sized by
-predict(), strand counts are re-sized by predict.strand_values_at_turns and
+predict(), strand counts are re-sized by sizing.strand_values_at_turns and
 miswired coils are solved by network.terminal_reading -- an independent
 nodal solve of the strand matrix -- never hard-coded.
 """

@@ -32,6 +32,7 @@ def layout_at(order: Order, wire, turns: int):
 
 
 def place_turns(order: Order, wire, turns: int):
+    """The turns laid on the order's form (cylinder, bobbin or toroid); a winding that cannot be laid is refused at its field."""
     f, w = order.doc.form, order.doc.winding
     layers = None if w.layers == "auto" else w.layers
     args = dict(copper_diameter=wire.copper_diameter, overall_diameter=wire.overall_diameter,
@@ -84,6 +85,7 @@ def winding_width(order: Order) -> tuple[float, str]:
 
 
 def core_al(order: Order):
+    """The core's inductance factor A_L [H/turn²], or None for an air-core form."""
     f = order.doc.form
     if isinstance(f, ToroidForm):
         if f.al is not None:
@@ -100,6 +102,7 @@ def strand_lengths(order: Order, layout):
 
 
 def inductance_matrix(order: Order, wire, layout, kernels=None):
+    """Strand inductance matrix [H]: the filament sum on air, A_L and two-wire leakage on a core."""
     al = core_al(order)
     if al is None:
         return ind.strand_matrix(layout, kernels)
@@ -114,6 +117,7 @@ def inductance_matrix(order: Order, wire, layout, kernels=None):
 
 
 def network_at(order: Order, L, R, frequency):
+    """The hookup solved at ``frequency`` [Hz] from strand matrices ``L`` [H] and ``R`` [ohm]."""
     if order.hookup_name == "separate":
         duty = order.doc.duty
         between = duty.between_windings if duty.between_windings is not None else duty.voltage
@@ -122,6 +126,7 @@ def network_at(order: Order, L, R, frequency):
 
 
 def terminal_inductance(order, wire, turns, kernels=None):
+    """Inductance at the terminals [H] at ``turns`` per strand, at the test frequency."""
     layout = layout_at(order, wire, turns)
     L = inductance_matrix(order, wire, layout, kernels)
     R = dc_resistance(strand_lengths(order, layout), wire.copper_diameter, conductor=wire.conductor)
