@@ -32,7 +32,10 @@ def layout_at(order: Order, wire, turns: int):
 
 
 def place_turns(order: Order, wire, turns: int):
-    """The turns laid on the order's form (cylinder, bobbin or toroid); a winding that cannot be laid is refused at its field."""
+    """The turns laid on the order's form (cylinder, bobbin or toroid).
+
+    A winding that cannot be laid is refused at its field (InputError).
+    """
     f, w = order.doc.form, order.doc.winding
     layers = None if w.layers == "auto" else w.layers
     args = dict(copper_diameter=wire.copper_diameter, overall_diameter=wire.overall_diameter,
