@@ -36,7 +36,8 @@ def whole_command(order: Path, out: Path, register: Path, worker: bool = True) -
     env = dict(os.environ, WINDSHEET_PDF_WORKER="1" if worker else "0")
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t0 = time.perf_counter()
-    subprocess.run([sys.executable, "-m", "windsheet.cli", "traveller", str(order), "-o", str(out),
+    # windsheet.launch is the console command's entry point (it forks the PDF worker early).
+    subprocess.run([sys.executable, "-m", "windsheet.launch", "traveller", str(order), "-o", str(out),
                     "--register", str(register)], check=True, capture_output=True, cwd=ROOT, env=env)
     wall = time.perf_counter() - t0
     after = resource.getrusage(resource.RUSAGE_CHILDREN)

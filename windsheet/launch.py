@@ -17,3 +17,7 @@ def main():
     from .cli import main as cli_main
 
     return cli_main()
+
+
+if __name__ == "__main__":  # python -m windsheet.launch, as the console command
+    sys.exit(main())
