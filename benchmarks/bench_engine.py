@@ -29,7 +29,8 @@ from windsheet import limits
 from windsheet import predict as PR, sizing as P, target_turns as T
 from windsheet.inductance import loop_self_inductance, maxwell_mutual, strand_matrix, strand_matrix_bruteforce
 from windsheet.layout import cylinder_layout
-from windsheet.order import parse_order, resolve_wire
+from windsheet.order import parse_order
+from windsheet.order_wire import resolve_wire
 
 #: Largest relative disagreement allowed between the fast and the plain sum.
 AGREEMENT = 1e-9

@@ -14,7 +14,8 @@ from windsheet import wire
 from windsheet import wire_tables as tables
 from windsheet.cli import app
 from windsheet.errors import InputError
-from windsheet.order import parse_order, resolve_wire
+from windsheet.order import parse_order
+from windsheet.order_wire import resolve_wire
 
 SAMPLE = "samples/hl-0410-single.yaml"
 

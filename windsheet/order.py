@@ -12,7 +12,6 @@ import hashlib
 import math
 import os
 import re
-from pathlib import Path
 from typing import Annotated, Any, Literal, Optional, Union
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Field, Tag, ValidationError, model_validator
@@ -21,7 +20,10 @@ from .errors import InputError, field_name, join_path
 from .fileio import parse_yaml_bytes, read_limited
 from .network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                       pin_assignment)
-from .units import SINE_CREST, parse_percent, parse_quantity, read_quantity
+from .order_fields import (Angle, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
+                           PeakVoltage, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
+                           quantity, strand_keys)
+from .units import SINE_CREST, parse_quantity, read_quantity
 
 #: Orders are small; anything larger is not an order. [bytes]
 MAX_ORDER_BYTES = 256 * 1024
@@ -47,84 +49,6 @@ def _yaml_kind(doc) -> str:
     if isinstance(doc, (int, float)):
         return "a single number"
     return f"a single {type(doc).__name__} value"
-
-
-# ---------------------------------------------------------------- field types
-def _q(dimension, **kw):
-    def conv(v):
-        try:
-            return parse_quantity(v, dimension, "", **kw)
-        except InputError as e:
-            raise ValueError(e.message) from None
-    return BeforeValidator(conv)
-
-
-def _pct(v):
-    try:
-        return parse_percent(v, "")
-    except InputError as e:
-        raise ValueError(e.message) from None
-
-
-Length = Annotated[float, _q("length")]
-Length0 = Annotated[float, _q("length", allow_zero=True)]
-Inductance = Annotated[float, _q("inductance")]
-Voltage = Annotated[float, _q("voltage")]
-Voltage0 = Annotated[float, _q("voltage", allow_zero=True)]
-Current = Annotated[float, _q("current", allow_zero=True)]
-Frequency0 = Annotated[float, _q("frequency", allow_zero=True)]
-Frequency = Annotated[float, _q("frequency")]
-Temperature = Annotated[float, _q("temperature")]
-Angle = Annotated[float, _q("angle")]
-RiseTime = Annotated[float, _q("rise_time")]
-PeakVoltage = Annotated[float, _q("voltage", form="peak")]
-Fraction = Annotated[float, BeforeValidator(_pct)]
-Text = Annotated[str, Field(max_length=200)]
-
-
-def _alnum(v):
-    if not isinstance(v, (str, int)) or isinstance(v, bool):
-        raise ValueError("expected text")
-    v = str(v).strip()
-    if not v or not re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9._/-]{0,39}", v):
-        raise ValueError("expected letters, digits and . _ / - only (up to 40), like 'HL-0412'")
-    return v
-
-
-Ident = Annotated[str, BeforeValidator(_alnum)]
-
-
-def _lower(v):
-    return v.strip().lower() if isinstance(v, str) else v
-
-
-def choice(*words):
-    """A field taking one of ``words``, read case-insensitively (``Cylinder`` is ``cylinder``)."""
-    return Annotated[Literal[words], BeforeValidator(_lower)]
-
-
-def count_or_auto(what: str, lo: int, hi: int):
-    """A whole number from ``lo`` to ``hi``, or ``auto``; the message says both."""
-    def conv(v):
-        if isinstance(v, str) and v.strip().lower() == "auto":
-            return "auto"
-        if isinstance(v, bool) or not isinstance(v, int) or not lo <= v <= hi:
-            raise ValueError(f"expected a whole number of {what} from {lo} to {hi}, or auto")
-        return v
-    return Annotated[Union[int, Literal["auto"]], BeforeValidator(conv)]
-
-
-def _strand_keys(v):
-    """Strand names as the order writes them: ``a`` is strand A."""
-    if not isinstance(v, dict):
-        return v
-    out = {}
-    for k, val in v.items():
-        key = k.strip().upper() if isinstance(k, str) else k
-        if key in out:
-            raise ValueError(f"strand {key} is named twice")
-        out[key] = val
-    return out
 
 
 class _M(BaseModel):
@@ -263,9 +187,9 @@ _ENDS = {"start-end": "start-end", "start": "start-end", "start-flange": "start-
 
 
 def _end(v):
-    if _lower(v) not in _ENDS:
+    if lowered(v) not in _ENDS:
         raise ValueError("expected start-end, finish-end or centre")
-    return _ENDS[_lower(v)]
+    return _ENDS[lowered(v)]
 
 
 class WindingStart(_M):
@@ -276,7 +200,7 @@ class WindingStart(_M):
 
 def _start(v):
     """``start-end``, ``finish-end`` or ``centre``; a length (in from the start end); or ``{from, offset}``."""
-    if isinstance(v, str) and _lower(v) in _ENDS:
+    if isinstance(v, str) and lowered(v) in _ENDS:
         return {"from": v}
     if isinstance(v, (str, int, float)) and not isinstance(v, bool):
         return {"offset": v}
@@ -295,7 +219,7 @@ class Winding(_M):
     layer_tape: Optional[Union[Length, LayerTape]] = None
     lead_length: Length0 = 0.15
     scrap_allowance: Fraction = 0.10
-    identification: Optional[Annotated[dict[Literal["A", "B", "C", "D"], Text], BeforeValidator(_strand_keys)]] = None
+    identification: Optional[Annotated[dict[Literal["A", "B", "C", "D"], Text], BeforeValidator(strand_keys)]] = None
     coupling: Annotated[float, Field(ge=0.0, le=1.0, allow_inf_nan=False)] = 1.0
     # Untaped close-wound layers nest, taped or spaced ones stack, unless the order says.
     layer_style: Optional[Literal["nested", "stacked"]] = None
@@ -333,7 +257,7 @@ class Duty(_M):
     rise_time: Optional[RiseTime] = None
     #: Capacitance from the whole winding to ground, core or shield, for a fast edge's
     #: distribution; by default windsheet.fast_front.DEFAULT_GROUND_CAPACITANCE_F (10 pF), stated.
-    ground_capacitance: Optional[Annotated[float, _q("capacitance")]] = None
+    ground_capacitance: Optional[Annotated[float, quantity("capacitance")]] = None
 
     @model_validator(mode="before")
     @classmethod
@@ -372,10 +296,10 @@ def duty_amplitudes(data: dict) -> dict:
     if "frequency" in data:
         freq = parse_quantity(data["frequency"], "frequency", "duty.frequency", allow_zero=True)
     given = data.get("waveform")
-    if given is not None and _lower(given) not in _DUTY_FORMS:
+    if given is not None and lowered(given) not in _DUTY_FORMS:
         raise InputError("duty.waveform", "expected sine, dc or pulse")
     volts = read_quantity(data["voltage"], "voltage", "duty.voltage", allow_zero=True) if "voltage" in data else None
-    waveform = _lower(given) if given is not None else (
+    waveform = lowered(given) if given is not None else (
         "dc" if freq == 0 and (volts is None or volts.qualifier in (None, "dc")) else "sine")
     if waveform == "sine" and freq == 0:
         raise InputError("duty.frequency", "an ac (sine) duty needs its frequency, like '50 Hz'; "
@@ -422,7 +346,7 @@ class Tolerances(_M):
 class Insulation(_M):
     derating: Fraction = 0.25
     #: Least insulation resistance accepted strand to strand and to core (100 MΩ: common practice).
-    min_resistance: Annotated[float, _q("resistance")] = 100e6
+    min_resistance: Annotated[float, quantity("resistance")] = 100e6
     #: Measured PDIV (20 °C, peak) of touching turns of this wire as built; by default estimated.
     pdiv: Optional[PeakVoltage] = None
     hot_pdiv_derating: Fraction = 0.25
@@ -616,78 +540,3 @@ def written_in_imperial(raw) -> bool:
 def load_order(path) -> Order:
     """Read and validate the order at ``path``."""
     return parse_order(read_limited(path, MAX_ORDER_BYTES), os.fspath(path))
-
-
-# ---------------------------------------------------------------- the wire
-def _catalog_wire(order: Order, wires):
-    spec = order.doc.wire
-    size = spec.size.strip()
-    base = Path(order.path).parent if order.path else Path.cwd()
-    cat_path = (base / spec.catalog) if not os.path.isabs(spec.catalog) else Path(spec.catalog)
-    try:
-        catalog = wires.load_catalog(cat_path)
-    except FileNotFoundError:
-        raise InputError("wire.catalog", f"catalog file {spec.catalog!r} not found") from None
-    except (OSError, UnicodeDecodeError):
-        raise InputError("wire.catalog", f"catalog file {spec.catalog!r} cannot be read as CSV text") from None
-    except ValueError as exc:
-        raise InputError("wire.catalog", f"{spec.catalog}: {exc}") from None
-    if size not in catalog:
-        raise InputError("wire.size", f"{size!r} is not in catalog {spec.catalog!r}")
-    w = catalog[size]
-    if not (0 < w.copper_diameter < w.overall_diameter < 0.01 and w.breakdown > 0):
-        raise InputError("wire.catalog", f"row {size!r} needs 0 < copper < overall diameter < 10 mm and breakdown > 0")
-    if spec.conductor != "copper":
-        import dataclasses
-        w = dataclasses.replace(w, conductor=spec.conductor)
-    return w
-
-
-def resolve_wire(order: Order):
-    """The order's wire as a :class:`windsheet.wire.Wire` (SI).
-
-    ``wire.size`` is a gauge (``28 SWG``, ``22 AWG``), a nominal diameter of
-    IEC 60317-0-1 (``0.50 mm``) or a name in the shop catalog.  A diameter that
-    is not a standard nominal diameter is refused, naming the nearest standard
-    sizes, unless the order gives the datasheet's ``overall_diameter`` and
-    ``breakdown``.  Gauge sizes take the next larger IEC row (the standard's
-    rule for intermediate sizes) unless ``wire.standard: NEMA MW 1000``.
-    """
-    from . import wire as wires
-    from . import wire_tables as tables
-
-    spec = order.doc.wire
-    if spec.catalog:
-        return _catalog_wire(order, wires)
-    size_text = spec.size.strip()
-    try:
-        size = tables.parse_gauge(size_text)
-    except tables.NotInTable as exc:
-        raise InputError("wire.size", str(exc)) from None
-    if size is None:
-        try:
-            nominal = parse_quantity(size_text, "length", "wire.size")
-        except InputError:
-            raise InputError("wire.size", "expected a nominal copper diameter like '0.50 mm' or a gauge like "
-                             f"'22 AWG' or '28 SWG'; got {size_text!r}") from None
-        size = tables.Size("metric", None, nominal, size_text)
-    if not 0.01e-3 <= size.diameter <= 6e-3:
-        raise InputError("wire.size", f"magnet wire runs from 0.01 mm to 6 mm conductor diameter; got {size_text!r}")
-    standard = spec.standard or tables.IEC
-    if standard == tables.NEMA and size.system != "AWG":
-        raise InputError("wire.standard", f"NEMA MW 1000 tabulates AWG sizes; {size_text!r} is not one "
-                         "(use IEC 60317-0-1)")
-    if spec.overall_diameter is not None and spec.overall_diameter <= size.diameter:
-        raise InputError("wire.overall_diameter", f"must exceed the conductor diameter {size.diameter * 1e3:.3f} mm")
-    name = {1: "single", 2: "heavy", 3: "triple"}[spec.grade] if standard == tables.NEMA else None
-    label = f"{size.label} " + (f"{name} build" if name else wires.GRADE_NAMES[spec.grade])
-    if spec.conductor == "aluminium":
-        label = f"{label}, aluminium"
-    try:
-        return wires.standard_wire(size.diameter, spec.grade, thermal_class=spec.thermal_class, label=label,
-                                   standard=standard, overall_d=spec.overall_diameter, breakdown=spec.breakdown,
-                                   conductor=spec.conductor, size=size)
-    except tables.NotInTable as exc:
-        hint = "" if "give wire." in str(exc) else (
-            "; or give the datasheet's wire.overall_diameter and wire.breakdown, or a shop catalog row")
-        raise InputError("wire.size", f"{exc}{hint}") from None

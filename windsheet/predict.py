@@ -23,7 +23,8 @@ from .insulation import hipot_voltage
 from .leads import lead_routes
 from .remedies import advice, find_remedies
 from .network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
-from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
+from .order import BobbinForm, CylinderForm, Order, ToroidForm
+from .order_wire import resolve_wire
 from .qc_lines import required_lines
 from .target_turns import solve_turns
 from .wire import copper_mass, dc_resistance

@@ -18,7 +18,8 @@ from . import layout as lay
 from .errors import InputError
 from .limits import check_engine_work, check_turns_in_all
 from .network import separate_windings, solve_network
-from .order import BobbinForm, CylinderForm, Order, ToroidForm, resolve_wire
+from .order import BobbinForm, CylinderForm, Order, ToroidForm
+from .order_wire import resolve_wire
 from .wire import dc_resistance
 
 
