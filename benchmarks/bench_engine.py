@@ -26,7 +26,7 @@ import yaml
 
 from timing import median_time
 from windsheet import limits
-from windsheet import predict as PR, sizing as P, target_turns as T
+from windsheet import predict as P, sizing as S, target_turns as T
 from windsheet.inductance import loop_self_inductance, maxwell_mutual, strand_matrix, strand_matrix_bruteforce
 from windsheet.layout import cylinder_layout
 from windsheet.order import parse_order
@@ -115,31 +115,31 @@ def newton_runs(o, wire):
     """Engine runs of the search used before: Newton steps on sqrt(L) from 10 turns, then n ± 1."""
     target, runs, n = o.doc.winding.target_inductance, 0, 10
     for _ in range(12):
-        got = P.terminal_inductance(o, wire, n)
+        got = S.terminal_inductance(o, wire, n)
         runs += 1
         nxt = max(1, int(round(n * math.sqrt(target / got))))
         if nxt == n:
             break
         n = nxt
     for k in {max(1, n - 1), n, n + 1}:
-        P.terminal_inductance(o, wire, k)
+        S.terminal_inductance(o, wire, k)
         runs += 1
     return runs, n
 
 
 def engine_runs(o, wire):
     """Engine runs of :func:`windsheet.target_turns.solve_turns`, and its answer."""
-    runs, real = [0], P.terminal_inductance
+    runs, real = [0], S.terminal_inductance
 
     def counting(*args):
         runs[0] += 1
         return real(*args)
 
-    P.terminal_inductance = counting
+    S.terminal_inductance = counting
     try:
         n, _ = T.solve_turns(o, wire)
     finally:
-        P.terminal_inductance = real
+        S.terminal_inductance = real
     return runs[0], n
 
 
@@ -155,7 +155,7 @@ def main() -> int:
     k_now, k_loop = kernels_evaluated(big), group_pair_kernels(big)
     print(f"  kernels evaluated: {k_now:,}; the group-pair loop evaluated {k_loop:,} "
           f"({k_loop / k_now:.1f}x as many)")
-    seconds, _ = median_time(PR.predict, order(4, 5000, 200))
+    seconds, _ = median_time(P.predict, order(4, 5000, 200))
     print(f"  predict of the same order (layout, engine, network, stress): {seconds:.3f} s (median of 3)")
 
     for strands in (1, 2):
@@ -173,7 +173,7 @@ def main() -> int:
 
     o = order(1, None, "auto", target_inductance="900 mH", slots=250)
     wire = resolve_wire(o)
-    seconds, p = median_time(PR.predict, o)
+    seconds, p = median_time(P.predict, o)
     runs, n = engine_runs(o, wire)
     t0 = time.perf_counter()
     old_runs, old_n = newton_runs(o, wire)
@@ -184,7 +184,7 @@ def main() -> int:
           f"for Newton steps on sqrt(L) ({old_s / solve_s:.1f}x; same answer: {old_n == n})")
 
     for strands, turns, layers in ((4, 12_400, 200), (4, 25_000, 100), (1, 100_000, 100)):
-        seconds, _ = median_time(PR.predict, order(strands, turns, layers))
+        seconds, _ = median_time(P.predict, order(strands, turns, layers))
         work = limits.engine_work(turns, layers, strands)
         print(f"predict at the budget edge, {strands} x {turns:,} turns x {layers} layers "
               f"(work {work:,} of {limits.ENGINE_WORK:,}; {strands * turns:,} of {limits.TURNS_IN_ALL:,} "
