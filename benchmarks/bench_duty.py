@@ -14,10 +14,10 @@ from types import SimpleNamespace
 import numpy as np
 
 from timing import median_time
-from windsheet import stress
-from windsheet.ac_resistance import winding_ac_ratio
-from windsheet.heating import winding_temperatures
-from windsheet.layout import cylinder_layout
+from windsheet.physics import stress
+from windsheet.physics.ac_resistance import winding_ac_ratio
+from windsheet.physics.heating import winding_temperatures
+from windsheet.physics.layout import cylinder_layout
 
 def main():
     lay = cylinder_layout(0.02, 0.3, 0.1e-3, 0.118e-3, 1, 50_000, layers=20)

@@ -2,14 +2,14 @@
 
 Prints medians and ratios, never a pass/fail on time:
 
-- :func:`windsheet.inductance.strand_matrix` on the 200-layer, 4-strand,
+- :func:`windsheet.physics.inductance.strand_matrix` on the 200-layer, 4-strand,
   5,000-turn coil, and the whole ``predict`` of an order for it;
 - the 10-layer, 5,000-turn coils (one and two strands);
 - how many kernels the engine evaluates against the group-pair loop it
   replaced, and that loop's time on coils it can still do quickly;
 - a 5,000-turn target-inductance order: ``predict`` time and engine runs,
   against the Newton search on sqrt(L) used before;
-- orders at the edges of the work budget (windsheet.limits);
+- orders at the edges of the work budget (windsheet.order.limits);
 - the ratio to the plain double sum on a small coil.
 
 Exits 1 if the fast and plain sums disagree by more than 1e-9 relative.
@@ -25,12 +25,14 @@ import numpy as np
 import yaml
 
 from timing import median_time
-from windsheet import limits
-from windsheet import predict as P, sizing as S, target_turns as T
-from windsheet.inductance import loop_self_inductance, maxwell_mutual, strand_matrix, strand_matrix_bruteforce
-from windsheet.layout import cylinder_layout
-from windsheet.order import parse_order
-from windsheet.order_wire import resolve_wire
+from windsheet.order import limits
+from windsheet.design import build as P
+from windsheet.design import sizing as S
+from windsheet.design import target_turns as T
+from windsheet.physics.inductance import loop_self_inductance, maxwell_mutual, strand_matrix, strand_matrix_bruteforce
+from windsheet.physics.layout import cylinder_layout
+from windsheet.order.document import parse_order
+from windsheet.order.wire_choice import resolve_wire
 
 #: Largest relative disagreement allowed between the fast and the plain sum.
 AGREEMENT = 1e-9
@@ -96,7 +98,7 @@ def group_pair_kernels(layout):
 
 def kernels_evaluated(layout):
     """Kernels the engine evaluates for ``layout`` (counted by wrapping maxwell_mutual)."""
-    import windsheet.inductance as ind
+    import windsheet.physics.inductance as ind
     count, real = [0], ind.maxwell_mutual
 
     def counting(r1, r2, dz):
@@ -128,7 +130,7 @@ def newton_runs(o, wire):
 
 
 def engine_runs(o, wire):
-    """Engine runs of :func:`windsheet.target_turns.solve_turns`, and its answer."""
+    """Engine runs of :func:`windsheet.design.target_turns.solve_turns`, and its answer."""
     runs, real = [0], S.terminal_inductance
 
     def counting(*args):

@@ -22,7 +22,7 @@ SIZES = (100, 1_000, 10_000)
 
 
 def _fill(path: Path, n: int, prediction: dict) -> None:
-    from windsheet.register import open_register
+    from windsheet.records.register import open_register
 
     with open_register(path) as reg:
         reg.conn.execute("PRAGMA synchronous = OFF")  # building the bench file only
@@ -37,9 +37,9 @@ def _fill(path: Path, n: int, prediction: dict) -> None:
 
 
 def main() -> int:
-    from windsheet.order import load_order
-    from windsheet.predict import predict
-    from windsheet.register import open_register_readonly
+    from windsheet.order.document import load_order
+    from windsheet.design.build import predict
+    from windsheet.records.register import open_register_readonly
 
     prediction = json.loads(json.dumps(predict(load_order(ROOT / "samples" / "hl-0412-bifilar-aiding.yaml")),
                                        default=str))

@@ -2,7 +2,7 @@
 
 On a 50,000-turn coil (20 layers × 2,500 turns of 0.1 mm wire) times, as
 medians of five runs: the neighbour search (cell list, every pair within the
-stated gap), the inductance engine (:func:`windsheet.inductance.strand_matrix`),
+stated gap), the inductance engine (:func:`windsheet.physics.inductance.strand_matrix`),
 the per-turn flux linkage, and the whole stress check (voltage map, leads,
 partial-discharge inception per pair, capacitance, verdict).  Prints the
 ratio of the neighbour search to the inductance engine.  Exits 1 if the
@@ -18,12 +18,12 @@ from types import SimpleNamespace
 import numpy as np
 
 from timing import median_time
-from windsheet import stress
-from windsheet.flux_linkage import turn_flux_linkage
-from windsheet.inductance import strand_matrix
-from windsheet.layout import cylinder_layout
-from windsheet.neighbours import neighbour_pairs
-from windsheet.leads import lead_routes
+from windsheet.physics import stress
+from windsheet.physics.flux_linkage import turn_flux_linkage
+from windsheet.physics.inductance import strand_matrix
+from windsheet.physics.layout import cylinder_layout
+from windsheet.physics.neighbours import neighbour_pairs
+from windsheet.physics.leads import lead_routes
 
 REPEAT = 5
 

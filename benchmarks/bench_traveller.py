@@ -36,8 +36,8 @@ def whole_command(order: Path, out: Path, register: Path, worker: bool = True) -
     env = dict(os.environ, WINDSHEET_PDF_WORKER="1" if worker else "0")
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t0 = time.perf_counter()
-    # windsheet.launch is the console command's entry point (it forks the PDF worker early).
-    subprocess.run([sys.executable, "-m", "windsheet.launch", "traveller", str(order), "-o", str(out),
+    # windsheet.cli.launch is the console command's entry point (it forks the PDF worker early).
+    subprocess.run([sys.executable, "-m", "windsheet.cli.launch", "traveller", str(order), "-o", str(out),
                     "--register", str(register)], check=True, capture_output=True, cwd=ROOT, env=env)
     wall = time.perf_counter() - t0
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
@@ -47,9 +47,9 @@ def whole_command(order: Path, out: Path, register: Path, worker: bool = True) -
 
 def steps(order: Path) -> dict:
     """CPU time of each step of one render, in this process (imports already done). [s]"""
-    from windsheet import render
-    from windsheet.order import load_order
-    from windsheet.predict import predict
+    from windsheet.sheets import render
+    from windsheet.order.document import load_order
+    from windsheet.design.build import predict
 
     out = {}
     t = time.process_time()

@@ -31,9 +31,9 @@ def fresh_process(code):
 
 
 def main() -> int:
-    from windsheet.errors import InputError
-    from windsheet.order import parse_order
-    from windsheet.units import read_quantity
+    from windsheet.common.errors import InputError
+    from windsheet.order.document import parse_order
+    from windsheet.order.units import read_quantity
 
     bad = 0
     read = median_time(lambda: read_quantity("61.2 uH", "inductance", "f"), repeat=2000)[0]
@@ -57,7 +57,7 @@ def main() -> int:
     print(f"parse_order({SAMPLE.name}): median {order * 1e3:.2f} ms")
 
     first = fresh_process(
-        "import time; t=time.perf_counter(); from windsheet.units import read_quantity; "
+        "import time; t=time.perf_counter(); from windsheet.order.units import read_quantity; "
         "read_quantity('50 mm', 'length', 'f'); import sys; assert 'pint' not in sys.modules; "
         "print(time.perf_counter()-t)")
     via_pint = fresh_process(

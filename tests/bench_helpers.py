@@ -7,7 +7,7 @@ from pathlib import Path
 import yaml
 from typer.testing import CliRunner
 
-from windsheet.cli import app
+from windsheet.cli.app import app
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"

@@ -2,7 +2,7 @@
 
 import numpy as np
 
-from windsheet.layout import cylinder_layout
+from windsheet.physics.layout import cylinder_layout
 
 D_CU, D_OV = 0.45e-3, 0.50e-3
 

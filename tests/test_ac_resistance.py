@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 from scipy.special import jv
 
-from windsheet.ac_resistance import (dowell_factor, dowell_penetration, round_wire_ac_ratio,
+from windsheet.physics.ac_resistance import (dowell_factor, dowell_penetration, round_wire_ac_ratio,
                                      skin_depth, winding_ac_ratio)
 
 
@@ -103,8 +103,8 @@ def test_single_layer_coil_at_100_kHz():
 def test_single_layer_sample_at_100_kHz_through_the_prediction():
     import yaml
     from conftest import SAMPLES
-    from windsheet.order import parse_order
-    from windsheet.predict import predict
+    from windsheet.order.document import parse_order
+    from windsheet.design.build import predict
 
     text = (SAMPLES / "hl-0410-single.yaml").read_text()
     p = predict(parse_order(text.encode(), "o.yaml"), remedies=False)
@@ -129,7 +129,7 @@ def test_single_layer_sample_at_100_kHz_through_the_prediction():
 def test_kelvin_functions_by_bessels_integral_against_scipy():
     from scipy.special import kelvin
 
-    from windsheet.ac_resistance import kelvin_ber_bei
+    from windsheet.physics.ac_resistance import kelvin_ber_bei
 
     x = np.concatenate([np.linspace(0.0, 10.0, 41), np.geomspace(10.0, 300.0, 25)])
     b, db = kelvin_ber_bei(x)

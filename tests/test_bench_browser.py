@@ -17,7 +17,7 @@ import pypdf
 import pytest
 
 from bench_helpers import issue_with_traveller
-from windsheet.register import open_register
+from windsheet.records.register import open_register
 
 CHROMIUM = Path("/usr/bin/chromium")
 playwright_sync = pytest.importorskip("playwright.sync_api")
@@ -36,7 +36,7 @@ class BenchServer:
 
     def start(self):
         self.proc = subprocess.Popen(
-            [sys.executable, "-c", "from windsheet.cli import main; main()", "bench",
+            [sys.executable, "-c", "from windsheet.cli.app import main; main()", "bench",
              "--register", str(self.register), "--port", "0"], stderr=subprocess.PIPE, text=True)
         line = ""
         while "open http" not in line:

@@ -17,11 +17,12 @@ from starlette.testclient import TestClient
 from typer.testing import CliRunner
 
 from bench_helpers import ORDER, SAMPLES, fields_of_file, issue_with_traveller
-from windsheet.bench_app.app import CSRF_COOKIE, MAX_BODY_BYTES, create_app
-from windsheet.cli import app as cli_app, bench_token
-from windsheet.measured import load_measured
-from windsheet.register import open_register
-from windsheet.signoff import evaluate_signoff
+from windsheet.bench.app import CSRF_COOKIE, MAX_BODY_BYTES, create_app
+from windsheet.cli.app import app as cli_app
+from windsheet.cli.bench_cmd import bench_token
+from windsheet.qc.readings_file import load_measured
+from windsheet.records.register import open_register
+from windsheet.qc.signoff import evaluate_signoff
 
 JOB = "HL-0412"
 
@@ -294,7 +295,7 @@ def test_cli_refuses_a_short_token(reg_path):
 
 
 def test_cli_prints_a_token_off_loopback(reg_path):
-    proc = subprocess.Popen([sys.executable, "-c", "from windsheet.cli import main; main()", "bench", "--register", str(reg_path),
+    proc = subprocess.Popen([sys.executable, "-c", "from windsheet.cli.app import main; main()", "bench", "--register", str(reg_path),
                              "--host", "0.0.0.0", "--port", "0"], stderr=subprocess.PIPE, text=True)
     try:
         line = ""
@@ -335,7 +336,7 @@ def test_old_register_gets_the_drafts_table(reg_path):
 
 
 def test_cli_import_stays_light():
-    code = ("import sys, windsheet.cli; "
+    code = ("import sys, windsheet.cli.app; "
             "print(any(m.split('.')[0] in ('starlette', 'uvicorn', 'multipart') for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "False"

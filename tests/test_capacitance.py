@@ -1,4 +1,4 @@
-"""Checks of windsheet.capacitance against published values, integrals and a 2-D field solution."""
+"""Checks of windsheet.physics.capacitance against published values, integrals and a 2-D field solution."""
 
 import math
 
@@ -6,10 +6,10 @@ import mpmath
 import numpy as np
 import pytest
 
-from windsheet import capacitance as cap
-from windsheet import conductor_capacitance as cc
-from windsheet import voltage_map as vmap
-from windsheet.layout import cylinder_layout
+from windsheet.physics import capacitance as cap
+from windsheet.physics import conductor_capacitance as cc
+from windsheet.physics import voltage_map as vmap
+from windsheet.physics.layout import cylinder_layout
 
 from strand_ends import AIDING, D_CU, D_OV, OPPOSING, SINGLE, one_layer  # noqa: F401
 

@@ -5,7 +5,7 @@ import io
 from pypdf import PdfReader
 from typer.testing import CliRunner
 
-from windsheet.cli import app
+from windsheet.cli.app import app
 
 from conftest import SAMPLES
 

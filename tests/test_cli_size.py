@@ -6,7 +6,7 @@ import pytest
 import yaml
 from typer.testing import CliRunner
 
-from windsheet.cli import app
+from windsheet.cli.app import app
 
 from conftest import SAMPLES, sample_orders
 

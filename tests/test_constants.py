@@ -3,7 +3,7 @@
 import pytest
 from scipy import constants as sc
 
-from windsheet import constants
+from windsheet.physics import constants
 
 
 # scipy.constants (CODATA 2022 from scipy 1.15, CODATA 2018 before): ε0; the two
@@ -20,6 +20,7 @@ def test_pressure_units(name, reference):
 
 # The modules that use them read the same values (no second copy drifting apart).
 def test_users_read_the_module():
-    from windsheet import conductor_capacitance, discharge
+    from windsheet.physics import conductor_capacitance
+    from windsheet.physics import discharge
     assert conductor_capacitance.EPS0 == constants.EPSILON_0
     assert discharge.ATMOSPHERE == constants.ATMOSPHERE

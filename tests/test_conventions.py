@@ -13,7 +13,8 @@ import yaml
 from typer.testing import CliRunner
 
 from windsheet import __version__
-from windsheet.cli import app, hookup_words
+from windsheet.cli.app import app
+from windsheet.cli.size_cmd import hookup_words
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"

@@ -1,4 +1,4 @@
-"""Checks of windsheet.discharge: Paschen's law, the inception voltage from the construction
+"""Checks of windsheet.physics.discharge: Paschen's law, the inception voltage from the construction
 against a 2-D field solution and published twisted-pair measurements."""
 
 import math
@@ -6,7 +6,7 @@ import math
 import numpy as np
 import pytest
 
-from windsheet import discharge as dis
+from windsheet.physics import discharge as dis
 
 from laplace2d import Grid, disc, ring
 
@@ -127,7 +127,7 @@ def test_inception_against_a_field_solution(cu, ov, gap, tape):
 # ---- the construction moves it the way it should --------------------------------------
 
 def iec_film(cu_mm, grade):
-    from windsheet.wire import enamel_build
+    from windsheet.physics.wire import enamel_build
     return (enamel_build(cu_mm * 1e-3, grade)[0] - cu_mm * 1e-3) / 2
 
 

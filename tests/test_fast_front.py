@@ -7,10 +7,10 @@ import numpy as np
 import pytest
 import yaml
 
-from windsheet.fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
+from windsheet.physics.fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
                                   uniform_initial_distribution)
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 
 def ladder(n, cs, cg):

@@ -3,9 +3,9 @@
 import numpy as np
 import pytest
 
-from windsheet.flux_linkage import cored_turn_flux_linkage, turn_flux_linkage
-from windsheet.inductance import loop_self_inductance, maxwell_mutual, strand_matrix
-from windsheet.layout import cylinder_layout
+from windsheet.physics.flux_linkage import cored_turn_flux_linkage, turn_flux_linkage
+from windsheet.physics.inductance import loop_self_inductance, maxwell_mutual, strand_matrix
+from windsheet.physics.layout import cylinder_layout
 
 
 def bruteforce_linkage(lay, current):
@@ -55,7 +55,7 @@ def test_end_turns_of_a_solenoid_link_less_flux():
 
 
 def test_cored_emf_is_uniform_along_each_strand():
-    from windsheet.layout import toroid_layout
+    from windsheet.physics.layout import toroid_layout
     lay = toroid_layout(0.02, 0.04, 0.01, 0.45e-3, 0.5e-3, 2, 12)
     L = np.array([[1e-3, 0.9e-3], [0.9e-3, 1e-3]])
     lam = cored_turn_flux_linkage(lay, L, [1.0, 1.0])

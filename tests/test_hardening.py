@@ -18,11 +18,11 @@ from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
-from windsheet.cli import app
-from windsheet.errors import InputError
-from windsheet.measured import measured_from_dict
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.cli.app import app
+from windsheet.common.errors import InputError
+from windsheet.qc.measured import measured_from_dict
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 from conftest import SAMPLES, sample_orders
 
@@ -503,7 +503,7 @@ def test_a_plain_count_still_sizes(scratch):
 
 
 def test_measured_turns_with_a_leading_zero_are_refused(tmp_path):
-    from windsheet.measured import load_measured
+    from windsheet.qc.readings_file import load_measured
 
     f = tmp_path / "m.yaml"
     f.write_text("job: HL-0410\nunits:\n  - serial: HL-0410-01\n    strands: {A: {turns: 040}}\n"
@@ -627,7 +627,7 @@ def test_fast_edge_duty_is_sized_with_its_edge(scratch, duty):
 
 
 def test_pulse_amplitudes_for_the_engine():
-    from windsheet.order import duty_amplitudes
+    from windsheet.order.document import duty_amplitudes
 
     # A pulse's peak: the sine of the same peak on ac (so the voltage map's peaks are the pulse's), itself at 0 Hz.
     ac = duty_amplitudes({"voltage": "600 V peak", "frequency": "10 kHz", "waveform": "pulse", "rise_time": "1 us"})

@@ -6,9 +6,9 @@ import math
 import pytest
 import yaml
 
-from windsheet import heating
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.physics import heating
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 from conftest import SAMPLES
 
@@ -95,7 +95,7 @@ def test_overloaded_winding_fails_its_class_and_warns():
 
 
 def test_traveller_shows_heating_edge_and_hot_surface():
-    from windsheet.render import render_traveller_html
+    from windsheet.sheets.render import render_traveller_html
 
     doc = _multilayer(current="2.5 A", rise_time="100 ns")
     p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
@@ -109,7 +109,7 @@ def test_traveller_shows_heating_edge_and_hot_surface():
 
 
 def test_summary_names_heating_and_the_edge():
-    from windsheet.cli import summary_lines
+    from windsheet.cli.size_cmd import summary_lines
 
     p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A", rise_time="100 ns")).encode(), "o.yaml"),
                 remedies=False)
@@ -119,8 +119,8 @@ def test_summary_names_heating_and_the_edge():
 
 
 def test_thermal_fail_is_not_issued_unless_forced():
-    from windsheet.errors import InputError
-    from windsheet.render import check_issuable
+    from windsheet.common.errors import InputError
+    from windsheet.sheets.render import check_issuable
 
     p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
     assert p["insulation"]["verdict"] != "fail" and p["thermal"]["verdict"] == "fail"

@@ -1,4 +1,4 @@
-"""Checks of windsheet.inductance against published values and independent evaluations."""
+"""Checks of windsheet.physics.inductance against published values and independent evaluations."""
 
 import dataclasses
 import math
@@ -10,7 +10,7 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad
 
-from windsheet.coil_formulas import (
+from windsheet.physics.coil_formulas import (
     brooks_inductance,
     cored_strand_matrix,
     current_sheet_inductance,
@@ -24,14 +24,14 @@ from windsheet.coil_formulas import (
     wheeler_multilayer,
     wheeler_single_layer,
 )
-from windsheet.inductance import (
+from windsheet.physics.inductance import (
     MU0,
     loop_self_inductance,
     maxwell_mutual,
     strand_matrix,
     strand_matrix_bruteforce,
 )
-from windsheet.layout import WindingDoesNotFit, cylinder_layout, toroid_layout
+from windsheet.physics.layout import WindingDoesNotFit, cylinder_layout, toroid_layout
 
 
 # ---------------------------------------------------------------------------
@@ -384,7 +384,7 @@ def _distinct_kernels(lay):
 @pytest.mark.parametrize("strands, turns, layers, pitch_factor", [
     (4, 83, 7, 1.0), (4, 60, 5, 2.0), (3, 50, 4, 1.37), (1, 29, 3, 1.0)])
 def test_fast_sum_evaluates_each_distinct_kernel_once(monkeypatch, strands, turns, layers, pitch_factor):
-    import windsheet.inductance as ind
+    import windsheet.physics.inductance as ind
     ov = 0.3e-3
     lay = cylinder_layout(0.010, 40e-3, 0.27e-3, ov, strands, turns, layers=layers,
                           pitch=strands * ov * pitch_factor, tape=2e-5)
@@ -398,7 +398,7 @@ def test_fast_sum_evaluates_each_distinct_kernel_once(monkeypatch, strands, turn
 
 
 def test_kernel_cache_shared_between_turn_counts(monkeypatch):
-    import windsheet.inductance as ind
+    import windsheet.physics.inductance as ind
     evaluated = []
     real = ind.maxwell_mutual
     monkeypatch.setattr(ind, "maxwell_mutual", lambda r1, r2, dz: evaluated.append(np.size(dz)) or real(r1, r2, dz))

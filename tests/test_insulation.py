@@ -1,10 +1,10 @@
-"""Checks of the insulation verdict's policy (windsheet.insulation)."""
+"""Checks of the insulation verdict's policy (windsheet.physics.insulation)."""
 
 import math
 
 import pytest
 
-from windsheet import insulation as ins
+from windsheet.physics import insulation as ins
 
 
 def verdict(worst, **kw):

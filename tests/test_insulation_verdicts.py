@@ -7,10 +7,10 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from windsheet.errors import InputError
-from windsheet.order import parse_order
-from windsheet.predict import predict
-from windsheet.remedies import apply
+from windsheet.common.errors import InputError
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
+from windsheet.design.remedies import apply
 
 from conftest import sample_orders
 
@@ -154,7 +154,7 @@ def test_generated_order_remedies_hold(volts, grade, layers, dc, hookup):
 
 
 def test_traveller_shows_the_lead_routes():
-    from windsheet import render
+    from windsheet.sheets import render
     from conftest import SAMPLES
     p = predict(parse_order((SAMPLES / "hl-0412-bifilar-aiding.yaml").read_bytes()))
     ctx = render.traveller_context(p)

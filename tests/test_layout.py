@@ -5,8 +5,8 @@ import math
 import numpy as np
 import pytest
 
-from windsheet.layout import cylinder_layout, layer_geometry, toroid_layout
-from windsheet.neighbours import NEIGHBOUR_GAP_FRACTION, neighbour_gap_limit, neighbour_pairs
+from windsheet.physics.layout import cylinder_layout, layer_geometry, toroid_layout
+from windsheet.physics.neighbours import NEIGHBOUR_GAP_FRACTION, neighbour_gap_limit, neighbour_pairs
 
 CU, OV = 0.45e-3, 0.50e-3
 

@@ -5,12 +5,12 @@ import copy
 import pytest
 import yaml
 
-from windsheet import limits
-from windsheet.errors import InputError
-from windsheet.inductance import strand_matrix, strand_matrix_bruteforce
-from windsheet.layout import cylinder_layout
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.order import limits
+from windsheet.common.errors import InputError
+from windsheet.physics.inductance import strand_matrix, strand_matrix_bruteforce
+from windsheet.physics.layout import cylinder_layout
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 from conftest import SAMPLES
 
@@ -37,7 +37,7 @@ def refusal(doc):
 
 
 def test_probe_order_of_four_strands_100k_turns_200_layers_is_refused_before_layout(monkeypatch):
-    import windsheet.sizing as S
+    import windsheet.design.sizing as S
     monkeypatch.setattr(S, "place_turns", lambda *a: pytest.fail("laid out an order over budget"))
     err = refusal(order(4, 100_000, 200, 500))
     assert err.path == "winding.turns"
@@ -89,7 +89,7 @@ def test_target_needing_more_than_the_budget_is_refused_at_the_target(monkeypatc
 def test_a_traveller_beyond_the_sheet_budget_is_refused_and_nothing_is_written(tmp_path):
     from typer.testing import CliRunner
 
-    from windsheet.cli import app
+    from windsheet.cli.app import app
 
     doc = yaml.safe_load((SAMPLES / "hl-0410-single.yaml").read_text(encoding="utf-8"))
     doc["job"].pop("units", None)
@@ -107,7 +107,7 @@ def test_a_traveller_beyond_the_sheet_budget_is_refused_and_nothing_is_written(t
 def test_a_sign_off_sheet_beyond_the_sheet_budget_is_refused_before_anything_is_recorded(tmp_path):
     from typer.testing import CliRunner
 
-    from windsheet.cli import app
+    from windsheet.cli.app import app
 
     order = SAMPLES / "hl-0412-bifilar-aiding.yaml"
     reg = tmp_path / "r.db"

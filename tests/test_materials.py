@@ -11,10 +11,10 @@ import pypdf
 import pytest
 from typer.testing import CliRunner
 
-from windsheet.cli import app
-from windsheet.materials import bill_csv, bill_of_materials, load_reels, wire_group
-from windsheet.order import load_order
-from windsheet.predict import predict
+from windsheet.cli.app import app
+from windsheet.records.materials import bill_csv, bill_of_materials, load_reels, wire_group
+from windsheet.order.document import load_order
+from windsheet.design.build import predict
 
 ROOT = Path(__file__).resolve().parents[1]
 ORDERS = [ROOT / "samples" / n for n in ("hl-0410-single.yaml", "hl-0412-bifilar-aiding.yaml",

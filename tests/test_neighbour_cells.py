@@ -6,8 +6,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.spatial import cKDTree
 
-from windsheet.layout import bobbin_layout, cylinder_layout, toroid_layout
-from windsheet.neighbours import close_pairs, neighbour_gap_limit
+from windsheet.physics.layout import bobbin_layout, cylinder_layout, toroid_layout
+from windsheet.physics.neighbours import close_pairs, neighbour_gap_limit
 
 CU, OV = 0.45e-3, 0.50e-3
 

@@ -5,9 +5,9 @@ import copy
 import pytest
 import yaml
 
-from windsheet.errors import InputError
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.common.errors import InputError
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 from conftest import SAMPLES
 

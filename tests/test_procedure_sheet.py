@@ -6,10 +6,10 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from windsheet import render
-from windsheet.diagrams import cross_section_svg
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.sheets import render
+from windsheet.sheets.diagrams import cross_section_svg
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 BASE = """\
 job: {{number: HL-0450, part: "Coil", customer: "Invented Ltd", quantity: 1, revision: A}}
@@ -62,8 +62,8 @@ def test_bobbin_gets_a_core_assembly_step_with_the_accept_band():
 def test_voltage_picture_shades_by_potential_and_marks_the_worst_pair():
     from pathlib import Path
 
-    from windsheet.diagrams import potential_grey
-    from windsheet.order import load_order
+    from windsheet.sheets.diagrams import potential_grey
+    from windsheet.order.document import load_order
 
     p = predict(load_order(Path(__file__).resolve().parent.parent / "samples" / "hl-0412-bifilar-aiding.yaml"))
     root = ET.fromstring(cross_section_svg(p["cross_section"], shade=True))
@@ -127,7 +127,7 @@ def test_centred_and_finish_end_placements():
      "winding.start"),
 ])
 def test_bad_placement_is_refused_at_its_field(extra, form, field):
-    from windsheet.errors import InputError
+    from windsheet.common.errors import InputError
 
     with pytest.raises(InputError) as exc:
         sized(form=form, turns=20, extra=extra)
@@ -161,8 +161,8 @@ def test_terminations_reach_the_diagram_and_the_procedure():
     assert steps["Terminate on the pins"]["record"] == ["pin 1", "pin 2", "pin 4"]
     assert "pin 4 = B.finish (T2)" in steps["Terminate on the pins"]["detail"]
     assert steps["Make the joint A.finish + B.start"]["detail"].startswith("Made on pin 2")
-    from windsheet.diagrams import wiring_svg
-    from windsheet.traveller_sheet import pins_of_ends
+    from windsheet.sheets.diagrams import wiring_svg
+    from windsheet.sheets.traveller_sheet import pins_of_ends
 
     root = ET.fromstring(wiring_svg(p["hookup"], ["A", "B"], pins=pins_of_ends(p)))
     pins = {el.get("data-pin") for el in root.iter() if el.get("data-pin")}
@@ -175,7 +175,7 @@ def test_a_joint_lead_on_a_pin_is_routed_to_that_pin():
     steps = {s["title"]: s for s in render.procedure_steps(p)}
     joint = steps["Make the joint A.finish + B.start"]["detail"]
     assert "to pin 2" in joint and "start end" not in joint
-    from windsheet.traveller_sheet import lead_notes
+    from windsheet.sheets.traveller_sheet import lead_notes
 
     assert "start end" not in dict(lead_notes(p))["A.finish"]
     # Without pins the joint is made in the winding, at the start end.
@@ -209,7 +209,7 @@ def test_a_node_spread_over_two_pins_is_linked_for_the_bench():
     ("[1, 2]", "terminations"),
 ])
 def test_bad_terminations_are_refused_at_their_field(terms, field):
-    from windsheet.errors import InputError
+    from windsheet.common.errors import InputError
 
     with pytest.raises(InputError) as exc:
         bifilar(terms)

@@ -6,8 +6,8 @@ import re
 import numpy as np
 import pytest
 
-from windsheet.control_chart import control_chart_svg
-from windsheet.qc_stats import (D2_N2, RULE_BEYOND, RULE_RUN, bias, family_statistics, individuals_limits,
+from windsheet.sheets.control_chart import control_chart_svg
+from windsheet.qc.qc_stats import (D2_N2, RULE_BEYOND, RULE_RUN, bias, family_statistics, individuals_limits,
                                 line_chart, run_rule_signals)
 
 

@@ -13,9 +13,9 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
-from windsheet import fileio
-from windsheet.errors import InputError
-from windsheet.register import (APPLICATION_ID, SCHEMA_VERSION, DEFAULT_FILE, ENV_VAR, open_register,
+from windsheet.common import fileio
+from windsheet.common.errors import InputError
+from windsheet.records.register import (APPLICATION_ID, SCHEMA_VERSION, DEFAULT_FILE, ENV_VAR, open_register,
                                 resolve_register_path)
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -277,7 +277,7 @@ def test_newer_schema_is_refused(tmp_path):
 
 CHILD_PRELUDE = textwrap.dedent("""
     import hashlib, sys, time
-    from windsheet import register as R
+    from windsheet.records import register as R
     path = sys.argv[1]
     def prediction():
         return {"job": {"number": "HL-0412", "revision": "A", "units": ["HL-0412-01", "HL-0412-02"]},
@@ -378,7 +378,7 @@ ORDER = SAMPLES / "hl-0412-bifilar-aiding.yaml"
 
 @pytest.fixture()
 def cli():
-    from windsheet.cli import app
+    from windsheet.cli.app import app
     runner = CliRunner()
     return lambda *args: runner.invoke(app, [str(a) for a in args])
 

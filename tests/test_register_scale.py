@@ -14,9 +14,9 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
-from windsheet import register as R
-from windsheet.cli import app
-from windsheet.errors import InputError
+from windsheet.records import register as R
+from windsheet.cli.app import app
+from windsheet.common.errors import InputError
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"
@@ -238,25 +238,25 @@ def test_issue_prints_only_what_it_recorded(tmp_path):
 # ---------------------------------------------------------------- the crash window
 KILL_BETWEEN_COMMIT_AND_RENAME = r"""
 import os, sys
-import windsheet.fileio as f
+import windsheet.common.fileio as f
 real = f.place_file
 def place_then_die(tmp, target):
     if str(target).endswith("sheet.html"):
         os._exit(9)          # as kill -9: after the register's commit, before the rename
     return real(tmp, target)
 f.place_file = place_then_die
-import windsheet.sheet_ledger as led
+import windsheet.records.sheet_ledger as led
 led.place_file = place_then_die
-from windsheet.cli import main
+from windsheet.cli.app import main
 sys.argv = ["windsheet"] + sys.argv[1:]
 main()
 """
 
 
 def test_a_sign_off_killed_between_commit_and_rename_is_finished_on_the_next_run(tmp_path):
-    from windsheet.order import load_order
-    from windsheet.predict import predict
-    from windsheet.readings_form import csv_form
+    from windsheet.order.document import load_order
+    from windsheet.design.build import predict
+    from windsheet.qc.readings_form import csv_form
 
     reg = tmp_path / "reg.db"
     assert runner.invoke(app, ["register", "--issue", str(BIFILAR), "--register", str(reg)]).exit_code == 0
@@ -284,7 +284,7 @@ def test_a_sign_off_killed_between_commit_and_rename_is_finished_on_the_next_run
 
 
 def test_temp_files_of_a_crashed_writer_are_cleaned_up(tmp_path):
-    from windsheet.fileio import _temp_prefix, atomic_write_bytes
+    from windsheet.common.fileio import _temp_prefix, atomic_write_bytes
 
     # A pid that cannot be running: beyond the kernel's pid_max.
     dead = tmp_path / (_temp_prefix("t.pdf").rsplit("-", 1)[0] + "-4194399.abcd.tmp")

@@ -8,8 +8,8 @@ import pypdf
 import pytest
 from typer.testing import CliRunner
 
-from windsheet.cli import app
-from windsheet.demo_records import FAMILIES, build_sample_register
+from windsheet.cli.app import app
+from windsheet.records.demo_records import FAMILIES, build_sample_register
 
 runner = CliRunner()
 
@@ -84,7 +84,7 @@ def test_signoff_sheet_carries_the_family_chart(sample_register, tmp_path):
 
 
 def test_report_on_an_empty_register_is_refused(tmp_path):
-    from windsheet.register import open_register
+    from windsheet.records.register import open_register
     open_register(tmp_path / "empty.db").close()
     r = runner.invoke(app, ["report", "--register", str(tmp_path / "empty.db")])
     assert r.exit_code == 2 and "no unit is signed off" in r.output

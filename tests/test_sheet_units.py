@@ -10,12 +10,12 @@ import pypdf
 import pytest
 from typer.testing import CliRunner
 
-from windsheet import render
-from windsheet.cli import app
-from windsheet.errors import InputError
-from windsheet.fmt import IMPERIAL, length
-from windsheet.order import parse_order
-from windsheet.predict import predict
+from windsheet.sheets import render
+from windsheet.cli.app import app
+from windsheet.common.errors import InputError
+from windsheet.common.fmt import IMPERIAL, length
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
 
 INCH_ORDER = b"""\
 job: {number: HL-0440, part: "Relay coil", customer: "Invented Ltd", quantity: 1, revision: A}

@@ -8,11 +8,11 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from windsheet.errors import InputError
-from windsheet.network import named_hookup
-from windsheet.measured import (coupling_coefficient, measured_from_dict, mutual_from_series,
+from windsheet.common.errors import InputError
+from windsheet.physics.network import named_hookup
+from windsheet.qc.measured import (coupling_coefficient, measured_from_dict, mutual_from_series,
                                 resistance_at_20C, resonance_inductance)
-from windsheet.signoff import GAUGE_STEP_R, evaluate_signoff, exit_status
+from windsheet.qc.signoff import GAUGE_STEP_R, evaluate_signoff, exit_status
 
 # ---------------------------------------------------------------- formulas
 
@@ -431,8 +431,8 @@ def test_any_positive_readings_evaluate_to_json(where, L, R):
 
 
 def test_resistance_is_corrected_to_20C_with_the_conductors_own_coefficient():
-    from windsheet import signoff_lines as sl
-    from windsheet.measured import ResistanceReading
+    from windsheet.qc import signoff_lines as sl
+    from windsheet.qc.measured import ResistanceReading
 
     # IEC 60028: copper 0.00393 /K; 61 % IACS aluminium 0.00403 /K (handbook table, see conductors.csv).
     reading = ResistanceReading(value=1.1, open=False)

@@ -12,11 +12,11 @@ import numpy as np
 import yaml
 from typer.testing import CliRunner
 
-from windsheet import wiring_hypotheses as wh
-from windsheet.cli import app
-from windsheet.network import terminal_reading
-from windsheet.order import load_order
-from windsheet.predict import predict
+from windsheet.qc import wiring_hypotheses as wh
+from windsheet.cli.app import app
+from windsheet.physics.network import terminal_reading
+from windsheet.order.document import load_order
+from windsheet.design.build import predict
 
 from conftest import SAMPLES
 
@@ -132,7 +132,7 @@ def test_register_issue_follows_the_force_rule_and_the_status_travels(tmp_path):
     assert refused.exit_code == 2 and "--force" in refused.output
     assert run("register", "--issue", order, "--force", "--register", reg).exit_code == 0
     listing = run("register", "--register", reg).output.splitlines()
-    # The listing's design column (windsheet.register_listing).
+    # The listing's design column (windsheet.records.register_listing).
     assert listing[0].split()[-1] == "design" and listing[1].split()[-1] == "FORCED", listing
     p = predict(load_order(order))
     readings = filled_csv(tmp_path, p)
@@ -141,9 +141,9 @@ def test_register_issue_follows_the_force_rule_and_the_status_travels(tmp_path):
 
 
 def test_sheet_spread_over_passing_units_inspector_signs_and_celsius(tmp_path):
-    from windsheet.measured import load_measured
-    from windsheet.render import render_signoff_html
-    from windsheet.signoff import evaluate_signoff
+    from windsheet.qc.readings_file import load_measured
+    from windsheet.sheets.render import render_signoff_html
+    from windsheet.qc.signoff import evaluate_signoff
 
     p = predict(load_order(BIFILAR))
 
@@ -196,8 +196,8 @@ def test_a_bad_csv_cell_is_named_by_row_and_column(tmp_path):
 
 
 def test_a_turn_count_in_csv_is_read_as_a_count():
-    from windsheet.measured import measured_from_dict
-    from windsheet.readings_form import measured_dict_from_csv
+    from windsheet.qc.measured import measured_from_dict
+    from windsheet.qc.readings_form import measured_dict_from_csv
 
     text = "job,serial,strand.A.turns,strand.B.turns,terminal.inductance [uH]\nHL-0412,HL-0412-01,60,057,400\n"
     doc = measured_dict_from_csv(text)

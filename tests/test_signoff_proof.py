@@ -11,13 +11,13 @@ import math
 import numpy as np
 import pytest
 
-from windsheet import wiring_hypotheses as wh
-from windsheet.measured import measured_from_dict
-from windsheet.network import terminal_reading
-from windsheet.order import load_order, parse_order
-from windsheet.predict import predict
-from windsheet.sizing import strand_values_at_turns
-from windsheet.signoff import evaluate_signoff, exit_status
+from windsheet.qc import wiring_hypotheses as wh
+from windsheet.qc.measured import measured_from_dict
+from windsheet.physics.network import terminal_reading
+from windsheet.order.document import load_order, parse_order
+from windsheet.design.build import predict
+from windsheet.design.sizing import strand_values_at_turns
+from windsheet.qc.signoff import evaluate_signoff, exit_status
 
 from conftest import SAMPLES
 
@@ -119,7 +119,7 @@ def test_the_same_unit_with_every_line_passes_and_a_waiver_is_recorded():
 
 
 def test_qc_record_prints_exactly_the_required_lines():
-    from windsheet.render import qc_items
+    from windsheet.sheets.render import qc_items
 
     o, p = design(2, "series-aiding")
     assert [i["key"] for i in qc_items(p)] == p["qc_required"]
@@ -155,7 +155,7 @@ def test_strand_five_percent_short_inside_its_band_fails_and_is_named():
 def test_target_order_band_is_target_plus_minus_tolerance():
     import yaml
 
-    from windsheet.units import parse_quantity
+    from windsheet.order.units import parse_quantity
 
     path = SAMPLES / "hl-0424-target.yaml"
     doc = yaml.safe_load(path.read_text())

@@ -18,7 +18,7 @@ SAMPLE = ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"
 CHILD = """
 import json, sys
 sys.argv = ["windsheet", *sys.argv[1:]]
-from windsheet.cli import main
+from windsheet.cli.app import main
 try:
     main()
 except SystemExit as e:
@@ -26,7 +26,7 @@ except SystemExit as e:
 else:
     code = 0
 watched = ["numpy", "pydantic", "scipy", "scipy.spatial", "scipy.constants", "scipy.special", "yaml",
-           "typer._adapters", "windsheet.order", "windsheet.measured", "windsheet.signoff"]
+           "typer._adapters", "windsheet.order.document", "windsheet.qc.measured", "windsheet.qc.signoff"]
 print(json.dumps({"code": code, "loaded": [m for m in watched if m in sys.modules]}), file=sys.stderr)
 """
 
@@ -48,8 +48,8 @@ def register(tmp_path_factory):
 
 def check_no_heavy_imports(loaded):
     # typer is held below 0.29 (pyproject), whose parameter parsing would load pydantic.
-    assert not loaded & {"numpy", "pydantic", "scipy", "windsheet.order", "windsheet.measured",
-                         "windsheet.signoff"}, loaded
+    assert not loaded & {"numpy", "pydantic", "scipy", "windsheet.order.document", "windsheet.qc.measured",
+                         "windsheet.qc.signoff"}, loaded
 
 
 @pytest.mark.parametrize("args, shows", [((), "HL-0412"), (("HL-0412",), "issued")])

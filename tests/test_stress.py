@@ -1,4 +1,4 @@
-"""Checks of windsheet.stress.assess: the whole stress check of a winding on its duty."""
+"""Checks of windsheet.physics.stress.assess: the whole stress check of a winding on its duty."""
 
 import math
 from types import SimpleNamespace
@@ -6,10 +6,10 @@ from types import SimpleNamespace
 import numpy as np
 import pytest
 
-from windsheet import capacitance as cap
-from windsheet import stress
-from windsheet.layout import cylinder_layout, toroid_layout
-from windsheet.neighbours import neighbours
+from windsheet.physics import capacitance as cap
+from windsheet.physics import stress
+from windsheet.physics.layout import cylinder_layout, toroid_layout
+from windsheet.physics.neighbours import neighbours
 
 from strand_ends import AIDING, D_CU, D_OV, OPPOSING, SINGLE, one_layer  # noqa: F401
 

@@ -7,13 +7,13 @@ import pytest
 import yaml
 from typer.testing import CliRunner
 
-from windsheet import fmt
-from windsheet.cli import app
-from windsheet.errors import InputError
-from windsheet.inductance import loop_self_inductance
-from windsheet.order import parse_order
-from windsheet.predict import predict
-from windsheet.target_turns import _bracket_turns
+from windsheet.common import fmt
+from windsheet.cli.app import app
+from windsheet.common.errors import InputError
+from windsheet.physics.inductance import loop_self_inductance
+from windsheet.order.document import parse_order
+from windsheet.design.build import predict
+from windsheet.design.target_turns import _bracket_turns
 
 from conftest import SAMPLES
 

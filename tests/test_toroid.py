@@ -10,12 +10,12 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from windsheet.errors import InputError
-from windsheet.layout import WindingDoesNotFit, toroid_layout
-from windsheet.neighbours import neighbour_pairs
-from windsheet.order import load_order
-from windsheet.predict import predict
-from windsheet.ring_diagrams import ring_section_svg, ring_top_view_svg
+from windsheet.common.errors import InputError
+from windsheet.physics.layout import WindingDoesNotFit, toroid_layout
+from windsheet.physics.neighbours import neighbour_pairs
+from windsheet.order.document import load_order
+from windsheet.design.build import predict
+from windsheet.sheets.ring_diagrams import ring_section_svg, ring_top_view_svg
 
 SVG = "{http://www.w3.org/2000/svg}"
 ID, OD, H = 14.8e-3, 25.3e-3, 10e-3  # the sample's ferrite ring
@@ -68,7 +68,7 @@ def test_more_turns_than_one_circumference_holds_make_two_layers_and_a_top_view(
     assert [L["layer"] for L in ring["layers"]] == [1, 2]
     # Layer 2 lies further in: its conductor circle is smaller.
     assert ring["layers"][1]["radius_m"] < ring["layers"][0]["radius_m"]
-    from windsheet import render
+    from windsheet.sheets import render
 
     html = render.render_traveller_html(p)
     assert 'data-figure="ring-top"' in html and 'data-figure="ring-section"' in html
@@ -135,7 +135,7 @@ def test_start_finish_distance_uses_the_real_angles():
 def test_direction_and_spread_reach_the_sheet(tmp_path):
     p = predict(order(tmp_path, 12, ", spread: 180 deg, direction: anticlockwise"))
     assert p["winding"]["direction"] == "anticlockwise" and p["ring"]["spread"] == "sector"
-    from windsheet import render
+    from windsheet.sheets import render
 
     wind = [s for s in render.procedure_steps(p) if s["title"] == "Wind"][0]["detail"]
     assert "anticlockwise" in wind and "180° sector" in wind

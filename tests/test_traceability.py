@@ -9,10 +9,10 @@ from pathlib import Path
 import yaml
 from typer.testing import CliRunner
 
-from windsheet.cli import app
-from windsheet.measured import measured_from_dict
-from windsheet.register import open_register
-from windsheet.traceability import lot_rows, unit_trace
+from windsheet.cli.app import app
+from windsheet.qc.measured import measured_from_dict
+from windsheet.records.register import open_register
+from windsheet.qc.trace import lot_rows, unit_trace
 
 ROOT = Path(__file__).resolve().parents[1]
 ORDER = ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"
@@ -57,7 +57,7 @@ def test_unit_values_replace_file_values():
 def test_lot_ids_are_checked_at_their_field():
     import pytest
 
-    from windsheet.errors import InputError
+    from windsheet.common.errors import InputError
     base = {"job": "J", "units": [{"serial": "J-1", "terminals": {"inductance": "1 uH", "resistance": "1 ohm"}}]}
     for bad, path in (({"wire_lot": "R 22 91"}, "units[0].wire_lot"), ({"wire_lot": {"Z1": "R-1"}}, "units[0].wire_lot.Z1"),
                       ({"core_lot": ""}, "units[0].core_lot")):
@@ -105,7 +105,7 @@ def test_older_register_gains_the_lots_table(tmp_path):
 def test_lot_search_loads_no_heavy_library(tmp_path):
     # typer's own adapters load pydantic whatever the command, so only numpy and matplotlib are checked.
     reg, _ = _sign_off(tmp_path)
-    code = ("import sys; from typer.testing import CliRunner; from windsheet.cli import app; "
+    code = ("import sys; from typer.testing import CliRunner; from windsheet.cli.app import app; "
             f"r = CliRunner().invoke(app, ['register', '--lot', 'R-2291', '--register', {str(reg)!r}]); "
             "print(r.exit_code, sorted(m for m in ('numpy', 'scipy', 'matplotlib') if m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout

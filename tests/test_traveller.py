@@ -14,12 +14,12 @@ import pypdf
 import pytest
 from typer.testing import CliRunner
 
-from windsheet import render
-from windsheet.cli import app
-from windsheet.diagrams import cross_section_svg, wiring_svg
-from windsheet.errors import InputError
-from windsheet.order import load_order
-from windsheet.predict import predict
+from windsheet.sheets import render
+from windsheet.cli.app import app
+from windsheet.sheets.diagrams import cross_section_svg, wiring_svg
+from windsheet.common.errors import InputError
+from windsheet.order.document import load_order
+from windsheet.design.build import predict
 
 SVG = "{http://www.w3.org/2000/svg}"
 
@@ -549,8 +549,8 @@ def test_cli_demo_renders_every_sample(tmp_path):
 # --- sign-off sheet --------------------------------------------------------------------
 
 def _signoff(measured_name: str):
-    from windsheet.measured import load_measured
-    from windsheet.signoff import evaluate_signoff
+    from windsheet.qc.readings_file import load_measured
+    from windsheet.qc.signoff import evaluate_signoff
 
     p = sample_prediction("hl-0412-bifilar-aiding")
     return p, evaluate_signoff(p, load_measured(ROOT / "samples" / measured_name))
@@ -710,7 +710,7 @@ def test_running_header_stays_on_one_line_even_when_forced(tmp_path, paper):
 
 def test_the_pdf_worker_gives_the_same_bytes_as_the_in_process_render():
     # The forked worker must be a pure speed-up: the same sheet, byte for byte.
-    from windsheet.pdf_worker import PdfWorker
+    from windsheet.sheets.pdf_worker import PdfWorker
 
     html, in_process = sample_sheet(SAMPLE_IDS[0])
     worker = PdfWorker()
@@ -722,7 +722,7 @@ def test_the_pdf_worker_gives_the_same_bytes_as_the_in_process_render():
 
 
 def test_the_pdf_worker_falls_back_to_rendering_in_process_if_it_dies():
-    from windsheet.pdf_worker import PdfWorker
+    from windsheet.sheets.pdf_worker import PdfWorker
 
     worker = PdfWorker()
     try:
@@ -748,7 +748,7 @@ def test_the_pdf_worker_falls_back_to_rendering_in_process_if_it_dies():
     ([], False),
 ])
 def test_the_early_pdf_worker_starts_only_for_one_pdf(argv, wanted, tmp_path):
-    from windsheet.pdf_worker import wants_one_pdf
+    from windsheet.sheets.pdf_worker import wants_one_pdf
 
     order = tmp_path / "o.yaml"
     order.write_text("x")
@@ -757,7 +757,7 @@ def test_the_early_pdf_worker_starts_only_for_one_pdf(argv, wanted, tmp_path):
 
 
 def test_an_early_worker_is_taken_over_or_stopped(monkeypatch, tmp_path):
-    from windsheet import pdf_worker
+    from windsheet.sheets import pdf_worker
 
     monkeypatch.setenv("WINDSHEET_PDF_WORKER", "1")
     monkeypatch.setattr(pdf_worker.os, "cpu_count", lambda: 2)

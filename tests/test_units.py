@@ -14,10 +14,10 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from windsheet.errors import InputError
-from windsheet import unit_table
-from windsheet.unit_table import table
-from windsheet.units import DIMENSIONS, parse_percent, parse_quantity, read_quantity, sine_rms
+from windsheet.common.errors import InputError
+from windsheet.order import unit_table
+from windsheet.order.unit_table import table
+from windsheet.order.units import DIMENSIONS, parse_percent, parse_quantity, read_quantity, sine_rms
 
 REG = pint.UnitRegistry()
 UNITS, FOLDED, FOREIGN = table()
@@ -158,7 +158,7 @@ def test_arithmetic_is_refused_with_the_expected_form(text):
 
 
 def test_measured_expression_is_refused_by_the_same_grammar():
-    from windsheet.measured import measured_from_dict
+    from windsheet.qc.measured import measured_from_dict
 
     doc = {"job": "HL-0412", "units": [{"serial": "HL-0412-01",
                                         "terminals": {"inductance": "9**9**7 uH", "resistance": "1 ohm"}}]}

@@ -1,4 +1,4 @@
-"""Checks of windsheet.voltage_map (and the leads' stress) against trade expectations and
+"""Checks of windsheet.physics.voltage_map (and the leads' stress) against trade expectations and
 independent sums."""
 
 from types import SimpleNamespace
@@ -6,8 +6,8 @@ from types import SimpleNamespace
 import numpy as np
 import pytest
 
-from windsheet import voltage_map as vmap
-from windsheet.layout import cylinder_layout
+from windsheet.physics import voltage_map as vmap
+from windsheet.physics.layout import cylinder_layout
 
 from strand_ends import AIDING, D_CU, D_OV, OPPOSING, SINGLE, one_layer  # noqa: F401
 
@@ -70,9 +70,9 @@ def test_potential_runs_from_start_to_finish_by_turn_index():
 
 # ---- exact quasi-static potentials -------------------------------------------------------
 
-from windsheet import stress  # noqa: E402
-from windsheet.inductance import loop_self_inductance, maxwell_mutual  # noqa: E402
-from windsheet.leads import lead_routes  # noqa: E402
+from windsheet.physics import stress  # noqa: E402
+from windsheet.physics.inductance import loop_self_inductance, maxwell_mutual  # noqa: E402
+from windsheet.physics.leads import lead_routes  # noqa: E402
 
 
 def net(ends, current):

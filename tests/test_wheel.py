@@ -66,11 +66,14 @@ def test_wheel_holds_the_templates_and_tables(installed):
     for t in (ROOT / "templates").iterdir():
         if t.suffix in (".j2", ".css"):
             assert f"windsheet/templates/{t.name}" in names, t.name
-    assert "windsheet/data/iec60317_0_1_copper.csv" in names
+    assert "windsheet/physics/data/iec60317_0_1_copper.csv" in names
+    # Every module of every layer: a package left out of pyproject's list would import from nowhere.
+    for module in (ROOT / "windsheet").rglob("*.py"):
+        assert module.relative_to(ROOT).as_posix() in names, module
 
 
 def test_installed_package_is_the_wheel_not_the_source_tree(installed):
-    out = _run([str(installed["py"]), "-c", "import windsheet, windsheet.render as r; "
+    out = _run([str(installed["py"]), "-c", "import windsheet, windsheet.sheets.render as r; "
                 "print(windsheet.__file__); print(r.TEMPLATES_DIR)"], cwd=installed["work"]).stdout.split("\n")
     assert str(installed["env"]) in out[0] and str(ROOT) not in out[0], out
     assert str(installed["env"]) in out[1] and out[1].endswith("templates"), out

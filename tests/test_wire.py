@@ -10,12 +10,12 @@ import pytest
 import yaml
 from typer.testing import CliRunner
 
-from windsheet import wire
-from windsheet import wire_tables as tables
-from windsheet.cli import app
-from windsheet.errors import InputError
-from windsheet.order import parse_order
-from windsheet.order_wire import resolve_wire
+from windsheet.physics import wire
+from windsheet.physics import wire_tables as tables
+from windsheet.cli.app import app
+from windsheet.common.errors import InputError
+from windsheet.order.document import parse_order
+from windsheet.order.wire_choice import resolve_wire
 
 SAMPLE = "samples/hl-0410-single.yaml"
 
@@ -135,7 +135,7 @@ def test_r40_rule_against_published_rows(nominal, g1, g2):
 
 def test_every_table_row_names_source_and_sureness():
     for name in ("iec60317_0_1_copper.csv", "nema_mw1000_copper.csv", "swg.csv", "conductors.csv"):
-        with resources.files("windsheet").joinpath("data", name).open(encoding="utf-8") as fh:
+        with resources.files("windsheet.physics").joinpath("data", name).open(encoding="utf-8") as fh:
             rows = list(csv.DictReader(fh))
         assert rows, name
         for r in rows:
@@ -256,7 +256,7 @@ def test_aluminium_constants():
 
 
 def test_aluminium_order_reads_about_1_6_times_copper():
-    from windsheet.predict import predict
+    from windsheet.design.build import predict
 
     with open(SAMPLE, "rb") as fh:
         doc = yaml.safe_load(fh)

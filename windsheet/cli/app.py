@@ -1,0 +1,49 @@
+"""The ``windsheet`` command line: ``windsheet size | traveller | signoff | register | demo | wires | bench``.
+
+Results go to stdout, diagnostics to stderr.  A fault in the user's input is
+one line on stderr and exit status 2; nothing is written.
+"""
+
+from __future__ import annotations
+
+
+import typer
+
+from . import bench_cmd, records_cmd, register_cmd, signoff_cmd, size_cmd, tables_cmd, traveller_cmd
+
+app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False,
+                  rich_markup_mode=None,  # plain usage errors: a few lines, no boxes
+                  context_settings={"help_option_names": ["-h", "--help"]})
+
+
+def _show_version(value: bool):
+    if value:
+        from windsheet import __version__
+
+        typer.echo(f"windsheet {__version__}")
+        raise typer.Exit(0)
+
+
+@app.callback()
+def _root(version: bool = typer.Option(False, "--version", is_eager=True, callback=_show_version,
+                                       help="Print the version and exit.")):
+    """Job sheets for coil winding: size an order, print its traveller, sign off the units.
+
+    Exit status: 0 done (and every verdict a pass or marginal), 1 a verdict short of that
+    (an insulation FAIL from size, a unit not passed at sign-off) or a batch with a refused
+    order, 2 bad input (one line on stderr names the field or file; nothing is written).
+    """
+
+
+# Each command module adds its own commands; none imports this module back.
+for _commands in (size_cmd, traveller_cmd, signoff_cmd, register_cmd, records_cmd, tables_cmd, bench_cmd):
+    _commands.register(app)
+
+
+def main():  # console-script entry point
+    import os
+
+    # windsheet uses no pydantic plugins; without this, pydantic scans every
+    # installed distribution's entry points when it builds the first model.
+    os.environ.setdefault("PYDANTIC_DISABLE_PLUGINS", "__all__")
+    app()

@@ -1,0 +1,94 @@
+"""``windsheet register``: the job listing, one job's history, --issue and --lot."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from windsheet.common.errors import InputError
+
+from .common import guarded, to_json
+
+
+def register(app: typer.Typer) -> None:
+    """Add ``register`` to the command line."""
+    app.command("register")(register_cmd)
+
+
+@guarded
+def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: show its history."),
+                 register: Optional[str] = typer.Option(None, "--register", help="Register file (default "
+                                                        "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
+                 issue: Optional[Path] = typer.Option(None, "--issue", help="Record ORDER.yaml as issued "
+                                                      "(the traveller command does this when it prints)."),
+                 force: bool = typer.Option(False, "--force", help="With --issue: record a design that fails "
+                                            "its insulation check; it is then marked FORCED."),
+                 state: Optional[str] = typer.Option(None, "--state", help="Only jobs in this state: issued, "
+                                                     "passed, failed or incomplete."),
+                 customer: Optional[str] = typer.Option(None, "--customer", help="Only jobs whose customer "
+                                                        "contains this (any case)."),
+                 since: Optional[str] = typer.Option(None, "--since", help="Only jobs issued on or after this "
+                                                     "date (YYYY-MM-DD)."),
+                 as_csv: bool = typer.Option(False, "--csv", help="Print the listing as CSV."),
+                 as_json: bool = typer.Option(False, "--json", help="Print as JSON."),
+                 lot: Optional[str] = typer.Option(None, "--lot", help="List every unit recorded with this "
+                                                   "wire reel or lot, core lot or instrument id (exact match).")):
+    """List the jobs in the register (job, revision, customer, issued, state, passed/total, design
+    status), or one job's history; --issue records an order as issued; --lot lists the units of a reel or lot."""
+    if lot is not None:
+        return _lot_search(register, lot, as_json)
+    from windsheet.records.register import open_register_readonly, resolve_register_path
+
+    if issue is not None:
+        from windsheet.order.document import load_order
+        from windsheet.design.build import predict
+        from windsheet.design.qc_plan import design_fails, design_status
+        from windsheet.records.register import open_register
+        from windsheet.sheets.render import check_issuable
+
+        o = load_order(issue)
+        p = predict(o)
+        check_issuable(p, force)
+        p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
+        with open_register(register, create=True) as reg:
+            issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
+        forced = " — FORCED over a failing design check" if p["design_status"]["state"] == "forced" else ""
+        # Only what was recorded: the listing is its own command.
+        typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
+        return
+    if not resolve_register_path(register).exists():
+        typer.echo(f"(no register yet at {resolve_register_path(register)})")
+        return
+    # Listing reads only: a read-only file or folder can be listed.
+    with open_register_readonly(register) as reg:
+        if job:
+            from windsheet.qc.signoff_text import history_lines
+
+            h = reg.job_history(job)
+            typer.echo(to_json(h) if as_json else "\n".join(history_lines(h)))
+            return
+        jobs = reg.list_jobs()
+    from windsheet.records.register_listing import as_csv as listing_csv, select, table_lines
+
+    jobs = select(jobs, state, customer, since)
+    if as_json:
+        typer.echo(to_json(jobs))
+    elif as_csv:
+        typer.echo(listing_csv(jobs), nl=False)
+    else:
+        typer.echo("\n".join(table_lines(jobs)))
+
+
+def _lot_search(register, lot, as_json):
+    """The recall question: which units were built from (or measured with) ``lot``."""
+    from windsheet.records.register import open_register_readonly, resolve_register_path
+    from windsheet.records.traceability import lot_lines, similar_lots, units_with_lot
+
+    if not resolve_register_path(register).exists():
+        raise InputError(str(resolve_register_path(register)), "no register here yet; nothing is recorded")
+    with open_register_readonly(register) as reg:
+        units = units_with_lot(reg.conn, lot)
+        similar = similar_lots(reg.conn, lot) if not units else []
+    typer.echo(to_json({"lot": lot, "units": units}) if as_json else "\n".join(lot_lines(lot, units, similar)))

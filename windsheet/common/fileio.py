@@ -1,0 +1,480 @@
+"""Atomic output files: a reader sees the old file or the new one, never half of one."""
+
+from __future__ import annotations
+
+import csv
+import io
+import os
+import stat
+import tempfile
+import re
+from contextlib import contextmanager
+from functools import lru_cache
+from pathlib import Path
+
+from .errors import InputError, join_path
+
+
+def _fsync_dir(folder: Path) -> None:
+    # The rename itself lives in the directory; sync it so a power cut keeps it.
+    try:
+        fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)
+
+
+def _temp_prefix(name: str) -> str:
+    # Host and process in the name: a later run can tell a crashed writer's file from a live one's.
+    import socket
+
+    host = "".join(ch for ch in socket.gethostname() if ch.isalnum() or ch in "-_")[:40] or "host"
+    return f".{name}.{host}-{os.getpid()}."
+
+
+def clean_stale_temps(folder, name: str) -> list[Path]:
+    """Remove temporary files a crashed run of this host left beside ``folder/name``.
+
+    A temporary file is ``.NAME.HOST-PID.XXXX.tmp``; it is stale when HOST is
+    this host and process PID no longer runs.  Files of live processes and of
+    other hosts are left alone.  Returns what was removed.
+    """
+    folder = Path(folder)
+    mine = _temp_prefix(name)
+    host_prefix = mine[: mine.rindex("-") + 1]
+    removed = []
+    try:
+        names = [q for q in folder.iterdir() if q.name.startswith(host_prefix) and q.name.endswith(".tmp")]
+    except OSError:
+        return removed
+    for q in names:
+        pid_text = q.name[len(host_prefix):].split(".", 1)[0]
+        if not pid_text.isdigit():
+            continue
+        try:
+            os.kill(int(pid_text), 0)
+            continue  # still running
+        except ProcessLookupError:
+            pass
+        except OSError:
+            continue  # running as someone else
+        try:
+            q.unlink()
+            removed.append(q)
+        except OSError:
+            pass
+    return removed
+
+
+def _refuse_write(label: str, exc: BaseException) -> None:
+    """An OS fault while writing ``label`` as one line; anything else goes on up."""
+    if isinstance(exc, PermissionError):
+        raise InputError(label, "cannot write: permission denied") from None
+    if isinstance(exc, OSError):
+        raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+
+
+def stage_file(path, data: bytes) -> tuple[Path, str]:
+    """Write ``data`` to a temporary file beside ``path`` (flushed, fsynced, permissions set).
+
+    Returns ``(target, temporary name)``; put it in place with :func:`place_file`.
+    Stale temporary files of crashed runs for the same name are removed first.
+    """
+    target = Path(path)
+    folder = target.parent if str(target.parent) else Path(".")
+    label = str(target)
+    if not folder.is_dir():
+        raise InputError(label, f"cannot write: folder {str(folder)!r} does not exist")
+    if target.is_dir():
+        raise InputError(label, "cannot write: this is a folder, expected a file name")
+    clean_stale_temps(folder, target.name)
+    try:
+        fd, tmp_name = tempfile.mkstemp(prefix=_temp_prefix(target.name), suffix=".tmp", dir=folder)
+    except PermissionError:
+        raise InputError(label, f"cannot write: no write permission in folder {str(folder)!r}") from None
+    except OSError as exc:
+        raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        if target.exists():
+            # Keep the permissions a user gave the old file; mkstemp makes 0600.
+            try:
+                os.chmod(tmp_name, target.stat().st_mode & 0o7777)
+            except OSError:
+                pass
+        else:
+            umask = os.umask(0)
+            os.umask(umask)
+            os.chmod(tmp_name, 0o666 & ~umask)
+    except BaseException as exc:
+        discard_file(tmp_name)
+        _refuse_write(label, exc)
+        raise
+    return target, tmp_name
+
+
+def place_file(tmp_name: str, target) -> None:
+    """Rename a staged file over its target (atomic in one folder) and sync the folder."""
+    target = Path(target)
+    os.replace(tmp_name, target)
+    _fsync_dir(target.parent if str(target.parent) else Path("."))
+
+
+def discard_file(tmp_name: str) -> None:
+    try:
+        os.unlink(tmp_name)
+    except OSError:
+        pass
+
+
+@contextmanager
+def staged_write(path, data: bytes):
+    """Write ``data`` beside ``path`` and put it in place only if the ``with`` block succeeds.
+
+    The temporary file in the same folder is flushed, fsynced and renamed over
+    the target with :func:`os.replace`, which is atomic on POSIX and Windows
+    when both names are on one file system (hence the same folder).  On any
+    failure, in the write or in the block, the temporary file is removed and
+    the old target is left as it was.  The block is where a caller records
+    what it wrote (the register), so a record and its file stand or fall
+    together; :mod:`windsheet.records.sheet_ledger` also closes the window between
+    the record's commit and the rename.
+
+    Raises
+    ------
+    InputError
+        The folder is missing, the path is a folder, or it is not writable;
+        the error names the output path.
+    """
+    target, tmp_name = stage_file(path, data)
+    label = str(target)
+    try:
+        yield target
+        place_file(tmp_name, target)
+    except BaseException as exc:
+        discard_file(tmp_name)
+        _refuse_write(label, exc)
+        raise
+
+
+def atomic_write_bytes(path, data: bytes) -> Path:
+    """Write ``data`` to ``path`` atomically; see :func:`staged_write`."""
+    with staged_write(path, data) as target:
+        return target
+
+
+def atomic_write_text(path, text: str, encoding: str = "utf-8") -> Path:
+    """Write ``text`` atomically; see :func:`atomic_write_bytes`."""
+    return atomic_write_bytes(path, text.encode(encoding))
+
+
+# --- Reading YAML safely -------------------------------------------------------------
+
+MAX_YAML_BYTES = 1_000_000
+MAX_YAML_DEPTH = 32
+
+
+# A count as a shop writes it: decimal digits, no leading zero.  YAML 1.1 also
+# reads 060 as octal 48, 0x3C and 0b111100 as 60, 6_0 as 60 and 1:30 as 90.
+_DECIMAL = re.compile(r"[-+]?(?:0|[1-9][0-9]*)")
+
+
+class OddNumeral:
+    """A number YAML 1.1 would read other than as a shop means it (``060``, ``0x3C``,
+    ``6_0``, ``1:30``); kept as its text so the loader can refuse it at its path."""
+
+    __slots__ = ("text",)
+
+    def __init__(self, text: str):
+        self.text = text
+
+    def __hash__(self):
+        return hash(("OddNumeral", self.text))
+
+    def __eq__(self, other):
+        return isinstance(other, OddNumeral) and other.text == self.text
+
+    def __repr__(self):
+        return self.text
+
+    def reason(self) -> str:
+        t = self.text.strip()
+        body = t.lstrip("+-")
+        if ":" in t:
+            return (f"{t} would be read as a base-60 number; write the decimal value, "
+                    f"or quote it ('{t}') if it is text")
+        if body[:2].lower() in ("0x", "0b"):
+            base = "hexadecimal" if body[1] in "xX" else "binary"
+            try:
+                decimal = f" ({int(t.replace('_', ''), 0)})"
+            except ValueError:
+                decimal = ""
+            return f"{t} is a {base} number; write counts in decimal{decimal}"
+        if "_" in t:
+            return f"{t}: digit separators (_) are not read; write {t.replace('_', '')}"
+        plain = body.lstrip("0") or "0"
+        return (f"{t} has a leading zero, which YAML reads as an octal number; write {plain} for a count, "
+                f"or quote it ('{t}') if it is text")
+
+
+class _Refused(Exception):
+    """A YAML feature a shop file never needs, with where it is."""
+
+    def __init__(self, problem: str, mark):
+        super().__init__(problem)
+        self.problem, self.mark = problem, mark
+
+
+@lru_cache(maxsize=None)
+def _yaml_loader_class(max_depth: int):
+    import yaml
+
+    class LimitedSafeLoader(yaml.SafeLoader):
+        """Safe loader that also refuses anchors, aliases, merge keys, deep
+        nesting, repeated keys and numbers a shop does not write that way.
+
+        Anchors and aliases are refused outright: shop files never need them
+        and they are how an "alias bomb" grows a few hundred bytes into gigabytes.
+        """
+
+        _depth = 0
+
+        def compose_node(self, parent, index):
+            event = self.peek_event()
+            if isinstance(event, yaml.AliasEvent):
+                raise _Refused(f"anchors and aliases (*{event.anchor}) are not accepted; write the value out in full",
+                               event.start_mark)
+            if getattr(event, "anchor", None) is not None:
+                raise _Refused(f"anchors and aliases (&{event.anchor}) are not accepted; write the value out in full",
+                               event.start_mark)
+            self._depth += 1
+            try:
+                if self._depth > max_depth:
+                    raise _Refused(f"nested deeper than {max_depth} levels", event.start_mark)
+                return super().compose_node(parent, index)
+            finally:
+                self._depth -= 1
+
+        def construct_mapping(self, node, deep=False):
+            seen = set()
+            for key_node, _ in node.value:
+                if key_node.tag == "tag:yaml.org,2002:merge":
+                    raise _Refused("merge keys (<<) are not accepted; write the fields out in full",
+                                   key_node.start_mark)
+                key = self.construct_object(key_node, deep=True)
+                try:
+                    hashable = key in seen
+                except TypeError:
+                    raise _Refused("a YAML mapping key must be plain text", key_node.start_mark) from None
+                if hashable:
+                    raise _Refused(f"key {key!r} appears twice", key_node.start_mark)
+                seen.add(key)
+            return super().construct_mapping(node, deep=deep)
+
+        def construct_yaml_int(self, node):
+            text = self.construct_scalar(node)
+            return int(text) if _DECIMAL.fullmatch(text) else OddNumeral(text)
+
+        def construct_yaml_float(self, node):
+            text = self.construct_scalar(node)
+            if "_" in text or ":" in text:
+                return OddNumeral(text)
+            return super().construct_yaml_float(node)
+
+    LimitedSafeLoader.add_constructor("tag:yaml.org,2002:int", LimitedSafeLoader.construct_yaml_int)
+    LimitedSafeLoader.add_constructor("tag:yaml.org,2002:float", LimitedSafeLoader.construct_yaml_float)
+    return LimitedSafeLoader
+
+
+def _first_odd_numeral(node, path=()):
+    """(path, numeral) of the first :class:`OddNumeral` in document order, or None."""
+    if isinstance(node, OddNumeral):
+        return path, node
+    if isinstance(node, dict):
+        for k, v in node.items():
+            if isinstance(k, OddNumeral):
+                return path + (k.text,), k
+            found = _first_odd_numeral(v, path + (k,))
+            if found:
+                return found
+    elif isinstance(node, list):
+        for i, v in enumerate(node):
+            found = _first_odd_numeral(v, path + (i,))
+            if found:
+                return found
+    return None
+
+
+def read_yaml_file(path, *, max_bytes: int = MAX_YAML_BYTES, max_depth: int = MAX_YAML_DEPTH):
+    """Read a YAML document with size, depth, alias and type limits.
+
+    Returns the loaded document (usually a dict).  Every refusal is an
+    :class:`InputError` naming the file: missing, unreadable, too large, not
+    UTF-8 text, not YAML, or using features a shop file never needs.
+    """
+    return parse_yaml_bytes(read_limited(path, max_bytes), str(path), max_bytes=max_bytes, max_depth=max_depth)
+
+
+def _not_regular(mode: int, what: str) -> str | None:
+    """Why a file of this ``st_mode`` is refused, or None for a regular file."""
+    if stat.S_ISREG(mode):
+        return None
+    if stat.S_ISDIR(mode):
+        return f"is a folder, expected a {what}"
+    if stat.S_ISFIFO(mode):
+        kind = "a named pipe (FIFO)"
+    elif stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        kind = "a device"
+    elif stat.S_ISSOCK(mode):
+        kind = "a socket"
+    else:
+        kind = "not a plain file"
+    return f"is {kind}, not a regular file; expected a {what}"
+
+
+def _refuse_os_error(label: str, exc: OSError, what: str):
+    if isinstance(exc, FileNotFoundError):
+        return InputError(label, "file not found")
+    if isinstance(exc, IsADirectoryError):
+        return InputError(label, f"is a folder, expected a {what}")
+    if isinstance(exc, PermissionError):
+        return InputError(label, "cannot read: permission denied")
+    return InputError(label, f"cannot read: {exc.strerror or exc}")
+
+
+def require_regular_file(path, what: str = "file") -> None:
+    """Refuse ``path`` unless it is a regular file or does not exist yet.
+
+    Called before a library (SQLite) opens a file itself: a FIFO given as a
+    register would block that open for ever, a device would be read without end.
+
+    Raises
+    ------
+    InputError
+        ``path`` names a folder, a FIFO, a device or a socket; the error names it.
+    """
+    label = str(path)
+    try:
+        mode = os.stat(path).st_mode
+    except FileNotFoundError:
+        return
+    except OSError as exc:
+        raise _refuse_os_error(label, exc, what) from None
+    why = _not_regular(mode, what)
+    if why:
+        raise InputError(label, why)
+
+
+def read_limited(path, max_bytes: int, what: str = "YAML file") -> bytes:
+    """The bytes of a regular file, reading at most one byte past ``max_bytes``
+    (so an oversized file is noticed without reading it all); faults name the file.
+
+    A FIFO, a device (``/dev/zero``), a socket or a folder is refused by name
+    without blocking: the file is stat-ed first, then opened with ``O_NONBLOCK``
+    and checked again on the open descriptor, so a file swapped in between is
+    caught too.  Reading a regular file of bounded size cannot wait for a writer.
+
+    Examples
+    --------
+    >>> read_limited("/dev/zero", 10)
+    Traceback (most recent call last):
+    ...
+    windsheet.common.errors.InputError: /dev/zero: is a device, not a regular file; expected a YAML file
+    """
+    label = str(path)
+    try:
+        why = _not_regular(os.stat(path).st_mode, what)
+        if why:
+            raise InputError(label, why)
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0)
+                     | getattr(os, "O_CLOEXEC", 0))
+    except OSError as exc:
+        raise _refuse_os_error(label, exc, what) from None
+    try:
+        why = _not_regular(os.fstat(fd).st_mode, what)
+        if why:
+            raise InputError(label, why)
+        chunks, left = [], max_bytes + 1
+        while left > 0:
+            chunk = os.read(fd, min(left, 1 << 20))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            left -= len(chunk)
+        return b"".join(chunks)
+    except OSError as exc:
+        raise _refuse_os_error(label, exc, what) from None
+    finally:
+        os.close(fd)
+
+
+#: A shop's CSV table (wire catalog, readings) is a few hundred rows. [bytes]
+MAX_CSV_BYTES = 1_000_000
+
+
+def read_csv_rows(path, what: str = "CSV file", max_bytes: int = MAX_CSV_BYTES) -> list[dict]:
+    """The rows of a CSV file with a header line, as dicts, read with :func:`read_limited`.
+
+    UTF-8 (a spreadsheet's byte-order mark is dropped).  A field over the
+    ``csv`` module's limit (128 K characters) or a malformed quote is refused
+    with the line it is on; every refusal is an :class:`InputError` naming the file.
+    """
+    label = str(path)
+    raw = read_limited(path, max_bytes, what)
+    if len(raw) > max_bytes:
+        raise InputError(label, f"file is larger than {max_bytes // 1000} kB; not a {what}")
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputError(label, f"is not UTF-8 text; expected a {what}") from None
+    if "\x00" in text:
+        raise InputError(label, "contains NUL characters (binary file?)")
+    reader = csv.DictReader(io.StringIO(text, newline=""))
+    try:
+        return list(reader)
+    except csv.Error as exc:
+        problem = (f"a field is longer than {csv.field_size_limit()} characters" if "field limit" in str(exc)
+                   else f"not readable as CSV ({exc})")
+        raise InputError(label, f"line {reader.line_num + 1}: {problem}; expected a {what}") from None
+
+
+def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
+                     max_depth: int = MAX_YAML_DEPTH):
+    """Parse YAML from bytes with the limits of :func:`read_yaml_file`."""
+    import yaml
+
+    if len(raw) > max_bytes:
+        raise InputError(label, f"file is larger than {max_bytes // 1000} kB; not a shop file")
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise InputError(label, "is not UTF-8 text (binary file?)") from None
+    if "\x00" in text:
+        raise InputError(label, "contains NUL characters (binary file?)")
+    try:
+        doc = yaml.load(text, Loader=_yaml_loader_class(max_depth))  # noqa: S506 - SafeLoader subclass
+    except _Refused as exc:
+        where = f"line {exc.mark.line + 1}, column {exc.mark.column + 1}: " if exc.mark else ""
+        raise InputError(label, f"{where}{exc.problem}") from None
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark or exc.context_mark
+        where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
+        problem = exc.problem or exc.context or "not valid YAML"
+        raise InputError(label, f"not valid YAML{where}: {problem}") from None
+    except yaml.YAMLError as exc:
+        raise InputError(label, f"not valid YAML: {exc}") from None
+    except RecursionError:
+        raise InputError(label, "nested too deeply") from None
+    odd = _first_odd_numeral(doc)
+    if odd:
+        where, numeral = odd
+        raise InputError(join_path(*where) or label, numeral.reason())
+    return doc

@@ -1,0 +1,457 @@
+"""From a validated order to the one Prediction every consumer reads.
+
+This module only composes the physics modules; it holds no model of its
+own.  The result is a plain JSON-ready dict in SI units (see README, "The
+prediction").  Rendering and sign-off read it and never recompute physics.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+
+import numpy as np
+
+from windsheet.physics import coil_formulas as cf
+from windsheet.physics import layout as lay
+from windsheet.design import sizing
+from windsheet.physics import stress
+from windsheet.common.errors import InputError
+from windsheet.physics.ac_resistance import winding_ac_ratio
+from windsheet.physics.fast_front import DEFAULT_GROUND_CAPACITANCE_F
+from windsheet.physics import heating
+from windsheet.physics.insulation import hipot_voltage
+from windsheet.physics.leads import lead_routes
+from .remedies import advice, find_remedies
+from windsheet.physics.network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
+from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
+from windsheet.order.wire_choice import resolve_wire
+from .qc_plan import required_lines
+from .target_turns import solve_turns
+from windsheet.physics.wire import copper_mass, dc_resistance
+
+
+HOOKUP_TEXT = {
+    "single": "one strand between the two terminals",
+    "series-aiding": "strands in series, each finish joined to the next start: fields add",
+    "series-opposing": "two strands in series with both finishes joined (hairpin): fields cancel, "
+                       "non-inductive",
+    "parallel": "strands in parallel: all starts joined, all finishes joined",
+    "separate": "each strand a winding of its own, brought out on its own leads",
+    "custom": "joins and terminals as listed in the order",
+}
+
+
+def _hz(x):
+    for scale, unit in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")):
+        if x >= scale:
+            return f"{x / scale:.3g} {unit}"
+    return f"{x:.3g} Hz"
+
+
+def _refuse_above_self_resonance(duty, srf):
+    """At or above its self-resonance a winding is capacitive: not the inductor ordered."""
+    if duty.frequency > 0 and srf is not None and duty.frequency >= srf:
+        raise InputError("duty.frequency", f"{_hz(duty.frequency)} is at or above the winding's predicted "
+                         f"self-resonance {_hz(srf)}: there the coil is not an inductor; lower the frequency, "
+                         "or use fewer turns or a construction with less capacitance")
+
+
+def _lead_routes(order: Order):
+    r = order.doc.winding.leads
+    return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
+
+
+def _outer_surface(order: Order, layout):
+    """The winding's outer surface, which sheds its heat [m²], and its characteristic length [m]."""
+    f = order.doc.form
+    b = float(layout.build_height)
+    if isinstance(f, ToroidForm):
+        od, hole, h = f.outer_diameter + 2 * b, max(f.inner_diameter - 2 * b, 0.0), f.height + 2 * b
+        return math.pi * (od + hole) * h + math.pi / 2 * (od ** 2 - hole ** 2), od
+    # The outer layer's turn, out to its surface, along the traverse; the winding's ends lie
+    # against flanges or the form and are not counted (errs hot).
+    perimeter = float(np.max(layout.turn_length)) + math.pi * layout.overall_diameter
+    return perimeter * float(layout.traverse_used), perimeter / math.pi
+
+
+def _resistivity(wire, temperature_C):
+    d = wire.copper_diameter
+    return float(dc_resistance(1.0, d, temperature_C, conductor=wire.conductor)) * math.pi * d * d / 4
+
+
+def _ac_ratio(order: Order, wire, layout, temperature_C):
+    return winding_ac_ratio(order.doc.duty.frequency, wire.copper_diameter, _resistivity(wire, temperature_C),
+                            layout.layers, layout.pitch / layout.strands)
+
+
+def _heat(order: Order, wire, layout, length, L):
+    """Temperatures of the winding on its duty (:mod:`windsheet.physics.heating`), loss rising with them.
+
+    The strand currents are found again at each temperature: a winding driven by a voltage
+    without a stated current draws less as it warms.
+    """
+    duty = order.doc.duty
+
+    def loss_at(t):
+        r = dc_resistance(length, wire.copper_diameter, t, conductor=wire.conductor)
+        i = _strand_currents(duty, sizing.network_at(order, L, r, duty.frequency))
+        return float(np.sum(i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
+
+    area, size = _outer_surface(order, layout)
+    temps = heating.winding_temperatures(loss_at, area, size, float(layout.build_height), order.doc.duty.ambient)
+    return {**temps, "surface_area_m2": area, "characteristic_length_m": size}
+
+
+def _thermal(temps, wire, strand_i, order_t):
+    """The thermal report: temperatures, the class verdict, current density."""
+    verdict, reason = heating.thermal_verdict(temps["hot_spot_C"], wire.thermal_class,
+                                              converged=temps["converged"])
+    j = [float(heating.current_density(i, wire.copper_diameter)) for i in strand_i]
+    lo, hi = heating.CURRENT_DENSITY_RANGE_A_PER_MM2
+    return {**temps, "method": heating.METHOD, "emissivity": heating.EMISSIVITY,
+            "winding_conductivity_W_per_mK": heating.WINDING_CONDUCTIVITY,
+            "thermal_class_C": wire.thermal_class, "verdict": verdict, "reason": reason,
+            "operating_temperature_given_C": order_t,
+            "current_density_A_per_mm2": max(j) if j else 0.0,
+            "current_density_range_A_per_mm2": [lo, hi],
+            "current_density_basis": "common practice for naturally cooled small windings (memory)"}
+
+
+def _strand_currents(duty, duty_net):
+    """rms current in each strand at duty: the order's, or the voltage over the impedance. [A]"""
+    z = abs(complex(duty_net.resistance, 2 * math.pi * duty.frequency * duty_net.inductance))
+    i = duty.current if duty.current > 0 else (duty.voltage / z if z > 0 else 0.0)
+    return np.abs(duty_net.strand_current) * i
+
+
+def _end(name: str):
+    sid, which = name.split(".")
+    return STRAND_IDS.index(sid), 0 if which == "start" else 1
+
+
+def _edge(order: Order, net, turns: int):
+    """The fast edge a pulse or ``rise_time`` duty puts on the terminals, for stress.edge_stress."""
+    duty = order.doc.duty
+    if duty.waveform != "pulse" and duty.rise_time is None:
+        return None
+    ends = np.asarray(net.end_potential, dtype=complex)
+    if order.hookup_name == "separate":
+        # Each winding on its own circuit takes the same edge (as the network drives them in phase).
+        held = {(s, w): float(w) for s in range(ends.shape[0]) for w in (0, 1)}
+    else:
+        held = {_end(t): float(np.real(ends[_end(t)])) for t in net.terminals}
+    ties = [(_end(a), _end(b)) for group in net.joins for a, b in zip(group[:-1], group[1:])]
+    span = float(np.max(np.abs(ends[:, 1] - ends[:, 0]))) if ends.size else 1.0
+    given = duty.ground_capacitance is not None
+    return {"held": held, "ties": ties, "rise_time_s": duty.rise_time,
+            "ground_F": duty.ground_capacitance if given else DEFAULT_GROUND_CAPACITANCE_F,
+            "ground_given": given, "series_turns": int(round(turns / span)) if span > 0 else turns}
+
+
+def _pairs(L, R, frequency):
+    """What each pair of strands reads linked series-aiding and series-opposing before the joint."""
+    out = {}
+    S = len(R)
+    for i in range(S):
+        for j in range(i + 1, S):
+            sub_L, sub_R = L[np.ix_([i, j], [i, j])], R[[i, j]]
+            aid = solve_network(sub_L, sub_R, [["A.finish", "B.start"]], ["A.start", "B.finish"], frequency)
+            opp = solve_network(sub_L, sub_R, [["A.finish", "B.finish"]], ["A.start", "B.start"], frequency)
+            out[f"{STRAND_IDS[i]}-{STRAND_IDS[j]}"] = {
+                "series_aiding_H": aid.inductance, "series_opposing_H": opp.inductance,
+                "mutual_H": float(L[i, j]), "coupling": float(L[i, j] / math.sqrt(L[i, i] * L[j, j]))}
+    return out
+
+
+def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
+    """Slots of each layer for the sketch: the first and last few, and the worst pair's.
+
+    With ``potential`` (each turn's peak potential from terminal 1 [V]), each
+    slot carries ``potential_Vpk``; the turns of the worst neighbouring pair
+    carry ``worst: true``.
+    """
+    out = []
+    worst_turns = {int(t) for t in worst if t is not None}
+    full = max(layout.turns_in_layer)
+    for lay_i in range(layout.layers):
+        sel = np.flatnonzero(layout.layer == lay_i)
+        slots = sorted(set(layout.slot[sel].tolist()))
+        # A partial layer shows fewer slots after the ellipsis, in proportion to its turns.
+        tail = keep if len(slots) >= full else max(1, round(keep * len(slots) / full) - 2)
+        shown = slots if len(slots) <= keep + tail else slots[:keep] + slots[-tail:]
+        extra = {int(layout.slot[t]) for t in worst_turns if layout.layer[t] == lay_i}
+        shown = sorted(set(shown) | extra)
+        rows = []
+        for k in shown:
+            for t in sel[layout.slot[sel] == k]:
+                row = {"slot": int(k), "strand": STRAND_IDS[int(layout.strand[t])]}
+                if potential is not None:
+                    row["potential_Vpk"] = float(potential[t])
+                if int(t) in worst_turns:
+                    row["worst"] = True
+                rows.append(row)
+        out.append({"layer": lay_i + 1, "turns": len(slots), "slots": rows,
+                    "elided": len(shown) < len(slots)})
+    return {"layers": out, "tape_between_layers": layout.tape > 0 and layout.layers > 1,
+            "kind": layout.kind,
+            "potential_max_Vpk": float(np.max(potential)) if potential is not None and len(potential) else None}
+
+
+def _ring(layout, most=90):
+    """A toroid's turns round the ring, for the top view: each layer's turn angles.
+
+    Angles are degrees from the start in the winding direction, one list per
+    layer and strand (at most ``most`` a layer, evenly picked, for the
+    drawing); ``gap_deg`` is the bare angle left between the first and the
+    last turn's wire edges on the inside of the hole.
+    """
+    if layout.theta is None:
+        return None
+    deg = np.degrees(layout.theta)
+    wire_deg = math.degrees(layout.overall_diameter / layout.ring_radius)
+    layers = []
+    for lay_i in range(layout.layers):
+        per_strand = {}
+        for s in range(layout.strands):
+            sel = np.flatnonzero((layout.layer == lay_i) & (layout.strand == s))
+            sel = sel[np.argsort(layout.index[sel])]
+            pick = sel if sel.size <= most else sel[np.linspace(0, sel.size - 1, most).round().astype(int)]
+            per_strand[STRAND_IDS[s]] = [round(float(a), 2) for a in deg[pick]]
+        sel = layout.layer == lay_i
+        rho = layout.ring_radius - float(layout.r[sel][0])
+        a_turns = np.sort(deg[sel & (layout.strand == 0)])
+        layers.append({"layer": lay_i + 1, "turns": int(layout.turns_in_layer[lay_i]),
+                       "pitch_deg": float(np.diff(a_turns).mean()) if a_turns.size > 1 else 0.0,
+                       "radius_m": rho, "build_m": layout.ring_radius - rho + layout.overall_diameter / 2,
+                       "from_deg": float(deg[sel].min()), "to_deg": float(deg[sel].max()),
+                       "angles_deg": per_strand})
+    return {"spread": layout.spread, "ring_radius_m": layout.ring_radius,
+            "wire_diameter_m": layout.overall_diameter,
+            "span_deg": float(deg.max() - deg.min() + wire_deg),
+            "gap_deg": float(360.0 - (deg.max() - deg.min()) - wire_deg), "layers": layers}
+
+
+def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) -> dict:
+    """Size an order: the complete Prediction, JSON-ready, SI units.
+
+    With ``remedies``, an insulation verdict short of a pass lists the order
+    changes that improve it, each found by sizing the changed order again
+    (:mod:`windsheet.design.remedies`).
+    """
+    doc = order.doc
+    wire = resolve_wire(order)
+    warnings = list(wire.warnings)
+    target = None
+    if doc.winding.target_inductance is not None:
+        turns, target = solve_turns(order, wire)
+    else:
+        turns = doc.winding.turns
+    layout = sizing.layout_at(order, wire, turns)
+    warnings.extend(layout.notes)
+    S = layout.strands
+    L = sizing.inductance_matrix(order, wire, layout)
+    length = sizing.strand_lengths(order, layout)
+    duty = doc.duty
+    t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
+    R20 = dc_resistance(length, wire.copper_diameter, conductor=wire.conductor)
+    Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
+    net = sizing.network_at(order, L, R20, doc.test.frequency)
+    duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
+    temps = _heat(order, wire, layout, length, L)
+    if duty.operating_temperature is None:
+        # The order gives no running temperature: the heat balance's mean winding temperature is used.
+        t_op = temps["mean_C"]
+        Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
+        duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
+    elif duty.operating_temperature < temps["mean_C"] - 0.5:
+        warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
+                        f"{temps['mean_C']:.0f} °C the winding is computed to run at "
+                        f"(hot spot {temps['hot_spot_C']:.0f} °C): hot resistance and losses may read low.")
+    tol = doc.tolerances
+    diag = np.sqrt(np.diag(L))
+    coupling = L / np.outer(diag, diag)
+
+    current_sheet = None
+    rosa = None
+    if isinstance(doc.form, CylinderForm) and layout.layers == 1:
+        r0 = float(layout.r[0])
+        current_sheet = float(cf.current_sheet_inductance(r0, turns * layout.pitch, turns))
+        rosa = float(cf.rosa_corrected_inductance(r0, layout.pitch, wire.copper_diameter, turns))
+
+    # Terminal current at duty: the order's current, or the voltage over the impedance.
+    w = 2 * math.pi * duty.frequency
+    z_duty = abs(complex(duty_net.resistance, w * duty_net.inductance))
+    i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
+    strand_i = np.abs(duty_net.strand_current) * i_term
+    ac = {**_ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
+    Rac = Rhot * ac["ratio"]
+    ac_terminal = sizing.network_at(order, L, Rac, duty.frequency).resistance if ac["ratio"] != 1.0 else duty_net.resistance
+    strand_loss = strand_i ** 2 * Rac
+    thermal = _thermal(temps, wire, strand_i, duty.operating_temperature)
+    if thermal["verdict"] in ("fail", "marginal"):
+        warnings.append(thermal["reason"])
+
+    # Each turn's share of its strand's voltage: its own resistance at the duty
+    # temperature and the EMF of its own flux linkage (uniform per turn on a core).
+    ohm_per_m = float(dc_resistance(1.0, wire.copper_diameter, t_op))
+    cored = sizing.core_al(order) is not None
+    drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
+                                 doc.winding.lead_length)
+    leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
+    stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
+                       tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
+                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
+                       leads=leads, impregnation=doc.winding.impregnation)
+    st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
+                       edge=_edge(order, duty_net, turns), **stress_args)
+    if order.hookup_name == "separate" and S > 1:
+        # Capacitance and resonance belong to one winding on its own; the
+        # offset between windings only sets the insulation stress.
+        own_net = separate_windings(L, Rhot)
+        own = stress.assess(layout, own_net, duty.voltage, duty.frequency, wire.breakdown,
+                            drops=stress.winding_drops(layout, own_net, duty.frequency, ohm_per_m, L,
+                                                       cored, doc.winding.lead_length),
+                            **stress_args)
+        st = {**st, "capacitance": {**own["capacitance"],
+                                    "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
+              "self_resonance_Hz": own["self_resonance_Hz"],
+              # Resonance warnings must come from the same winding as the resonance reported.
+              "warnings": [w for w in st["warnings"] if "self-resonance" not in w]
+              + [w for w in own["warnings"] if "self-resonance" in w]}
+    _refuse_above_self_resonance(duty, st["self_resonance_Hz"])
+    warnings.extend(st.get("warnings", []))
+
+    ident = doc.winding.identification or {}
+    strands = []
+    for s in range(S):
+        sid = STRAND_IDS[s]
+        strands.append({
+            "id": sid, "turns": int(turns),
+            "identification": ident.get(sid, _default_ident(sid, S)),
+            "wire_length_m": float(length[s]),
+            "wire_length_with_scrap_m": float(length[s] * (1 + doc.winding.scrap_allowance)),
+            "mass_kg": float(copper_mass(length[s] * (1 + doc.winding.scrap_allowance), wire.copper_diameter,
+                                         conductor=wire.conductor)),
+            "resistance_20C_ohm": float(R20[s]),
+            "resistance_hot_ohm": float(Rhot[s]),
+            "resistance_ac_ohm": float(Rac[s]),
+            "loss_W": float(strand_loss[s]),
+            "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter)),
+            "inductance_H": float(L[s, s]),
+            "current_A": float(strand_i[s]),
+        })
+    f = doc.form
+    job = doc.job
+    energy = 0.5 * net.inductance * i_term ** 2
+    elv = 120.0 if duty.frequency == 0 else 50.0
+    highest_V = max(duty.voltage, duty.between_windings or 0.0)
+    out = {
+        "schema": "windsheet.prediction/1",
+        "job": {"number": job.number, "part": job.part, "customer": job.customer, "quantity": job.quantity,
+                "revision": job.revision, "issued_by": job.issued_by,
+                "issue_date": (job.issue_date or today or _dt.date.today()).isoformat(),
+                "units": order.units, "notes": job.notes},
+        "order_hash": order.sha256,
+        "form": {"kind": f.kind, "material": f.material,
+                 "diameter_m": getattr(f, "diameter", None), "traverse_m": getattr(f, "traverse", None),
+                 "max_build_m": getattr(f, "max_build", None),
+                 "inner_diameter_m": getattr(f, "inner_diameter", None),
+                 "outer_diameter_m": getattr(f, "outer_diameter", None),
+                 "height_m": getattr(f, "height", None), "width_m": getattr(f, "width", None),
+                 "mean_turn_length_m": getattr(f, "mean_turn_length", None),
+                 "al_H": sizing.core_al(order), "permeability": getattr(f, "permeability", None),
+                 "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
+                 "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
+                 "margin_tape_m": order.margin or None,
+                 "margin_tape_material": order.margin_material if order.margin else None},
+        "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
+                 "overall_diameter_m": wire.overall_diameter, "grade": wire.grade,
+                 "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source,
+                 "conductor": wire.conductor, "min_overall_diameter_m": wire.min_overall_diameter,
+                 "breakdown_test": wire.breakdown_test, "sources": list(wire.sources)},
+        "winding": {"strands": S, "turns_per_strand": int(turns), "layers": layout.layers,
+                    "layer_style": layout.layer_style, "strand_spacing": doc.winding.strand_spacing,
+                    "impregnation": doc.winding.impregnation,
+                    "turns_in_layer": list(layout.turns_in_layer), "pitch_m": layout.pitch,
+                    "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
+                    "layer_tape_rating_V": order.tape_rating,
+                    "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
+                    "close_wound": doc.winding.pitch is None, "target": target,
+                    "direction": doc.winding.direction, "spread": layout.spread or None},
+        "ring": _ring(layout),
+        "sheet_units": "imperial" if getattr(order, "imperial", False) else "metric",
+        "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
+                   "description": HOOKUP_TEXT[order.hookup_name]},
+        "terminations": [dict(t) for t in order.pins],
+        "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
+                 "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
+                 "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
+        "test": {"frequency_Hz": doc.test.frequency},
+        "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
+                       "strand_balance": tol.strand_balance},
+        "fit": {"slots_per_layer": layout.slots_per_layer, "traverse_used_m": layout.traverse_used,
+                "traverse_m": getattr(f, "traverse", None) or getattr(f, "width", None),
+                "build_m": layout.build_height, "max_build_m": getattr(f, "max_build", None)
+                or (f.height if isinstance(f, BobbinForm) else None), "fits": True, "notes": list(layout.notes),
+                "placement": None if isinstance(f, ToroidForm) else lay.traverse_placement(
+                    getattr(f, "traverse", None) or f.width, layout.traverse_used, order.margin,
+                    doc.winding.start.end, doc.winding.start.offset)},
+        "strands": strands,
+        "layers": layout.layers,
+        "inductance_matrix_H": L.tolist(),
+        "coupling_matrix": coupling.tolist(),
+        "terminal": {
+            "inductance_H": net.inductance, "resistance_ohm": net.resistance,
+            "resistance_hot_ohm": duty_net.resistance,
+            "resistance_ac_ohm": float(ac_terminal),
+            "loss_W": float(np.sum(strand_loss)),
+            "capacitance_F": st["capacitance"]["terminal_F"],
+            "self_resonance_Hz": st["self_resonance_Hz"],
+            "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
+                       "resistance_min_ohm": net.resistance * (1 - tol.resistance),
+                       "resistance_max_ohm": net.resistance * (1 + tol.resistance)},
+        },
+        "current_sheet_inductance_H": current_sheet,
+        "current_sheet_rosa_corrected_H": rosa,
+        "alternatives": alternative_hookups(L, R20, doc.test.frequency),
+        "pairs": _pairs(L, R20, doc.test.frequency),
+        "worst_adjacent": st["worst_adjacent"],
+        "impulse": st["impulse"],
+        "ac_resistance": ac,
+        "thermal": thermal,
+        "leads": st["leads"],
+        "capacitance": st["capacitance"],
+        "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
+        "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
+        "qc_required": required_lines(S, bool(net.joins), True),
+        "energy": {"magnetic_J": energy},
+        "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
+                     "stored_energy_J": energy, "surface_C": thermal["surface_C"],
+                     "hot_surface": thermal["surface_C"] >= heating.HOT_SURFACE_C,
+                     "hot_surface_limit_C": heating.HOT_SURFACE_C},
+        "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
+                                        worst=st.get("worst_pair") or (None, None)),
+        "warnings": warnings,
+    }
+    if remedies:
+        ins = out["insulation"]
+        found = find_remedies(order, out, lambda changed: predict(changed, today, remedies=False))
+        out["insulation"] = {**ins, "remedies": found,
+                             "reasons": list(ins["reasons"]) + advice(found, ins["verdict"])}
+    else:
+        out["insulation"] = {**out["insulation"], "remedies": None}
+    return out
+
+
+def _inductance_accept(predicted, target, tol):
+    """Terminal inductance band: the ordered target +/- tolerance when the order gives
+    one (the customer bought the target, not our estimate), else the prediction's."""
+    centre = target["inductance_H"] if target else predicted
+    return {"inductance_min_H": centre * (1 - tol), "inductance_max_H": centre * (1 + tol),
+            "inductance_basis": "target" if target else "prediction",
+            "inductance_centre_H": centre, "prediction_offset": predicted / centre - 1}
+
+
+def _default_ident(sid: str, strands: int) -> str:
+    return "single strand" if strands == 1 else f"sleeve or tag marked {sid} on both ends"

@@ -1,0 +1,542 @@
+"""The order: one YAML file per job, parsed once into SI values.
+
+This is the only place units are read.  Every fault raises
+:class:`~windsheet.common.errors.InputError` naming the YAML path of the field and
+what was expected.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import hashlib
+import math
+import os
+import re
+from typing import Annotated, Any, Literal, Optional, Union
+
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Field, Tag, ValidationError, model_validator
+
+from windsheet.common.errors import InputError, field_name, join_path
+from windsheet.common.fileio import parse_yaml_bytes, read_limited
+from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
+                      pin_assignment)
+from .fields import (Angle, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
+                           PeakVoltage, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
+                           quantity, strand_keys)
+from .units import SINE_CREST, parse_quantity, read_quantity
+
+#: Orders are small; anything larger is not an order. [bytes]
+MAX_ORDER_BYTES = 256 * 1024
+MAX_DEPTH = 24
+
+
+# ---------------------------------------------------------------- YAML, safely
+def read_yaml_bytes(data: bytes, what: str = "order", max_bytes: int = MAX_ORDER_BYTES, label: str = ""):
+    """Parse YAML bytes into a mapping, refusing anything hostile (see :mod:`windsheet.common.fileio`)."""
+    doc = parse_yaml_bytes(data, label or what, max_bytes=max_bytes, max_depth=MAX_DEPTH)
+    if not isinstance(doc, dict):
+        raise InputError(label, f"expected the {what} to be a YAML mapping of sections, got {_yaml_kind(doc)}")
+    return doc
+
+
+def _yaml_kind(doc) -> str:
+    if doc is None:
+        return "nothing (the file is empty)"
+    if isinstance(doc, list):
+        return "a list"
+    if isinstance(doc, str):
+        return "a single piece of text"
+    if isinstance(doc, (int, float)):
+        return "a single number"
+    return f"a single {type(doc).__name__} value"
+
+
+class _M(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+
+
+class Job(_M):
+    number: Ident
+    part: Text
+    customer: Text = ""
+    quantity: Annotated[int, Field(ge=1, le=1000, strict=True)] = 1
+    revision: Ident = "A"
+    issued_by: Text = ""
+    issue_date: Optional[_dt.date] = None
+    units: Optional[list[Ident]] = None
+    notes: Annotated[str, Field(max_length=2000)] = ""
+
+
+class MarginTape(_M):
+    """Tape laid at each end of the traverse, built up to the winding's height, for creepage."""
+    width: Length
+    material: Text = "margin tape"
+
+
+class CylinderForm(_M):
+    kind: choice("cylinder")
+    diameter: Length
+    traverse: Length
+    max_build: Optional[Length] = None
+    material: Text = "non-magnetic former"
+    #: Width at each end of the traverse (or ``{width, material}``).
+    margin_tape: Optional[Union[Length, MarginTape]] = None
+
+
+class ToroidForm(_M):
+    kind: choice("toroid")
+    inner_diameter: Length
+    outer_diameter: Length
+    height: Length
+    al: Optional[Inductance] = None
+    permeability: Optional[Annotated[float, Field(gt=0, le=1e6, allow_inf_nan=False)]] = None
+    gap: Angle = math.radians(30.0)
+    material: Text = "toroidal core"
+
+
+class BobbinForm(_M):
+    kind: choice("bobbin")
+    al: Inductance
+    width: Length
+    height: Length
+    diameter: Optional[Length] = None
+    mean_turn_length: Optional[Length] = None
+    material: Text = "bobbin on core"
+    #: The core's gap as assembled (from the core's data; ``al`` is the AL at this gap); 0 = ungapped.
+    gap: Optional[Length0] = None
+    margin_tape: Optional[Union[Length, MarginTape]] = None
+
+
+def _form_kind(v):
+    if not isinstance(v, (dict, BaseModel)):
+        return "cylinder"  # any model refuses it at `form` as "expected a section of fields"
+    kind = v.get("kind") if isinstance(v, dict) else getattr(v, "kind", None)
+    return kind.strip().lower() if isinstance(kind, str) else None
+
+
+Form = Annotated[Union[Annotated[CylinderForm, Tag("cylinder")], Annotated[ToroidForm, Tag("toroid")],
+                       Annotated[BobbinForm, Tag("bobbin")]], Discriminator(_form_kind)]
+
+
+def _conductor(v):
+    if not isinstance(v, str) or v.strip().lower() not in ("copper", "aluminium", "aluminum"):
+        raise ValueError("expected copper or aluminium")
+    return "aluminium" if v.strip().lower().startswith("alumin") else "copper"
+
+
+def _wire_standard(v):
+    key = re.sub(r"[\s-]", "", str(v)).upper()
+    for name in ("IEC 60317-0-1", "NEMA MW 1000"):
+        if re.sub(r"[\s-]", "", name).upper() in key or (key == "IEC" and name.startswith("IEC")) or (
+                key == "NEMA" and name.startswith("NEMA")):
+            return name
+    raise ValueError("expected IEC 60317-0-1 or NEMA MW 1000")
+
+
+class WireSpec(_M):
+    size: Annotated[str, Field(max_length=40)]
+    grade: Literal[1, 2, 3] = 2
+    conductor: Annotated[str, BeforeValidator(_conductor)] = "copper"
+    standard: Optional[Annotated[str, BeforeValidator(_wire_standard)]] = None
+    thermal_class: Literal[105, 120, 130, 155, 180, 200, 220, 240] = 155
+    overall_diameter: Optional[Length] = None
+    breakdown: Optional[Voltage] = None
+    catalog: Optional[Annotated[str, Field(max_length=400)]] = None
+    permittivity: Annotated[float, Field(ge=1.0, le=20.0, allow_inf_nan=False)] = 3.5
+
+
+class LayerTape(_M):
+    thickness: Length
+    rating: Optional[Voltage] = None
+    material: Text = "polyester tape"
+
+
+class LeadRoutes(_M):
+    """How each lead and joint wire is dressed (see :mod:`windsheet.physics.leads`); unnamed routes
+    take the default for the winding."""
+    start: Optional[Literal["start-flange", "through-form"]] = None
+    finish: Optional[Literal["over-top-layer", "end-flange", "down-start-flange"]] = None
+    joint: Optional[Literal["back-over-winding", "end-flange"]] = None
+
+
+def _spread(v):
+    """``even``, or a sector angle like ``270 deg`` (radians)."""
+    if isinstance(v, str) and v.strip().lower() == "even":
+        return "even"
+    try:
+        angle = parse_quantity(v, "angle", "")
+    except InputError:
+        raise ValueError("expected even, or a sector angle like '270 deg'") from None
+    if not 0.0 < angle < 2 * math.pi:
+        raise ValueError("a sector is an angle above 0 deg and below 360 deg")
+    return angle
+
+
+def _direction(v):
+    words = {"clockwise": "clockwise", "cw": "clockwise", "anticlockwise": "anticlockwise",
+             "counterclockwise": "anticlockwise", "ccw": "anticlockwise"}
+    key = re.sub(r"[\s-]", "", v).lower() if isinstance(v, str) else None
+    if key not in words:
+        raise ValueError("expected clockwise or anticlockwise")
+    return words[key]
+
+
+_ENDS = {"start-end": "start-end", "start": "start-end", "start-flange": "start-end",
+         "finish-end": "finish-end", "finish": "finish-end", "finish-flange": "finish-end",
+         "centre": "centre", "center": "centre", "middle": "centre"}
+
+
+def _end(v):
+    if lowered(v) not in _ENDS:
+        raise ValueError("expected start-end, finish-end or centre")
+    return _ENDS[lowered(v)]
+
+
+class WindingStart(_M):
+    """Where the winding sits on the traverse: ``offset`` in from the named end (inside any margin tape)."""
+    end: Annotated[Literal["start-end", "finish-end", "centre"], BeforeValidator(_end)] = Field("start-end", alias="from")
+    offset: Length0 = 0.0
+
+
+def _start(v):
+    """``start-end``, ``finish-end`` or ``centre``; a length (in from the start end); or ``{from, offset}``."""
+    if isinstance(v, str) and lowered(v) in _ENDS:
+        return {"from": v}
+    if isinstance(v, (str, int, float)) and not isinstance(v, bool):
+        return {"offset": v}
+    if not isinstance(v, (dict, WindingStart)):
+        raise ValueError("expected start-end, finish-end, centre, an offset like '2 mm', or {from: start-end, offset: 2 mm}")
+    return v
+
+
+class Winding(_M):
+    # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
+    strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
+    turns: Optional[Annotated[int, Field(ge=1, le=100_000, strict=True)]] = None
+    target_inductance: Optional[Inductance] = None
+    layers: count_or_auto("layers", 1, 200) = "auto"
+    pitch: Optional[Length] = None
+    layer_tape: Optional[Union[Length, LayerTape]] = None
+    lead_length: Length0 = 0.15
+    scrap_allowance: Fraction = 0.10
+    identification: Optional[Annotated[dict[Literal["A", "B", "C", "D"], Text], BeforeValidator(strand_keys)]] = None
+    coupling: Annotated[float, Field(ge=0.0, le=1.0, allow_inf_nan=False)] = 1.0
+    # Untaped close-wound layers nest, taped or spaced ones stack, unless the order says.
+    layer_style: Optional[Literal["nested", "stacked"]] = None
+    strand_spacing: Literal["together", "even"] = "together"
+    impregnation: Literal["none", "varnish", "potted"] = "none"
+    leads: LeadRoutes = LeadRoutes()
+    # Toroids: turns spread evenly round the core (less the gap), or over a sector.
+    spread: Optional[Annotated[Union[Literal["even"], float], BeforeValidator(_spread)]] = None
+    # Seen from the start end (a toroid: from its top face); see the README's convention.
+    direction: Annotated[Literal["clockwise", "anticlockwise"], BeforeValidator(_direction)] = "clockwise"
+    # Cylinders and bobbins: where the first turn goes (default: hard against the start end).
+    start: Annotated[WindingStart, BeforeValidator(_start)] = WindingStart()
+
+
+class Duty(_M):
+    """The working duty, its amplitudes as the engine reads them.
+
+    ``voltage`` (and ``between_windings``) is the rms for a sine duty, the
+    value for a dc duty; a sine voltage given as ``V peak`` is divided by
+    sqrt(2).  A pulse duty gives its peak (and ``rise_time``); ``voltage`` is
+    then the rms of the sine of that peak, so the quasi-static voltage map
+    shows the pulse's peak between turns.  ``voltage_form`` records how the
+    order gave the voltage: ``rms`` (also when no qualifier was written, read
+    as rms as before), ``peak`` or ``dc``.  ``current`` is rms (dc for a dc duty).
+    """
+
+    voltage: Annotated[float, Field(ge=0.0, allow_inf_nan=False)]
+    voltage_form: Literal["rms", "peak", "dc"] = "rms"
+    waveform: Literal["sine", "dc", "pulse"] = "sine"
+    frequency: Frequency0 = 0.0
+    current: Annotated[float, Field(ge=0.0, allow_inf_nan=False)] = 0.0
+    ambient: Temperature = 25.0
+    operating_temperature: Optional[Temperature] = None
+    between_windings: Optional[Annotated[float, Field(ge=0.0, allow_inf_nan=False)]] = None
+    rise_time: Optional[RiseTime] = None
+    #: Capacitance from the whole winding to ground, core or shield, for a fast edge's
+    #: distribution; by default windsheet.physics.fast_front.DEFAULT_GROUND_CAPACITANCE_F (10 pF), stated.
+    ground_capacitance: Optional[Annotated[float, quantity("capacitance")]] = None
+
+    @model_validator(mode="before")
+    @classmethod
+    def _amplitudes(cls, data):
+        return duty_amplitudes(data) if isinstance(data, dict) else data
+
+    @property
+    def voltage_peak(self) -> float:
+        """Peak of the duty voltage [V]: sqrt(2) x rms on ac, the value on dc."""
+        return self.voltage * SINE_CREST if self.frequency > 0 else self.voltage
+
+
+_DUTY_FORMS = {
+    # waveform -> {qualifier given: (form recorded, what the engine gets from the value)}
+    "sine": {None: ("rms", 1.0), "rms": ("rms", 1.0), "peak": ("peak", 1.0 / SINE_CREST)},
+    "dc": {None: ("dc", 1.0), "dc": ("dc", 1.0)},
+    "pulse": {None: ("peak", None), "peak": ("peak", None)},
+}
+_CURRENT_FORMS = {"sine": (None, "rms", "peak"), "dc": (None, "dc"), "pulse": (None, "rms")}
+_DUTY_EXAMPLES = {"sine": "'230 V' (rms), '230 V rms' or '325 V peak'", "dc": "'24 V' or '24 V dc'",
+                  "pulse": "'600 V peak'"}
+
+
+def duty_amplitudes(data: dict) -> dict:
+    """The duty section with its voltages and current read into engine values [V], [A].
+
+    Reads ``waveform`` (default: ``dc`` at 0 Hz, else ``sine``) and each
+    amplitude's qualifier; a combination that contradicts itself (``24 V dc``
+    at 50 Hz) is refused at the field.  Raises InputError with the field's path.
+    """
+    data = dict(data)
+    if "voltage_form" in data:
+        raise InputError("duty.voltage_form", "is read from the voltage as written ('230 V rms', "
+                         "'325 V peak', '24 V dc'); leave it out")
+    freq = 0.0
+    if "frequency" in data:
+        freq = parse_quantity(data["frequency"], "frequency", "duty.frequency", allow_zero=True)
+    given = data.get("waveform")
+    if given is not None and lowered(given) not in _DUTY_FORMS:
+        raise InputError("duty.waveform", "expected sine, dc or pulse")
+    volts = read_quantity(data["voltage"], "voltage", "duty.voltage", allow_zero=True) if "voltage" in data else None
+    waveform = lowered(given) if given is not None else (
+        "dc" if freq == 0 and (volts is None or volts.qualifier in (None, "dc")) else "sine")
+    if waveform == "sine" and freq == 0:
+        raise InputError("duty.frequency", "an ac (sine) duty needs its frequency, like '50 Hz'; "
+                         "for a dc duty write the voltage as '24 V dc'")
+    if waveform == "dc" and freq > 0:
+        raise InputError("duty.frequency", "a dc duty has no frequency: give 0 Hz or leave it out")
+    if waveform == "pulse" and data.get("rise_time") is None:
+        raise InputError("duty.rise_time", "a pulse duty needs its rise time, like '100 ns'")
+    data["waveform"] = waveform
+    for key in ("voltage", "between_windings"):
+        reading = volts if key == "voltage" else (
+            read_quantity(data[key], "voltage", f"duty.{key}", allow_zero=True) if data.get(key) is not None else None)
+        if reading is None:
+            continue
+        forms = _DUTY_FORMS[waveform]
+        if reading.qualifier == "dc" and freq > 0:
+            raise InputError(f"duty.{key}", f"{data[key]!r} is dc, but duty.frequency is {data['frequency']!r}: "
+                             "give 0 Hz for a dc duty, or the ac voltage as rms or peak")
+        if reading.qualifier not in forms:
+            raise InputError(f"duty.{key}", f"a {waveform} duty's voltage is written like "
+                             f"{_DUTY_EXAMPLES[waveform]}; got {data[key]!r}")
+        form, factor = forms[reading.qualifier]
+        if factor is None:  # a pulse: the sine of the same peak on ac, the peak itself at 0 Hz
+            factor = 1.0 / SINE_CREST if freq > 0 else 1.0
+        data[key] = reading.value * factor
+        if key == "voltage":
+            data["voltage_form"] = form
+    if data.get("current") is not None:
+        amps = read_quantity(data["current"], "current", "duty.current", allow_zero=True)
+        if amps.qualifier not in _CURRENT_FORMS[waveform]:
+            raise InputError("duty.current", f"a {waveform} duty's current is its "
+                             f"{'dc value' if waveform == 'dc' else 'rms'}, like '0.2 A'; got {data['current']!r}")
+        data["current"] = amps.value / SINE_CREST if amps.qualifier == "peak" else amps.value
+    return data
+
+
+class Tolerances(_M):
+    inductance: Fraction = 0.10
+    resistance: Fraction = 0.05
+    #: Strands compared with each other (L and R); default half the L and R tolerances.
+    strand_balance: Optional[Fraction] = None
+
+
+class Insulation(_M):
+    derating: Fraction = 0.25
+    #: Least insulation resistance accepted strand to strand and to core (100 MΩ: common practice).
+    min_resistance: Annotated[float, quantity("resistance")] = 100e6
+    #: Measured PDIV (20 °C, peak) of touching turns of this wire as built; by default estimated.
+    pdiv: Optional[PeakVoltage] = None
+    hot_pdiv_derating: Fraction = 0.25
+
+
+class Test(_M):
+    frequency: Frequency = 1e3
+
+
+class OrderDoc(_M):
+    job: Job
+    form: Form
+    wire: WireSpec
+    winding: Winding
+    hookup: Any
+    #: Strand end -> pin (``{A.start: 1, B.finish: 4}``), checked against the hookup in :class:`Order`.
+    terminations: Any = None
+    duty: Duty
+    tolerances: Tolerances = Tolerances()
+    insulation: Insulation = Insulation()
+    test: Test = Test()
+
+
+# ---------------------------------------------------------------- the order
+class Order:
+    """A validated order: the parsed document plus derived, checked pieces."""
+
+    def __init__(self, doc: OrderDoc, source: bytes, path: str | None):
+        self.doc = doc
+        self.source = source
+        self.path = path
+        self.sha256 = hashlib.sha256(source).hexdigest()
+        self.hookup_name, self.joins, self.terminals = _hookup(doc.hookup, doc.winding.strands)
+        w = doc.winding
+        if (w.turns is None) == (w.target_inductance is None):
+            raise InputError("winding", "give either turns (per strand) or target_inductance, not both or neither")
+        if isinstance(w.layer_tape, LayerTape):
+            self.tape, self.tape_rating, self.tape_material = (w.layer_tape.thickness, w.layer_tape.rating,
+                                                               w.layer_tape.material)
+        else:
+            self.tape, self.tape_rating, self.tape_material = (w.layer_tape or 0.0), None, "polyester tape"
+        f = doc.form
+        if isinstance(f, ToroidForm):
+            if f.outer_diameter <= f.inner_diameter:
+                raise InputError("form.outer_diameter", "must be larger than form.inner_diameter")
+            if (f.al is None) == (f.permeability is None):
+                raise InputError("form", "a toroid needs either al (like '2.2 uH', per turn squared) or permeability")
+            if not 0 <= math.degrees(f.gap) < 180:
+                raise InputError("form.gap", "expected an angle between 0 deg and 180 deg, like '30 deg'")
+        if isinstance(f, BobbinForm) and (f.diameter is None) == (f.mean_turn_length is None):
+            raise InputError("form", "a bobbin needs either diameter or mean_turn_length")
+        self.pins = []
+        if doc.terminations is not None:
+            out = brought_out(self.hookup_name, self.terminals, self.strand_ids)
+            try:
+                self.pins = pin_assignment(doc.terminations, self.joins, self.terminals, out, w.strands)
+            except HookupError as exc:
+                raise InputError(exc.where, str(exc)) from None
+        m = getattr(f, "margin_tape", None)
+        self.margin, self.margin_material = ((m.width, m.material) if isinstance(m, MarginTape)
+                                             else (m or 0.0, "margin tape"))
+        if isinstance(f, ToroidForm) and "start" in w.model_fields_set:
+            raise InputError("winding.start", "applies to a cylinder or bobbin; a toroid starts at the mark "
+                             "on its top face and leaves form.gap free")
+        if w.start.end == "centre" and w.start.offset:
+            raise InputError("winding.start.offset", "a centred winding takes no offset; "
+                             "give from: start-end or finish-end with the offset")
+        job = doc.job
+        if job.units is not None and len(job.units) != job.quantity:
+            raise InputError("job.units", f"lists {len(job.units)} serial numbers for a quantity of {job.quantity}")
+        if job.units is not None and len(set(job.units)) != len(job.units):
+            raise InputError("job.units", "serial numbers must be unique")
+        _check_fractions(doc)
+
+    @property
+    def units(self) -> list[str]:
+        j = self.doc.job
+        return list(j.units) if j.units else [f"{j.number}-{k:02d}" for k in range(1, j.quantity + 1)]
+
+    @property
+    def strand_ids(self) -> list[str]:
+        return list(STRAND_IDS[: self.doc.winding.strands])
+
+
+def _check_fractions(doc: OrderDoc):
+    """Percentages whose meaning ends at 100 %: a 150 % tolerance accepts a negative inductance."""
+    tol, ins = doc.tolerances, doc.insulation
+    for path, value in (("tolerances.inductance", tol.inductance), ("tolerances.resistance", tol.resistance),
+                        ("insulation.hot_pdiv_derating", ins.hot_pdiv_derating)):
+        if value >= 1.0:
+            raise InputError(path, f"expected a percentage below 100 %, got {value * 100:g} %")
+    if not 0 < ins.derating <= 1.0:
+        raise InputError("insulation.derating", "expected the share of the breakdown voltage allowed in service, "
+                         f"above 0 % and at most 100 % (common practice 25 %), got {ins.derating * 100:g} %")
+
+
+def _hookup(raw, strands):
+    try:
+        if isinstance(raw, str):
+            name = raw.strip().lower()
+            if name not in NAMED_HOOKUPS:
+                raise HookupError("hookup", f"unknown hookup {raw!r}; expected one of {', '.join(NAMED_HOOKUPS)} "
+                                  "or a mapping {joins: [[A.finish, B.start]], terminals: [A.start, B.finish]}")
+            joins, terms = named_hookup(name, strands)
+            if name != "separate":
+                check_hookup(joins, terms, strands)
+            return name, joins, terms
+        if isinstance(raw, dict):
+            extra = set(raw) - {"joins", "terminals"}
+            if extra:
+                raise HookupError(f"hookup.{field_name(sorted(map(str, extra))[0])}",
+                                  "unknown field; a hookup has joins and terminals")
+            if "terminals" not in raw:
+                raise HookupError("hookup.terminals", "is required: the two strand ends brought out, like [A.start, B.finish]")
+            joins = raw.get("joins") or []
+            if not isinstance(joins, list):
+                raise HookupError("hookup.joins", "expected a list of joins, like [[A.finish, B.start]]")
+            terms = raw["terminals"]
+            check_hookup(joins, terms, strands)
+            norm = lambda e: f"{e.split('.')[0].strip().upper()}.{e.split('.')[1].strip().lower()}"  # noqa: E731
+            return "custom", [[norm(e) for e in j] for j in joins], [norm(e) for e in terms]
+        raise HookupError("hookup", f"expected one of {', '.join(NAMED_HOOKUPS)} or a mapping with joins and terminals")
+    except HookupError as exc:
+        raise InputError(exc.where, str(exc)) from None
+
+
+_FRIENDLY = {
+    "missing": "is required",
+    "extra_forbidden": "is not a known field",
+    "model_type": "expected a section of fields (name: value)",
+    "model_attributes_type": "expected a section of fields (name: value)",
+    "dict_type": "expected a mapping (name: value)",
+    "string_type": "expected text",
+    "list_type": "expected a list",
+    "int_type": "expected a whole number, like 60",
+    "int_from_float": "expected a whole number, like 60",
+    "int_parsing": "expected a whole number, like 60",
+}
+
+
+def _validation_to_input_error(exc: ValidationError) -> InputError:
+    err = exc.errors()[0]
+    loc = [p for p in err["loc"] if p not in ("cylinder", "toroid", "bobbin")
+           and not (isinstance(p, str) and p.startswith(("function-", "int", "literal", "LayerTape", "constrained")))]
+    loc = [p for p in loc if p not in ("float", "str", "bool", "[key]")]
+    path = join_path(*loc)
+    kind = err["type"]
+    msg = _FRIENDLY.get(kind) or err["msg"]
+    if msg.startswith("Value error, "):
+        msg = msg[len("Value error, "):]
+    if kind == "union_tag_invalid" or kind == "union_tag_not_found":
+        msg = "expected kind: cylinder, toroid or bobbin"
+        path = path or "form"
+        if not path.endswith("kind"):
+            path = f"{path}.kind"
+    if kind == "extra_forbidden":
+        msg = "is not a known field (check the spelling)"
+    return InputError(path, msg)
+
+
+def parse_order(data: bytes, path: str | None = None) -> Order:
+    """Validate an order from the bytes of its YAML file."""
+    raw = read_yaml_bytes(data, "order", label=path or "order")
+    raw = {str(k): v for k, v in raw.items()}
+    try:
+        doc = OrderDoc.model_validate(raw)
+    except ValidationError as exc:
+        raise _validation_to_input_error(exc) from None
+    order = Order(doc, data, path)
+    order.imperial = written_in_imperial(raw)
+    return order
+
+
+_IMPERIAL = re.compile(r"^\s*[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*(in|inch|inches|mil|mils|thou|ft|foot|feet)\s*$",
+                       re.IGNORECASE)
+
+
+def written_in_imperial(raw) -> bool:
+    """Whether the order writes a length in inches (mil, ft) or a wire size in AWG.
+
+    The sheets then print inches (and the AWG size) beside millimetres.
+    """
+    if isinstance(raw, dict):
+        return any(written_in_imperial(v) for v in raw.values())
+    if isinstance(raw, list):
+        return any(written_in_imperial(v) for v in raw)
+    return isinstance(raw, str) and (bool(_IMPERIAL.match(raw)) or
+                                     bool(re.fullmatch(r"\s*\d+(/0)?\s*awg\s*", raw, re.IGNORECASE)))
+
+
+def load_order(path) -> Order:
+    """Read and validate the order at ``path``."""
+    return parse_order(read_limited(path, MAX_ORDER_BYTES), os.fspath(path))

@@ -1,0 +1,495 @@
+"""Measured values from the test bench, read from YAML into SI floats.
+
+Shape of the file (every quantity carries its unit)::
+
+    job: HL-0412
+    revision: B                 # optional; checked against the order
+    inspector: R. Amadi         # optional; the command line may give it
+    date: 2025-03-14            # optional
+    instruments: LCR bridge ... # optional free text
+    ambient: 21 degC            # default for every unit
+    test_frequency: 1 kHz       # default for direct inductance readings
+    units:
+      - serial: HL-0412-01
+        ambient: 22.5 degC      # optional override
+        strands:
+          A: {inductance: 61.2 uH, resistance: 1.182 ohm, turns: 120}
+          B: {inductance: {resonant_frequency: 205 kHz, capacitor: 10 nF}, resistance: 1.190 ohm}
+        before_joint:           # series-aiding / series-opposing pairs, read before joining
+          A-B: {series_aiding: 243 uH, series_opposing: 2.4 uH}
+        terminals: {inductance: 243 uH, resistance: 2.37 ohm}
+        insulation: {strand_to_strand: 5 Gohm, to_core: 10 Gohm, test_voltage: 500 V}
+        hipot: {voltage: 1500 V, duration: 60 s, leakage: 0.4 mA, result: pass}
+        continuity: {A-B: open}     # or {strand_to_strand: shorted}
+        wire_lot: R-2291            # optional traceability: the reel or lot (or {A: R-2291, B: R-2292})
+        core_lot: GE50-1107         # the form's or core's lot
+        instrument_ids: {lcr: LCR-07, ohmmeter: DMM-12, hipot: HV-03}
+
+``wire_lot``, ``core_lot`` and ``instrument_ids`` may also be given once at the
+top of the file for every unit; a unit's own value replaces the file's.
+
+An inductance is either read directly (``61.2 uH``, optionally as
+``{value: 61.2 uH, test_frequency: 10 kHz}``) or rung against a known
+capacitor, ``{resonant_frequency: ..., capacitor: ...}`` (add
+``stray_capacitance`` when the coil's own capacitance is not negligible
+beside the capacitor; a capacitor 100 times larger keeps the error near 1 %).
+A resistance may be
+``open`` when the meter shows no continuity.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+import re
+from typing import Annotated, Any, Literal, Optional, Union
+
+from pydantic import (BaseModel, BeforeValidator, ConfigDict, Field, ValidationError,
+                      field_validator, model_validator)
+from pydantic_core import PydanticCustomError
+
+from windsheet.common.errors import InputError, join_path
+from windsheet.order.units import parse_quantity
+from windsheet.physics.wire import copper
+from windsheet.physics.wire import resistance_to_20C as resistance_at_20C  # noqa: F401 - re-exported for sign-off
+
+#: Temperature coefficient of resistance of annealed copper at 20 degC [1/K], IEC 60028.
+ALPHA_COPPER_20C = copper()["temperature_coefficient_20C"]
+
+STRAND_ID = re.compile(r"^[A-Z]$")
+PAIR_ID = re.compile(r"^([A-Z])-([A-Z])$")
+
+
+# --- Formulas ----------------------------------------------------------------------
+
+def resonance_inductance(resonant_frequency, capacitance):
+    """Inductance that rings at ``resonant_frequency`` with ``capacitance``.
+
+    Parameters
+    ----------
+    resonant_frequency : float or ndarray
+        Frequency of the parallel (or series) resonance observed. [Hz]
+    capacitance : float or ndarray
+        Known capacitor across the coil. [F]
+
+    Returns
+    -------
+    L : float or ndarray
+        Inductance, ``1 / ((2 pi f)^2 C)``. [H]  The coil's own
+        self-capacitance adds to ``C``; with a capacitor much larger than it
+        the error is their ratio.
+
+    References
+    ----------
+    .. [1] Thomson's resonance condition, omega^2 L C = 1; e.g. F. E. Terman,
+       Radio Engineers' Handbook, McGraw-Hill, 1943, sec. 3.
+    """
+    omega = 2.0 * math.pi * resonant_frequency
+    return 1.0 / (omega * omega * capacitance)
+
+
+def mutual_from_series(series_aiding, series_opposing):
+    """Mutual inductance from series-aiding and series-opposing readings.
+
+    Parameters
+    ----------
+    series_aiding, series_opposing : float or ndarray
+        Inductance of two windings in series, fluxes adding / opposing. [H]
+
+    Returns
+    -------
+    M : float or ndarray
+        ``(La - Lo) / 4``. [H]  From La = L1 + L2 + 2M and Lo = L1 + L2 - 2M.
+
+    References
+    ----------
+    .. [1] F. W. Grover, Inductance Calculations, Van Nostrand, 1946, ch. 1
+       (the series-aiding / series-opposing method of measuring M).
+    """
+    return (series_aiding - series_opposing) / 4.0
+
+
+def coupling_coefficient(mutual, l1, l2):
+    """Coefficient of coupling ``k = M / sqrt(L1 L2)``.
+
+    Parameters
+    ----------
+    mutual : float or ndarray
+        Mutual inductance. [H]
+    l1, l2 : float or ndarray
+        Self-inductances of the two windings. [H]
+
+    Returns
+    -------
+    k : float or ndarray
+        Coupling coefficient [-], between -1 and 1 for physical windings.
+
+    References
+    ----------
+    .. [1] F. W. Grover, Inductance Calculations, Van Nostrand, 1946, ch. 1.
+    """
+    return mutual / math.sqrt(l1 * l2)
+
+
+# --- Field types: quantities parsed at the edge ------------------------------------
+
+def _quantity(dimension: str, *, allow_zero: bool = False, form=None):
+    def parse(value):
+        try:
+            return parse_quantity(value, dimension, "", allow_zero=allow_zero, form=form)
+        except InputError as exc:
+            raise PydanticCustomError("quantity", exc.message) from None
+    return BeforeValidator(parse)
+
+
+def _text(max_len: int):
+    def check(value):
+        if isinstance(value, (_dt.date, _dt.datetime)):
+            return value.isoformat()
+        if isinstance(value, bool) or not isinstance(value, (str, int)):
+            raise PydanticCustomError("text", "expected text")
+        value = str(value).strip()
+        if len(value) > max_len:
+            raise PydanticCustomError("text", f"longer than {max_len} characters")
+        if any(ord(c) < 32 and c not in "\t" for c in value):
+            raise PydanticCustomError("text", "contains control characters")
+        return value
+    return BeforeValidator(check)
+
+
+Inductance = Annotated[float, _quantity("inductance")]
+Capacitance = Annotated[float, _quantity("capacitance")]
+Frequency = Annotated[float, _quantity("frequency")]
+Voltage = Annotated[float, _quantity("voltage")]
+Current = Annotated[float, _quantity("current", allow_zero=True)]
+Duration = Annotated[float, _quantity("time")]
+Temperature = Annotated[float, _quantity("temperature")]
+Text = Annotated[str, _text(200)]
+
+
+def _lot_id(value):
+    if isinstance(value, bool) or not isinstance(value, (str, int)):
+        raise PydanticCustomError("lot", "expected a reel, lot or instrument id like 'R-2291'")
+    value = str(value).strip()
+    if not LOT_ID.match(value):
+        raise PydanticCustomError("lot", "expected a reel, lot or instrument id of letters, digits and "
+                                         "'. _ / : # -', at most 64 characters, like 'R-2291'")
+    return value
+
+
+#: Reel, lot and instrument ids: printable, no spaces at the ends, so a search matches exactly.
+LOT_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._/:#-]{0,63}$")
+LotId = Annotated[str, BeforeValidator(_lot_id)]
+
+
+def _resistance_or_open(value):
+    if isinstance(value, str) and value.strip().lower() in ("open", "open circuit", "ol"):
+        return {"open": True}
+    try:
+        return {"value": parse_quantity(value, "resistance", "", allow_zero=True)}
+    except InputError as exc:
+        raise PydanticCustomError("quantity", f"{exc.message} (or 'open' for no continuity)") from None
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+
+class ResistanceReading(_Model):
+    """A resistance reading: ``value`` in ohms, or ``open`` (no continuity)."""
+
+    value: Optional[float] = None
+    open: bool = False
+
+
+Resistance = Annotated[ResistanceReading, BeforeValidator(_resistance_or_open)]
+InsulationResistance = Annotated[float, _quantity("resistance")]
+
+
+class _Parsed(float):
+    """An inductance already parsed by the short form ``inductance: 61.2 uH``."""
+
+
+def _inductance_value(value):
+    if isinstance(value, _Parsed):
+        return float(value)
+    try:
+        return parse_quantity(value, "inductance", "")
+    except InputError as exc:
+        raise PydanticCustomError("quantity", exc.message) from None
+
+
+class InductanceReading(_Model):
+    """An inductance read directly or rung against a known capacitor."""
+
+    value: Optional[Annotated[float, BeforeValidator(_inductance_value)]] = None
+    resonant_frequency: Optional[Frequency] = None
+    capacitor: Optional[Capacitance] = None
+    #: Coil and fixture capacitance in parallel with the capacitor, if known.
+    stray_capacitance: Optional[Capacitance] = None
+    test_frequency: Optional[Frequency] = None
+
+    @model_validator(mode="before")
+    @classmethod
+    def _direct_reading(cls, data):
+        if data is None or isinstance(data, (str, int, float)):
+            # Parse here so a fault is reported at the field the user wrote.
+            try:
+                return {"value": _Parsed(parse_quantity(data, "inductance", ""))}
+            except InputError as exc:
+                raise PydanticCustomError("quantity", exc.message) from None
+        return data
+
+    @model_validator(mode="after")
+    def _one_method(self):
+        rung = self.resonant_frequency is not None or self.capacitor is not None
+        rung = rung or self.stray_capacitance is not None
+        if self.value is not None and rung:
+            raise PydanticCustomError(
+                "reading", "give either a value or resonant_frequency with capacitor, not both")
+        if self.value is None:
+            if self.resonant_frequency is None or self.capacitor is None:
+                raise PydanticCustomError(
+                    "reading", "expected an inductance like '61.2 uH', or "
+                    "{resonant_frequency: 205 kHz, capacitor: 10 nF}")
+            if self.test_frequency is not None:
+                raise PydanticCustomError(
+                    "reading", "a rung reading is taken at its resonant frequency; drop test_frequency")
+        return self
+
+    @property
+    def method(self) -> str:
+        return "direct" if self.value is not None else "ringing"
+
+    @property
+    def henries(self) -> float:
+        if self.value is not None:
+            return self.value
+        return resonance_inductance(self.resonant_frequency,
+                                    self.capacitor + (self.stray_capacitance or 0.0))
+
+    def frequency(self, default: Optional[float]) -> Optional[float]:
+        if self.value is None:
+            return self.resonant_frequency
+        return self.test_frequency if self.test_frequency is not None else default
+
+    def describe(self) -> dict:
+        out = {"method": self.method, "inductance_H": self.henries}
+        if self.value is None:
+            out.update(resonant_frequency_Hz=self.resonant_frequency, capacitor_F=self.capacitor,
+                       stray_capacitance_F=self.stray_capacitance)
+        return out
+
+
+class StrandReadings(_Model):
+    inductance: Optional[InductanceReading] = None
+    resistance: Optional[Resistance] = None
+    turns: Optional[Annotated[int, Field(strict=True, ge=1, le=1_000_000)]] = None
+
+
+class PairReadings(_Model):
+    series_aiding: Optional[InductanceReading] = None
+    series_opposing: Optional[InductanceReading] = None
+
+
+class TerminalReadings(_Model):
+    inductance: Optional[InductanceReading] = None
+    resistance: Optional[Resistance] = None
+
+
+class TapReading(_Model):
+    """An extra inductance read between two points of the wired coil.
+
+    Points are ``T1`` / ``T2`` (the terminals as ordered) or a joint named by
+    its strand ends as ordered, e.g. ``A.finish+B.start``.
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=True)
+    from_: Text = Field(alias="from")
+    to: Text
+    #: ``open`` when the meter finds no path between the two points.
+    inductance: Union[Literal["open"], InductanceReading]
+
+    @field_validator("inductance", mode="before")
+    @classmethod
+    def _open_word(cls, value):
+        if isinstance(value, str) and value.strip().lower() in ("open", "open circuit", "ol"):
+            return "open"
+        return value
+
+    @property
+    def henries(self) -> float:
+        """The inductance read [H]; infinite for an open circuit."""
+        return float("inf") if self.inductance == "open" else self.inductance.henries
+
+
+class InsulationReadings(_Model):
+    strand_to_strand: Optional[InsulationResistance] = None
+    to_core: Optional[InsulationResistance] = None
+    # An insulation-resistance tester applies dc: '500 V' or '500 V dc'.
+    test_voltage: Optional[Annotated[float, _quantity("voltage", form="dc")]] = None
+
+
+class HipotReading(_Model):
+    voltage: Optional[Voltage] = None
+    duration: Optional[Duration] = None
+    leakage: Optional[Current] = None
+    result: Optional[Literal["pass", "fail"]] = None
+
+    @property
+    def complete(self) -> bool:
+        return None not in (self.voltage, self.duration, self.result)
+
+    @field_validator("result", mode="before")
+    @classmethod
+    def _result_words(cls, value):
+        if value is None:
+            return None
+        if isinstance(value, bool):
+            raise PydanticCustomError("result", "expected 'pass' or 'fail'")
+        if isinstance(value, str):
+            word = value.strip().lower()
+            if word in ("pass", "passed", "ok"):
+                return "pass"
+            if word in ("fail", "failed", "breakdown", "flashover"):
+                return "fail"
+        raise PydanticCustomError("result", "expected 'pass' or 'fail'")
+
+
+ContinuityWord = Literal["open", "shorted"]
+
+
+def _continuity_word(value):
+    if value is None:
+        return None
+    if isinstance(value, str):
+        word = value.strip().lower()
+        if word in ("open", "none", "no continuity", "isolated"):
+            return "open"
+        if word in ("shorted", "short", "continuity", "closed"):
+            return "shorted"
+    raise PydanticCustomError("continuity", "expected 'open' (strands isolated) or 'shorted'")
+
+
+class UnitReadings(_Model):
+    serial: Text
+    ambient: Optional[Temperature] = None
+    test_frequency: Optional[Frequency] = None
+    strands: dict[str, StrandReadings] = Field(default_factory=dict)
+    before_joint: dict[str, PairReadings] = Field(default_factory=dict)
+    terminals: TerminalReadings = Field(default_factory=TerminalReadings)
+    insulation: Optional[InsulationReadings] = None
+    hipot: Optional[HipotReading] = None
+    continuity: dict[str, Optional[Annotated[ContinuityWord, BeforeValidator(_continuity_word)]]] = Field(
+        default_factory=dict)
+    taps: list[TapReading] = Field(default_factory=list, max_length=64)
+    #: QC lines the inspector waives for this unit, each with the reason.
+    waive: dict[str, Text] = Field(default_factory=dict)
+    notes: Optional[Text] = None
+    # Traceability (windsheet.records.traceability): stored per unit in the register.
+    wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
+    core_lot: Optional[LotId] = None
+    instrument_ids: Optional[dict[str, LotId]] = None
+
+    @field_validator("serial")
+    @classmethod
+    def _serial_present(cls, value):
+        if not value:
+            raise PydanticCustomError("serial", "expected a serial number like 'HL-0412-01'")
+        return value
+
+
+class MeasuredFile(_Model):
+    job: Text
+    revision: Optional[Text] = None
+    inspector: Optional[Text] = None
+    date: Optional[Text] = None
+    instruments: Optional[Text] = None
+    ambient: Optional[Temperature] = None
+    test_frequency: Optional[Frequency] = None
+    wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
+    core_lot: Optional[LotId] = None
+    instrument_ids: Optional[dict[str, LotId]] = None
+    #: QC lines waived for every unit of the file, each with the reason.
+    waive: dict[str, Text] = Field(default_factory=dict)
+    units: list[UnitReadings] = Field(min_length=1, max_length=10_000)
+
+
+# --- Derived per-unit values (SI) ---------------------------------------------------
+
+def unit_ambient(measured: MeasuredFile, unit: UnitReadings) -> Optional[float]:
+    """Ambient temperature for a unit [degC]: its own, else the file's."""
+    return unit.ambient if unit.ambient is not None else measured.ambient
+
+
+def unit_test_frequency(measured: MeasuredFile, unit: UnitReadings) -> Optional[float]:
+    """Default test frequency for a unit's direct readings [Hz]."""
+    return unit.test_frequency if unit.test_frequency is not None else measured.test_frequency
+
+
+# --- Loading -------------------------------------------------------------------------
+
+_FRIENDLY = {
+    "missing": "is required",
+    "extra_forbidden": "is not a known field",
+    "dict_type": "expected a mapping of fields",
+    "model_type": "expected a mapping of fields",
+    "model_attributes_type": "expected a mapping of fields",
+    "list_type": "expected a list",
+    "int_type": "expected a whole number",
+    "int_from_float": "expected a whole number",
+    "string_type": "expected text",
+    "too_short": "must not be empty",
+    "too_long": "has too many entries",
+    "literal_error": "expected one of the listed words",
+    "greater_than_equal": "must be at least 1",
+    "less_than_equal": "is too large",
+}
+
+
+def _input_error_from(exc: ValidationError, prefix: str = "") -> InputError:
+    err = exc.errors(include_url=False)[0]
+    loc = [p for p in err["loc"] if not (isinstance(p, str) and p.startswith("function-"))]
+    path = join_path(*( [prefix] if prefix else []), *loc) if loc else prefix
+    message = err["msg"] if err["type"] not in _FRIENDLY else _FRIENDLY[err["type"]]
+    if err["type"] in ("int_type", "int_from_float") and isinstance(err.get("input"), str):
+        message = "expected a whole number (turns counted, no unit)"
+    return InputError(path or "measured", message)
+
+
+def _check_keys(data: dict) -> None:
+    units = data.get("units")
+    if not isinstance(units, list):
+        return
+    for i, unit in enumerate(units):
+        if not isinstance(unit, dict):
+            continue
+        for section, pattern, example in (("strands", STRAND_ID, "A"),
+                                          ("before_joint", PAIR_ID, "A-B"),
+                                          ("continuity", PAIR_ID, "A-B"),
+                                          ("wire_lot", STRAND_ID, "A")):
+            block = unit.get(section)
+            if not isinstance(block, dict):
+                continue
+            for key in block:
+                ok = isinstance(key, str) and (pattern.match(key) or
+                                               (section == "continuity" and key == "strand_to_strand"))
+                if ok and pattern is PAIR_ID and key != "strand_to_strand":
+                    a, b = PAIR_ID.match(key).groups()
+                    ok = a != b
+                if not ok:
+                    raise InputError(join_path("units", i, section, str(key)),
+                                     f"expected a strand name like '{example}'")
+
+
+def measured_from_dict(data: Any) -> MeasuredFile:
+    """Validate a loaded measured-values document; faults raise InputError with their path."""
+    if not isinstance(data, dict):
+        raise InputError("measured", "expected a mapping with 'job' and 'units'")
+    _check_keys(data)
+    try:
+        return MeasuredFile.model_validate(data)
+    except ValidationError as exc:
+        raise _input_error_from(exc) from None
+
+

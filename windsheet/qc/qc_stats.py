@@ -1,0 +1,245 @@
+"""QC statistics of signed-off units: measured over predicted, per line, job and family.
+
+For each QC line (``terminal.inductance``, ``strand.A.resistance`` ...) the
+ratio r = measured / predicted of every unit is the statistic: it takes out
+the size of each coil, so jobs of one *family* (same form, same wire family,
+same strand count and hookup) can be charted together.  The family's mean
+r − 1 is the shop's own bias, the figure a planner uses to correct the next
+order.
+
+The control chart is the individuals (X) chart: centre line the mean, limits
+±3σ with σ estimated from the average moving range of successive points,
+σ̂ = MR̄ / d2, d2 = 1.128 for ranges of two (Montgomery, *Introduction to
+Statistical Quality Control*, ch. 6; NIST/SEMATECH e-Handbook of Statistical
+Methods, §6.3.2).  Signals are flagged by two run rules:
+
+* **Rule 1, one point beyond 3σ** (Western Electric, *Statistical Quality
+  Control Handbook*, 1956; Nelson's rule 1);
+* **Rule 2, seven points in a row on one side of the centre line** (the
+  run length used in the AIAG SPC reference manual; the Western Electric
+  handbook uses eight and Nelson, 1984, nine — from memory).  A point
+  exactly on the centre line ends a run.
+
+Rendering (:mod:`windsheet.sheets.control_chart`, :mod:`windsheet.records.report`) draws
+and prints what these functions return and computes nothing itself.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Optional
+
+import numpy as np
+
+#: d2 for moving ranges of two successive points (Montgomery, table of control chart constants).
+D2_N2 = 1.128
+#: Consecutive points on one side of the centre that make a run signal.
+RUN_LENGTH = 7
+RULE_BEYOND = "Rule 1: one point beyond 3σ (Western Electric)"
+RULE_RUN = f"Rule 2: {RUN_LENGTH} in a row on one side of the centre (AIAG)"
+SIGMA_NOTE = "σ = MR̄ / d2, d2 = 1.128 (individuals chart; Montgomery; NIST/SEMATECH e-Handbook §6.3.2)"
+
+_STRANDS_WORD = {1: "single-strand", 2: "bifilar", 3: "trifilar", 4: "quadrifilar"}
+
+
+def family_of(prediction: dict) -> tuple[str, str]:
+    """The family a job belongs to: same form (kind, size, material), wire family, strands and hookup.
+
+    Returns
+    -------
+    key, label : str
+        A stable key and the readable name, e.g. ``bifilar series-aiding on 50 mm glass-epoxy tube``.
+
+    Examples
+    --------
+    >>> family_of({"form": {"kind": "cylinder", "diameter_m": 0.05, "material": "glass-epoxy tube"},
+    ...            "wire": {"conductor": "copper", "standard": "IEC 60317-0-1"},
+    ...            "winding": {"strands": 2}, "hookup": {"name": "series-aiding"}})[1]
+    'bifilar series-aiding on 50 mm glass-epoxy tube, copper IEC 60317-0-1'
+    """
+    f = prediction.get("form") or {}
+    w = prediction.get("wire") or {}
+    strands = int((prediction.get("winding") or {}).get("strands") or len(prediction.get("strands") or []) or 1)
+    hookup = (prediction.get("hookup") or {}).get("name") or "custom hookup"
+    size = f.get("diameter_m") or f.get("outer_diameter_m") or f.get("mean_turn_length_m")
+    size_text = f"{size * 1e3:g} mm " if size else ""
+    if size_text.strip() in str(f.get("material") or ""):
+        size_text = ""  # the material already names its size
+    word = _STRANDS_WORD.get(strands, f"{strands}-strand")
+    wire_family = f"{w.get('conductor') or 'copper'} {w.get('standard') or ''}".strip()
+    label = f"{word} {hookup if strands > 1 else ''}".strip() + \
+        f" on {size_text}{f.get('material') or f.get('kind') or 'form'}, {wire_family}"
+    key = "|".join(str(x) for x in (f.get("kind"), size, f.get("material"), w.get("conductor"),
+                                     w.get("standard"), strands, hookup))
+    return key, label
+
+
+def line_ratios(lines: list[dict]) -> dict[str, tuple[str, float]]:
+    """``{key: (item, measured / predicted)}`` of a unit's evaluated lines that have both numbers.
+
+    Examples
+    --------
+    >>> line_ratios([{"key": "terminal.inductance", "item": "L", "measured": 102.0, "predicted": 100.0},
+    ...              {"key": "hipot.result", "item": "Hipot", "measured": None, "predicted": None}])
+    {'terminal.inductance': ('L', 1.02)}
+    """
+    out = {}
+    for line in lines or []:
+        m, p = line.get("measured"), line.get("predicted")
+        if isinstance(m, (int, float)) and isinstance(p, (int, float)) and not isinstance(m, bool) and p:
+            r = float(m) / float(p)
+            if math.isfinite(r):
+                out[line["key"]] = (line.get("item") or line["key"], r)
+    return out
+
+
+def individuals_limits(x) -> dict:
+    """Centre line and ±3σ limits of an individuals chart, σ from the average moving range.
+
+    Parameters
+    ----------
+    x : array_like
+        The points in time order (here ratios measured / predicted). [-]
+
+    Returns
+    -------
+    limits : dict
+        ``n``, ``centre`` (mean), ``mr_bar`` (mean of |x[i] − x[i−1]|),
+        ``sigma`` (MR̄ / 1.128), ``ucl`` and ``lcl`` (centre ± 3σ); σ and the
+        limits are None for fewer than two points.
+
+    References
+    ----------
+    .. [1] D. C. Montgomery, Introduction to Statistical Quality Control,
+       6th ed., Wiley, 2009, sec. 6.4 (control charts for individual measurements).
+    .. [2] NIST/SEMATECH e-Handbook of Statistical Methods, sec. 6.3.2.
+
+    Examples
+    --------
+    >>> d = individuals_limits([1.0, 1.02, 0.99, 1.01])
+    >>> round(d["centre"], 4), round(d["sigma"], 5), round(d["ucl"], 4)
+    (1.005, 0.02069, 1.0671)
+    """
+    x = np.asarray(x, dtype=float)
+    n = int(x.size)
+    centre = float(x.mean()) if n else None
+    if n < 2:
+        return {"n": n, "centre": centre, "mr_bar": None, "sigma": None, "ucl": None, "lcl": None}
+    mr_bar = float(np.abs(np.diff(x)).mean())
+    sigma = mr_bar / D2_N2
+    return {"n": n, "centre": centre, "mr_bar": mr_bar, "sigma": sigma,
+            "ucl": centre + 3 * sigma, "lcl": centre - 3 * sigma}
+
+
+def run_rule_signals(x, centre: float, sigma: Optional[float], run: int = RUN_LENGTH) -> list[dict]:
+    """Points that break a run rule: one beyond 3σ; ``run`` in a row on one side of the centre.
+
+    Returns
+    -------
+    signals : list of dict
+        ``rule`` (its name as the chart prints it) and ``points`` (0-based
+        indices; for a run, every point of it from the ``run``-th on).
+
+    Examples
+    --------
+    >>> [s["points"] for s in run_rule_signals([1, 1, 1, 1, 1, 1, 1, 0, 9], 0.5, 1.0)]
+    [[8], [6]]
+    """
+    x = np.asarray(x, dtype=float)
+    out = []
+    if sigma is not None and sigma > 0:
+        beyond = np.flatnonzero(np.abs(x - centre) > 3 * sigma).tolist()
+        if beyond:
+            out.append({"rule": RULE_BEYOND, "points": beyond})
+    side = np.sign(x - centre)
+    flagged, count = [], 0
+    for i in range(len(x)):
+        count = count + 1 if i and side[i] != 0 and side[i] == side[i - 1] else (1 if side[i] != 0 else 0)
+        if count >= run:
+            flagged.append(i)
+    if flagged:
+        out.append({"rule": RULE_RUN if run == RUN_LENGTH else f"Rule 2: {run} in a row on one side of the centre",
+                    "points": flagged})
+    return out
+
+
+def bias(x) -> dict:
+    """The family's bias: mean of r − 1, the units' sample standard deviation (n − 1), and n.
+
+    Examples
+    --------
+    >>> b = bias([1.02, 1.03, 1.01]); round(b["bias"], 4), round(b["sd"], 4), b["n"]
+    (0.02, 0.01, 3)
+    """
+    x = np.asarray(x, dtype=float)
+    n = int(x.size)
+    return {"bias": float(x.mean() - 1.0) if n else None, "sd": float(x.std(ddof=1)) if n > 1 else None, "n": n}
+
+
+def bias_text(label: str, item: str, b: dict) -> str:
+    """The sentence the report prints, e.g. ``bifilar … : inductance reads +2.1 % ± 0.8 % over 37 units``.
+
+    Examples
+    --------
+    >>> bias_text("bifilar on 50 mm glass-epoxy", "terminal inductance", {"bias": 0.021, "sd": 0.008, "n": 37})
+    'bifilar on 50 mm glass-epoxy: terminal inductance reads +2.1 % ± 0.8 % over 37 units'
+    """
+    spread = f" ± {b['sd'] * 100:.1f} %" if b.get("sd") is not None else ""
+    return f"{label}: {item} reads {b['bias'] * 100:+.1f} %{spread} over {b['n']} unit{'s' if b['n'] != 1 else ''}"
+
+
+def line_chart(points: list[dict]) -> dict:
+    """Everything a control chart of one line shows, from its points in time order.
+
+    ``points`` are dicts with ``ratio``, ``job``, ``serial`` (and ``signed_at``).
+    """
+    x = [p["ratio"] for p in points]
+    lim = individuals_limits(x)
+    signals = run_rule_signals(x, lim["centre"], lim["sigma"]) if x else []
+    return {"points": points, "limits": lim, "signals": signals, "sigma_estimate": SIGMA_NOTE,
+            "rules": [RULE_BEYOND, RULE_RUN]}
+
+
+def family_statistics(units: list[dict]) -> list[dict]:
+    """QC statistics of every family and line.
+
+    Parameters
+    ----------
+    units : list of dict
+        Signed-off units in time order, each ``job``, ``serial``, ``signed_at``,
+        ``family`` (key, label) and ``lines`` (the sign-off's evaluated lines).
+
+    Returns
+    -------
+    families : list of dict
+        ``key``, ``label``, ``jobs`` and ``lines``: per QC line ``key``, ``item``,
+        ``bias`` (:func:`bias`), ``statement`` (:func:`bias_text`), ``per_job``
+        (each job's ``n``, ``mean`` and ``sd`` of the ratio) and ``chart``
+        (:func:`line_chart`).
+    """
+    fams: dict = {}
+    for u in units:
+        key, label = u["family"]
+        fam = fams.setdefault(key, {"key": key, "label": label, "jobs": [], "lines": {}})
+        if u["job"] not in fam["jobs"]:
+            fam["jobs"].append(u["job"])
+        for lkey, (item, r) in line_ratios(u["lines"]).items():
+            fam["lines"].setdefault(lkey, {"key": lkey, "item": item, "points": []})["points"].append(
+                {"ratio": r, "job": u["job"], "serial": u["serial"], "signed_at": u.get("signed_at")})
+    out = []
+    for fam in fams.values():
+        lines = []
+        for line in fam["lines"].values():
+            x = [p["ratio"] for p in line["points"]]
+            b = bias(x)
+            per_job = []
+            for job in fam["jobs"]:
+                xs = [p["ratio"] for p in line["points"] if p["job"] == job]
+                if xs:
+                    jb = bias(xs)
+                    per_job.append({"job": job, "n": jb["n"], "mean": float(np.mean(xs)), "sd": jb["sd"]})
+            lines.append({"key": line["key"], "item": line["item"], "bias": b,
+                          "statement": bias_text(fam["label"], line["item"].lower(), b),
+                          "per_job": per_job, "chart": line_chart(line["points"])})
+        out.append({"key": fam["key"], "label": fam["label"], "jobs": fam["jobs"], "lines": lines})
+    return out

@@ -1,0 +1,329 @@
+"""Bill of materials across jobs: what to pull from stores for a set of orders.
+
+Reads predictions only (``predict``'s dict); nothing here computes physics.
+Wire is grouped by standard, size, grade, conductor and thermal class; each
+group's length and mass are the jobs' ``wire_length_with_scrap_m`` and
+``mass_kg`` times the job quantity, summed over strands.  Reels are counted
+where the shop's reel list gives the reel size of that wire.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+from typing import Iterable, Optional
+
+from windsheet.common.errors import InputError
+
+#: Tape laid over each layer: one circumference plus this share of it (a shop setting, assumed).
+TAPE_OVERLAP = 0.10
+
+
+def wire_group(p: dict) -> tuple:
+    """The stock item a job's wire is drawn as: (standard, size [m], grade, conductor, thermal class [°C]).
+
+    Examples
+    --------
+    >>> wire_group({"wire": {"standard": "IEC 60317-0-1", "copper_diameter_m": 5.0e-4, "grade": 2,
+    ...                      "conductor": "copper", "thermal_class_C": 155}})
+    ('IEC 60317-0-1', 0.0005, 2, 'copper', 155)
+    """
+    w = p["wire"]
+    # Rounded to 0.1 µm so the same nominal size read two ways groups together.
+    return (w.get("standard"), round(float(w["copper_diameter_m"]), 7), w.get("grade"),
+            w.get("conductor") or "copper", w.get("thermal_class_C"))
+
+
+def job_quantity(p: dict) -> int:
+    """Units to build: ``job.quantity``, else the serial count, else 1."""
+    job = p.get("job") or {}
+    return int(job.get("quantity") or len(job.get("units") or []) or 1)
+
+
+def job_wire(p: dict) -> dict:
+    """One job's wire: per unit and for the job's quantity, scrap included.
+
+    Returns
+    -------
+    row : dict
+        ``group`` (see :func:`wire_group`), ``label``, ``strands``, ``quantity``,
+        ``length_per_unit_m``, ``length_m`` and ``mass_kg`` (conductor mass;
+        the enamel is not weighed) for the whole job.
+
+    Examples
+    --------
+    >>> p = {"job": {"quantity": 3}, "wire": {"standard": "S", "copper_diameter_m": 5e-4, "grade": 1,
+    ...      "conductor": "copper", "thermal_class_C": 155, "label": "0.500 mm grade 1"},
+    ...      "strands": [{"wire_length_with_scrap_m": 11.0, "mass_kg": 0.02},
+    ...                  {"wire_length_with_scrap_m": 11.0, "mass_kg": 0.02}]}
+    >>> r = job_wire(p); (r["length_m"], round(r["mass_kg"], 6))
+    (66.0, 0.12)
+    """
+    qty = job_quantity(p)
+    per_unit = sum(float(s["wire_length_with_scrap_m"]) for s in p["strands"])
+    mass_unit = sum(float(s["mass_kg"]) for s in p["strands"])
+    return {"group": wire_group(p), "label": p["wire"].get("label"), "strands": len(p["strands"]),
+            "quantity": qty, "length_per_unit_m": per_unit, "length_m": qty * per_unit,
+            "mass_kg": qty * mass_unit}
+
+
+def _base_perimeter(form: dict) -> Optional[float]:
+    if form.get("kind") == "toroid":
+        return None  # tape round a toroid's section spirals the whole ring: not estimated
+    if form.get("diameter_m"):
+        return math.pi * float(form["diameter_m"])
+    if form.get("mean_turn_length_m"):
+        return float(form["mean_turn_length_m"])
+    return None
+
+
+def job_tape(p: dict, overlap: float = TAPE_OVERLAP) -> Optional[dict]:
+    """Layer tape of one job: wraps, width and length, or None when the winding has none.
+
+    A wrap over layer k (of L) lies at height k·b/L on the form (b the build);
+    its length is the form's perimeter plus 2π times that height, plus the overlap.
+    """
+    w = p.get("winding") or {}
+    layers = int(p.get("layers") or w.get("layers") or 1)
+    if not (w.get("layer_tape_m") or 0) > 0 or layers < 2:
+        return None
+    qty = job_quantity(p)
+    base = _base_perimeter(p.get("form") or {})
+    build = float((p.get("fit") or {}).get("build_m") or 0.0)
+    length = None
+    if base is not None:
+        length = qty * sum((base + 2 * math.pi * k * build / layers) * (1 + overlap) for k in range(1, layers))
+    width = (p.get("fit") or {}).get("traverse_m")
+    return {"spec": f"{w.get('layer_tape_material') or 'insulating tape'}, {w['layer_tape_m'] * 1e6:.0f} µm thick"
+                    + (f", {width * 1e3:.1f} mm wide" if width else ""),
+            "wraps": qty * (layers - 1), "length_m": length, "quantity": qty}
+
+
+def job_sleeving(p: dict) -> dict:
+    """Sleeving: one piece over each terminal lead and each joint, each a lead length (common practice)."""
+    qty = job_quantity(p)
+    h = p.get("hookup") or {}
+    w = p.get("winding") or {}
+    od = float(p["wire"]["overall_diameter_m"])
+    pieces = len(h.get("terminals") or []) + len(h.get("joins") or [])
+    lead = float(w.get("lead_length_m") or 0.0)
+    joints = len(h.get("joins") or [])
+    # A joint holds two wires side by side: the bore must take both.
+    bore = 2 * od if joints else od
+    cls = p["wire"].get("thermal_class_C")
+    return {"spec": f"sleeving, bore at least {bore * 1e3:.2f} mm" + (f", class {cls} °C" if cls else ""),
+            "pieces": qty * pieces, "length_m": qty * pieces * lead, "quantity": qty}
+
+
+def job_form(p: dict) -> dict:
+    """The form or core: one per unit, described by kind, material and size."""
+    f = p.get("form") or {}
+    dims = []
+    for key, name in (("diameter_m", "Ø"), ("inner_diameter_m", "ID"), ("outer_diameter_m", "OD"),
+                      ("height_m", "h"), ("traverse_m", "traverse"), ("width_m", "window")):
+        if f.get(key):
+            dims.append(f"{name} {f[key] * 1e3:g} mm")
+    spec = f"{f.get('kind') or 'form'}, {f.get('material') or '—'}" + (f", {' '.join(dims)}" if dims else "")
+    return {"spec": spec, "count": job_quantity(p)}
+
+
+def job_labels(p: dict) -> dict:
+    """Unit labels: one per serial number (or per unit when the order lists none)."""
+    serials = list((p.get("job") or {}).get("units") or [])
+    return {"count": max(len(serials), job_quantity(p)), "serials": serials}
+
+
+# --- Reels ---------------------------------------------------------------------------
+
+def load_reels(path) -> list[dict]:
+    """The shop's reel list, a CSV file: ``size_mm, reel_kg`` and optionally ``standard, grade,
+    conductor, thermal_class, source``.  A blank optional field matches any wire."""
+    from windsheet.common.fileio import read_csv_rows
+
+    rows = read_csv_rows(path, "reel list")
+    out = []
+    for i, r in enumerate(rows, start=2):
+        try:
+            size = float(r.get("size_mm") or "")
+            reel = float(r.get("reel_kg") or "")
+        except ValueError:
+            raise InputError(str(path), f"line {i}: expected size_mm and reel_kg as numbers") from None
+        if not (0 < size < 10 and 0 < reel < 1000):
+            raise InputError(str(path), f"line {i}: size_mm must be in (0, 10) and reel_kg in (0, 1000)")
+        grade = (r.get("grade") or "").strip()
+        tc = (r.get("thermal_class") or "").strip()
+        out.append({"size_m": round(size * 1e-3, 7), "reel_kg": reel,
+                    "standard": (r.get("standard") or "").strip() or None,
+                    "grade": int(grade) if grade.isdigit() else None,
+                    "conductor": (r.get("conductor") or "").strip().lower() or None,
+                    "thermal_class": int(tc) if tc.isdigit() else None,
+                    "source": (r.get("source") or "").strip() or str(path)})
+    return out
+
+
+def reel_for(group: tuple, reels: Iterable[dict]) -> Optional[dict]:
+    """The first reel row matching a wire group, or None."""
+    standard, size, grade, conductor, tc = group
+    for r in reels or ():
+        if (r["size_m"] == size and r["standard"] in (None, standard) and r["grade"] in (None, grade)
+                and r["conductor"] in (None, conductor) and r["thermal_class"] in (None, tc)):
+            return r
+    return None
+
+
+# --- The bill ------------------------------------------------------------------------
+
+def _wire_total(rows: list[dict], reels) -> list[dict]:
+    groups: dict = {}
+    for r in rows:
+        g = groups.setdefault(r["group"], {"group": r["group"], "label": r["label"], "jobs": [],
+                                          "length_m": 0.0, "mass_kg": 0.0})
+        g["jobs"].append(r["job"])
+        g["length_m"] += r["length_m"]
+        g["mass_kg"] += r["mass_kg"]
+    for g in groups.values():
+        _add_reels(g, reels)
+    return list(groups.values())
+
+
+def _add_reels(row: dict, reels) -> None:
+    reel = reel_for(row["group"], reels)
+    row["reel_kg"] = reel["reel_kg"] if reel else None
+    row["reels"] = math.ceil(row["mass_kg"] / reel["reel_kg"] - 1e-9) if reel else None
+    row["reel_source"] = reel["source"] if reel else None
+
+
+def bill_of_materials(predictions: list[dict], reels: Optional[list[dict]] = None,
+                      tape_overlap: float = TAPE_OVERLAP) -> dict:
+    """Bill of materials per job and in total.
+
+    Parameters
+    ----------
+    predictions : list of dict
+        One prediction per job (:func:`windsheet.design.build.predict`).
+    reels : list of dict, optional
+        The shop's reel list (:func:`load_reels`).
+    tape_overlap : float
+        Share of a wrap's circumference added as overlap. [-]
+
+    Returns
+    -------
+    bill : dict
+        ``jobs`` (each: ``job``, ``part``, ``quantity``, ``wire``, ``tape``,
+        ``sleeving``, ``form``, ``labels``) and ``total`` (wire by group,
+        tape and sleeving by specification, forms by specification, labels),
+        lengths in metres and masses in kilograms.
+
+    Examples
+    --------
+    >>> p = {"job": {"number": "J1", "quantity": 2, "units": ["J1-1", "J1-2"]},
+    ...      "wire": {"standard": "S", "copper_diameter_m": 5e-4, "grade": 1, "conductor": "copper",
+    ...               "thermal_class_C": 155, "label": "w", "overall_diameter_m": 5.4e-4},
+    ...      "strands": [{"wire_length_with_scrap_m": 10.0, "mass_kg": 0.02}], "form": {"kind": "cylinder"},
+    ...      "winding": {"lead_length_m": 0.15}, "hookup": {"terminals": ["A.start", "A.finish"], "joins": []}}
+    >>> b = bill_of_materials([p, p]); b["total"]["wire"][0]["length_m"], b["total"]["labels"]
+    (40.0, 4)
+    """
+    jobs, wires = [], []
+    for p in predictions:
+        job = p.get("job") or {}
+        wire = {**job_wire(p), "job": job.get("number")}
+        _add_reels(wire, reels)
+        wires.append(wire)
+        jobs.append({"job": job.get("number"), "part": job.get("part"), "customer": job.get("customer"),
+                     "revision": job.get("revision"), "quantity": job_quantity(p), "wire": wire,
+                     "tape": job_tape(p, tape_overlap), "sleeving": job_sleeving(p), "form": job_form(p),
+                     "labels": job_labels(p)})
+    return {"schema": "windsheet.materials/1", "jobs": jobs,
+            "total": {"wire": _wire_total(wires, reels),
+                      "tape": _sum_by_spec([j["tape"] for j in jobs if j["tape"]], ("wraps", "length_m")),
+                      "sleeving": _sum_by_spec([j["sleeving"] for j in jobs], ("pieces", "length_m")),
+                      "forms": _sum_by_spec([j["form"] for j in jobs], ("count",)),
+                      "labels": sum(j["labels"]["count"] for j in jobs)},
+            "notes": ["Wire length and mass include each order's scrap allowance; mass is the conductor's "
+                      "(enamel not weighed).",
+                      "Reels are whole reels of the size in the shop's reel list; wire without a listed "
+                      "reel size shows no reel count.",
+                      f"Layer tape: each wrap one circumference at its layer plus {tape_overlap:.0%} overlap "
+                      "(a shop setting); toroids' tape is counted in wraps only.",
+                      "Sleeving: one piece per terminal lead and per joint, each the lead length "
+                      "(common practice)."]}
+
+
+def _sum_by_spec(items: list[dict], keys: tuple) -> list[dict]:
+    out: dict = {}
+    for it in items:
+        row = out.setdefault(it["spec"], {"spec": it["spec"], **{k: 0 for k in keys}})
+        for k in keys:
+            row[k] = None if row[k] is None or it.get(k) is None else row[k] + it[k]
+    return list(out.values())
+
+
+# --- Output --------------------------------------------------------------------------
+
+def _group_text(group: tuple, label=None) -> str:
+    standard, size, grade, conductor, tc = group
+    # The order's own name for the wire (e.g. '22 AWG ...') with the copper size it resolved to.
+    name = label if label and "mm" in label else (
+        f"{label} ({size * 1e3:.3f} mm)" if label else f"{size * 1e3:.3f} mm grade {grade}")
+    return f"{name} {conductor}, class {tc}, {standard}"
+
+
+def bill_rows(bill: dict) -> list[dict]:
+    """Flat rows (scope, category, item, quantity, unit) for the CSV and the printed sheet."""
+    rows = []
+
+    def add(scope, category, item, quantity, unit):
+        rows.append({"scope": scope, "category": category, "item": item, "quantity": quantity, "unit": unit})
+
+    def wire_rows(scope, w):
+        text = _group_text(w["group"], w.get("label"))
+        add(scope, "wire", text, round(w["length_m"], 3), "m")
+        add(scope, "wire", text, round(w["mass_kg"], 5), "kg")
+        if w.get("reels") is not None:
+            add(scope, "wire", text + f" on {w['reel_kg']:g} kg reels", w["reels"], "reels")
+
+    for j in bill["jobs"]:
+        scope = j["job"]
+        wire_rows(scope, j["wire"])
+        if j["tape"]:
+            add(scope, "tape", j["tape"]["spec"], j["tape"]["wraps"], "wraps")
+            if j["tape"]["length_m"] is not None:
+                add(scope, "tape", j["tape"]["spec"], round(j["tape"]["length_m"], 3), "m")
+        add(scope, "sleeving", j["sleeving"]["spec"], j["sleeving"]["pieces"], "pieces")
+        add(scope, "sleeving", j["sleeving"]["spec"], round(j["sleeving"]["length_m"], 3), "m")
+        add(scope, "form", j["form"]["spec"], j["form"]["count"], "pcs")
+        add(scope, "labels", ", ".join(j["labels"]["serials"]) or "unit labels", j["labels"]["count"], "labels")
+    t = bill["total"]
+    for w in t["wire"]:
+        wire_rows("TOTAL", w)
+    for tp in t["tape"]:
+        add("TOTAL", "tape", tp["spec"], tp["wraps"], "wraps")
+        if tp["length_m"] is not None:
+            add("TOTAL", "tape", tp["spec"], round(tp["length_m"], 3), "m")
+    for s in t["sleeving"]:
+        add("TOTAL", "sleeving", s["spec"], s["pieces"], "pieces")
+        add("TOTAL", "sleeving", s["spec"], round(s["length_m"], 3), "m")
+    for f in t["forms"]:
+        add("TOTAL", "form", f["spec"], f["count"], "pcs")
+    add("TOTAL", "labels", "unit labels", t["labels"], "labels")
+    return rows
+
+
+def bill_csv(bill: dict) -> str:
+    """The bill as CSV text: ``scope, category, item, quantity, unit`` (metres, kilograms, counts)."""
+    buf = io.StringIO()
+    w = csv.DictWriter(buf, fieldnames=["scope", "category", "item", "quantity", "unit"], lineterminator="\n")
+    w.writeheader()
+    w.writerows(bill_rows(bill))
+    return buf.getvalue()
+
+
+def bill_json_ready(bill: dict) -> dict:
+    """The bill with tuples spelt out, for JSON."""
+    def fix(w):
+        s, size, g, c, tc = w["group"]
+        return {**w, "group": {"standard": s, "size_m": size, "grade": g, "conductor": c, "thermal_class_C": tc}}
+    jobs = [{**j, "wire": fix(j["wire"])} for j in bill["jobs"]]
+    return {**bill, "jobs": jobs, "total": {**bill["total"], "wire": [fix(w) for w in bill["total"]["wire"]]}}

@@ -1,0 +1,692 @@
+"""The job register: an SQLite file recording issued travellers and sign-offs.
+
+Safety rules, in order of importance:
+
+* A file that is not a windsheet register is refused and never written to:
+  the 100-byte SQLite header is read as plain bytes first, so not even a
+  journal-mode change touches a foreign file.
+* Each command is one ``BEGIN IMMEDIATE`` transaction: a killed process loses
+  only its own uncommitted work (SQLite's WAL journal rolls it back).
+* A new register is built in a temporary file and linked into place, so a
+  half-created register never exists under the real name.
+* Writers wait a bounded time for one another, then give a clear message.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import os
+import sqlite3
+import tempfile
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Optional
+
+from windsheet.common.errors import InputError
+from windsheet.records import register_schema as schema
+from windsheet.common.fileio import require_regular_file
+from .register_schema import SCHEMA_VERSION
+from .sheet_ledger import finish_pending, record_pending
+from windsheet.design.qc_plan import status_of
+from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
+
+DEFAULT_FILE = "windsheet-register.db"
+ENV_VAR = "WINDSHEET_REGISTER"
+APPLICATION = "windsheet-register"
+#: PRAGMA application_id, "WSHR" in ASCII: marks the file in its own header.
+APPLICATION_ID = 0x57534852
+DEFAULT_TIMEOUT_S = 10.0
+
+_SQLITE_MAGIC = b"SQLite format 3\x00"
+
+_SCHEMA = """
+CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
+CREATE TABLE jobs (
+    number TEXT PRIMARY KEY,
+    part TEXT, customer TEXT,
+    first_issued_at TEXT NOT NULL
+);
+CREATE TABLE issues (
+    id INTEGER PRIMARY KEY,
+    job TEXT NOT NULL REFERENCES jobs(number),
+    revision TEXT NOT NULL,
+    order_sha256 TEXT NOT NULL,
+    order_text TEXT NOT NULL,
+    predictions_json TEXT NOT NULL,
+    units_json TEXT NOT NULL,
+    issued_by TEXT,
+    issued_at TEXT NOT NULL
+);
+CREATE INDEX issues_job ON issues(job, revision);
+CREATE TABLE signoffs (
+    id INTEGER PRIMARY KEY,
+    job TEXT NOT NULL REFERENCES jobs(number),
+    issue_id INTEGER NOT NULL REFERENCES issues(id),
+    revision TEXT NOT NULL,
+    order_sha256 TEXT NOT NULL,
+    inspector TEXT,
+    verdict TEXT NOT NULL CHECK (verdict IN ('pass', 'fail')),
+    result_json TEXT NOT NULL,
+    signed_at TEXT NOT NULL
+);
+CREATE INDEX signoffs_job ON signoffs(job);
+CREATE TABLE unit_signoffs (
+    id INTEGER PRIMARY KEY,
+    signoff_id INTEGER NOT NULL REFERENCES signoffs(id),
+    job TEXT NOT NULL,
+    serial TEXT NOT NULL,
+    verdict TEXT NOT NULL CHECK (verdict IN ('pass', 'fail')),
+    measurements_json TEXT NOT NULL,
+    inspector TEXT,
+    signed_at TEXT NOT NULL
+);
+CREATE INDEX unit_signoffs_job ON unit_signoffs(job, serial);
+"""
+
+
+
+def resolve_register_path(option: Optional[str] = None) -> Path:
+    """The register file: ``--register``, else ``$WINDSHEET_REGISTER``, else the working directory's."""
+    if option:
+        return Path(option)
+    env = os.environ.get(ENV_VAR)
+    if env:
+        return Path(env)
+    return Path.cwd() / DEFAULT_FILE
+
+
+def _now() -> str:
+    return _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
+
+
+def _dumps(obj) -> str:
+    try:
+        return json.dumps(obj, allow_nan=False, sort_keys=True, separators=(",", ":"))
+    except ValueError as exc:
+        raise InputError("register", f"cannot record a value that is not finite: {exc}") from None
+
+
+# --- Recognising a register -----------------------------------------------------------
+
+def _read_header(path: Path, label: str) -> bytes:
+    try:
+        with open(path, "rb") as fh:
+            return fh.read(100)
+    except PermissionError:
+        raise InputError(label, "cannot read the register: permission denied") from None
+    except IsADirectoryError:
+        raise InputError(label, "is a folder, not a register file") from None
+    except OSError as exc:
+        raise InputError(label, f"cannot read the register: {exc.strerror or exc}") from None
+
+
+def _check_header(header: bytes, label: str) -> None:
+    if len(header) < 100 or not header.startswith(_SQLITE_MAGIC):
+        raise InputError(label, "is not a windsheet register (not an SQLite database); "
+                                "refusing to touch it — give another path with --register")
+    app_id = int.from_bytes(header[68:72], "big")
+    if app_id != APPLICATION_ID:
+        raise InputError(label, "is an SQLite database but not a windsheet register; "
+                                "refusing to touch it — give another path with --register")
+
+
+def _check_contents(conn: sqlite3.Connection, label: str) -> int:
+    """Check a register's header tables, version and structure; returns its schema version."""
+    try:
+        ok = conn.execute("PRAGMA quick_check").fetchone()[0]
+        row = conn.execute("SELECT value FROM meta WHERE key = 'application'").fetchone()
+        version = conn.execute("PRAGMA user_version").fetchone()[0]
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
+        if _is_locked(exc):
+            raise _locked_error(label) from None
+        raise InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})") from None
+    if ok != "ok":
+        first = (str(ok).splitlines() or ["?"])[0][:160]
+        raise InputError(label, f"register is damaged (integrity check: {first}); restore it from a backup")
+    if row is None or row[0] != APPLICATION:
+        raise InputError(label, "is not a windsheet register (no application marker)")
+    if version > SCHEMA_VERSION:
+        raise InputError(label, f"register has schema version {version}, newer than this windsheet "
+                                f"understands ({SCHEMA_VERSION}); upgrade windsheet")
+    if version < 1:
+        raise InputError(label, "register has no schema version; it is damaged")
+    try:
+        schema.check_structure(conn, version, label)
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
+        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+    return version
+
+
+def _is_locked(exc: Exception) -> bool:
+    text = str(exc).lower()
+    return "locked" in text or "busy" in text
+
+
+def _locked_error(label: str) -> InputError:
+    return InputError(label, "register is locked by another writer; waited, then gave up — "
+                             "try again when the other sign-off has finished")
+
+
+# --- Creating -------------------------------------------------------------------------
+
+def _create(path: Path, label: str) -> None:
+    """Build a fresh register beside ``path`` and link it in; never replaces a file."""
+    folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(label, f"cannot create the register: folder {str(folder)!r} does not exist")
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".new", dir=folder)
+    except PermissionError:
+        raise InputError(label, "cannot create the register: no write permission in its folder") from None
+    except OSError as exc:
+        raise InputError(label, f"cannot create the register: {exc.strerror or exc}") from None
+    os.close(fd)
+    umask = os.umask(0)
+    os.umask(umask)
+    try:
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp's 0600 would lock out the other benches
+        conn = sqlite3.connect(tmp, isolation_level=None)
+        try:
+            conn.execute("PRAGMA journal_mode = DELETE")
+            conn.execute(f"PRAGMA application_id = {APPLICATION_ID}")
+            conn.execute("BEGIN")
+            for stmt in filter(str.strip, (_SCHEMA + ";" + UNIT_LOTS_SCHEMA).split(";")):
+                conn.execute(stmt)
+            conn.execute("INSERT INTO meta VALUES ('application', ?)", (APPLICATION,))
+            conn.execute("INSERT INTO meta VALUES ('schema_version', '1')")
+            conn.execute("INSERT INTO meta VALUES ('created_at', ?)", (_now(),))
+            conn.execute("PRAGMA user_version = 1")
+            conn.execute("COMMIT")
+            # A fresh register takes the same steps as an old one: version 1, then each migration.
+            schema.migrate(conn, 1, _now())
+        finally:
+            conn.close()
+        with open(tmp, "rb") as fh:
+            os.fsync(fh.fileno())
+        try:
+            # link() fails if the name exists: a register made meanwhile by another bench wins.
+            os.link(tmp, path)
+        except FileExistsError:
+            pass
+        except OSError:
+            # File systems without hard links: fall back to a guarded rename.
+            if not path.exists():
+                os.replace(tmp, path)
+    finally:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+
+
+# --- The register ---------------------------------------------------------------------
+
+def _reads(method):
+    """A read of the register: damage found while reading is one line, never a traceback."""
+    import functools
+
+    @functools.wraps(method)
+    def wrapper(self, *args, **kwargs):
+        try:
+            return method(self, *args, **kwargs)
+        except InputError:
+            raise
+        except sqlite3.OperationalError as exc:
+            if _is_locked(exc):
+                raise _locked_error(self.label) from None
+            raise InputError(self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+        except (sqlite3.DatabaseError, ValueError, TypeError, AttributeError, KeyError, UnicodeError) as exc:
+            raise InputError(self.label, f"register is damaged ({type(exc).__name__}: {_one_line(exc)}); "
+                                         "restore it from a backup") from None
+    return wrapper
+
+
+def _one_line(exc) -> str:
+    if isinstance(exc, UnicodeDecodeError):
+        return "text that is not UTF-8"
+    return (str(exc).splitlines() or [""])[0][:160]
+
+
+class Register:
+    """An open job register; use :func:`open_register`."""
+
+    #: Schema version of the open file (a read-only old register stays at its own).
+    version = SCHEMA_VERSION
+    #: Lines about sheets an interrupted run left, finished on opening (see sheet_ledger).
+    repairs: list = []
+
+    def __init__(self, conn: sqlite3.Connection, path: Path, timeout: float):
+        self.conn = conn
+        self.path = path
+        self.label = str(path)
+        self.timeout = timeout
+
+    def close(self) -> None:
+        self.conn.close()
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        self.close()
+
+    @contextmanager
+    def transaction(self):
+        """One ``BEGIN IMMEDIATE`` ... ``COMMIT``: the write lock is taken up front."""
+        try:
+            self.conn.execute("BEGIN IMMEDIATE")
+        except sqlite3.OperationalError as exc:
+            if _is_locked(exc):
+                raise _locked_error(self.label) from None
+            raise InputError(self.label, f"cannot write the register: {exc}") from None
+        try:
+            yield self.conn
+        except BaseException:
+            self.conn.execute("ROLLBACK")
+            raise
+        try:
+            self.conn.execute("COMMIT")
+        except sqlite3.OperationalError as exc:
+            self.conn.execute("ROLLBACK")
+            if _is_locked(exc):
+                raise _locked_error(self.label) from None
+            raise InputError(self.label, f"cannot write the register: {exc}") from None
+
+    # -- issue -------------------------------------------------------------------------
+
+    def record_issue(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
+                     revision: Optional[str] = None, sheet=None) -> int:
+        """Record that a traveller was issued; returns the issue id.
+
+        Re-issuing the same revision with the same content (a reprint: the
+        same traveller as A4, Letter or HTML) is recorded as a reprint of that
+        issue, whose id is returned.  The same revision with different content
+        is refused: a changed order needs a new revision.
+        """
+        return self.issue_or_reprint(predictions, order_text, order_sha256, revision, sheet)[0]
+
+    def issue_or_reprint(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
+                         revision: Optional[str] = None, sheet=None) -> tuple[int, str]:
+        """Like :meth:`record_issue`; returns ``(issue id, "issued" or "reprinted")``."""
+        job = predictions.get("job") or {}
+        number = job.get("number")
+        if not number:
+            raise InputError("job.number", "the prediction has no job number")
+        revision = str(revision if revision is not None else (job.get("revision") or "-"))
+        order_sha256 = order_sha256 or predictions.get("order_hash")
+        if not order_sha256:
+            raise InputError("order", "no order hash to record")
+        with self.transaction() as c:
+            for (sha,) in c.execute("SELECT DISTINCT order_sha256 FROM issues WHERE job = ? AND revision = ?",
+                                    (number, revision)):
+                if sha != order_sha256:
+                    raise InputError("job.revision",
+                                     f"revision {revision} of job {number} was issued with different order "
+                                     f"content (sha256 {sha[:12]}…, now {order_sha256[:12]}…); "
+                                     "give the changed order a new revision")
+            now = _now()
+            first = c.execute("SELECT id FROM issues WHERE job = ? AND revision = ? ORDER BY id LIMIT 1",
+                              (number, revision)).fetchone()
+            if first is not None:
+                c.execute("INSERT INTO reprints (issue_id, printed_by, printed_at) VALUES (?, ?, ?)",
+                          (first[0], job.get("issued_by"), now))
+                if sheet is not None:
+                    record_pending(c, sheet, first[0], now)
+                return int(first[0]), "reprinted"
+            c.execute("INSERT OR IGNORE INTO jobs VALUES (?, ?, ?, ?)",
+                      (number, job.get("part"), job.get("customer"), now))
+            c.execute("UPDATE jobs SET part = ?, customer = ? WHERE number = ?",
+                      (job.get("part"), job.get("customer"), number))
+            cur = c.execute(
+                "INSERT INTO issues (job, revision, order_sha256, order_text, predictions_json, units_json,"
+                " issued_by, issued_at, design_state) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                (number, revision, order_sha256, order_text, _dumps(predictions),
+                 _dumps(list(job.get("units") or [])), job.get("issued_by"), now,
+                 schema.design_state_of(predictions)))
+            if sheet is not None:
+                record_pending(c, sheet, cur.lastrowid, now)
+            return int(cur.lastrowid), "issued"
+
+    # -- sign-off ----------------------------------------------------------------------
+
+    def _issue_for(self, c, number: str, revision: str, order_sha256: str) -> int:
+        rows = c.execute("SELECT id, revision, order_sha256 FROM issues WHERE job = ? ORDER BY id",
+                         (number,)).fetchall()
+        if not rows:
+            raise InputError("job.number", f"job {number} has no traveller issued in register {self.label}; "
+                                           "issue the traveller first (or: windsheet register --issue ORDER.yaml)")
+        same_rev = [r for r in rows if r[1] == revision]
+        match = [r for r in same_rev if r[2] == order_sha256]
+        if match:
+            return int(match[-1][0])
+        if same_rev:
+            raise InputError("order", f"the order's content changed since revision {revision} of job {number} "
+                                      f"was issued (sha256 {same_rev[-1][2][:12]}…, now {order_sha256[:12]}…); "
+                                      "refusing to sign off — issue the changed order as a new revision")
+        issued = ", ".join(sorted({r[1] for r in rows}))
+        raise InputError("job.revision", f"revision {revision} of job {number} has not been issued "
+                                         f"(issued: {issued}); issue its traveller first")
+
+    @_reads
+    def find_issue(self, number: str, revision: Optional[str], order_sha256: str) -> tuple[int, dict]:
+        """The issue a sign-off of this order belongs to, and its recorded predictions.
+
+        Raises the same refusals as :meth:`record_signoff`.
+        """
+        issue_id = self._issue_for(self.conn, number, str(revision or "-"), order_sha256)
+        return issue_id, self.issued_predictions(issue_id)
+
+    def record_signoff(self, result: dict, order_sha256: Optional[str] = None,
+                       inspector: Optional[str] = None, measured_units: Optional[list] = None,
+                       sheet=None) -> int:
+        """Record a sign-off (the dict from :func:`windsheet.qc.signoff.evaluate_signoff`).
+
+        ``measured_units`` optionally gives the raw readings per unit (same order
+        as ``result["units"]``); each unit row stores them with its evaluated lines.
+        Refused when the order content differs from the issued revision.
+        """
+        number = result.get("job")
+        revision = str(result.get("revision") or "-")
+        order_sha256 = order_sha256 or result.get("order_hash")
+        inspector = inspector or result.get("inspector")
+        units = result.get("units") or []
+        with self.transaction() as c:
+            issue_id = self._issue_for(c, number, revision, order_sha256)
+            now = _now()
+            cur = c.execute(
+                "INSERT INTO signoffs (job, issue_id, revision, order_sha256, inspector, verdict, result_json,"
+                " signed_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+                (number, issue_id, revision, order_sha256, inspector, _column_verdict(result["verdict"]),
+             _dumps(result), now))
+            signoff_id = int(cur.lastrowid)
+            for k, unit in enumerate(units):
+                raw = measured_units[k] if measured_units else None
+                self._insert_unit(c, signoff_id, number, unit, raw, inspector, now)
+            if sheet is not None:
+                record_pending(c, sheet, signoff_id, now)
+            return signoff_id
+
+    def mark_sheet(self, sheet_id: int, state: str) -> None:
+        """The sheet recorded as ``sheet_id`` is now ``placed`` (or ``unprinted``)."""
+        with self.transaction() as c:
+            c.execute("UPDATE sheets SET state = ? WHERE id = ?", (state, int(sheet_id)))
+
+    def finish_sheets(self) -> list[str]:
+        """Finish sheets a crashed run left pending (see :mod:`windsheet.records.sheet_ledger`)."""
+        if self.version < 2 or self.conn.execute(
+                "SELECT 1 FROM sheets WHERE state = 'pending' LIMIT 1").fetchone() is None:
+            return []
+        with self.transaction() as c:
+            return finish_pending(c)
+
+    def _insert_unit(self, c, signoff_id, number, unit, raw, inspector, now):
+        c.execute(
+            "INSERT INTO unit_signoffs (signoff_id, job, serial, verdict, measurements_json, inspector,"
+            " signed_at, unit_verdict) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+            (signoff_id, number, unit["serial"], _column_verdict(unit["verdict"]),
+             _dumps({"readings": raw, "lines": unit.get("lines"), "diagnosis": unit.get("diagnosis"),
+                     "verdict": unit["verdict"], "waived": unit.get("waived") or {},
+                     "design_status": unit.get("design_status")}),
+             inspector, now, unit["verdict"]))
+        insert_unit_lots(c, signoff_id, number, unit["serial"], unit.get("trace"), now)
+
+    # -- reading -----------------------------------------------------------------------
+
+    def _states(self, number: Optional[str] = None) -> list[dict]:
+        """Each job's state at its latest issued revision (one job, or all, newest issue first).
+
+        Two queries whatever the register's size: the latest issue of each job,
+        then every unit sign-off of those revisions, read in order so the last
+        verdict of each serial stands.
+        """
+        v2 = self.version >= 2
+        design = "i.design_state" if v2 else "NULL"
+        where = "WHERE i.job = ?" if number is not None else ""
+        args = (number,) if number is not None else ()
+        latest = self.conn.execute(
+            "SELECT i.job, i.id, i.revision, i.order_sha256, i.units_json, i.issued_at, i.issued_by, "
+            f"{design}, j.part, j.customer "
+            "FROM issues i JOIN jobs j ON j.number = i.job "
+            f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where} "
+            "ORDER BY i.id DESC", args).fetchall()
+        verdict = "u.unit_verdict" if v2 else "json_extract(u.measurements_json, '$.verdict')"
+        units: dict = {}
+        for job, serial, v, col in self.conn.execute(
+                f"SELECT s.job, u.serial, {verdict}, u.verdict FROM unit_signoffs u "
+                "JOIN signoffs s ON s.id = u.signoff_id "
+                "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.job = s.job "
+                "JOIN issues i ON i.id = l.id AND i.revision = s.revision "
+                + ("WHERE s.job = ? " if number is not None else "") + "ORDER BY u.id", args):
+            units.setdefault(job, {})[serial] = v or col
+        out = []
+        for job, iid, rev, sha, units_json, at, by, dstate, part, customer in latest:
+            serials = json.loads(units_json)
+            if not isinstance(serials, list):
+                raise ValueError(f"issue {iid}: units_json is not a list")
+            got = units.get(job, {})
+            passed = sorted(s for s, v in got.items() if v == "pass")
+            failed = sorted(s for s, v in got.items() if v == "fail")
+            incomplete = sorted(s for s, v in got.items() if v == "incomplete")
+            everyone = set(serials) or set(got)
+            state = ("failed" if failed else "incomplete" if incomplete
+                     else "passed" if got and everyone <= set(passed) else "issued")
+            if dstate is None:  # a version-1 register read as it is
+                dstate = schema.design_state_of(self.issued_predictions(iid))
+            out.append({"number": job, "revision": rev, "order_sha256": sha, "issued_at": at,
+                        "issued_by": by, "state": state, "units": serials, "part": part, "customer": customer,
+                        "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
+                        "units_not_signed": [s for s in serials if s not in got],
+                        "design_status": {"state": dstate}, "issue_id": iid})
+        return out
+
+    @_reads
+    def job_state(self, number: str) -> dict:
+        """State of a job at its latest issued revision: issued, passed, failed or incomplete."""
+        found = self._states(number)
+        if not found:
+            raise InputError("job", f"job {number} is not in register {self.label}")
+        st = found[0]
+        st["design_status"] = status_of(self.issued_predictions(st["issue_id"]))
+        return st
+
+    @_reads
+    def list_jobs(self) -> list[dict]:
+        """Every job with its state, newest issue first."""
+        return self._states()
+
+    @_reads
+    def job_history(self, number: str) -> dict:
+        """Every issue and sign-off of a job, oldest first."""
+        events = []
+        for rid, rev, sha, at, by in self.conn.execute(
+                "SELECT id, revision, order_sha256, issued_at, issued_by FROM issues WHERE job = ? ORDER BY id",
+                (number,)):
+            status = status_of(self.issued_predictions(rid))["state"]
+            events.append({"event": "issued", "id": rid, "revision": rev, "order_sha256": sha, "at": at,
+                           "by": by, "design_status": status})
+            if self._has_reprints():
+                for pid, pby, pat in self.conn.execute(
+                        "SELECT id, printed_by, printed_at FROM reprints WHERE issue_id = ? ORDER BY id", (rid,)):
+                    events.append({"event": "reprinted", "id": pid, "revision": rev, "order_sha256": sha,
+                                   "at": pat, "by": pby, "design_status": status})
+        for sid, rev, sha, insp, verdict, at in self.conn.execute(
+                "SELECT id, revision, order_sha256, inspector, verdict, signed_at FROM signoffs"
+                " WHERE job = ? ORDER BY id", (number,)):
+            units = [{"serial": s, "verdict": _unit_verdict(v, m)} for s, v, m in self.conn.execute(
+                "SELECT serial, verdict, measurements_json FROM unit_signoffs WHERE signoff_id = ? ORDER BY id",
+                (sid,))]
+            events.append({"event": "signed off", "id": sid, "revision": rev, "order_sha256": sha,
+                           "at": at, "by": insp, "verdict": verdict, "units": units})
+        if not events:
+            raise InputError("job", f"job {number} is not in register {self.label}")
+        order = {"issued": 0, "reprinted": 1}
+        events.sort(key=lambda e: (e["at"], order.get(e["event"], 2), e["id"]))
+        return {"number": number, "state": self.job_state(number), "events": events}
+
+    def _has_reprints(self) -> bool:
+        return self.conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'reprints'"
+                                 ).fetchone() is not None
+
+    @_reads
+    def issued_predictions(self, issue_id: int) -> dict:
+        row = self.conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()
+        if row is None:
+            raise InputError("register", f"no issue {issue_id}")
+        p = json.loads(row[0])
+        if not isinstance(p, dict) or not isinstance(p.get("job"), dict):
+            raise ValueError(f"issue {issue_id}: its prediction is not a prediction")
+        return p
+
+
+def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = True) -> Register:
+    """Open (or create) the job register at ``path``.
+
+    Parameters
+    ----------
+    path : str or Path, optional
+        Register file; default by :func:`resolve_register_path`.
+    timeout : float
+        How long a writer waits for another to finish. [s]
+    create : bool
+        Create the register when the file does not exist.
+
+    Raises
+    ------
+    InputError
+        Foreign or damaged file (left untouched), newer schema, locked too long,
+        missing folder or no permission.
+    """
+    p = resolve_register_path(str(path) if path is not None else None)
+    label = str(p)
+    require_regular_file(p, "register file")
+    if not p.exists():
+        if not create:
+            raise InputError(label, "no register here yet; issue the job's traveller first "
+                                    "(or: windsheet register --issue ORDER.yaml)")
+        _create(p, label)
+    _check_header(_read_header(p, label), label)
+    _check_writable(p, label)
+    try:
+        conn = sqlite3.connect(str(p), timeout=timeout, isolation_level=None)
+    except sqlite3.Error as exc:
+        raise InputError(label, f"cannot open the register: {exc}") from None
+    try:
+        conn.execute(f"PRAGMA busy_timeout = {int(timeout * 1000)}")
+        version = _check_contents(conn, label)
+        # Content checked before anything is written, the migration included.
+        schema.check_json(conn, label)
+        mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
+        if str(mode).lower() != "wal":
+            raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
+        conn.execute("PRAGMA synchronous = FULL")
+        conn.execute("PRAGMA foreign_keys = ON")
+        version = schema.migrate(conn, version, _now())
+        ensure_table(conn)  # registers made before lots were recorded gain the table
+    except sqlite3.OperationalError as exc:
+        conn.close()
+        if _is_locked(exc):
+            raise _locked_error(label) from None
+        if "readonly" in str(exc).lower():
+            raise _read_only_error(label) from None
+        raise InputError(label, f"cannot open the register: {exc}") from None
+    except (sqlite3.DatabaseError, UnicodeError) as exc:
+        conn.close()
+        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+    except BaseException:
+        conn.close()
+        raise
+    reg = Register(conn, p, timeout)
+    reg.version = version
+    try:
+        reg.repairs = reg.finish_sheets()
+    except BaseException:
+        reg.close()
+        raise
+    return reg
+
+
+def _read_only_error(label: str) -> InputError:
+    return InputError(label, "register is read-only here (no write permission on the file or its folder); "
+                             "nothing was recorded — list it with 'windsheet register', or ask for write access")
+
+
+def _check_writable(p: Path, label: str) -> None:
+    """Refuse to open a register for writing that cannot be written (file, or its folder for the WAL files)."""
+    folder = p.parent if str(p.parent) else Path(".")
+    if not os.access(p, os.W_OK) or not os.access(folder, os.W_OK | os.X_OK):
+        raise _read_only_error(label)
+
+
+def _sqlite_uri(p: Path, immutable: bool) -> str:
+    return f"{p.resolve().as_uri()}?mode=ro" + ("&immutable=1" if immutable else "")
+
+
+def open_register_readonly(path=None) -> Register:
+    """Open an existing register for reading only (``signoff --dry-run``).
+
+    The file is opened by SQLite in read-only mode, so not a byte of the
+    register changes; a missing, foreign or damaged file is refused as by
+    :func:`open_register`.
+    """
+    p = resolve_register_path(str(path) if path is not None else None)
+    label = str(p)
+    require_regular_file(p, "register file")
+    if not p.exists():
+        raise InputError(label, "no register here yet; issue the job's traveller first "
+                                "(or: windsheet register --issue ORDER.yaml)")
+    _check_header(_read_header(p, label), label)
+    # With no write-ahead log beside it the file holds every commit: read it immutable, so SQLite
+    # makes no -shm/-wal files (a dry run leaves the folder as it was; a read-only folder is no
+    # obstacle). A live log (a writer at work) is read through, read-only.
+    immutable = not Path(str(p) + "-wal").exists()
+    try:
+        conn = sqlite3.connect(_sqlite_uri(p, immutable), uri=True, isolation_level=None,
+                               timeout=DEFAULT_TIMEOUT_S)
+    except sqlite3.Error as exc:
+        raise InputError(label, f"cannot read the register: {exc}") from None
+    try:
+        version = _check_contents(conn, label)
+    except (sqlite3.OperationalError, UnicodeError) as exc:
+        conn.close()
+        if immutable:
+            raise InputError(label, f"cannot read the register: {exc}") from None
+        raise InputError(label, f"cannot read the register here ({exc}); its folder must let SQLite "
+                                "make its shared-memory file") from None
+    except BaseException:
+        conn.close()
+        raise
+    reg = Register(conn, p, DEFAULT_TIMEOUT_S)
+    reg.version = version
+    return reg
+
+
+def _column_verdict(verdict: str) -> str:
+    """The verdict columns hold pass or fail: a unit not proven (incomplete) is not passed.
+    The full verdict is kept in the JSON beside it."""
+    return "pass" if verdict == "pass" else "fail"
+
+
+def _unit_verdict(column: str, measurements_json: str) -> str:
+    try:
+        return json.loads(measurements_json).get("verdict") or column
+    except (ValueError, AttributeError):
+        return column
+
+
+def record_issue(register: Register, *args, **kwargs) -> int:
+    """Module-level alias of :meth:`Register.record_issue`."""
+    return register.record_issue(*args, **kwargs)
+
+
+def record_signoff(register: Register, *args, **kwargs) -> int:
+    """Module-level alias of :meth:`Register.record_signoff`."""
+    return register.record_signoff(*args, **kwargs)
+
+
+def list_jobs(register: Register) -> list[dict]:
+    return register.list_jobs()
+
+
+def job_history(register: Register, number: str) -> dict:
+    return register.job_history(number)

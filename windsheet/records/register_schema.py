@@ -1,0 +1,164 @@
+"""The register's schema after version 1: what each version adds, the migration, the content checks.
+
+Version 2 adds what lets the register scale and stay whole:
+
+* ``issues.design_state`` and ``unit_signoffs.unit_verdict``: the design status
+  and each unit's full verdict (pass, fail, incomplete) in columns, so listing
+  10,000 jobs reads no JSON;
+* an index for every query the register runs;
+* ``reprints`` (a traveller printed again) and ``sheets`` (each written sheet's
+  path and content hash, to close the crash window between the register's
+  commit and the sheet's rename; see :mod:`windsheet.records.sheet_ledger`).
+
+A version-1 register is migrated in place the first time it is opened for
+writing, in one transaction: a crash leaves it at version 1, untouched.
+Opened read-only it is read as it is.
+"""
+
+from __future__ import annotations
+
+import json
+import sqlite3
+
+from windsheet.common.errors import InputError
+
+SCHEMA_VERSION = 2
+
+#: Added by version 2; also part of a fresh register's schema.
+V2_TABLES = """
+CREATE TABLE IF NOT EXISTS reprints (
+    id INTEGER PRIMARY KEY,
+    issue_id INTEGER NOT NULL REFERENCES issues(id),
+    printed_by TEXT,
+    printed_at TEXT NOT NULL
+);
+CREATE TABLE IF NOT EXISTS sheets (
+    id INTEGER PRIMARY KEY,
+    kind TEXT NOT NULL,
+    ref_id INTEGER NOT NULL,
+    path TEXT NOT NULL,
+    sha256 TEXT NOT NULL,
+    staged TEXT,
+    state TEXT NOT NULL CHECK (state IN ('pending', 'placed', 'unprinted')),
+    recorded_at TEXT NOT NULL
+);
+CREATE INDEX IF NOT EXISTS sheets_state ON sheets(state);
+CREATE INDEX IF NOT EXISTS issues_job_id ON issues(job, id);
+CREATE INDEX IF NOT EXISTS signoffs_job_revision ON signoffs(job, revision, id);
+CREATE INDEX IF NOT EXISTS unit_signoffs_signoff ON unit_signoffs(signoff_id);
+CREATE INDEX IF NOT EXISTS reprints_issue ON reprints(issue_id);
+"""
+
+#: Columns version 2 adds to version-1 tables.
+V2_COLUMNS = (("issues", "design_state", "TEXT"), ("unit_signoffs", "unit_verdict", "TEXT"))
+
+#: Tables and columns every register of this version has; checked on opening.
+REQUIRED = {
+    "meta": {"key", "value"},
+    "jobs": {"number", "part", "customer", "first_issued_at"},
+    "issues": {"id", "job", "revision", "order_sha256", "order_text", "predictions_json", "units_json",
+               "issued_by", "issued_at"},
+    "signoffs": {"id", "job", "issue_id", "revision", "order_sha256", "inspector", "verdict", "result_json",
+                 "signed_at"},
+    "unit_signoffs": {"id", "signoff_id", "job", "serial", "verdict", "measurements_json", "inspector",
+                      "signed_at"},
+}
+REQUIRED_V2 = {"issues": {"design_state"}, "unit_signoffs": {"unit_verdict"},
+               "reprints": {"id", "issue_id", "printed_at"},
+               "sheets": {"id", "kind", "ref_id", "path", "sha256", "staged", "state"}}
+
+#: JSON columns and the JSON type each must hold.
+JSON_COLUMNS = (("issues", "predictions_json", "object"), ("issues", "units_json", "array"),
+                ("signoffs", "result_json", "object"), ("unit_signoffs", "measurements_json", "object"))
+
+
+def design_state_of(predictions: dict) -> str:
+    """``ok``, ``forced`` or ``failing``: the design status an issue is recorded with.
+
+    Examples
+    --------
+    >>> design_state_of({"insulation": {"verdict": "pass"}})
+    'ok'
+    >>> design_state_of({"design_status": {"state": "forced"}})
+    'forced'
+    >>> design_state_of({"insulation": {"verdict": "pass"}, "thermal": {"verdict": "fail"}})
+    'failing'
+    """
+    st = (predictions.get("design_status") or {}).get("state") if isinstance(predictions, dict) else None
+    if st:
+        return str(st)
+    from windsheet.design.qc_plan import design_fails
+
+    return "failing" if design_fails(predictions or {}) else "ok"
+
+
+def columns(conn: sqlite3.Connection, table: str) -> set:
+    return {r[1] for r in conn.execute(f"PRAGMA table_info({table})")}
+
+
+def check_structure(conn: sqlite3.Connection, version: int, label: str) -> None:
+    """Refuse, in one line, a register missing a table or column its version has."""
+    need = dict(REQUIRED)
+    if version >= 2:
+        for t, cols in REQUIRED_V2.items():
+            need[t] = need.get(t, set()) | cols
+    for table, cols in need.items():
+        missing = cols - columns(conn, table)
+        if missing == cols:
+            raise InputError(label, f"register is damaged: table {table!r} is missing; restore it from a backup")
+        if missing:
+            raise InputError(label, f"register is damaged: table {table!r} lacks column(s) "
+                                    f"{', '.join(sorted(missing))}; restore it from a backup")
+
+
+def check_json(conn: sqlite3.Connection, label: str) -> None:
+    """Refuse a register whose JSON columns do not hold the JSON they should (one line).
+
+    Run before anything is written, in SQLite's own JSON functions: a
+    100 MB register is checked in a fraction of a second without loading it.
+    """
+    for table, col, kind in JSON_COLUMNS:
+        try:
+            bad = conn.execute(
+                f"SELECT id FROM {table} WHERE NOT json_valid({col}) OR json_type({col}) != ? LIMIT 1",
+                (kind,)).fetchone()
+        except sqlite3.OperationalError as exc:
+            if "decode" in str(exc).lower() or "utf" in str(exc).lower():
+                raise InputError(label, f"register is damaged: {table}.{col} is not valid UTF-8 text; "
+                                        "restore it from a backup") from None
+            raise
+        if bad is not None:
+            raise InputError(label, f"register is damaged: {table} row {bad[0]} holds no valid JSON {kind} "
+                                    f"in {col}; restore it from a backup")
+
+
+def migrate(conn: sqlite3.Connection, version: int, now: str) -> int:
+    """Bring a register up to :data:`SCHEMA_VERSION` in one transaction; returns the new version."""
+    if version >= SCHEMA_VERSION:
+        return version
+    conn.execute("BEGIN IMMEDIATE")
+    try:
+        for table, col, kind in V2_COLUMNS:
+            if col not in columns(conn, table):
+                conn.execute(f"ALTER TABLE {table} ADD COLUMN {col} {kind}")
+        for stmt in filter(str.strip, V2_TABLES.split(";")):
+            conn.execute(stmt)
+        # Backfill: each issue's design status from its prediction, each unit's verdict from its JSON.
+        rows = conn.execute("SELECT id, predictions_json FROM issues WHERE design_state IS NULL").fetchall()
+        for rid, pj in rows:
+            try:
+                state = design_state_of(json.loads(pj))
+            except (ValueError, TypeError):
+                state = "ok"
+            conn.execute("UPDATE issues SET design_state = ? WHERE id = ?", (state, rid))
+        conn.execute(
+            "UPDATE unit_signoffs SET unit_verdict = COALESCE(CASE WHEN json_valid(measurements_json) THEN "
+            "json_extract(measurements_json, '$.verdict') END, verdict) WHERE unit_verdict IS NULL")
+        conn.execute("INSERT OR REPLACE INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),))
+        conn.execute("INSERT OR REPLACE INTO meta VALUES ('migrated_at', ?)", (now,))
+        conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
+        conn.execute("COMMIT")
+    except BaseException:
+        conn.execute("ROLLBACK")
+        raise
+    return SCHEMA_VERSION

@@ -1,0 +1,142 @@
+"""The printable sheets: the traveller and the sign-off sheet, HTML and PDF.
+
+The chain: the prediction dict → a context of words and rows
+(:mod:`windsheet.sheets.traveller_sheet`, :mod:`windsheet.sheets.procedure`,
+:mod:`windsheet.sheets.signoff_sheet`) → HTML by Jinja2 → PDF by WeasyPrint
+(:mod:`windsheet.sheets.sheet_pdf`).  Nothing here computes physics.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from windsheet.common.errors import InputError
+# The formatters and the context builders are re-exported: scripts and tests read them here.
+from windsheet.common.fmt import eng, length, mass  # noqa: F401
+from .procedure import procedure_steps  # noqa: F401
+from .sheet_pdf import (PAPER_SIZES, TEMPLATES_DIR, _page_size, _stylesheet, environment,  # noqa: F401
+                        farad, henry, hertz, joule, ohm, render_pdf, templates_only_fetcher, volt)
+from .signoff_sheet import SIGNOFF_SECTIONS, measured_text, signoff_context  # noqa: F401
+from .traveller_sheet import (DEFERRAL, SECTIONS, cautions, duty_rows, form_rows,  # noqa: F401
+                              insulation_rows, pick_list, qc_items, terminal_names, traveller_context)
+
+# --- issuing -------------------------------------------------------------------------
+
+def check_issuable(prediction: dict, force: bool = False) -> None:
+    """Refuse to issue a traveller whose insulation check fails, unless forced."""
+    ins = prediction.get("insulation") or {}
+    if ins.get("verdict") == "fail" and not force:
+        why = "; ".join(str(r) for r in ins.get("reasons") or []) or "see the insulation check"
+        raise InputError("insulation", f"insulation check fails ({why}); "
+                         "not issued — fix the order, or issue with --force")
+    thermal = prediction.get("thermal") or {}
+    if thermal.get("verdict") == "fail" and not force:
+        # Enamel run over its thermal class ages fast: as much a fail as a voltage it cannot hold.
+        raise InputError("duty.current", f"thermal check fails ({thermal.get('reason')}); "
+                         "not issued — lower the current, use a heavier wire or a higher thermal class, "
+                         "or issue with --force")
+
+
+#: The CLI's ``--units`` words.
+UNIT_SYSTEMS = ("imperial", "metric")
+
+
+def _imperial(prediction: dict, units: str | None) -> bool:
+    """Inches beside millimetres: as the order was written, unless ``--units`` says otherwise."""
+    if units is None:
+        return prediction.get("sheet_units") == "imperial"
+    key = str(units).strip().lower()
+    if key not in UNIT_SYSTEMS:
+        raise InputError("--units", f"expected imperial or metric, got {units!r}")
+    return key == "imperial"
+
+
+def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = False,
+                          templates_dir: Path = TEMPLATES_DIR, units: str | None = None) -> str:
+    """The traveller for one order as a standalone HTML document.
+
+    Parameters
+    ----------
+    prediction : dict
+        What ``windsheet.design.build.predict`` returns.
+    paper : {"a4", "letter"}
+    forced : bool
+        The sheet was issued with ``--force`` over a failing insulation check;
+        printed prominently on the first page.
+    units : {None, "imperial", "metric"}
+        Lengths in millimetres, with inches beside them for ``imperial``;
+        by default as the order was written (``prediction["sheet_units"]``).
+    """
+    from windsheet.common.fmt import IMPERIAL
+
+    token = IMPERIAL.set(_imperial(prediction, units))
+    try:
+        env = environment(templates_dir)
+        ctx = traveller_context(prediction, forced=forced)
+        ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
+                   stylesheet=_stylesheet(templates_dir), sections=SECTIONS)
+        return env.get_template("traveller.html.j2").render(**ctx)
+    finally:
+        IMPERIAL.reset(token)
+
+
+def order_files(path) -> list[Path]:
+    """The order files a path names: the file itself, or a folder's ``*.yaml`` orders.
+
+    Measured-values files (``*.measured.yaml``) in the folder are not orders.
+    """
+    path = Path(path)
+    if path.is_dir():
+        found = sorted(q for q in path.iterdir()
+                       if q.suffix.lower() in (".yaml", ".yml") and q.is_file()
+                       and not q.name.lower().endswith((".measured.yaml", ".measured.yml")))
+        if not found:
+            raise InputError(str(path), "no order files (*.yaml) in this folder")
+        return found
+    if not path.is_file():
+        raise InputError(str(path), "no such order file or folder")
+    return [path]
+
+
+def traveller(prediction: dict, paper: str = "a4", forced: bool = False,
+              units: str | None = None) -> tuple[str, bytes]:
+    """HTML and PDF of one traveller."""
+    html = render_traveller_html(prediction, paper=paper, forced=forced, units=units)
+    return html, render_pdf(html)
+
+
+def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4",
+                        templates_dir: Path = TEMPLATES_DIR, units: str | None = None,
+                        qc_chart_svg: str | None = None) -> str:
+    """The sign-off sheet (measured against predicted, diagnosis, verdict) as HTML.
+
+    ``signoff_result`` is what :func:`windsheet.qc.signoff.evaluate_signoff` returns;
+    ``qc_chart_svg`` the family's control chart (:mod:`windsheet.sheets.control_chart`), if any.
+    """
+    from windsheet.common.fmt import IMPERIAL
+
+    token = IMPERIAL.set(_imperial(prediction, units))
+    try:
+        return _signoff_html(prediction, signoff_result, paper, templates_dir, qc_chart_svg)
+    finally:
+        IMPERIAL.reset(token)
+
+
+def _svg_data_url(svg: str) -> str:
+    import base64
+
+    return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
+
+
+def _signoff_html(prediction, signoff_result, paper, templates_dir, qc_chart_svg=None):
+    env = environment(templates_dir)
+    ctx = signoff_context(prediction, signoff_result)
+    ctx.update(page_size=_page_size(paper), paper=str(paper).lower(),
+               stylesheet=_stylesheet(templates_dir), sections=SIGNOFF_SECTIONS,
+               qc_chart=_svg_data_url(qc_chart_svg) if qc_chart_svg else None)
+    return env.get_template("signoff.html.j2").render(**ctx)
+
+
+__all__ = ["render_traveller_html", "render_signoff_html", "render_pdf", "traveller",
+           "check_issuable", "order_files", "eng", "SECTIONS", "SIGNOFF_SECTIONS", "PAPER_SIZES",
+           "procedure_steps", "cautions", "qc_items"]
