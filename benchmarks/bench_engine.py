@@ -3,11 +3,11 @@
 Prints medians and ratios, never a pass/fail on time:
 
 - :func:`windsheet.physics.inductance.strand_matrix` on the 200-layer, 4-strand,
-  5,000-turn coil, and the whole ``predict`` of an order for it;
+  5,000-turn coil, and the whole ``build_design`` of an order for it;
 - the 10-layer, 5,000-turn coils (one and two strands);
 - how many kernels the engine evaluates against the group-pair loop it
   replaced, and that loop's time on coils it can still do quickly;
-- a 5,000-turn target-inductance order: ``predict`` time and engine runs,
+- a 5,000-turn target-inductance order: ``build_design`` time and engine runs,
   against the Newton search on sqrt(L) used before;
 - orders at the edges of the work budget (windsheet.order.limits);
 - the ratio to the plain double sum on a small coil.
@@ -53,7 +53,7 @@ def coil(strands, turns, layers):
 
 
 def order(strands, turns, layers, **winding):
-    """The same coil as an order, for a whole ``predict``."""
+    """The same coil as an order, for a whole ``build_design``."""
     slots = -(-turns // layers) if layers != "auto" else winding.pop("slots")
     return parse_order(yaml.safe_dump({
         "job": {"number": "HL-0999", "part": "Bench coil", "customer": "Harrowgate bench", "quantity": 1,
@@ -157,7 +157,7 @@ def main() -> int:
     k_now, k_loop = kernels_evaluated(big), group_pair_kernels(big)
     print(f"  kernels evaluated: {k_now:,}; the group-pair loop evaluated {k_loop:,} "
           f"({k_loop / k_now:.1f}x as many)")
-    seconds, _ = median_time(P.predict, order(4, 5000, 200))
+    seconds, _ = median_time(P.build_design, order(4, 5000, 200))
     print(f"  predict of the same order (layout, engine, network, stress): {seconds:.3f} s (median of 3)")
 
     for strands in (1, 2):
@@ -175,18 +175,18 @@ def main() -> int:
 
     o = order(1, None, "auto", target_inductance="900 mH", slots=250)
     wire = resolve_wire(o)
-    seconds, p = median_time(P.predict, o)
+    seconds, p = median_time(P.build_design, o)
     runs, n = engine_runs(o, wire)
     t0 = time.perf_counter()
     old_runs, old_n = newton_runs(o, wire)
     old_s = time.perf_counter() - t0
     solve_s, _ = median_time(T.solve_turns, o, wire)
-    print(f"target 900 mH -> {n} turns, {p['layers']} layers: predict {seconds:.3f} s (median of 3); "
+    print(f"target 900 mH -> {n} turns, {p.layers} layers: build_design {seconds:.3f} s (median of 3); "
           f"turn search {solve_s:.3f} s in {runs} engine runs, against {old_runs} runs and {old_s:.3f} s "
           f"for Newton steps on sqrt(L) ({old_s / solve_s:.1f}x; same answer: {old_n == n})")
 
     for strands, turns, layers in ((4, 12_400, 200), (4, 25_000, 100), (1, 100_000, 100)):
-        seconds, _ = median_time(P.predict, order(strands, turns, layers))
+        seconds, _ = median_time(P.build_design, order(strands, turns, layers))
         work = limits.engine_work(turns, layers, strands)
         print(f"predict at the budget edge, {strands} x {turns:,} turns x {layers} layers "
               f"(work {work:,} of {limits.ENGINE_WORK:,}; {strands * turns:,} of {limits.TURNS_IN_ALL:,} "

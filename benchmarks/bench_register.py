@@ -38,10 +38,10 @@ def _fill(path: Path, n: int, prediction: dict) -> None:
 
 def main() -> int:
     from windsheet.order.document import load_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
     from windsheet.records.register import open_register_readonly
 
-    prediction = json.loads(json.dumps(predict(load_order(ROOT / "samples" / "hl-0412-bifilar-aiding.yaml")),
+    prediction = json.loads(json.dumps(build_design(load_order(ROOT / "samples" / "hl-0412-bifilar-aiding.yaml")),
                                        default=str))
     cli = [sys.executable, "-m", "windsheet.cli"]
     print(f"{'jobs':>7}  {'register (CLI)':>15}  {'list_jobs':>10}  {'per job':>9}  file")

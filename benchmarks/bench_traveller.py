@@ -49,11 +49,11 @@ def steps(order: Path) -> dict:
     """CPU time of each step of one render, in this process (imports already done). [s]"""
     from windsheet.sheets import render
     from windsheet.order.document import load_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
 
     out = {}
     t = time.process_time()
-    p = predict(load_order(order))
+    p = build_design(load_order(order))
     out["size"] = time.process_time() - t
     t = time.process_time()
     html = render.render_traveller_html(p)

@@ -16,3 +16,43 @@ def _register_in_tmp(tmp_path, monkeypatch):
 
 def sample_orders():
     return sorted(p for p in SAMPLES.glob("*.yaml") if not p.name.endswith(".measured.yaml"))
+
+
+def redesign(design, **changes):
+    """``design`` with some of its sized values changed (nested dicts merge), its derived facts made again.
+
+    For tests that need a design in a state no sample order gives (a failing check,
+    a hostile customer name); the model itself is immutable.
+    """
+    from windsheet.design.derived import complete
+    from windsheet.design.model import DesignCore
+
+    def merge(base, new):
+        if isinstance(base, dict) and isinstance(new, dict):
+            return {**base, **{k: merge(base.get(k), v) for k, v in new.items()}}
+        return new
+
+    data = design.model_dump(include=set(DesignCore.model_fields))
+    for key, value in changes.items():
+        data[key] = merge(data.get(key), value)
+    return complete(DesignCore.model_validate(data))
+
+
+_SAMPLE_DESIGNS: dict = {}
+
+
+def sample_design(stem="hl-0412-bifilar-aiding"):
+    """A sample order's design, sized once per test process (without remedies)."""
+    if stem not in _SAMPLE_DESIGNS:
+        from windsheet.design.build import build_design
+        from windsheet.order.document import load_order
+
+        _SAMPLE_DESIGNS[stem] = build_design(load_order(SAMPLES / f"{stem}.yaml"), remedies=False)
+    return _SAMPLE_DESIGNS[stem]
+
+
+def design_for_job(number, revision="A", units=(), order_hash=None, **job):
+    """The bifilar sample's design issued as another job: for register tests that need many jobs."""
+    base = sample_design()
+    new_job = base.job.model_copy(update={"number": number, "revision": revision, "units": list(units), **job})
+    return base.model_copy(update={"job": new_job, "order_hash": order_hash})

@@ -104,26 +104,26 @@ def test_single_layer_sample_at_100_kHz_through_the_prediction():
     import yaml
     from conftest import SAMPLES
     from windsheet.order.document import parse_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
 
     text = (SAMPLES / "hl-0410-single.yaml").read_text()
-    p = predict(parse_order(text.encode(), "o.yaml"), remedies=False)
-    d = p["wire"]["copper_diameter_m"]
-    t = p["duty"]["operating_temperature_C"]
+    p = build_design(parse_order(text.encode(), "o.yaml"), remedies=False)
+    d = p.wire.copper_diameter_m
+    t = p.duty.operating_temperature_C
     # IEC 60028 copper: 1/58 Ω·mm²/m at 20 °C, 0.00393 /K.
     rho = 1 / 58e6 * (1 + 0.00393 * (t - 20))
     delta = math.sqrt(2 * rho / (2 * math.pi * 100e3 * 4e-7 * math.pi))
-    pitch = p["winding"]["pitch_m"]
+    pitch = p.winding.pitch_m
     D = (math.pi / 4) ** 0.75 * d / delta * math.sqrt(d / pitch)
     # Dowell 1966 eq. 15 (m = 1) and the Bessel solution by scipy, computed here.
     dow = D * (math.sinh(2 * D) + math.sin(2 * D)) / (math.cosh(2 * D) - math.cos(2 * D))
     expected = max(dow, bessel_ratio(d / 2 / delta))
-    assert p["ac_resistance"]["ratio"] == pytest.approx(expected, rel=1e-4)   # constants as printed
-    s = p["strands"][0]
-    assert s["resistance_ac_ohm"] == pytest.approx(s["resistance_hot_ohm"] * expected, rel=1e-4)
-    assert p["terminal"]["resistance_ac_ohm"] == pytest.approx(s["resistance_ac_ohm"], rel=1e-9)
+    assert p.ac_resistance.ratio == pytest.approx(expected, rel=1e-4)   # constants as printed
+    s = p.strands[0]
+    assert s.resistance_ac_ohm == pytest.approx(s.resistance_hot_ohm * expected, rel=1e-4)
+    assert p.terminal.resistance_ac_ohm == pytest.approx(s.resistance_ac_ohm, rel=1e-9)
     # Loss at the duty current, I²·R_ac.
-    assert p["terminal"]["loss_W"] == pytest.approx(0.1 ** 2 * s["resistance_ac_ohm"], rel=1e-9)
+    assert p.terminal.loss_W == pytest.approx(0.1 ** 2 * s.resistance_ac_ohm, rel=1e-9)
 
 
 def test_kelvin_functions_by_bessels_integral_against_scipy():

@@ -16,6 +16,8 @@ from windsheet import __version__
 from windsheet.cli.app import app
 from windsheet.cli.size_cmd import hookup_words
 
+from conftest import sample_design
+
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"
 SINGLE = SAMPLES / "hl-0410-single.yaml"
@@ -123,11 +125,13 @@ def test_summary_speaks_the_trade():
 
 
 def test_hookup_words_for_every_named_form():
-    assert hookup_words({"name": "series-opposing", "joins": [["A.finish", "B.finish"]],
-                         "terminals": ["A.start", "B.start"]}) == (
+    assert hookup_words(sample_design("hl-0415-noninductive")) == (
         "series-opposing — A finish joined to B finish; terminals T1 A start, T2 B start")
-    assert hookup_words({"name": "single", "joins": [], "terminals": ["A.start", "A.finish"]}) == (
+    assert hookup_words(sample_design("hl-0410-single")) == (
         "single — no joins; terminals T1 A start, T2 A finish")
+    # Separate windings bring out every end: the summary names all four, as the traveller does.
+    assert hookup_words(sample_design("hl-0421-toroid-choke")) == (
+        "separate — no joins; terminals T1 A start, T2 A finish, T3 B start, T4 B finish")
 
 
 def _issued_register(tmp_path):

@@ -10,7 +10,7 @@ import yaml
 from windsheet.physics.fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
                                   uniform_initial_distribution)
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 
 def ladder(n, cs, cg):
@@ -75,18 +75,18 @@ duty: {voltage: 600 V peak, waveform: pulse, frequency: 10 kHz, rise_time: 100 n
 
 
 def test_100_ns_edge_on_a_single_layer_coil():
-    p = predict(parse_order(ORDER.encode(), "o.yaml"), remedies=False)
-    imp = p["impulse"]
+    p = build_design(parse_order(ORDER.encode(), "o.yaml"), remedies=False)
+    imp = p.impulse
     # α from the coil's own network: Cg over the series capacitance through its 100 turns.
-    assert imp["alpha"] == pytest.approx(math.sqrt(20e-12 / imp["series_capacitance_F"]), rel=1e-12)
+    assert imp.alpha == pytest.approx(math.sqrt(20e-12 / imp.series_capacitance_F), rel=1e-12)
     # A uniform single layer: the first turn as the closed form V0·(1 − sinh(α(1 − 1/N))/sinh α)
     # gives it (Wagner 1915), within the end turns' own departure from uniform.
-    closed = 600.0 * (1 - uniform_initial_distribution(1 / 100, imp["alpha"]))
-    assert imp["first_turn_Vpk"] == pytest.approx(closed, rel=0.05)
+    closed = 600.0 * (1 - uniform_initial_distribution(1 / 100, imp.alpha))
+    assert imp.first_turn_Vpk == pytest.approx(closed, rel=0.05)
     # Many times the even share V/N = 6 V.
-    assert imp["first_turn_Vpk"] > 10 * 6.0
-    assert p["insulation"]["worst_adjacent_Vpk"] >= imp["first_turn_Vpk"]
-    assert any("fast edge" in r for r in p["insulation"]["reasons"])
+    assert imp.first_turn_Vpk > 10 * 6.0
+    assert p.insulation.worst_adjacent_Vpk >= imp.first_turn_Vpk
+    assert any("fast edge" in r for r in p.insulation.reasons)
 
 
 def test_bifilar_series_edge_uses_the_joint():
@@ -94,15 +94,15 @@ def test_bifilar_series_edge_uses_the_joint():
     doc["winding"]["strands"] = 2
     doc["winding"]["turns"] = 40
     doc["hookup"] = "series-aiding"
-    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
-    imp = p["impulse"]
+    p = build_design(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    imp = p.impulse
     # Series-aiding bifilar: A's turn k lies beside B's turn k, half the winding (V/2) apart at
     # steady state; under the edge the line-end pair (A1 at the full edge, B1 held near its joint's
     # potential) takes more than that steady V/2.
-    assert imp["worst_pair_Vpk"] > 0.5 * 600.0
-    assert "turn 1" in imp["worst_pair_where"]
-    assert imp["first_turn_Vpk"] > 10 * imp["first_turn_uniform_Vpk"]
-    assert imp["first_turn_uniform_Vpk"] == pytest.approx(600.0 / 80)
+    assert imp.worst_pair_Vpk > 0.5 * 600.0
+    assert "turn 1" in imp.worst_pair_where
+    assert imp.first_turn_Vpk > 10 * imp.first_turn_uniform_Vpk
+    assert imp.first_turn_uniform_Vpk == pytest.approx(600.0 / 80)
 
 
 def test_series_capacitance_counts_charge_through_joints():

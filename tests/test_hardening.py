@@ -22,7 +22,7 @@ from windsheet.cli.app import app
 from windsheet.common.errors import InputError
 from windsheet.qc.measured import measured_from_dict
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 from conftest import SAMPLES, sample_orders
 
@@ -359,7 +359,7 @@ def test_field_name_with_a_newline_stays_one_line(scratch):
 
 # ---------------------------------------------------------------- physical sanity limits
 def test_more_turns_than_fit_says_by_how_much(scratch):
-    overall_mm = predict(parse_order(yaml.safe_dump(BIFILAR).encode()))["wire"]["overall_diameter_m"] * 1e3
+    overall_mm = build_design(parse_order(yaml.safe_dump(BIFILAR).encode())).wire.overall_diameter_m * 1e3
     # IEC 60317-0-1 (seen on a maker's table): 0.50 mm grade 2 is near 0.57 mm overall.
     assert overall_mm == pytest.approx(0.57, abs=0.01)
     err = _refusal(scratch, _order(BIFILAR, winding={"turns": 100}))
@@ -446,8 +446,8 @@ def test_voltage_a_heavier_grade_would_hold_says_which(scratch):
 
 def test_every_sample_still_sizes_without_refusal():
     for p in sample_orders():
-        pred = predict(parse_order(p.read_bytes(), str(p)))
-        assert not any(w.startswith("ERROR") for w in pred["warnings"]), p.name
+        pred = build_design(parse_order(p.read_bytes(), str(p)))
+        assert not any(w.startswith("ERROR") for w in pred.warnings), p.name
 
 
 def test_separate_windings_warn_of_their_own_resonance_only(scratch):

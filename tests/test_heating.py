@@ -8,7 +8,7 @@ import yaml
 
 from windsheet.physics import heating
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 from conftest import SAMPLES
 
@@ -64,45 +64,45 @@ def _multilayer(**duty):
 def test_prediction_uses_the_computed_temperature():
     doc = _multilayer()
     doc["duty"].pop("operating_temperature", None)
-    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
-    th = p["thermal"]
-    assert p["duty"]["operating_temperature_C"] == pytest.approx(th["mean_C"])
-    s = p["strands"][0]
+    p = build_design(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    th = p.thermal
+    assert p.duty.operating_temperature_C == pytest.approx(th.mean_C)
+    s = p.strands[0]
     # IEC 60028: R(T) = R20·(1 + 0.00393·(T − 20)).
-    assert s["resistance_hot_ohm"] == pytest.approx(s["resistance_20C_ohm"] * (1 + 0.00393 * (th["mean_C"] - 20)),
+    assert s.resistance_hot_ohm == pytest.approx(s.resistance_20C_ohm * (1 + 0.00393 * (th.mean_C - 20)),
                                                     rel=1e-3)
     # The loss the balance dissipates is I²R at that temperature (DC duty: AC ratio 1).
-    assert th["loss_W"] == pytest.approx(p["terminal"]["loss_W"], rel=1e-3)
-    assert th["surface_C"] < th["mean_C"] <= th["hot_spot_C"]
-    assert th["verdict"] in ("pass", "marginal", "fail")
-    assert th["current_density_A_per_mm2"] == pytest.approx(
-        s["current_A"] / (math.pi * (p["wire"]["copper_diameter_m"] * 1e3) ** 2 / 4))
+    assert th.loss_W == pytest.approx(p.terminal.loss_W, rel=1e-3)
+    assert th.surface_C < th.mean_C <= th.hot_spot_C
+    assert th.verdict in ("pass", "marginal", "fail")
+    assert th.current_density_A_per_mm2 == pytest.approx(
+        s.current_A / (math.pi * (p.wire.copper_diameter_m * 1e3) ** 2 / 4))
 
 
 def test_order_temperature_below_the_computed_one_is_warned():
-    p = predict(parse_order(yaml.safe_dump(_multilayer(operating_temperature="40 degC")).encode(), "o.yaml"),
+    p = build_design(parse_order(yaml.safe_dump(_multilayer(operating_temperature="40 degC")).encode(), "o.yaml"),
                 remedies=False)
-    assert p["duty"]["operating_temperature_C"] == 40.0
-    assert any("below the" in w and "computed to run at" in w for w in p["warnings"])
+    assert p.duty.operating_temperature_C == 40.0
+    assert any("below the" in w and "computed to run at" in w for w in p.warnings)
 
 
 def test_overloaded_winding_fails_its_class_and_warns():
-    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
-    th = p["thermal"]
-    assert th["hot_spot_C"] > p["wire"]["thermal_class_C"]
-    assert th["verdict"] == "fail" and p["cautions"]["hot_surface"]
-    assert any("thermal class" in w for w in p["warnings"])
+    p = build_design(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
+    th = p.thermal
+    assert th.hot_spot_C > p.wire.thermal_class_C
+    assert th.verdict == "fail" and p.cautions.hot_surface
+    assert any("thermal class" in w for w in p.warnings)
 
 
 def test_traveller_shows_heating_edge_and_hot_surface():
     from windsheet.sheets.render import render_traveller_html
 
     doc = _multilayer(current="2.5 A", rise_time="100 ns")
-    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    p = build_design(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
     html = render_traveller_html(p, forced=True)
-    th = p["thermal"]
+    th = p.thermal
     assert "On the duty: AC resistance, heating" in html
-    assert f"{th['current_density_A_per_mm2']:.2f} A/mm²" in html and "common practice" in html
+    assert f"{th.current_density_A_per_mm2:.2f} A/mm²" in html and "common practice" in html
     assert 'data-thermal="fail"' in html
     assert "Hot surface" in html
     assert "First turn under the edge" in html and "assumed: give duty.ground_capacitance" in html
@@ -111,10 +111,10 @@ def test_traveller_shows_heating_edge_and_hot_surface():
 def test_summary_names_heating_and_the_edge():
     from windsheet.cli.size_cmd import summary_lines
 
-    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A", rise_time="100 ns")).encode(), "o.yaml"),
+    p = build_design(parse_order(yaml.safe_dump(_multilayer(current="2.5 A", rise_time="100 ns")).encode(), "o.yaml"),
                 remedies=False)
     text = "\n".join(summary_lines(p))
-    assert f"hot spot {p['thermal']['hot_spot_C']:.0f} °C (class 155)" in text and "Heating         FAIL" in text
+    assert f"hot spot {p.thermal.hot_spot_C:.0f} °C (class 155)" in text and "Heating         FAIL" in text
     assert "Fast edge" in text and "first turn" in text
 
 
@@ -122,8 +122,8 @@ def test_thermal_fail_is_not_issued_unless_forced():
     from windsheet.common.errors import InputError
     from windsheet.sheets.render import check_issuable
 
-    p = predict(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
-    assert p["insulation"]["verdict"] != "fail" and p["thermal"]["verdict"] == "fail"
+    p = build_design(parse_order(yaml.safe_dump(_multilayer(current="2.5 A")).encode(), "o.yaml"), remedies=False)
+    assert p.insulation.verdict != "fail" and p.thermal.verdict == "fail"
     with pytest.raises(InputError, match="thermal check fails"):
         check_issuable(p)
     check_issuable(p, force=True)
@@ -133,6 +133,6 @@ def test_voltage_driven_coil_draws_less_as_it_warms():
     doc = _multilayer(voltage="6 V dc")
     doc["duty"].pop("current", None)
     doc["duty"].pop("operating_temperature", None)
-    p = predict(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    p = build_design(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
     # Ohm's law at the balance's own temperature: P = V²/R_hot, self-consistent.
-    assert p["thermal"]["loss_W"] == pytest.approx(6.0 ** 2 / p["terminal"]["resistance_hot_ohm"], rel=1e-3)
+    assert p.thermal.loss_W == pytest.approx(6.0 ** 2 / p.terminal.resistance_hot_ohm, rel=1e-3)

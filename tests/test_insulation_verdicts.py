@@ -9,7 +9,7 @@ from hypothesis import strategies as st
 
 from windsheet.common.errors import InputError
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 from windsheet.design.remedies import apply
 
 from conftest import sample_orders
@@ -32,7 +32,7 @@ LAYERED = {"job": {"number": "HX-9002", "part": "Layer test"},
 
 
 def run(doc, **kw):
-    return predict(parse_order(yaml.safe_dump(doc, allow_unicode=True).encode()), **kw)
+    return build_design(parse_order(yaml.safe_dump(doc, allow_unicode=True).encode()), **kw)
 
 
 def changed(doc, **changes):
@@ -41,17 +41,17 @@ def changed(doc, **changes):
 
 def test_two_layer_bifilar_worst_is_nearly_the_whole_voltage_between_layers():
     p = run(BIFILAR_2L)
-    wa = p["worst_adjacent"]
+    wa = p.worst_adjacent
     # The nested upper layer's last turn of B lies in the groove over A's first turns: derived, ~V apart.
-    assert wa["voltage_Vpk"] >= 0.9 * 100 * 2 ** 0.5
-    assert wa["kind"] == "layer" and wa["layers"] == [1, 2] and sorted(wa["strands"]) == ["A", "B"]
-    assert set(wa) >= {"voltage_Vpk", "where", "strands", "turns", "layer", "layers", "kind"}
+    assert wa.voltage_Vpk >= 0.9 * 100 * 2 ** 0.5
+    assert wa.kind == "layer" and wa.layers == [1, 2] and sorted(wa.strands) == ["A", "B"]
+    assert set(p.as_json()["worst_adjacent"]) >= {"voltage_Vpk", "where", "strands", "turns", "layer", "layers", "kind"}
 
 
 @pytest.mark.parametrize("size", ["0.315 mm", "0.50 mm", "1.0 mm"])
 def test_inception_rises_with_grade(size):
     doc = changed(BIFILAR_2L, **{"wire": {"size": size}, "winding.layers": 1, "form.traverse": "200 mm"})
-    pdiv = [run(changed(doc, **{"wire.grade": g}))["insulation"]["pdiv_touching_Vpk"] for g in (1, 2, 3)]
+    pdiv = [run(changed(doc, **{"wire.grade": g})).insulation.pdiv_touching_Vpk for g in (1, 2, 3)]
     # IEC 60317-0-1: heavier grades have thicker films, which take more of the voltage in series with the air.
     assert pdiv[0] < pdiv[1] < pdiv[2]
 
@@ -61,50 +61,51 @@ def test_spacing_the_strands_raises_the_inception_of_the_pair_at_risk():
     # whatever the pitch (the default route, and the pair at risk once the strands are spaced).
     doc = changed(BIFILAR_2L, **{"winding.layers": 1, "form.traverse": "200 mm", "duty.voltage": "700 V",
                                  "winding.leads": {"joint": "end-flange"}})
-    close = run(doc)["insulation"]
-    spaced = run(changed(doc, **{"winding.pitch": "2.8 mm", "winding.strand_spacing": "even"}))["insulation"]
+    close = run(doc).insulation
+    spaced = run(changed(doc, **{"winding.pitch": "2.8 mm", "winding.strand_spacing": "even"})).insulation
     # Paschen: 0.9 mm of air between A and B instead of touching enamel.
-    assert spaced["pdiv_Vpk"] > 1.5 * close["pdiv_Vpk"]
-    assert close["verdict"] == "fail" and spaced["verdict"] == "pass"
+    assert spaced.pdiv_Vpk > 1.5 * close.pdiv_Vpk
+    assert close.verdict == "fail" and spaced.verdict == "pass"
     # Spacing the slots alone leaves A and B touching in each slot: the pair at risk is unchanged.
-    together = run(changed(doc, **{"winding.pitch": "2.8 mm"}))["insulation"]
-    assert together["pdiv_Vpk"] == pytest.approx(close["pdiv_Vpk"], rel=1e-9)
+    together = run(changed(doc, **{"winding.pitch": "2.8 mm"})).insulation
+    assert together.pdiv_Vpk == pytest.approx(close.pdiv_Vpk, rel=1e-9)
     back = run(changed(doc, **{"winding.pitch": "2.8 mm", "winding.strand_spacing": "even",
-                               "winding.leads": {"joint": "back-over-winding"}}))["insulation"]
-    assert back["pdiv_Vpk"] == pytest.approx(close["pdiv_Vpk"], rel=1e-9) and "lead" in back["pd_pair"]["where"]
+                               "winding.leads": {"joint": "back-over-winding"}})).insulation
+    assert back.pdiv_Vpk == pytest.approx(close.pdiv_Vpk, rel=1e-9) and "lead" in back.pd_pair.where
 
 
 def test_ten_kilovolt_tape_removes_layer_to_layer_partial_discharge():
-    bare = run(LAYERED)["insulation"]
-    assert bare["verdict"] == "fail" and "layer" in bare["pd_pair"]["where"]
+    bare = run(LAYERED).insulation
+    assert bare.verdict == "fail" and "layer" in bare.pd_pair.where
     taped = run(changed(LAYERED, **{"winding.layer_tape": {"thickness": "0.5 mm", "rating": "10 kV"}}))
-    ins = taped["insulation"]
+    ins = taped.insulation
     # Series dielectrics: 0.5 mm of tape between the layers lifts their inception far above the return.
-    assert ins["verdict"] == "pass", ins["reasons"]
-    assert ins["pd_pair"]["voltage_Vpk"] * ins["pd_safety_factor"] < ins["pdiv_hot_Vpk"]
-    assert not any("layer" in r and "partial-discharge" in r for r in ins["reasons"])
+    assert ins.verdict == "pass", ins.reasons
+    assert ins.pd_pair.voltage_Vpk * ins.pd_safety_factor < ins.pdiv_hot_Vpk
+    assert not any("layer" in r and "partial-discharge" in r for r in ins.reasons)
 
 
 def test_a_lead_up_the_flange_of_a_multilayer_coil_is_in_the_stress_map():
     p = run(changed(LAYERED, **{"winding.leads": {"start": "start-flange"}, "duty.voltage": "100 V"}))
-    start = next(x for x in p["leads"] if x["lead"] == "A.start")
+    start = next(x for x in p.leads if x.lead == "A.start")
     # Derived: the top layer of an even count ends at the start flange, next to the 0 V start lead.
-    assert start["worst_Vpk"] == pytest.approx(100 * 2 ** 0.5, rel=0.02)
-    assert p["worst_adjacent"]["kind"] == "lead"
+    assert start.worst_Vpk == pytest.approx(100 * 2 ** 0.5, rel=0.02)
+    assert p.worst_adjacent.kind == "lead"
 
 
 def test_measured_pdiv_wins():
-    p = run(changed(BIFILAR_2L, **{"insulation": {"pdiv": "900 V"}}))["insulation"]
-    assert p["pdiv_basis"] == "measured" and p["pdiv_touching_Vpk"] == pytest.approx(900.0)
+    p = run(changed(BIFILAR_2L, **{"insulation": {"pdiv": "900 V"}})).insulation
+    assert p.pdiv_basis == "measured" and p.pdiv_touching_Vpk == pytest.approx(900.0)
 
 
 def test_json_carries_the_new_keys():
     p = run(changed(BIFILAR_2L, **{"duty.voltage": "1 kV"}))
-    ins = p["insulation"]
+    out = p.as_json()
+    ins = out["insulation"]
     for key in ("pdiv_Vpk", "pdiv_hot_Vpk", "remedies", "pd_pair", "pdiv_basis"):
         assert key in ins
-    assert isinstance(ins["remedies"], list) and isinstance(p["leads"], list)
-    assert {"lead", "route", "worst_Vpk", "where"} <= set(p["leads"][0])
+    assert isinstance(ins["remedies"], list) and isinstance(out["leads"], list)
+    assert {"lead", "route", "worst_Vpk", "where"} <= set(out["leads"][0])
 
 
 def test_nested_layers_refused_with_tape_at_their_field():
@@ -117,13 +118,13 @@ def test_nested_layers_refused_with_tape_at_their_field():
 
 def check_remedies(doc):
     p = run(doc)
-    for r in p["insulation"]["remedies"]:
-        q = run(apply(copy.deepcopy(doc), r["set"]), remedies=False)
+    for r in p.insulation.remedies:
+        q = run(apply(copy.deepcopy(doc), r.set), remedies=False)
         # The claim is windsheet's own check on the changed order: it must hold exactly.
-        assert q["insulation"]["verdict"] == r["verdict"], r
-        assert q["worst_adjacent"]["voltage_Vpk"] == pytest.approx(r["worst_Vpk"], rel=1e-9)
-        assert q["insulation"]["pdiv_Vpk"] == (pytest.approx(r["pdiv_Vpk"], rel=1e-9)
-                                               if r["pdiv_Vpk"] is not None else None)
+        assert q.insulation.verdict == r.verdict, r
+        assert q.worst_adjacent.voltage_Vpk == pytest.approx(r.worst_Vpk, rel=1e-9)
+        assert q.insulation.pdiv_Vpk == (pytest.approx(r.pdiv_Vpk, rel=1e-9)
+                                               if r.pdiv_Vpk is not None else None)
     return p
 
 
@@ -137,7 +138,7 @@ def test_sample_remedies_hold(path):
     doc["duty"]["frequency"] = "50 Hz"
     doc["test"] = {"frequency": "1 kHz"}
     p = check_remedies(doc)
-    assert p["insulation"]["verdict"] in ("fail", "marginal", "pass")
+    assert p.insulation.verdict in ("fail", "marginal", "pass")
 
 
 @settings(max_examples=6, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -156,12 +157,12 @@ def test_generated_order_remedies_hold(volts, grade, layers, dc, hookup):
 def test_traveller_shows_the_lead_routes():
     from windsheet.sheets import render
     from conftest import SAMPLES
-    p = predict(parse_order((SAMPLES / "hl-0412-bifilar-aiding.yaml").read_bytes()))
+    p = build_design(parse_order((SAMPLES / "hl-0412-bifilar-aiding.yaml").read_bytes()))
     ctx = render.traveller_context(p)
     svg = str(ctx["wiring_svg"])
     # Every lead's route is written under the wiring diagram and in the procedure.
-    for lead in p["leads"]:
-        assert f'data-route="{lead["lead"]}"' in svg
+    for lead in p.leads:
+        assert f'data-route="{lead.lead}"' in svg
     joint = next(s for s in ctx["steps"] if s["title"].startswith("Make the joint"))
     assert "laid back over the winding" in joint["detail"]
     assert any("up the start flange" in s["detail"] for s in ctx["steps"])

@@ -10,7 +10,7 @@ from windsheet.common.errors import InputError
 from windsheet.physics.inductance import strand_matrix, strand_matrix_bruteforce
 from windsheet.physics.layout import cylinder_layout
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 from conftest import SAMPLES
 
@@ -27,7 +27,7 @@ def order(strands, turns, layers, slots, **winding):
 
 
 def run(doc):
-    return predict(parse_order(yaml.safe_dump(doc, allow_unicode=True).encode()))
+    return build_design(parse_order(yaml.safe_dump(doc, allow_unicode=True).encode()))
 
 
 def refusal(doc):
@@ -53,7 +53,7 @@ def test_engine_work_over_budget_is_refused_with_what_to_change():
 
 def test_at_the_budget_is_sized_and_one_over_is_refused(monkeypatch):
     monkeypatch.setattr(limits, "ENGINE_WORK", 2 * 30 * 3)
-    assert run(order(2, 30, 3, 10))["winding"]["turns_per_strand"] == 30
+    assert run(order(2, 30, 3, 10)).winding.turns_per_strand == 30
     monkeypatch.setattr(limits, "ENGINE_WORK", 2 * 30 * 3 - 1)
     assert "of work" in refusal(order(2, 30, 3, 10)).message
 
@@ -61,8 +61,8 @@ def test_at_the_budget_is_sized_and_one_over_is_refused(monkeypatch):
 def test_the_probes_800_turn_200_layer_order_is_sized():
     # 4 strands x 200 turns x 200 layers: 160,000 of work, well inside the budget.
     p = run(order(4, 200, 200, 1))
-    assert p["layers"] == 200
-    assert p["terminal"]["inductance_H"] > 0
+    assert p.layers == 200
+    assert p.terminal.inductance_H > 0
 
 
 def test_engine_agrees_with_the_double_sum_on_a_200_layer_coil():
@@ -83,7 +83,7 @@ def test_target_needing_more_than_the_budget_is_refused_at_the_target(monkeypatc
     # A target within the budget on the same form is still met.
     ok = copy.deepcopy(doc)
     ok["winding"]["target_inductance"] = "200 uH"
-    assert run(ok)["winding"]["target"]["error"] == pytest.approx(0, abs=0.05)
+    assert run(ok).winding.target.error == pytest.approx(0, abs=0.05)
 
 
 def test_a_traveller_beyond_the_sheet_budget_is_refused_and_nothing_is_written(tmp_path):

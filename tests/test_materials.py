@@ -14,7 +14,7 @@ from typer.testing import CliRunner
 from windsheet.cli.app import app
 from windsheet.records.materials import bill_csv, bill_of_materials, load_reels, wire_group
 from windsheet.order.document import load_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 ROOT = Path(__file__).resolve().parents[1]
 ORDERS = [ROOT / "samples" / n for n in ("hl-0410-single.yaml", "hl-0412-bifilar-aiding.yaml",
@@ -24,7 +24,7 @@ runner = CliRunner()
 
 @pytest.fixture(scope="module")
 def predictions():
-    return [predict(load_order(f), remedies=False) for f in ORDERS]
+    return [build_design(load_order(f), remedies=False) for f in ORDERS]
 
 
 def test_totals_equal_the_sum_over_jobs_of_quantity_strands_and_wire_length(predictions):
@@ -32,14 +32,14 @@ def test_totals_equal_the_sum_over_jobs_of_quantity_strands_and_wire_length(pred
     # Independent sum from the predictions: quantity × Σ strands wire length × (1 + scrap allowance).
     want_len, want_mass = defaultdict(float), defaultdict(float)
     for p in predictions:
-        q = p["job"]["quantity"]
-        scrap = p["winding"]["scrap_allowance"]
-        d = p["wire"]["copper_diameter_m"]
-        for s in p["strands"]:
-            length = q * s["wire_length_m"] * (1 + scrap)
-            want_len[wire_group(p)] += length
+        q = p.job.quantity
+        scrap = p.winding.scrap_allowance
+        d = p.wire.copper_diameter_m
+        for s in p.strands:
+            length = q * s.wire_length_m * (1 + scrap)
+            want_len[wire_group(p.wire)] += length
             # IEC 60028: annealed copper 8.89 g/cm³ (all four samples are copper).
-            want_mass[wire_group(p)] += length * math.pi * d * d / 4 * 8890.0
+            want_mass[wire_group(p.wire)] += length * math.pi * d * d / 4 * 8890.0
     got = {w["group"]: w for w in bill["total"]["wire"]}
     assert set(got) == set(want_len)
     for g in want_len:
@@ -48,18 +48,18 @@ def test_totals_equal_the_sum_over_jobs_of_quantity_strands_and_wire_length(pred
     # Two samples share 0.50 mm grade 2 class 155 wire: grouped into one stock line.
     assert len(got) < len(predictions)
     # Forms and labels: one per unit ordered.
-    assert sum(f["count"] for f in bill["total"]["forms"]) == sum(p["job"]["quantity"] for p in predictions)
-    assert bill["total"]["labels"] == sum(p["job"]["quantity"] for p in predictions)
+    assert sum(f["count"] for f in bill["total"]["forms"]) == sum(p.job.quantity for p in predictions)
+    assert bill["total"]["labels"] == sum(p.job.quantity for p in predictions)
 
 
 def test_tape_and_sleeving_follow_the_winding(predictions):
     bill = bill_of_materials(predictions)
     multilayer = next(j for j in bill["jobs"] if j["job"] == "HL-0418")
-    p = next(p for p in predictions if p["job"]["number"] == "HL-0418")
-    L, q = p["layers"], p["job"]["quantity"]
+    p = next(p for p in predictions if p.job.number == "HL-0418")
+    L, q = p.layers, p.job.quantity
     assert multilayer["tape"]["wraps"] == q * (L - 1)
     # Each wrap is π × (form diameter + 2 × its height) plus 10 % overlap; heights k·build/L.
-    d, b = p["form"]["diameter_m"], p["fit"]["build_m"]
+    d, b = p.form.diameter_m, p.fit.build_m
     want = q * sum(math.pi * (d + 2 * k * b / L) * 1.1 for k in range(1, L))
     assert multilayer["tape"]["length_m"] == pytest.approx(want, rel=1e-12)
     single = next(j for j in bill["jobs"] if j["job"] == "HL-0410")
@@ -90,7 +90,7 @@ def test_cli_writes_csv_json_and_pdf(tmp_path, predictions):
     total_m = sum(float(r["quantity"]) for r in rows if r["scope"] == "TOTAL" and r["category"] == "wire"
                   and r["unit"] == "m")
     # The CSV's wire total (rounded to the millimetre) against the predictions' own sum.
-    want = sum(p["job"]["quantity"] * s["wire_length_with_scrap_m"] for p in predictions for s in p["strands"])
+    want = sum(p.job.quantity * s.wire_length_with_scrap_m for p in predictions for s in p.strands)
     assert total_m == pytest.approx(want, abs=5e-3)
     doc = json.loads((tmp_path / "bom.json").read_text())
     assert doc["schema"] == "windsheet.materials/1" and len(doc["jobs"]) == 4

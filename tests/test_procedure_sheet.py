@@ -9,7 +9,7 @@ import pytest
 from windsheet.sheets import render
 from windsheet.sheets.diagrams import cross_section_svg
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 BASE = """\
 job: {{number: HL-0450, part: "Coil", customer: "Invented Ltd", quantity: 1, revision: A}}
@@ -24,14 +24,14 @@ CYL = "{kind: cylinder, diameter: 20 mm, traverse: 30 mm}"
 
 
 def sized(form=CYL, turns=80, extra=""):
-    return predict(parse_order(BASE.format(form=form, turns=turns, extra=extra).encode()))
+    return build_design(parse_order(BASE.format(form=form, turns=turns, extra=extra).encode()))
 
 
 def test_partial_last_layer_is_drawn_partial_and_named():
     p = sized(turns=80)
-    full, last = p["winding"]["turns_in_layer"][0], p["winding"]["turns_in_layer"][-1]
+    full, last = p.winding.turns_in_layer[0], p.winding.turns_in_layer[-1]
     assert last < full
-    root = ET.fromstring(cross_section_svg(p["cross_section"]))
+    root = ET.fromstring(cross_section_svg(p.cross_section.model_dump()))
     texts = [t.text for t in root.iter() if t.get("data-partial")]
     assert texts == [f"{last} of {full} turns, partial"]
     circles = {}
@@ -39,13 +39,13 @@ def test_partial_last_layer_is_drawn_partial_and_named():
         if g.get("data-layer"):
             circles[g.get("data-layer")] = sum(1 for c in g if c.get("data-slot") is not None)
     # Fewer slots are drawn for the partial layer than for a full one.
-    assert circles[str(p["layers"])] < circles["1"]
+    assert circles[str(p.layers)] < circles["1"]
 
 
 def test_start_position_and_direction_are_stated():
     p = sized(turns=20, extra=", direction: anticlockwise")
     steps = {s["title"]: s["detail"] for s in render.procedure_steps(p)}
-    used, room = p["fit"]["traverse_used_m"], p["fit"]["traverse_m"]
+    used, room = p.fit.traverse_used_m, p.fit.traverse_m
     assert "start flange" in steps["Anchor and label the start"]
     assert render.length(room - used) in steps["Anchor and label the start"]
     assert "anticlockwise seen from the start end" in steps["Wind"]
@@ -54,9 +54,9 @@ def test_start_position_and_direction_are_stated():
 def test_bobbin_gets_a_core_assembly_step_with_the_accept_band():
     p = sized(form="{kind: bobbin, al: 250 nH, width: 12 mm, height: 5 mm, diameter: 10 mm}", turns=50)
     step = [s for s in render.procedure_steps(p) if s["title"] == "Assemble and gap the core"][0]
-    acc = p["terminal"]["accept"]
-    assert render.henry(acc["inductance_min_H"]) in step["detail"]
-    assert render.henry(acc["inductance_max_H"]) in step["detail"]
+    acc = p.terminal.accept
+    assert render.henry(acc.inductance_min_H) in step["detail"]
+    assert render.henry(acc.inductance_max_H) in step["detail"]
 
 
 def test_voltage_picture_shades_by_potential_and_marks_the_worst_pair():
@@ -65,10 +65,10 @@ def test_voltage_picture_shades_by_potential_and_marks_the_worst_pair():
     from windsheet.sheets.diagrams import potential_grey
     from windsheet.order.document import load_order
 
-    p = predict(load_order(Path(__file__).resolve().parent.parent / "samples" / "hl-0412-bifilar-aiding.yaml"))
-    root = ET.fromstring(cross_section_svg(p["cross_section"], shade=True))
+    p = build_design(load_order(Path(__file__).resolve().parent.parent / "samples" / "hl-0412-bifilar-aiding.yaml"))
+    root = ET.fromstring(cross_section_svg(p.cross_section.model_dump(), shade=True))
     circles = [c for c in root.iter() if c.get("data-potential")]
-    vmax = p["cross_section"]["potential_max_Vpk"]
+    vmax = p.cross_section.potential_max_Vpk
     for c in circles:
         v = float(c.get("data-potential"))
         assert c.get("fill") == potential_grey(v / vmax)
@@ -76,11 +76,11 @@ def test_voltage_picture_shades_by_potential_and_marks_the_worst_pair():
     greys = sorted((float(c.get("data-potential")), int(c.get("fill")[1:3], 16)) for c in circles)
     assert all(a[1] >= b[1] for a, b in zip(greys, greys[1:]))
     worst = [c for c in circles if c.get("data-worst")]
-    wa = p["worst_adjacent"]
-    assert {c.get("data-strand") for c in worst} == set(wa["strands"])
+    wa = p.worst_adjacent
+    assert {c.get("data-strand") for c in worst} == set(wa.strands)
     # The two marked turns are as far apart in potential as the worst neighbouring voltage.
     vs = sorted(float(c.get("data-potential")) for c in worst)
-    assert vs[1] - vs[0] == pytest.approx(wa["voltage_Vpk"], rel=1e-3)
+    assert vs[1] - vs[0] == pytest.approx(wa.voltage_Vpk, rel=1e-3)
     assert [el for el in root.iter() if el.get("data-scale") == "potential"]
     assert 'data-figure="voltage"' in render.render_traveller_html(p)
 
@@ -94,16 +94,16 @@ BOBBIN = ("{kind: bobbin, al: 250 nH, width: 15 mm, height: 5 mm, mean_turn_leng
 def test_margin_tape_and_start_offset_take_room_off_the_traverse():
     # Independent count: close-wound 0.5 mm grade-2 wire, one strand; slots = floor((width - d) / d) + 1.
     plain = sized(turns=20)
-    d = plain["wire"]["overall_diameter_m"]
-    assert plain["fit"]["slots_per_layer"] == int((0.030 - d) / d + 1e-9) + 1
+    d = plain.wire.overall_diameter_m
+    assert plain.fit.slots_per_layer == int((0.030 - d) / d + 1e-9) + 1
     p = sized(form="{kind: cylinder, diameter: 20 mm, traverse: 30 mm, margin_tape: 3 mm}", turns=20,
               extra=", start: {from: start-end, offset: 2 mm}")
     usable = 0.030 - 2 * 0.003 - 0.002
-    assert p["fit"]["slots_per_layer"] == int((usable - d) / d + 1e-9) + 1
-    place = p["fit"]["placement"]
-    assert place["first_turn_m"] == pytest.approx(0.005)
+    assert p.fit.slots_per_layer == int((usable - d) / d + 1e-9) + 1
+    place = p.fit.placement
+    assert place.first_turn_m == pytest.approx(0.005)
     # The three stretches of the traverse add back up to it.
-    assert 2 * place["margin_m"] + place["bare_start_m"] + p["fit"]["traverse_used_m"] + place["bare_finish_m"] \
+    assert 2 * place.margin_m + place.bare_start_m + p.fit.traverse_used_m + place.bare_finish_m \
         == pytest.approx(0.030)
     steps = {s["title"]: s for s in render.procedure_steps(p)}
     assert "Lay the margin tape" in steps
@@ -112,10 +112,10 @@ def test_margin_tape_and_start_offset_take_room_off_the_traverse():
 
 
 def test_centred_and_finish_end_placements():
-    centre = sized(turns=20, extra=", start: centre")["fit"]["placement"]
-    assert centre["bare_start_m"] == pytest.approx(centre["bare_finish_m"])
-    finish = sized(turns=20, extra=", start: {from: Finish-End, offset: 1 mm}")["fit"]["placement"]
-    assert finish["bare_finish_m"] == pytest.approx(0.001)
+    centre = sized(turns=20, extra=", start: centre").fit.placement
+    assert centre.bare_start_m == pytest.approx(centre.bare_finish_m)
+    finish = sized(turns=20, extra=", start: {from: Finish-End, offset: 1 mm}").fit.placement
+    assert finish.bare_finish_m == pytest.approx(0.001)
 
 
 @pytest.mark.parametrize("extra, form, field", [
@@ -142,29 +142,29 @@ def test_bobbin_core_gap_is_stated_and_the_core_is_fitted_before_the_hipot():
     hipot = [t for t in titles if t.startswith("Hipot")]
     if hipot:  # the hipot tests winding to core, so the core must be on
         assert titles.index("Assemble and gap the core") < titles.index(hipot[0])
-    assert ("Core gap", render.length(0.0003)) in render.form_rows(p["form"])
+    assert ("Core gap", render.length(0.0003)) in render.form_rows(p.form)
 
 
 BIFILAR = BASE.replace("hookup: single", "hookup: series-aiding\nterminations: {terms}")
 
 
 def bifilar(terms):
-    return predict(parse_order(BIFILAR.format(form=BOBBIN, turns=35, extra=", strands: 2", terms=terms).encode()))
+    return build_design(parse_order(BIFILAR.format(form=BOBBIN, turns=35, extra=", strands: 2", terms=terms).encode()))
 
 
 def test_terminations_reach_the_diagram_and_the_procedure():
     p = bifilar("{A.start: 1, a.finish: 2, B.start: 2, B.finish: 4}")
-    assert [(t["pin"], t["ends"]) for t in p["terminations"]] == [
+    assert [(t.pin, t.ends) for t in p.terminations] == [
         ("1", ["A.start"]), ("2", ["A.finish", "B.start"]), ("4", ["B.finish"])]
-    assert len({t["node"] for t in p["terminations"]}) == 3  # three nodes, one pin each
+    assert len({t.node for t in p.terminations}) == 3  # three nodes, one pin each
     steps = {s["title"]: s for s in render.procedure_steps(p)}
     assert steps["Terminate on the pins"]["record"] == ["pin 1", "pin 2", "pin 4"]
     assert "pin 4 = B.finish (T2)" in steps["Terminate on the pins"]["detail"]
     assert steps["Make the joint A.finish + B.start"]["detail"].startswith("Made on pin 2")
     from windsheet.sheets.diagrams import wiring_svg
-    from windsheet.sheets.traveller_sheet import pins_of_ends
+    from windsheet.sheets.wiring_words import pins_of_ends
 
-    root = ET.fromstring(wiring_svg(p["hookup"], ["A", "B"], pins=pins_of_ends(p)))
+    root = ET.fromstring(wiring_svg(p.hookup.model_dump(), ["A", "B"], pins=pins_of_ends(p)))
     pins = {el.get("data-pin") for el in root.iter() if el.get("data-pin")}
     assert pins == {"1", "2", "4"}
 
@@ -175,11 +175,11 @@ def test_a_joint_lead_on_a_pin_is_routed_to_that_pin():
     steps = {s["title"]: s for s in render.procedure_steps(p)}
     joint = steps["Make the joint A.finish + B.start"]["detail"]
     assert "to pin 2" in joint and "start end" not in joint
-    from windsheet.sheets.traveller_sheet import lead_notes
+    from windsheet.sheets.wiring_words import lead_notes
 
     assert "start end" not in dict(lead_notes(p))["A.finish"]
     # Without pins the joint is made in the winding, at the start end.
-    loose = predict(parse_order(BIFILAR.replace("terminations: {terms}\n", "").format(
+    loose = build_design(parse_order(BIFILAR.replace("terminations: {terms}\n", "").format(
         form=BOBBIN, turns=35, extra=", strands: 2").encode()))
     steps = {s["title"]: s for s in render.procedure_steps(loose)}
     assert "joint made at the start end" in steps["Make the joint A.finish + B.start"]["detail"]
@@ -189,7 +189,7 @@ def test_a_node_spread_over_two_pins_is_linked_for_the_bench():
     # A joint whose ends sit on two pins is open until the board joins them (common practice
     # on PCB-mount parts): the operator links the pins for every bench test.
     p = bifilar("{A.start: 1, A.finish: 2, B.start: 3, B.finish: 4}")
-    nodes = {t["pin"]: t["node"] for t in p["terminations"]}
+    nodes = {t.pin: t.node for t in p.terminations}
     assert nodes["2"] == nodes["3"] and len(set(nodes.values())) == 3
     steps = {s["title"]: s for s in render.procedure_steps(p)}
     term = steps["Terminate on the pins"]

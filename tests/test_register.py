@@ -13,6 +13,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
+from conftest import design_for_job
 from windsheet.common import fileio
 from windsheet.common.errors import InputError
 from windsheet.records.register import (APPLICATION_ID, SCHEMA_VERSION, DEFAULT_FILE, ENV_VAR, open_register,
@@ -24,16 +25,14 @@ IS_ROOT = hasattr(os, "geteuid") and os.geteuid() == 0
 
 
 def prediction(number="HL-0412", revision="A", order_text="order v1", units=("HL-0412-01", "HL-0412-02")):
-    return {"job": {"number": number, "part": "Sense coil", "customer": "Fenwick Process Controls",
-                    "revision": revision, "units": list(units), "issued_by": "R. Okafor"},
-            "order_hash": hashlib.sha256(order_text.encode()).hexdigest(),
-            "terminal": {"inductance_H": 4e-4}}
+    return design_for_job(number, revision, units, hashlib.sha256(order_text.encode()).hexdigest(),
+                          part="Sense coil", customer="Fenwick Process Controls", issued_by="R. Okafor")
 
 
 def result(p, verdicts=("pass", "pass"), inspector="M. Lindqvist"):
     units = [{"serial": s, "verdict": v, "lines": [{"key": "terminal.inductance", "measured": 4e-4}],
-              "diagnosis": []} for s, v in zip(p["job"]["units"], verdicts)]
-    return {"job": p["job"]["number"], "revision": p["job"]["revision"], "order_hash": p["order_hash"],
+              "diagnosis": []} for s, v in zip(p.job.units, verdicts)]
+    return {"job": p.job.number, "revision": p.job.revision, "order_hash": p.order_hash,
             "inspector": inspector, "verdict": "pass" if all(v == "pass" for v in verdicts) else "fail",
             "units": units}
 
@@ -277,21 +276,24 @@ def test_newer_schema_is_refused(tmp_path):
 
 CHILD_PRELUDE = textwrap.dedent("""
     import hashlib, sys, time
+    sys.path.insert(0, TESTS)
+    from conftest import design_for_job
     from windsheet.records import register as R
     path = sys.argv[1]
     def prediction():
-        return {"job": {"number": "HL-0412", "revision": "A", "units": ["HL-0412-01", "HL-0412-02"]},
-                "order_hash": hashlib.sha256(b"order v1").hexdigest()}
+        return design_for_job("HL-0412", "A", ["HL-0412-01", "HL-0412-02"],
+                              hashlib.sha256(b"order v1").hexdigest())
     def result(tag):
         p = prediction()
-        return {"job": "HL-0412", "revision": "A", "order_hash": p["order_hash"], "inspector": tag,
+        return {"job": "HL-0412", "revision": "A", "order_hash": p.order_hash, "inspector": tag,
                 "verdict": "pass", "units": [{"serial": s, "verdict": "pass", "lines": [], "diagnosis": []}
-                                             for s in p["job"]["units"]]}
+                                             for s in p.job.units]}
 """)
 
 
 def run_child(body, *args):
-    return subprocess.Popen([sys.executable, "-c", CHILD_PRELUDE + textwrap.dedent(body), *map(str, args)],
+    prelude = CHILD_PRELUDE.replace("TESTS", repr(str(Path(__file__).resolve().parent)))
+    return subprocess.Popen([sys.executable, "-c", prelude + textwrap.dedent(body), *map(str, args)],
                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
 
 

@@ -7,6 +7,7 @@ import os
 import sqlite3
 import subprocess
 import sys
+from functools import lru_cache
 from pathlib import Path
 
 import pytest
@@ -14,7 +15,11 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
+from windsheet.design.build import build_design
+from windsheet.order.document import load_order
 from windsheet.records import register as R
+
+from conftest import redesign
 from windsheet.cli.app import app
 from windsheet.common.errors import InputError
 
@@ -24,10 +29,22 @@ BIFILAR = SAMPLES / "hl-0412-bifilar-aiding.yaml"
 runner = CliRunner()
 
 
-def _prediction(number, customer="Fenwick Process Controls", verdict="pass", units=2):
+def _recorded_v1(number, customer="Fenwick Process Controls", verdict="pass", units=2):
+    """The few keys of a prediction as an earlier version recorded it."""
     return {"job": {"number": number, "part": "Sense coil", "customer": customer, "revision": "A",
                     "units": [f"{number}-{k:02d}" for k in range(1, units + 1)], "issued_by": "planner"},
             "insulation": {"verdict": verdict, "reasons": []}}
+
+
+@lru_cache(maxsize=None)
+def _base_design():
+    return build_design(load_order(BIFILAR), remedies=False)
+
+
+def _prediction(number, customer="Fenwick Process Controls", verdict="pass", units=2):
+    """The bifilar sample's design as job ``number``, with its insulation verdict set."""
+    old = _recorded_v1(number, customer, verdict, units)
+    return redesign(_base_design(), job=old["job"], insulation=old["insulation"])
 
 
 def _fill(reg, n, signed=True):
@@ -35,8 +52,8 @@ def _fill(reg, n, signed=True):
         p = _prediction(f"HL-{k:05d}")
         reg.record_issue(p, "order", f"{k:064x}")
         if signed:
-            result = {"job": p["job"]["number"], "revision": "A", "verdict": "pass",
-                      "units": [{"serial": s, "verdict": "pass", "lines": []} for s in p["job"]["units"]]}
+            result = {"job": p.job.number, "revision": "A", "verdict": "pass",
+                      "units": [{"serial": s, "verdict": "pass", "lines": []} for s in p.job.units]}
             reg.record_signoff(result, f"{k:064x}", "QC")
 
 
@@ -88,7 +105,7 @@ def _version_1_register(path):
     conn.execute("INSERT INTO meta VALUES ('schema_version', '1')")
     conn.execute("PRAGMA user_version = 1")
     now = "2026-11-01T09:00:00+00:00"
-    p = _prediction("HL-0001", verdict="fail")
+    p = _recorded_v1("HL-0001", verdict="fail")
     conn.execute("INSERT INTO jobs VALUES ('HL-0001', 'Sense coil', 'Fenwick Process Controls', ?)", (now,))
     conn.execute("INSERT INTO issues (job, revision, order_sha256, order_text, predictions_json, units_json, "
                  "issued_by, issued_at) VALUES ('HL-0001', 'A', 'ab', 'order', ?, ?, 'planner', ?)",
@@ -255,13 +272,13 @@ main()
 
 def test_a_sign_off_killed_between_commit_and_rename_is_finished_on_the_next_run(tmp_path):
     from windsheet.order.document import load_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
     from windsheet.qc.readings_form import csv_form
 
     reg = tmp_path / "reg.db"
     assert runner.invoke(app, ["register", "--issue", str(BIFILAR), "--register", str(reg)]).exit_code == 0
     readings = tmp_path / "m.csv"
-    readings.write_text(csv_form(predict(load_order(BIFILAR))), encoding="utf-8")
+    readings.write_text(csv_form(build_design(load_order(BIFILAR))), encoding="utf-8")
     sheet = tmp_path / "sheet.html"
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
     res = subprocess.run([sys.executable, "-c", KILL_BETWEEN_COMMIT_AND_RENAME, "signoff", str(BIFILAR),

@@ -15,7 +15,7 @@ from windsheet.cli.app import app
 from windsheet.common.errors import InputError
 from windsheet.common.fmt import IMPERIAL, length
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 INCH_ORDER = b"""\
 job: {number: HL-0440, part: "Relay coil", customer: "Invented Ltd", quantity: 1, revision: A}
@@ -46,11 +46,11 @@ def test_inches_follow_millimetres_exactly():
 
 @pytest.fixture(scope="module")
 def inch_prediction():
-    return predict(parse_order(INCH_ORDER, "inch.yaml"))
+    return build_design(parse_order(INCH_ORDER, "inch.yaml"))
 
 
 def test_an_inch_order_prints_inches_and_its_awg_size(inch_prediction):
-    assert inch_prediction["sheet_units"] == "imperial"
+    assert inch_prediction.sheet_units == "imperial"
     text = text_of(render.render_pdf(render.render_traveller_html(inch_prediction, paper="letter")))
     assert "19.05 mm (0.750 in)" in text and "38.10 mm (1.500 in)" in text
     assert "26 AWG" in text
@@ -59,9 +59,9 @@ def test_an_inch_order_prints_inches_and_its_awg_size(inch_prediction):
 def test_units_option_overrides_either_way(inch_prediction, tmp_path):
     metric = render.render_traveller_html(inch_prediction, units="metric")
     assert "19.05\u00a0mm" in metric and "0.750\u00a0in" not in metric
-    mm_order = predict(parse_order(INCH_ORDER.replace(b"0.75 in", b"19.05 mm").replace(b"1.5 in", b"38.1 mm")
+    mm_order = build_design(parse_order(INCH_ORDER.replace(b"0.75 in", b"19.05 mm").replace(b"1.5 in", b"38.1 mm")
                                    .replace(b"26 AWG", b"0.40 mm")))
-    assert mm_order["sheet_units"] == "metric"
+    assert mm_order.sheet_units == "metric"
     assert "0.750\u00a0in" in render.render_traveller_html(mm_order, units="imperial")
     with pytest.raises(InputError) as err:
         render.render_traveller_html(mm_order, units="furlongs")

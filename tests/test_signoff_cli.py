@@ -16,7 +16,7 @@ from windsheet.qc import wiring_hypotheses as wh
 from windsheet.cli.app import app
 from windsheet.physics.network import terminal_reading
 from windsheet.order.document import load_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 
 from conftest import SAMPLES
 
@@ -30,15 +30,15 @@ def run(*args):
 
 def engine_values(p):
     """Every required reading of an as-ordered unit, keyed by CSV column, from the engine."""
-    L = np.array(p["inductance_matrix_H"])
-    R = np.array([s["resistance_20C_ohm"] for s in p["strands"]])
-    hk = p["hookup"]
-    w = wh.wiring_from(hk["joins"], hk["terminals"], len(R))
+    L = np.array(p.inductance_matrix_H)
+    R = np.array([s.resistance_20C_ohm for s in p.strands])
+    hk = p.hookup
+    w = wh.wiring_from(hk.joins, hk.terminals, len(R))
     lt, rt = terminal_reading(L, R, w.node_of, w.t1, w.t2, 1e3)
     v = {"ambient [degC]": "20", "terminal.inductance [uH]": repr(float(lt * 1e6)), "terminal.resistance [ohm]": repr(float(rt)),
          "insulation.strand_to_strand [Gohm]": "20", "insulation.to_core [Gohm]": "20",
          "insulation.test_voltage [V]": "500", "continuity.A-B": "open",
-         "hipot.voltage [V]": repr(float(p["hipot"]["voltage_V"])), "hipot.duration [s]": repr(float(p["hipot"]["duration_s"])),
+         "hipot.voltage [V]": repr(float(p.hipot.voltage_V)), "hipot.duration [s]": repr(float(p.hipot.duration_s)),
          "hipot.result": "pass"}
     for i, s in enumerate("AB"):
         v[f"strand.{s}.inductance [uH]"] = repr(float(L[i, i] * 1e6))
@@ -74,7 +74,7 @@ def filled_csv(tmp_path, p, mutate=None):
 
 def test_dry_run_leaves_the_register_byte_for_byte_unchanged(tmp_path):
     reg = issued(tmp_path)
-    p = predict(load_order(BIFILAR))
+    p = build_design(load_order(BIFILAR))
     readings = filled_csv(tmp_path, p)
     before = reg.read_bytes()
     names = sorted(os.listdir(tmp_path))
@@ -93,7 +93,7 @@ def test_csv_readings_from_the_form_sign_off_and_an_empty_form_is_incomplete(tmp
     form = tmp_path / "empty.yaml"
     assert run("readings-form", BIFILAR, "-o", form).exit_code == 0
     doc = yaml.safe_load(form.read_text())
-    assert [u["serial"] for u in doc["units"]] == predict(load_order(BIFILAR))["job"]["units"]
+    assert [u["serial"] for u in doc["units"]] == build_design(load_order(BIFILAR)).job.units
     # The empty form loads and every unit is incomplete: exit 3, not a pass.
     r = run("signoff", BIFILAR, form, "--inspector", "M. Lindqvist", "--register", reg, "--dry-run")
     assert r.exit_code == 3, r.output
@@ -102,7 +102,7 @@ def test_csv_readings_from_the_form_sign_off_and_an_empty_form_is_incomplete(tmp
 
 def test_a_missing_hipot_in_csv_is_incomplete_and_the_register_says_so(tmp_path):
     reg = issued(tmp_path)
-    p = predict(load_order(BIFILAR))
+    p = build_design(load_order(BIFILAR))
 
     def drop_hipot(k, row):
         if k == 0:
@@ -134,7 +134,7 @@ def test_register_issue_follows_the_force_rule_and_the_status_travels(tmp_path):
     listing = run("register", "--register", reg).output.splitlines()
     # The listing's design column (windsheet.records.register_listing).
     assert listing[0].split()[-1] == "design" and listing[1].split()[-1] == "FORCED", listing
-    p = predict(load_order(order))
+    p = build_design(load_order(order))
     readings = filled_csv(tmp_path, p)
     r = run("signoff", order, readings, "--inspector", "M. Lindqvist", "--register", reg, "--dry-run")
     assert "Design: FORCED" in r.output and "(design FORCED)" in r.output
@@ -145,7 +145,7 @@ def test_sheet_spread_over_passing_units_inspector_signs_and_celsius(tmp_path):
     from windsheet.sheets.render import render_signoff_html
     from windsheet.qc.signoff import evaluate_signoff
 
-    p = predict(load_order(BIFILAR))
+    p = build_design(load_order(BIFILAR))
 
     def fail_second(k, row):
         if k == 1:  # an open strand: the unit fails
@@ -166,7 +166,7 @@ def test_a_waiver_in_csv_passes_the_unit_and_is_kept_in_the_register(tmp_path):
     import sqlite3
 
     reg = issued(tmp_path)
-    p = predict(load_order(BIFILAR))
+    p = build_design(load_order(BIFILAR))
     reason = "withstand tested by the customer at goods-in"
 
     def waive_hipot(k, row):
@@ -182,7 +182,7 @@ def test_a_waiver_in_csv_passes_the_unit_and_is_kept_in_the_register(tmp_path):
 
 def test_a_bad_csv_cell_is_named_by_row_and_column(tmp_path):
     reg = issued(tmp_path)
-    p = predict(load_order(BIFILAR))
+    p = build_design(load_order(BIFILAR))
 
     def garble(k, row):
         if k == 2:

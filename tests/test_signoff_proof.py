@@ -1,7 +1,7 @@
 """Sign-off passes only what it has proven: required lines, strand balance, wiring diagnosis.
 
 Every reading here is simulated from the engine: the order is sized by
-predict(), strand counts are re-sized by sizing.strand_values_at_turns and
+build_design(), strand counts are re-sized by sizing.strand_values_at_turns and
 miswired coils are solved by network.terminal_reading -- an independent
 nodal solve of the strand matrix -- never hard-coded.
 """
@@ -15,7 +15,7 @@ from windsheet.qc import wiring_hypotheses as wh
 from windsheet.qc.measured import measured_from_dict
 from windsheet.physics.network import terminal_reading
 from windsheet.order.document import load_order, parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 from windsheet.design.sizing import strand_values_at_turns
 from windsheet.qc.signoff import evaluate_signoff, exit_status
 
@@ -45,12 +45,12 @@ def design(strands, hookup, **kw):
     key = (strands, hookup, tuple(sorted(kw.items())))
     if key not in _CACHE:
         o = parse_order(order_text(strands, hookup, **kw).encode())
-        _CACHE[key] = (o, predict(o))
+        _CACHE[key] = (o, build_design(o))
     return _CACHE[key]
 
 
 def arrays(p):
-    return (np.array(p["inductance_matrix_H"]), np.array([s["resistance_20C_ohm"] for s in p["strands"]]))
+    return (np.array(p.inductance_matrix_H), np.array([s.resistance_20C_ohm for s in p.strands]))
 
 
 def uh(x):
@@ -59,22 +59,22 @@ def uh(x):
 
 def full_unit(p, L, R, wiring=None, serial="U1"):
     """Every required line, as the bench would read this coil (strand matrix L, resistances R)."""
-    ids = [s["id"] for s in p["strands"]]
-    hk = p["hookup"]
-    w = wiring or wh.wiring_from(hk["joins"], hk["terminals"], len(ids))
+    ids = [s.id for s in p.strands]
+    hk = p.hookup
+    w = wiring or wh.wiring_from(hk.joins, hk.terminals, len(ids))
     l_t, r_t = terminal_reading(L, R, w.node_of, w.t1, w.t2, 1e3)
     # With no continuity the LCR meter gives no inductance: that line stays empty.
     unit = {"serial": serial,
             "terminals": {"resistance": "open"} if math.isinf(r_t) else {"inductance": uh(l_t),
                                                                           "resistance": f"{r_t!r} ohm"},
             "insulation": {"to_core": "20 Gohm", "test_voltage": "500 V"},
-            "hipot": {"voltage": f"{p['hipot']['voltage_V']} V", "duration": f"{p['hipot']['duration_s']} s",
+            "hipot": {"voltage": f"{p.hipot.voltage_V} V", "duration": f"{p.hipot.duration_s} s",
                       "result": "pass"}}
     if len(ids) > 1:
         unit["strands"] = {s: {"inductance": uh(L[i, i]), "resistance": f"{float(R[i])!r} ohm"} for i, s in enumerate(ids)}
         unit["insulation"]["strand_to_strand"] = "20 Gohm"
         unit["continuity"] = {"strand_to_strand": "open"}
-        if hk["joins"]:
+        if hk.joins:
             pairs = {}
             for i, (a, b) in enumerate(zip(ids, ids[1:])):
                 sub = L[np.ix_([i, i + 1], [i, i + 1])]
@@ -86,7 +86,7 @@ def full_unit(p, L, R, wiring=None, serial="U1"):
 
 
 def sign(p, o, units, **top):
-    m = measured_from_dict({"job": p["job"]["number"], "ambient": "20 degC", "units": units, **top})
+    m = measured_from_dict({"job": p.job.number, "ambient": "20 degC", "units": units, **top})
     return evaluate_signoff(p, m, inspector="T. Vance", resize=lambda n: strand_values_at_turns(o, n))
 
 
@@ -122,7 +122,7 @@ def test_qc_record_prints_exactly_the_required_lines():
     from windsheet.sheets.render import qc_items
 
     o, p = design(2, "series-aiding")
-    assert [i["key"] for i in qc_items(p)] == p["qc_required"]
+    assert [i["key"] for i in qc_items(p)] == p.qc_required
 
 
 # ---------------------------------------------------------------- strand balance
@@ -161,20 +161,20 @@ def test_target_order_band_is_target_plus_minus_tolerance():
     doc = yaml.safe_load(path.read_text())
     target = parse_quantity(doc["winding"]["target_inductance"], "inductance", "")
     tol = float(doc["tolerances"]["inductance"].rstrip(" %")) / 100
-    acc = predict(load_order(path))["terminal"]["accept"]
+    acc = build_design(load_order(path)).terminal.accept
     # The order's own numbers, read here from the YAML: target x (1 -/+ tolerance).
-    assert acc["inductance_min_H"] == pytest.approx(target * (1 - tol), rel=1e-12)
-    assert acc["inductance_max_H"] == pytest.approx(target * (1 + tol), rel=1e-12)
-    assert acc["inductance_basis"] == "target"
+    assert acc.inductance_min_H == pytest.approx(target * (1 - tol), rel=1e-12)
+    assert acc.inductance_max_H == pytest.approx(target * (1 + tol), rel=1e-12)
+    assert acc.inductance_basis == "target"
 
 
 # ---------------------------------------------------------------- wiring diagnosis
 
 def _mutation(p, kind_prefix):
-    ids = len(p["strands"])
-    hk = p["hookup"]
-    w0 = wh.wiring_from(hk["joins"], hk["terminals"], ids)
-    muts = wh.single_mistakes(w0, ids) + wh.hookup_alternatives(w0, ids, hk["name"])
+    ids = len(p.strands)
+    hk = p.hookup
+    w0 = wh.wiring_from(hk.joins, hk.terminals, ids)
+    muts = wh.single_mistakes(w0, ids) + wh.hookup_alternatives(w0, ids, hk.name)
     L, R = arrays(p)
     base = terminal_reading(L, R, w0.node_of, w0.t1, w0.t2, 1e3)
     # Prefer a mistake the meter still reads through; an open circuit otherwise.
@@ -197,7 +197,7 @@ def _mutation(p, kind_prefix):
 def _taps_for(finding, p, L, R, w):
     taps = []
     for s in finding.get("separating_readings") or []:
-        ordered = wh.wiring_from(p["hookup"]["joins"], p["hookup"]["terminals"], len(p["strands"]))
+        ordered = wh.wiring_from(p.hookup.joins, p.hookup.terminals, len(p.strands))
         a, b = ordered.labels.index(s["from"]), ordered.labels.index(s["to"])
         value = terminal_reading(L, R, w.node_of, a, b, 1e3)[0]
         # No path between the points: the inspector writes "open".
@@ -237,8 +237,8 @@ def test_every_kind_of_wiring_mistake_is_found(strands, hookup, kind):
 def test_three_strand_reversal_asks_for_the_separating_reading_then_names_the_strand():
     o, p = design(3, "series-aiding")
     L, R = arrays(p)
-    hk = p["hookup"]
-    w0 = wh.wiring_from(hk["joins"], hk["terminals"], 3)
+    hk = p.hookup
+    w0 = wh.wiring_from(hk.joins, hk.terminals, 3)
     nd = list(w0.node_of)
     nd[0], nd[1] = nd[1], nd[0]                      # strand A reversed
     w = wh.Wiring(tuple(nd), 0, 1, w0.labels)
@@ -256,8 +256,8 @@ def test_three_strand_reversal_asks_for_the_separating_reading_then_names_the_st
 def test_four_strand_pair_joined_finish_to_finish_is_a_joint_fault_not_a_turn_count():
     o, p = design(4, CUSTOM_4)
     L, R = arrays(p)
-    hk = p["hookup"]
-    w0 = wh.wiring_from(hk["joins"], hk["terminals"], 4)
+    hk = p.hookup
+    w0 = wh.wiring_from(hk.joins, hk.terminals, 4)
     nd = list(w0.node_of)
     nd[6], nd[7] = nd[7], nd[6]                      # D reversed: C.finish joined to D.finish
     w = wh.Wiring(tuple(nd), 0, 1, w0.labels)

@@ -12,7 +12,7 @@ from windsheet.cli.app import app
 from windsheet.common.errors import InputError
 from windsheet.physics.inductance import loop_self_inductance
 from windsheet.order.document import parse_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 from windsheet.design.target_turns import _bracket_turns
 
 from conftest import SAMPLES
@@ -23,7 +23,7 @@ def load(name):
 
 
 def run(doc):
-    return predict(parse_order(yaml.safe_dump(doc, allow_unicode=True).encode()))
+    return build_design(parse_order(yaml.safe_dump(doc, allow_unicode=True).encode()))
 
 
 def sized_by_turns(doc, turns):
@@ -31,7 +31,7 @@ def sized_by_turns(doc, turns):
     d = copy.deepcopy(doc)
     d["winding"].pop("target_inductance", None)
     d["winding"]["turns"] = turns
-    return run(d)["terminal"]["inductance_H"]
+    return run(d).terminal.inductance_H
 
 
 def henry(x):
@@ -50,11 +50,11 @@ def test_one_nanohenry_on_the_target_sample_is_refused_with_the_fewest_turns():
     doc["winding"]["target_inductance"] = "1 nH"
     msg = refusal(doc)
     one = run({**doc, "winding": {"strands": 1, "turns": 1, "layers": 1}})
-    R = 0.020 + one["wire"]["overall_diameter_m"] / 2
+    R = 0.020 + one.wire.overall_diameter_m / 2
     # Grover (1946), circular ring of round wire: one turn is µ0 R (ln(8R/a) − 7/4) (memory).
-    assert one["terminal"]["inductance_H"] == pytest.approx(
-        loop_self_inductance(R, one["wire"]["copper_diameter_m"] / 2), rel=1e-9)
-    assert f"the fewest, 1 turn, gives {henry(one['terminal']['inductance_H'])}" in msg
+    assert one.terminal.inductance_H == pytest.approx(
+        loop_self_inductance(R, one.wire.copper_diameter_m / 2), rel=1e-9)
+    assert f"the fewest, 1 turn, gives {henry(one.terminal.inductance_H)}" in msg
     assert "114.4 nH" in msg and "±5 %" in msg
 
 
@@ -94,13 +94,13 @@ def test_chosen_turns_are_the_nearest_by_log_error(sample, winding, target, duty
     doc["winding"].pop("turns", None)
     doc["winding"].update(winding, target_inductance=target)
     p = run(doc)
-    n, T = p["winding"]["turns_per_strand"], p["winding"]["target"]["inductance_H"]
+    n, T = p.winding.turns_per_strand, p.winding.target.inductance_H
     # A scan of the neighbouring counts, each sized by turns on its own: the chosen one is the
     # nearest to the target by log error, and within the order's tolerance.
     scan = {k: sized_by_turns(doc, k) for k in range(max(1, n - 3), n + 4)}
     assert n == min(scan, key=lambda k: abs(math.log(scan[k] / T)))
-    assert abs(scan[n] / T - 1) <= p["tolerances"]["inductance"]
-    assert p["winding"]["target"]["inductance_at_chosen_H"] == pytest.approx(scan[n], rel=1e-12)
+    assert abs(scan[n] / T - 1) <= p.tolerances.inductance
+    assert p.winding.target.inductance_at_chosen_H == pytest.approx(scan[n], rel=1e-12)
 
 
 @pytest.mark.parametrize("power, target", [(2.0, 3.3e-3), (1.0, 7.77e-5), (1.7, 0.41), (2.3, 1e-9), (1.2, 2e-2)])

@@ -14,7 +14,7 @@ from windsheet.common.errors import InputError
 from windsheet.physics.layout import WindingDoesNotFit, toroid_layout
 from windsheet.physics.neighbours import neighbour_pairs
 from windsheet.order.document import load_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
 from windsheet.sheets.ring_diagrams import ring_section_svg, ring_top_view_svg
 
 SVG = "{http://www.w3.org/2000/svg}"
@@ -62,17 +62,17 @@ def test_turns_per_layer_come_from_the_inner_circumference_less_the_gap():
 
 def test_more_turns_than_one_circumference_holds_make_two_layers_and_a_top_view(tmp_path):
     cap = fit_by_placing(ID / 2 - OV / 2, 330.0, OV)
-    p = predict(order(tmp_path, cap + 10))
-    assert p["layers"] == 2 and p["winding"]["turns_in_layer"] == [cap, 10]
-    ring = p["ring"]
-    assert [L["layer"] for L in ring["layers"]] == [1, 2]
+    p = build_design(order(tmp_path, cap + 10))
+    assert p.layers == 2 and p.winding.turns_in_layer == [cap, 10]
+    ring = p.ring
+    assert [L.layer for L in ring.layers] == [1, 2]
     # Layer 2 lies further in: its conductor circle is smaller.
-    assert ring["layers"][1]["radius_m"] < ring["layers"][0]["radius_m"]
+    assert ring.layers[1].radius_m < ring.layers[0].radius_m
     from windsheet.sheets import render
 
     html = render.render_traveller_html(p)
     assert 'data-figure="ring-top"' in html and 'data-figure="ring-section"' in html
-    top = ET.fromstring(ring_top_view_svg(ring, p["form"]))
+    top = ET.fromstring(ring_top_view_svg(ring.model_dump(), p.form.model_dump()))
     layers_drawn = {g.get("data-layer") for g in top.iter(f"{SVG}g") if g.get("data-turn")}
     assert layers_drawn == {"1", "2"}
 
@@ -133,16 +133,16 @@ def test_start_finish_distance_uses_the_real_angles():
 
 
 def test_direction_and_spread_reach_the_sheet(tmp_path):
-    p = predict(order(tmp_path, 12, ", spread: 180 deg, direction: anticlockwise"))
-    assert p["winding"]["direction"] == "anticlockwise" and p["ring"]["spread"] == "sector"
+    p = build_design(order(tmp_path, 12, ", spread: 180 deg, direction: anticlockwise"))
+    assert p.winding.direction == "anticlockwise" and p.ring.spread == "sector"
     from windsheet.sheets import render
 
     wind = [s for s in render.procedure_steps(p) if s["title"] == "Wind"][0]["detail"]
     assert "anticlockwise" in wind and "180° sector" in wind
-    top = ET.fromstring(ring_top_view_svg(p["ring"], p["form"], "anticlockwise"))
+    top = ET.fromstring(ring_top_view_svg(p.ring.model_dump(), p.form.model_dump(), "anticlockwise"))
     marks = {el.get("data-mark") for el in top.iter() if el.get("data-mark")}
     assert {"start", "finish", "gap", "sector", "direction"} <= marks
-    section = ET.fromstring(ring_section_svg(p["ring"], p["form"]))
+    section = ET.fromstring(ring_section_svg(p.ring.model_dump(), p.form.model_dump()))
     assert [el.get("data-layer-path") for el in section.iter() if el.get("data-layer-path")] == ["1"]
 
 
@@ -152,5 +152,5 @@ def test_spread_on_a_cylinder_is_refused_at_its_field(tmp_path):
         "kind: toroid, inner_diameter: 14.8 mm, outer_diameter: 25.3 mm, height: 10 mm, al: 4.2 uH, gap: 30 deg",
         "kind: cylinder, diameter: 20 mm, traverse: 30 mm"), encoding="utf-8")
     with pytest.raises(InputError) as err:
-        predict(load_order(path))
+        build_design(load_order(path))
     assert err.value.path == "winding.spread"

@@ -19,7 +19,9 @@ from windsheet.cli.app import app
 from windsheet.sheets.diagrams import cross_section_svg, wiring_svg
 from windsheet.common.errors import InputError
 from windsheet.order.document import load_order
-from windsheet.design.build import predict
+from windsheet.design.build import build_design
+
+from conftest import redesign
 
 SVG = "{http://www.w3.org/2000/svg}"
 
@@ -32,7 +34,7 @@ SAMPLE_IDS = [p.stem for p in SAMPLES]
 
 @lru_cache(maxsize=None)
 def sample_prediction(stem: str) -> dict:
-    return predict(load_order(ROOT / "samples" / f"{stem}.yaml"))
+    return build_design(load_order(ROOT / "samples" / f"{stem}.yaml"))
 
 
 @lru_cache(maxsize=None)
@@ -70,15 +72,13 @@ tolerances: {inductance: 10 %, resistance: 5 %}
 """
 
 
-def bifilar_prediction() -> dict:
-    """A fresh copy of the two-strand series-aiding sample's prediction, to alter in a test."""
-    return copy.deepcopy(sample_prediction("hl-0412-bifilar-aiding"))
+def bifilar_prediction():
+    """The two-strand series-aiding sample's design (immutable: alter it with ``redesign``)."""
+    return sample_prediction("hl-0412-bifilar-aiding")
 
 
-def failing(p: dict) -> dict:
-    p["insulation"]["verdict"] = "fail"
-    p["insulation"]["reasons"] = ["worst adjacent voltage over the allowed value"]
-    return p
+def failing(p):
+    return redesign(p, insulation={"verdict": "fail", "reasons": ["worst adjacent voltage over the allowed value"]})
 
 
 
@@ -94,8 +94,8 @@ def normalise(text: str) -> str:
 
 
 def test_there_are_samples_of_every_kind():
-    kinds = {sample_prediction(s)["form"]["kind"] for s in SAMPLE_IDS}
-    hookups = {sample_prediction(s)["hookup"]["name"] for s in SAMPLE_IDS}
+    kinds = {sample_prediction(s).form.kind for s in SAMPLE_IDS}
+    hookups = {sample_prediction(s).hookup.name for s in SAMPLE_IDS}
     assert {"cylinder", "toroid"} <= kinds
     assert {"single", "series-aiding", "series-opposing"} <= hookups
 
@@ -112,12 +112,12 @@ def test_every_section_is_in_the_pdf_in_job_flow_order(stem):
 def test_job_number_revision_and_page_x_of_y_on_every_page(stem):
     p = sample_prediction(stem)
     pages = pdf_pages_text(sample_sheet(stem)[1])
-    job = p["job"]
+    job = p.job
     for k, page in enumerate(pages, start=1):
-        assert job["number"] in page
-        assert f"Rev {job['revision']}" in page
-        assert f"Qty {job['quantity']}" in page
-        assert f"Issued {job['issue_date']}" in page
+        assert job.number in page
+        assert f"Rev {job.revision}" in page
+        assert f"Qty {job.quantity}" in page
+        assert f"Issued {job.issue_date}" in page
         assert f"Page {k} of {len(pages)}" in page
         assert "Issued by:" in page
 
@@ -134,17 +134,17 @@ def test_html_is_standalone_and_carries_the_same_sections(stem):
 
 def _printed_values(p):
     """The engine's numbers as the sheet must print them."""
-    t = p["terminal"]
-    values = [render.henry(t["inductance_H"]), render.ohm(t["resistance_ohm"]),
-              render.ohm(t["resistance_hot_ohm"]), render.farad(t["capacitance_F"]),
-              render.hertz(t["self_resonance_Hz"]),
-              render.henry(t["accept"]["inductance_min_H"]), render.henry(t["accept"]["inductance_max_H"]),
-              render.ohm(t["accept"]["resistance_min_ohm"]), render.ohm(t["accept"]["resistance_max_ohm"]),
-              render.volt(p["worst_adjacent"]["voltage_Vpk"])]
-    for s in p["strands"]:
-        values += [render.henry(s["inductance_H"]), render.ohm(s["resistance_20C_ohm"]),
-                   render.ohm(s["resistance_hot_ohm"]), render.length(s["wire_length_m"]),
-                   render.length(s["wire_length_with_scrap_m"]), render.mass(s["mass_kg"])]
+    t = p.terminal
+    values = [render.henry(t.inductance_H), render.ohm(t.resistance_ohm),
+              render.ohm(t.resistance_hot_ohm), render.farad(t.capacitance_F),
+              render.hertz(t.self_resonance_Hz),
+              render.henry(t.accept.inductance_min_H), render.henry(t.accept.inductance_max_H),
+              render.ohm(t.accept.resistance_min_ohm), render.ohm(t.accept.resistance_max_ohm),
+              render.volt(p.worst_adjacent.voltage_Vpk)]
+    for s in p.strands:
+        values += [render.henry(s.inductance_H), render.ohm(s.resistance_20C_ohm),
+                   render.ohm(s.resistance_hot_ohm), render.length(s.wire_length_m),
+                   render.length(s.wire_length_with_scrap_m), render.mass(s.mass_kg)]
     return values
 
 
@@ -154,8 +154,8 @@ def test_printed_predictions_equal_the_engines(stem):
     text = " ".join(pdf_pages_text(sample_sheet(stem)[1]))
     missing = [v for v in _printed_values(p) if normalise(v) not in text]
     assert not missing
-    assert normalise(p["worst_adjacent"]["where"]) in text
-    assert p["insulation"]["verdict"].upper() in text
+    assert normalise(p.worst_adjacent.where) in text
+    assert p.insulation.verdict.upper() in text
 
 
 _SI = {"p": 1e-12, "n": 1e-9, "µ": 1e-6, "μ": 1e-6, "m": 1e-3, "": 1.0, "k": 1e3, "M": 1e6, "G": 1e9}
@@ -170,12 +170,12 @@ def parse_printed(text: str, unit: str) -> float:
 
 @pytest.mark.parametrize("stem", SAMPLE_IDS)
 def test_printed_terminal_values_read_back_to_the_engines_within_rounding(stem):
-    t = sample_prediction(stem)["terminal"]
+    t = sample_prediction(stem).terminal
     # Four significant figures: rounding moves a value by at most half a unit in the 4th digit.
-    for value, fmt, unit in ((t["inductance_H"], render.henry, "H"),
-                             (t["resistance_ohm"], render.ohm, "Ω"),
-                             (t["accept"]["inductance_min_H"], render.henry, "H"),
-                             (t["accept"]["resistance_max_ohm"], render.ohm, "Ω")):
+    for value, fmt, unit in ((t.inductance_H, render.henry, "H"),
+                             (t.resistance_ohm, render.ohm, "Ω"),
+                             (t.accept.inductance_min_H, render.henry, "H"),
+                             (t.accept.resistance_max_ohm, render.ohm, "Ω")):
         assert parse_printed(fmt(value), normalise(unit)) == pytest.approx(value, rel=5e-4)
 
 
@@ -293,10 +293,10 @@ def check_wiring_against_hookup(svg, hookup, ids):
 @pytest.mark.parametrize("stem", SAMPLE_IDS)
 def test_wiring_diagram_of_each_sample_matches_its_hookup(stem):
     p = sample_prediction(stem)
-    ids = [s["id"] for s in p["strands"]]
-    svg = wiring_svg(p["hookup"], ids)
-    terminals = check_wiring_against_hookup(svg, p["hookup"], ids)
-    if p["hookup"]["name"] == "separate":
+    ids = p.strand_ids
+    svg = wiring_svg(p.hookup.model_dump(), ids)
+    terminals = check_wiring_against_hookup(svg, p.hookup.model_dump(), ids)
+    if p.hookup.name == "separate":
         # Each winding of a separate hookup brings out both of its ends.
         assert set(terminals.values()) == {f"{s}.{w}" for s in ids for w in ("start", "finish")}
     else:
@@ -304,9 +304,9 @@ def test_wiring_diagram_of_each_sample_matches_its_hookup(stem):
 
 
 def test_wiring_diagram_of_a_three_strand_custom_hookup(tmp_path):
-    p = predict(load_order(order_yaml(tmp_path, "c3.yaml", THREE_STRAND_ORDER)))
-    assert p["hookup"]["name"] == "custom"
-    svg = wiring_svg(p["hookup"], ["A", "B", "C"])
+    p = build_design(load_order(order_yaml(tmp_path, "c3.yaml", THREE_STRAND_ORDER)))
+    assert p.hookup.name == "custom"
+    svg = wiring_svg(p.hookup.model_dump(), ["A", "B", "C"])
     check_wiring_against_hookup(svg, {"joins": [["A.finish", "C.start"], ["C.finish", "B.finish"]],
                                       "terminals": ["A.start", "B.start"]}, ["A", "B", "C"])
     html = render.render_traveller_html(p)
@@ -337,8 +337,8 @@ def test_wiring_diagram_refuses_an_end_of_a_missing_strand():
 
 @pytest.mark.parametrize("stem", SAMPLE_IDS)
 def test_cross_section_shows_every_listed_slot_and_the_layer_tape(stem):
-    cs = sample_prediction(stem)["cross_section"]
-    root = ET.fromstring(cross_section_svg(cs, sample_prediction(stem)["form"]["kind"]))
+    cs = sample_prediction(stem).cross_section.model_dump()
+    root = ET.fromstring(cross_section_svg(cs, sample_prediction(stem).form.kind))
     layers = [g for g in root.iter(f"{SVG}g") if g.get("data-layer")]
     assert len(layers) == len(cs["layers"])
     for g, layer in zip(layers, cs["layers"]):
@@ -348,7 +348,7 @@ def test_cross_section_shows_every_listed_slot_and_the_layer_tape(stem):
         # Each slot's letter is a stroked glyph that refers to its strand's path.
         marks = [u.get("data-mark") for u in g.iter(f"{SVG}use")]
         assert marks == [s for _, s in sorted((s["slot"], s["strand"]) for s in layer["slots"])]
-    glyphs = {p.get("id") for p in root.iter(f"{SVG}path") if p.get("id", "").startswith("strand-")}
+    glyphs = {e.get("id") for e in root.iter(f"{SVG}path") if e.get("id", "").startswith("strand-")}
     assert glyphs == {f"strand-{s['strand']}" for layer in cs["layers"] for s in layer["slots"]}
     tapes = [r for r in root.iter(f"{SVG}rect") if r.get("data-tape")]
     assert len(tapes) == (len(cs["layers"]) - 1 if cs["tape_between_layers"] else 0)
@@ -365,17 +365,17 @@ def _stem_where(cond):
 
 
 def test_procedure_depends_on_the_order():
-    single = _stem_where(lambda p: p["winding"]["strands"] == 1 and p["layers"] == 1)
-    bifilar = _stem_where(lambda p: p["hookup"]["joins"] and p["winding"]["strands"] == 2)
-    taped = _stem_where(lambda p: p["cross_section"]["tape_between_layers"])
-    toroid = _stem_where(lambda p: p["form"]["kind"] == "toroid")
+    single = _stem_where(lambda p: p.winding.strands == 1 and p.layers == 1)
+    bifilar = _stem_where(lambda p: p.hookup.joins and p.winding.strands == 2)
+    taped = _stem_where(lambda p: p.cross_section.tape_between_layers)
+    toroid = _stem_where(lambda p: p.form.kind == "toroid")
     sep = [t.lower() for t in _titles(single)]
     assert not any("series-aiding" in t or "joint" in t or "tape" in t or "gap" in t for t in sep)
     bif = [t.lower() for t in _titles(bifilar)]
     assert any("series-aiding" in t for t in bif)
     assert bif.index(next(t for t in bif if "identify every end" in t)) < bif.index(
         next(t for t in bif if "series-aiding" in t)) < bif.index(next(t for t in bif if t.startswith("make the joint")))
-    layers = sample_prediction(taped)["layers"]
+    layers = sample_prediction(taped).layers
     assert sum(t.startswith("Tape over layer") for t in _titles(taped)) == layers - 1
     assert sum(t.startswith("Wind layer") for t in _titles(taped)) == layers
     tor = [t.lower() for t in _titles(toroid)]
@@ -391,8 +391,8 @@ def test_procedure_depends_on_the_order():
 def test_qc_record_has_a_column_for_every_serial_number(stem):
     p = sample_prediction(stem)
     html = sample_sheet(stem)[0]
-    units = p["job"]["units"]
-    assert len(units) == p["job"]["quantity"]
+    units = p.job.units
+    assert len(units) == p.job.quantity
     cols = re.findall(r'<th class="unit" data-unit="([^"]+)">', html)
     assert cols == units
     text = " ".join(pdf_pages_text(sample_sheet(stem)[1]))
@@ -410,7 +410,7 @@ def test_qc_cells_carry_tick_boxes_only_where_the_item_is_judged():
     for it in items:
         row = re.search(rf'<tr data-qc="{re.escape(it["key"])}">.*?</tr>', html, re.S).group(0)
         cells = re.findall(r'<td class="unit (judged|recordonly)"></td>', row)
-        assert cells == ["judged" if it["judged"] else "recordonly"] * len(p["job"]["units"])
+        assert cells == ["judged" if it["judged"] else "recordonly"] * len(p.job.units)
     assert any(not it["judged"] for it in items) and any(it["judged"] for it in items)
     # The stylesheet draws both boxes for judged cells and leaves record-only cells grey.
     css = (render.TEMPLATES_DIR / "print.css").read_text()
@@ -422,9 +422,10 @@ def test_qc_cells_carry_tick_boxes_only_where_the_item_is_judged():
 
 def test_markup_in_the_customer_name_prints_as_text():
     p = bifilar_prediction()
-    p["job"]["customer"] = '<b>Bold</b> & <script>alert(1)</script><img src="http://example.com/x.png">'
-    p["hookup"]["description"] = "<i>italic</i>"
-    p["strands"][0]["identification"] = "<u>red</u> sleeve"
+    p = redesign(p, job={"customer": '<b>Bold</b> & <script>alert(1)</script><img src="http://example.com/x.png">'},
+                 hookup={"description": "<i>italic</i>"},
+                 strands=[{**p.strands[0].model_dump(), "identification": "<u>red</u> sleeve"}]
+                 + [s.model_dump() for s in p.strands[1:]])
     html = render.render_traveller_html(p)
     # The sheet's own drawings are <img> with data: URLs; the order's text never becomes a tag.
     assert "<script>" not in html and '<img src="http' not in html and "<i>italic" not in html
@@ -479,9 +480,8 @@ def test_passing_check_has_no_banner():
 
 def test_cautions_follow_the_duty_and_always_defer():
     hv = bifilar_prediction()
-    low = copy.deepcopy(hv)
-    low["cautions"] = {"above_elv": False, "highest_V": 12.0, "elv_limit_V": 50.0, "hipot": False,
-                       "stored_energy_J": 2.0}
+    low = redesign(hv, cautions={"above_elv": False, "highest_V": 12.0, "elv_limit_V": 50.0, "hipot": False,
+                                 "stored_energy_J": 2.0})
     titles_hv = [c["title"] for c in render.cautions(hv)]
     titles_low = [c["title"] for c in render.cautions(low)]
     assert "Above extra-low voltage" in titles_hv and "Above extra-low voltage" not in titles_low
@@ -531,7 +531,7 @@ def test_cli_renders_a_folder_of_orders_and_records_the_issues(tmp_path):
     assert written == sorted(f"{s.stem}.html" for s in SAMPLES[:2])
     listing = CliRunner().invoke(app, ["register", "--register", str(reg)]).stdout
     for src in SAMPLES[:2]:
-        number = sample_prediction(src.stem)["job"]["number"]
+        number = sample_prediction(src.stem).job.number
         assert number in listing
         assert "size: letter" in (out / f"{src.stem}.html").read_text(encoding="utf-8")
 
@@ -566,7 +566,7 @@ def test_signoff_sheet_prints_every_units_readings_and_the_diagnosis(measured_na
     for heading in render.SIGNOFF_SECTIONS:
         assert normalise(heading) in text
     for k, page in enumerate(pages, start=1):
-        assert p["job"]["number"] in page and f"Page {k} of {len(pages)}" in page
+        assert p.job.number in page and f"Page {k} of {len(pages)}" in page
     assert result["verdict"].upper() in text
     for unit in result["units"]:
         assert unit["serial"] in text
@@ -697,7 +697,7 @@ FORCED_LONG_PART = FAILING_ORDER.replace('part: "Test coil"',
 
 @pytest.mark.parametrize("paper", PAPERS)
 def test_running_header_stays_on_one_line_even_when_forced(tmp_path, paper):
-    p = predict(load_order(order_yaml(tmp_path, "forced.yaml", FORCED_LONG_PART)))
+    p = build_design(load_order(order_yaml(tmp_path, "forced.yaml", FORCED_LONG_PART)))
     pdf = render.render_pdf(render.render_traveller_html(p, paper=paper, forced=True))
     reader = pypdf.PdfReader(io.BytesIO(pdf))
     for k, page in enumerate(reader.pages, start=1):

@@ -256,23 +256,23 @@ def test_aluminium_constants():
 
 
 def test_aluminium_order_reads_about_1_6_times_copper():
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
 
     with open(SAMPLE, "rb") as fh:
         doc = yaml.safe_load(fh)
     al = copy.deepcopy(doc)
     al["wire"]["conductor"] = "aluminium"
-    p_cu = predict(parse_order(yaml.safe_dump(doc).encode(), SAMPLE))
-    p_al = predict(parse_order(yaml.safe_dump(al).encode(), SAMPLE))
+    p_cu = build_design(parse_order(yaml.safe_dump(doc).encode(), SAMPLE))
+    p_al = build_design(parse_order(yaml.safe_dump(al).encode(), SAMPLE))
     # The ratio of the two resistivities: IEC 60028 copper 1/58, aluminium 61 % IACS (1/0.61 of copper).
     ratio = (1.7241e-8 / 0.61) / (1 / 58 * 1e-6)
     assert 1.55 < ratio < 1.70
-    assert p_al["terminal"]["resistance_ohm"] / p_cu["terminal"]["resistance_ohm"] == pytest.approx(ratio, rel=1e-3)
+    assert p_al.terminal.resistance_ohm / p_cu.terminal.resistance_ohm == pytest.approx(ratio, rel=1e-3)
     # Mass follows the conductor's density: 2.703 / 8.89 (IEC 60889 / IEC 60028, memory).
-    m = [p["strands"][0]["mass_kg"] for p in (p_al, p_cu)]
+    m = [p.strands[0].mass_kg for p in (p_al, p_cu)]
     assert m[0] / m[1] == pytest.approx(2.703 / 8.89, rel=1e-9)
-    assert p_al["wire"]["conductor"] == "aluminium"
-    assert any("aluminium" in w for w in p_al["warnings"])
+    assert p_al.wire.conductor == "aluminium"
+    assert any("aluminium" in w for w in p_al.warnings)
 
 
 # ---------------------------------------------------------------- windsheet wires

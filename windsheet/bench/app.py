@@ -163,8 +163,8 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         drafts = service.load_drafts(reg, number, state["revision"])
         view = job_view(prediction, state, drafts, service.issued_order_text(reg, state))
         last = service.latest_signoff(reg, number, state["revision"])
-        return {"job": prediction.get("job") or {}, "state": state, "view": view,
-                "design": service.design_status(prediction, state), "messages": list(messages),
+        return {"job": prediction.job, "state": state, "view": view,
+                "design": service.design_status(prediction), "messages": list(messages),
                 "last": last, "signed": signed}
 
     async def job_page(request: Request):

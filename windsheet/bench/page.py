@@ -35,7 +35,7 @@ def row_of_line(line_key: str) -> str:
     return line_key
 
 
-def preview_unit(prediction: dict, revision: str, job_entries: dict, serial: str,
+def preview_unit(prediction, revision: str, job_entries: dict, serial: str,
                  entries: dict, order_text: Optional[str] = None) -> dict:
     """Judge what has been entered for one unit so far.
 
@@ -43,7 +43,7 @@ def preview_unit(prediction: dict, revision: str, job_entries: dict, serial: str
     ``unit`` (the sign-off's unit dict when judged), ``errors`` (field -> message),
     ``job_errors`` and ``message``.
     """
-    number = (prediction.get("job") or {}).get("number")
+    number = prediction.job.number
     entries, job_entries = dict(entries), dict(job_entries)
     errors, job_errors = {}, {}
     out = {"errors": errors, "job_errors": job_errors, "unit": None, "message": ""}
@@ -118,7 +118,7 @@ def unit_summary(preview: dict) -> dict:
             "findings": [preview["message"]]}
 
 
-def job_view(prediction: dict, state: dict, drafts: dict, order_text: Optional[str] = None) -> dict:
+def job_view(prediction, state: dict, drafts: dict, order_text: Optional[str] = None) -> dict:
     """Everything the job page shows, judged afresh from the saved drafts."""
     required = service.required_lines(prediction)
     rows = qc_rows(prediction, required)
@@ -139,10 +139,10 @@ def job_view(prediction: dict, state: dict, drafts: dict, order_text: Optional[s
     return {"rows": rows, "units": units, "job_values": job_values, "job_errors": job_errors}
 
 
-def signoff_document(prediction: dict, state: dict, drafts: dict, inspector: str,
+def signoff_document(prediction, state: dict, drafts: dict, inspector: str,
                      date: Optional[str]) -> dict:
     """The whole job's measured-values document, every unit with an entry, as a file would give it."""
-    number = (prediction.get("job") or {}).get("number")
+    number = prediction.job.number
     job_entries = {f: d["value"] for (s, f), d in drafts.items() if s == ""}
     units = []
     for serial in state["units"]:

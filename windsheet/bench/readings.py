@@ -35,7 +35,7 @@ def is_unit_field(field: str) -> bool:
     return bool(_FIELD.match(field))
 
 
-def qc_rows(prediction: dict, required: set) -> list[dict]:
+def qc_rows(prediction, required: set) -> list[dict]:
     """The QC record's rows, each with the unit fields it takes.
 
     Labels, predictions and accept bands are the traveller's own (render.qc_items),
@@ -43,12 +43,12 @@ def qc_rows(prediction: dict, required: set) -> list[dict]:
     """
     from windsheet.sheets.render import qc_items
 
-    ids = [s["id"] for s in prediction.get("strands") or []]
+    ids = prediction.strand_ids
     rows = []
     for it in qc_items(prediction):
         fields = _fields_for(it["key"], ids)
         rows.append({**it, "fields": fields, "required": it["key"] in required})
-    turns = (prediction.get("strands") or [{}])[0].get("turns")
+    turns = prediction.strands[0].turns if prediction.strands else None
     extra = [("strand.turns", "Turns counted (where checked)", f"{turns or ''}",
               f"{turns} per strand" if turns else "record"),
              ("waive", "Lines waived, with the reason", "", "line: reason; …"),

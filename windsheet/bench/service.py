@@ -29,17 +29,14 @@ def open_bench_register(path):
 
 
 def jobs(reg) -> list[dict]:
-    """Every job with its state and the design status of its latest issue."""
-    out = []
-    for j in reg.list_jobs():
-        _, prediction = issued(reg, j["number"])
-        j = dict(j, design=design_status(prediction, j))
-        out.append(j)
-    return out
+    """Every job with its state and the design state of its latest issue (one query, no design read)."""
+    from windsheet.design.state_rules import status_words
+
+    return [dict(j, design=status_words(j.get("design_status") or {}) or "ok") for j in reg.list_jobs()]
 
 
-def issued(reg, number: str) -> tuple[dict, dict]:
-    """A job's state at its latest issue, and the prediction recorded at that issue."""
+def issued(reg, number: str):
+    """A job's state at its latest issue, and the design recorded at that issue."""
     state = reg.job_state(number)
     issue_id, prediction = reg.find_issue(number, state["revision"], state["order_sha256"])
     state = dict(state, issue_id=issue_id)
@@ -52,20 +49,16 @@ def issued_order_text(reg, state: dict) -> str:
     return row[0] if row else ""
 
 
-def design_status(prediction: dict, state: Optional[dict] = None) -> str:
-    """The issued design's status in words: the register's when it keeps one, else the prediction's."""
-    from windsheet.design.qc_plan import status_of, status_words
+def design_status(design) -> str:
+    """The issued design's state in words ("ok" when sound)."""
+    from windsheet.design.state_rules import status_words
 
-    recorded = (state or {}).get("design_status")
-    status = recorded if isinstance(recorded, dict) and recorded.get("state") else status_of(prediction)
-    return status_words(status) or "ok"
+    return status_words(design.state) or "ok"
 
 
-def required_lines(prediction: dict) -> set:
-    """QC line keys a sign-off cannot do without (``qc_required``, or made from the design)."""
-    from windsheet.design.qc_plan import prediction_required_lines
-
-    return set(prediction_required_lines(prediction))
+def required_lines(design) -> set:
+    """QC line keys a sign-off cannot do without (the design's ``qc_required``)."""
+    return set(design.qc_required)
 
 
 def parse(document: dict):
@@ -75,7 +68,7 @@ def parse(document: dict):
     return measured_from_dict(document)
 
 
-def evaluate(prediction: dict, document: dict, inspector: Optional[str] = None,
+def evaluate(prediction, document: dict, inspector: Optional[str] = None,
              order_text: Optional[str] = None) -> dict:
     """The sign-off of ``document`` against the issued prediction (signoff.py).
 
@@ -120,7 +113,7 @@ def latest_signoff(reg, number: str, revision: str) -> Optional[dict]:
     return json.loads(row[0]) if row else None
 
 
-def signoff_sheet_pdf(prediction: dict, result: dict) -> bytes:
+def signoff_sheet_pdf(prediction, result: dict) -> bytes:
     """The sign-off sheet, as ``windsheet signoff -o`` writes it."""
     from windsheet.sheets.render import render_pdf, render_signoff_html
 

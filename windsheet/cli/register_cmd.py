@@ -43,20 +43,20 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
 
     if issue is not None:
         from windsheet.order.document import load_order
-        from windsheet.design.build import predict
-        from windsheet.design.qc_plan import design_fails, design_status
+        from windsheet.design.build import build_design
+        from windsheet.design.qc_plan import issued_state
         from windsheet.records.register import open_register
         from windsheet.sheets.render import check_issuable
 
         o = load_order(issue)
-        p = predict(o)
+        p = build_design(o)
         check_issuable(p, force)
-        p = {**p, "design_status": design_status(p, forced=force and design_fails(p))}
+        p = p.with_state(issued_state(p.state, force))
         with open_register(register, create=True) as reg:
             issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
-        forced = " — FORCED over a failing design check" if p["design_status"]["state"] == "forced" else ""
+        forced = " — FORCED over a failing design check" if p.state.state == "forced" else ""
         # Only what was recorded: the listing is its own command.
-        typer.echo(f"{how} {p['job']['number']} rev {p['job']['revision']} (issue {issued}){forced}", err=True)
+        typer.echo(f"{how} {p.job.number} rev {p.job.revision} (issue {issued}){forced}", err=True)
         return
     if not resolve_register_path(register).exists():
         typer.echo(f"(no register yet at {resolve_register_path(register)})")

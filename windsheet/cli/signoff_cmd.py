@@ -241,10 +241,10 @@ def readings_form_cmd(order: Path = typer.Argument(..., help="The order, a YAML 
     """Write a measured-values file for the order: its serial numbers, every required QC line empty."""
     from windsheet.common.fileio import atomic_write_text
     from windsheet.order.document import load_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
     from windsheet.qc.readings_form import csv_form, yaml_form
 
-    p = predict(load_order(order))
+    p = build_design(load_order(order))
     if out.exists():
         raise InputError(str(out), "already exists; a filled-in form is a record, not overwritten — "
                                    "choose another name")
@@ -252,5 +252,5 @@ def readings_form_cmd(order: Path = typer.Argument(..., help="The order, a YAML 
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
     csv_out = as_csv or out.suffix.lower() == ".csv"
     atomic_write_text(out, csv_form(p) if csv_out else yaml_form(p))
-    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: readings form for "
-               f"{len(p['job']['units'])} units, {len(p['qc_required'])} lines each: {out}", err=True)
+    typer.echo(f"{p.job.number} rev {p.job.revision}: readings form for "
+               f"{len(p.job.units)} units, {len(p.qc_required)} lines each: {out}", err=True)

@@ -16,69 +16,72 @@ def register(app: typer.Typer) -> None:
     app.command()(size)
 
 
-def summary_lines(p: dict) -> list[str]:
-    """The readable, aligned summary of a prediction."""
+def summary_lines(p) -> list[str]:
+    """The readable, aligned summary of a sized design."""
     rows = []
 
     def row(label, value):
         rows.append((label, value))
 
-    j = p["job"]
-    row("Job", f"{j['number']} rev {j['revision']} — {j['part']} (qty {j['quantity']})")
-    row("Wire", p["wire"]["label"] + f", overall {eng(p['wire']['overall_diameter_m'], 'm')}")
-    w = p["winding"]
-    layers = ", ".join(str(n) for n in w["turns_in_layer"])
-    row("Winding", f"{count(w['strands'], 'strand')} × {w['turns_per_strand']} turns, "
-        f"{count(w['layers'], 'layer')} ({layers} turns per strand), pitch {eng(w['pitch_m'], 'm')}")
-    if w.get("target"):
-        t = w["target"]
-        row("Target", f"{eng(t['inductance_H'], 'H')} → {t['turns_exact']:.2f} turns exact, "
-            f"{t['turns_chosen']} chosen give {eng(t['inductance_at_chosen_H'], 'H')} ({t['error'] * 100:+.2f} %)")
-    fit = p["fit"]
-    row("Fit", f"{fit['slots_per_layer']} slots per layer, traverse used {eng(fit['traverse_used_m'], 'm')}"
-        + (f" of {eng(fit['traverse_m'], 'm')}" if fit.get("traverse_m") else "")
-        + f", build {eng(fit['build_m'], 'm')}")
-    place = fit.get("placement") or {}
-    if place.get("margin_m") or place.get("bare_start_m", 0) > 1e-5:
-        row("Placement", f"first turn {eng(place['first_turn_m'], 'm')} from the start end"
-            + (f", margin tape {eng(place['margin_m'], 'm')} each end" if place.get("margin_m") else ""))
-    row("Hookup", hookup_words(p["hookup"]))
-    if p.get("terminations"):
-        row("Pins", ", ".join(f"pin {t['pin']} {' + '.join(t['ends'])}" for t in p["terminations"]))
-    for s in p["strands"]:
-        row(f"Strand {s['id']}", f"{eng(s['inductance_H'], 'H')}, {eng(s['resistance_20C_ohm'], 'Ω')} at 20 °C, "
-            f"{s['wire_length_m']:.2f} m ({s['wire_length_with_scrap_m']:.2f} m with scrap), "
-            f"{s['mass_kg'] * 1e3:.1f} g")
-    t = p["terminal"]
-    row("Terminals", f"L {eng(t['inductance_H'], 'H')} (accept {eng(t['accept']['inductance_min_H'], 'H')} … "
-        f"{eng(t['accept']['inductance_max_H'], 'H')}), R {eng(t['resistance_ohm'], 'Ω')} at 20 °C, "
-        f"{eng(t['resistance_hot_ohm'], 'Ω')} at {p['duty']['operating_temperature_C']:.0f} °C")
-    if t["accept"].get("inductance_basis") == "target":
+    j = p.job
+    row("Job", f"{j.number} rev {j.revision} — {j.part} (qty {j.quantity})")
+    row("Wire", p.wire.label + f", overall {eng(p.wire.overall_diameter_m, 'm')}")
+    w = p.winding
+    layers = ", ".join(str(n) for n in w.turns_in_layer)
+    row("Winding", f"{count(w.strands, 'strand')} × {w.turns_per_strand} turns, "
+        f"{count(w.layers, 'layer')} ({layers} turns per strand), pitch {eng(w.pitch_m, 'm')}")
+    if w.target:
+        t = w.target
+        row("Target", f"{eng(t.inductance_H, 'H')} → {t.turns_exact:.2f} turns exact, "
+            f"{t.turns_chosen} chosen give {eng(t.inductance_at_chosen_H, 'H')} ({t.error * 100:+.2f} %)")
+    fit = p.fit
+    row("Fit", f"{fit.slots_per_layer} slots per layer, traverse used {eng(fit.traverse_used_m, 'm')}"
+        + (f" of {eng(fit.traverse_m, 'm')}" if fit.traverse_m else "")
+        + f", build {eng(fit.build_m, 'm')}")
+    place = fit.placement
+    if place and (place.margin_m or place.bare_start_m > 1e-5):
+        row("Placement", f"first turn {eng(place.first_turn_m, 'm')} from the start end"
+            + (f", margin tape {eng(place.margin_m, 'm')} each end" if place.margin_m else ""))
+    row("Hookup", hookup_words(p))
+    if p.terminations:
+        row("Pins", ", ".join(f"pin {t.pin} {' + '.join(t.ends)}" for t in p.terminations))
+    for s in p.strands:
+        row(f"Strand {s.id}", f"{eng(s.inductance_H, 'H')}, {eng(s.resistance_20C_ohm, 'Ω')} at 20 °C, "
+            f"{s.wire_length_m:.2f} m ({s.wire_length_with_scrap_m:.2f} m with scrap), "
+            f"{s.mass_kg * 1e3:.1f} g")
+    t = p.terminal
+    own = "each winding: " if p.hookup.name == "separate" and len(p.strands) > 1 else ""
+    row("Terminals", own + f"L {eng(t.inductance_H, 'H')} (accept {eng(t.accept.inductance_min_H, 'H')} … "
+        f"{eng(t.accept.inductance_max_H, 'H')}), R {eng(t.resistance_ohm, 'Ω')} at 20 °C, "
+        f"{eng(t.resistance_hot_ohm, 'Ω')} at {p.duty.operating_temperature_C:.0f} °C")
+    if t.accept.inductance_basis == "target":
         row("", f"L accept band is the ordered target ± tolerance; prediction "
-            f"{t['accept']['prediction_offset'] * 100:+.2f} % from target")
-    row("", f"C {eng(t['capacitance_F'], 'F')}, self-resonance {eng(t['self_resonance_Hz'], 'Hz')}")
-    if t.get("resistance_ac_ohm") is not None and p.get("ac_resistance") and p["duty"]["frequency_Hz"]:
-        row("", f"R {eng(t['resistance_ac_ohm'], 'Ω')} at {eng(p['duty']['frequency_Hz'], 'Hz')} "
-            f"(AC/DC {p['ac_resistance']['ratio']:.3f}), loss {eng(t['loss_W'], 'W')} at the duty current")
-    if p.get("current_sheet_inductance_H"):
-        row("Cross-check", f"current sheet (Nagaoka) {eng(p['current_sheet_inductance_H'], 'H')}, with Rosa's "
-            f"correction {eng(p['current_sheet_rosa_corrected_H'], 'H')} (strand A)")
-    th = p.get("thermal")
+            f"{t.accept.prediction_offset * 100:+.2f} % from target")
+    row("", f"C {eng(t.capacitance_F, 'F')}, self-resonance {eng(t.self_resonance_Hz, 'Hz')}")
+    if t.resistance_ac_ohm is not None and p.ac_resistance and p.duty.frequency_Hz:
+        row("", f"R {eng(t.resistance_ac_ohm, 'Ω')} at {eng(p.duty.frequency_Hz, 'Hz')} "
+            f"(AC/DC {p.ac_resistance.ratio:.3f}), loss {eng(t.loss_W, 'W')} at the duty current")
+    if p.current_sheet_inductance_H:
+        row("Cross-check", f"current sheet (Nagaoka) {eng(p.current_sheet_inductance_H, 'H')}, with Rosa's "
+            f"correction {eng(p.current_sheet_rosa_corrected_H, 'H')} (strand A)")
+    th = p.thermal
     if th:
-        row("Heating", f"{th['verdict'].upper()} — surface +{th['surface_rise_K']:.1f} K, hot spot "
-            f"{th['hot_spot_C']:.0f} °C (class {th['thermal_class_C'] or '—'}), "
-            f"{th['current_density_A_per_mm2']:.2f} A/mm²")
-    imp = p.get("impulse")
+        row("Heating", f"{th.verdict.upper()} — surface +{th.surface_rise_K:.1f} K, hot spot "
+            f"{th.hot_spot_C:.0f} °C (class {th.thermal_class_C or '—'}), "
+            f"{th.current_density_A_per_mm2:.2f} A/mm²")
+    imp = p.impulse
     if imp:
-        row("Fast edge", f"first turn {eng(imp['first_turn_Vpk'], 'V')} peak (even share "
-            f"{eng(imp['first_turn_uniform_Vpk'], 'V')}), worst pair {eng(imp['worst_pair_Vpk'], 'V')} peak"
-            + (f", α {imp['alpha']:.3g}" if imp.get("alpha") is not None else ""))
-    wa = p["worst_adjacent"]
-    row("Worst adjacent", f"{eng(wa['voltage_Vpk'], 'V')} peak — {wa['where']}")
-    ins = p["insulation"]
-    row("Insulation", f"{ins['verdict'].upper()}" + "".join(f"\n{'':16}  {r}" for r in ins["reasons"]))
-    row("Hipot", f"{eng(p['hipot']['voltage_V'], 'V')} for {p['hipot']['duration_s']:.0f} s — {p['hipot']['basis']}")
-    for wtext in p["warnings"]:
+        row("Fast edge", f"first turn {eng(imp.first_turn_Vpk, 'V')} peak (even share "
+            f"{eng(imp.first_turn_uniform_Vpk, 'V')}), worst pair {eng(imp.worst_pair_Vpk, 'V')} peak"
+            + (f", α {imp.alpha:.3g}" if imp.alpha is not None else ""))
+    wa = p.worst_adjacent
+    row("Worst adjacent", f"{eng(wa.voltage_Vpk, 'V')} peak — {wa.where}")
+    ins = p.insulation
+    row("Insulation", f"{ins.verdict.upper()}" + "".join(f"\n{'':16}  {r}" for r in ins.reasons))
+    row("Hipot", f"{eng(p.hipot.voltage_V, 'V')} for {p.hipot.duration_s:.0f} s — {p.hipot.basis}")
+    if p.state.state != "ok":
+        row("Design", p.state.state.upper())
+    for wtext in p.warnings:
         row("Note", wtext)
     width = max(len(k) for k, _ in rows)
     return [f"{k:<{width}}  {v}" for k, v in rows]
@@ -89,11 +92,12 @@ def _end(end: str) -> str:
     return end.replace(".", " ")
 
 
-def hookup_words(h: dict) -> str:
-    """The hookup as a winder says it: ``series-aiding — A finish joined to B start; T1 A start, T2 B finish``."""
-    joins = "; ".join(" joined to ".join(_end(e) for e in j) for j in (h.get("joins") or []))
-    terms = ", ".join(f"T{i} {_end(t)}" for i, t in enumerate(h.get("terminals") or [], 1))
-    return f"{h['name']} — " + (f"{joins}; " if joins else "no joins; ") + f"terminals {terms}"
+def hookup_words(p) -> str:
+    """The hookup as a winder says it, every terminal numbered as on the traveller:
+    ``series-aiding — A finish joined to B start; terminals T1 A start, T2 B finish``."""
+    joins = "; ".join(" joined to ".join(_end(e) for e in j.ends) for j in p.connections.joints)
+    terms = ", ".join(f"{t.label} {_end(t.end)}" for t in p.connections.terminals)
+    return f"{p.hookup.name} — " + (f"{joins}; " if joins else "no joins; ") + f"terminals {terms}"
 
 
 def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folders of orders or globs; "
@@ -114,15 +118,15 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
         raise typer.Exit(2) from None
     if len(files) == 1:
         p = _size_one(files[0])
-        typer.echo(to_json(p) if as_json else "\n".join(summary_lines(p)))
+        typer.echo(to_json(p.as_json()) if as_json else "\n".join(summary_lines(p)))
         raise typer.Exit(1 if _insulation_fails(p) else 0)
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
 
     refused, failing = [], []
     with progress(len(files), "sizing") as step:
         for f in files:
             try:
-                p = predict(load_order_arg(f))
+                p = build_design(load_order_arg(f))
             except InputError as exc:
                 # Named by its file; the batch carries on.
                 msg = str(exc)
@@ -133,7 +137,7 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
             if _insulation_fails(p):
                 failing.append(f)
             if as_json:
-                typer.echo(json.dumps({"file": f, **p}, ensure_ascii=False, allow_nan=False, default=str))
+                typer.echo(json.dumps({"file": f, **p.as_json()}, ensure_ascii=False, allow_nan=False, default=str))
             else:
                 typer.echo(f"== {f}\n" + "\n".join(summary_lines(p)) + "\n")
             step()
@@ -145,12 +149,12 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
 
 
 @guarded
-def _size_one(arg: str) -> dict:
+def _size_one(arg: str):
     from .batch import load_order_arg
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
 
-    return predict(load_order_arg(arg))
+    return build_design(load_order_arg(arg))
 
 
-def _insulation_fails(p: dict) -> bool:
-    return (p.get("insulation") or {}).get("verdict") == "fail"
+def _insulation_fails(p) -> bool:
+    return p.insulation.verdict == "fail"

@@ -25,21 +25,21 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | Non
     ``pdf`` renders the HTML to PDF bytes (default :func:`render_pdf`, in process).
     """
     from .batch import load_order_arg
-    from windsheet.design.build import predict
-    from windsheet.design.qc_plan import design_fails, design_status
+    from windsheet.design.build import build_design
+    from windsheet.design.qc_plan import issued_state
     from windsheet.sheets.render import check_issuable, render_pdf, render_traveller_html
 
     o = load_order_arg(arg)
-    p = predict(o)
+    p = build_design(o)
     check_issuable(p, force)
     if fmt != "json":
         from windsheet.order.limits import check_sheet_units
 
-        check_sheet_units(len(p["job"]["units"]), "job.quantity", "traveller")
-    forced = force and design_fails(p)
-    p = {**p, "design_status": design_status(p, forced=forced)}
+        check_sheet_units(len(p.job.units), "job.quantity", "traveller")
+    p = p.with_state(issued_state(p.state, force))
+    forced = p.state.state == "forced"
     if fmt == "json":
-        data = (to_json(p) + "\n").encode("utf-8")
+        data = (to_json(p.as_json()) + "\n").encode("utf-8")
     else:
         page = render_traveller_html(p, paper=paper, forced=forced, units=units)
         data = page.encode("utf-8") if fmt == "html" else (pdf or render_pdf)(page)
@@ -141,7 +141,7 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
 
 def _said_issued(p, target, forced, how):
     note = " — FORCED over a failing design check" if forced else ""
-    typer.echo(f"{p['job']['number']} rev {p['job']['revision']}: {target}{note}", err=True)
+    typer.echo(f"{p.job.number} rev {p.job.revision}: {target}{note}", err=True)
 
 
 def _in_parallel(fn, work: list, jobs: int = 0):
@@ -165,7 +165,7 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     """Render every sample order's traveller, and the sample measurements' sign-off sheets, to PDF and HTML (nothing is recorded)."""
     from windsheet.common.fileio import atomic_write_bytes
     from windsheet.order.document import load_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
     from windsheet.qc.readings_file import load_measured
     from windsheet.sheets.render import order_files, render_pdf, render_traveller_html
     from windsheet.qc.signoff import evaluate_signoff
@@ -177,8 +177,8 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
     predictions = {}
     for f in files:
         o = load_order(f)
-        p = predict(o)
-        predictions[p["job"]["number"]] = (p, o)
+        p = build_design(o)
+        predictions[p.job.number] = (p, o)
         page = render_traveller_html(p)
         atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
         atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))

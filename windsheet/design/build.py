@@ -1,8 +1,9 @@
-"""From a validated order to the one Prediction every consumer reads.
+"""From a validated order to the one :class:`~windsheet.design.model.Design` every consumer reads.
 
 This module only composes the physics modules; it holds no model of its
-own.  The result is a plain JSON-ready dict in SI units (see README, "The
-prediction").  Rendering and sign-off read it and never recompute physics.
+own.  The result is the typed design in SI units (see README, "The
+prediction"), with its derived facts (:mod:`windsheet.design.derived`).
+Rendering and sign-off read it and never recompute physics.
 """
 
 from __future__ import annotations
@@ -26,7 +27,8 @@ from .remedies import advice, find_remedies
 from windsheet.physics.network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
 from windsheet.order.wire_choice import resolve_wire
-from .qc_plan import required_lines
+from .derived import complete
+from .model import SCHEMA, Design, DesignCore
 from .target_turns import solve_turns
 from windsheet.physics.wire import copper_mass, dc_resistance
 
@@ -232,8 +234,8 @@ def _ring(layout, most=90):
             "gap_deg": float(360.0 - (deg.max() - deg.min()) - wire_deg), "layers": layers}
 
 
-def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) -> dict:
-    """Size an order: the complete Prediction, JSON-ready, SI units.
+def build_design(order: Order, today: _dt.date | None = None, remedies: bool = True) -> Design:
+    """Size an order: the complete, typed design, SI units.
 
     With ``remedies``, an insulation verdict short of a pass lists the order
     changes that improve it, each found by sizing the changed order again
@@ -347,7 +349,7 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
     elv = 120.0 if duty.frequency == 0 else 50.0
     highest_V = max(duty.voltage, duty.between_windings or 0.0)
     out = {
-        "schema": "windsheet.prediction/1",
+        "schema": SCHEMA,
         "job": {"number": job.number, "part": job.part, "customer": job.customer, "quantity": job.quantity,
                 "revision": job.revision, "issued_by": job.issued_by,
                 "issue_date": (job.issue_date or today or _dt.date.today()).isoformat(),
@@ -424,7 +426,6 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
         "capacitance": st["capacitance"],
         "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
         "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
-        "qc_required": required_lines(S, bool(net.joins), True),
         "energy": {"magnetic_J": energy},
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
                      "stored_energy_J": energy, "surface_C": thermal["surface_C"],
@@ -434,14 +435,13 @@ def predict(order: Order, today: _dt.date | None = None, remedies: bool = True) 
                                         worst=st.get("worst_pair") or (None, None)),
         "warnings": warnings,
     }
+    core = DesignCore.model_validate(out)
     if remedies:
-        ins = out["insulation"]
-        found = find_remedies(order, out, lambda changed: predict(changed, today, remedies=False))
-        out["insulation"] = {**ins, "remedies": found,
-                             "reasons": list(ins["reasons"]) + advice(found, ins["verdict"])}
-    else:
-        out["insulation"] = {**out["insulation"], "remedies": None}
-    return out
+        found = find_remedies(order, core, lambda changed: build_design(changed, today, remedies=False))
+        ins = core.insulation
+        core = DesignCore.model_validate({**dict(core), "insulation": {
+            **ins.model_dump(), "remedies": found, "reasons": list(ins.reasons) + advice(found, ins.verdict)}})
+    return complete(core)
 
 
 def _inductance_accept(predicted, target, tol):

@@ -1,4 +1,4 @@
-"""The QC lines every unit must be read for, and the design's issue status.
+"""The QC plan (the lines every unit must be read for, each with how it is judged) and the design state.
 
 One list, made once from the sized design, is stored in the prediction as
 ``qc_required``: the traveller's QC record prints exactly these lines and the
@@ -8,6 +8,11 @@ Keys are the sign-off's line keys (``terminal.inductance``,
 """
 
 from __future__ import annotations
+
+from windsheet.common.fmt import eng
+
+from .model import DesignState, QcLine, QcPlan
+from .state_rules import state_from_checks
 
 STRAND_IDS = "ABCD"
 
@@ -61,59 +66,139 @@ def required_lines(strands: int, has_joins: bool, hipot_required: bool) -> list[
     return keys
 
 
-def prediction_required_lines(p: dict) -> list[str]:
-    """``qc_required`` of a prediction, or the list made from its design when absent."""
-    if p.get("qc_required") is not None:
-        return list(p["qc_required"])
-    strands = len(p.get("strands") or []) or 1
-    joins = bool((p.get("hookup") or {}).get("joins"))
-    hip = p.get("hipot") or {}
-    hipot = bool((p.get("cautions") or {}).get("hipot", True) and hip.get("voltage_V"))
-    return required_lines(strands, joins, hipot)
+#: Insulation resistance below which a unit fails when the order gives no figure
+#: (common practice for small windings at 500 V d.c.; the applicable standard governs).
+DEFAULT_MIN_INSULATION_OHM = 100e6
+
+#: The series-opposing (leakage) reading before the joint is a small difference
+#: of large inductances; its band is this many times the inductance tolerance.
+LEAKAGE_BAND_FACTOR = 2.0
 
 
-# --- Design status ----------------------------------------------------------------
-
-def design_fails(p: dict) -> bool:
-    """True when the design fails a check that stops a traveller being issued (insulation or heating)."""
-    return ((p.get("insulation") or {}).get("verdict") == "fail"
-            or (p.get("thermal") or {}).get("verdict") == "fail")
+def _band(value, tol):
+    if value is None or tol is None:
+        return None, None
+    return value * (1 - tol), value * (1 + tol)
 
 
-def design_status(p: dict, forced: bool = False) -> dict:
-    """How the design stands at issue: ``ok``, ``forced`` or ``failing``.
+def leakage_band(predicted, tol_L):
+    """The band of a series-opposing (leakage) reading before the joint: ±2× the inductance tolerance.
 
-    ``forced`` is a failing design issued on purpose with ``--force``;
-    ``failing`` one that fails without a recorded force (an older register).
+    Examples
+    --------
+    >>> [round(x * 1e6, 3) for x in leakage_band(2.0e-6, 0.1)]
+    [1.6, 2.4]
+    >>> leakage_band(0.0, 0.1)
+    (None, None)
     """
-    if not design_fails(p):
-        return {"state": "ok", "reasons": []}
-    ins = p.get("insulation") or {}
-    reasons = [str(r) for r in ins.get("reasons") or []] if ins.get("verdict") == "fail" else []
-    thermal = p.get("thermal") or {}
-    if thermal.get("verdict") == "fail":
-        reasons.append(f"thermal check fails: {thermal.get('reason') or 'over the thermal class'}")
-    return {"state": "forced" if forced else "failing",
-            "reasons": reasons or ["the design check fails"]}
+    if predicted is None or predicted <= 0:
+        return None, None
+    return _band(predicted, LEAKAGE_BAND_FACTOR * tol_L)
 
 
-def status_of(p: dict) -> dict:
-    """The design status stored with an issued prediction, else judged from it."""
-    st = p.get("design_status")
-    return dict(st) if st else design_status(p, forced=False)
+def plan_lines(core, required: list[str]) -> list[QcLine]:
+    """The QC record's lines, in the order of ``required``: label, how each is judged, its band.
+
+    Parameters
+    ----------
+    core : DesignCore
+        The sized design (strands, pairs, terminal and its accept bands,
+        tolerances, insulation, hipot).
+    required : list of str
+        The keys the record carries (:func:`required_lines`, or the list an
+        earlier issue was recorded with).
+
+    Returns
+    -------
+    lines : list of QcLine
+        One per key; a key this version has no rule for is recorded only.
+    """
+    tol = core.tolerances
+    ids = [s.id for s in core.strands]
+    term, acc = core.terminal, core.terminal.accept
+    ir_min = (core.insulation.ir_min_ohm if core.insulation else None) or DEFAULT_MIN_INSULATION_OHM
+    lines = {}
+
+    def add(key, label, judged, unit="", predicted=None, low=None, high=None, **kw):
+        lines[key] = QcLine(key=key, label=label, judged=judged, unit=unit, predicted=predicted,
+                            low=low, high=high, **kw)
+
+    # One strand alone is what the terminals read; its own rows would repeat them.
+    for s in core.strands if len(ids) > 1 else []:
+        add(f"strand.{s.id}.inductance", f"Inductance, strand {s.id} alone", "band", "H", s.inductance_H,
+            *_band(s.inductance_H, tol.inductance))
+        add(f"strand.{s.id}.resistance", f"DC resistance, strand {s.id} (at 20 °C)", "band", "ohm",
+            s.resistance_20C_ohm, *_band(s.resistance_20C_ohm, tol.resistance))
+    if core.hookup.joins and len(ids) >= 2:
+        for a, b in zip(ids, ids[1:]):
+            pair = core.pairs.get(f"{a}-{b}")
+            aid = pair.series_aiding_H if pair else None
+            opp = pair.series_opposing_H if pair else None
+            add(f"pair.{a}-{b}.series_aiding", f"Before joint: {a}+{b} series-aiding",
+                "band" if aid else "record", "H", aid, *(_band(aid, tol.inductance) if aid else (None, None)))
+            lo, hi = leakage_band(opp, tol.inductance)
+            add(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
+                "band" if lo is not None else "record", "H", opp, lo, hi,
+                note=f"leakage band ±{LEAKAGE_BAND_FACTOR * tol.inductance * 100:.0f} %" if lo is not None
+                else "leakage")
+    target = acc.inductance_basis == "target"
+    add("terminal.inductance", "Inductance at the terminals" + (" (band: ordered target ± tolerance)" if target else ""),
+        "band", "H", term.inductance_H, acc.inductance_min_H, acc.inductance_max_H,
+        note=f"{acc.prediction_offset * 100:+.2f} % from target" if target else "")
+    add("terminal.resistance", "DC resistance at the terminals (at 20 °C)", "band", "ohm", term.resistance_ohm,
+        acc.resistance_min_ohm, acc.resistance_max_ohm)
+    if len(ids) > 1:
+        add("continuity.strand_to_strand", "Continuity between strands", "expect", expect="open")
+        add("insulation.strand_to_strand", "Insulation resistance, strand to strand", "minimum", "ohm",
+            low=ir_min)
+    add("insulation.to_core", "Insulation resistance to core/form", "minimum", "ohm", low=ir_min)
+    hipot = core.hipot
+    if hipot is not None and hipot.voltage_V:
+        dur = hipot.duration_s
+        add("hipot", f"Hipot {eng(hipot.voltage_V, 'V', sig=3)}" + (f", {float(dur):g} s" if dur else "")
+            + ": leakage, withstand", "expect", expect="withstands", test_voltage_V=hipot.voltage_V,
+            duration_s=dur)
+    add("ambient", "Ambient temperature at test", "record", "degC")
+    # The record prints exactly the required lines, in their order.
+    return [lines.get(k) or QcLine(key=k, label=k, judged="record") for k in required]
 
 
-def status_words(st: dict) -> str:
-    """Shop words for a design status, empty when the design is sound."""
-    if st.get("state") == "forced":
-        return "FORCED: design fails its " + _which(st) + ", issued with --force"
-    if st.get("state") == "failing":
-        return "FAILING DESIGN: fails its " + _which(st)
-    return ""
+def plan_required(core) -> list[str]:
+    """:func:`required_lines` for a sized design."""
+    hipot = bool(core.cautions.hipot if core.cautions else True) and bool(core.hipot and core.hipot.voltage_V)
+    return required_lines(len(core.strands) or 1, bool(core.hookup.joins), hipot)
 
 
-def _which(st: dict) -> str:
-    thermal = any(str(r).startswith("thermal check fails") for r in st.get("reasons") or [])
-    others = any(not str(r).startswith("thermal check fails") for r in st.get("reasons") or [])
-    return ("insulation and thermal checks" if thermal and others else "thermal check" if thermal
-            else "insulation check")
+def qc_plan(core, required: list[str] | None = None) -> QcPlan:
+    """The design's QC plan; ``required`` keeps the list an earlier issue was recorded with."""
+    return QcPlan(lines=plan_lines(core, plan_required(core) if required is None else list(required)))
+
+
+# --- Design state ----------------------------------------------------------------
+
+def design_state(insulation, thermal) -> DesignState:
+    """How the design stands at sizing: ``failing``, ``marginal`` or ``ok``, with the reasons.
+
+    Failing when the insulation or the thermal check fails (a traveller is then
+    issued only with ``--force``, and the state becomes ``forced``); marginal
+    when either is marginal; ok otherwise.
+
+    Examples
+    --------
+    >>> from windsheet.design.model import Insulation, Thermal
+    >>> design_state(Insulation(verdict="marginal", reasons=["close to PD"]), None).state
+    'marginal'
+    >>> design_state(Insulation(verdict="pass"), None)
+    DesignState(state='ok', reasons=[])
+    """
+    state, reasons = state_from_checks(insulation.verdict if insulation else None,
+                                       insulation.reasons if insulation else None,
+                                       thermal.verdict if thermal else None, thermal.reason if thermal else None)
+    return DesignState(state=state, reasons=reasons)
+
+
+def issued_state(state: DesignState, forced: bool) -> DesignState:
+    """The state a design is issued with: a failing design issued with ``--force`` is ``forced``."""
+    if forced and state.state == "failing":
+        return DesignState(state="forced", reasons=state.reasons or ["the design check fails"])
+    return state

@@ -62,20 +62,18 @@ def _mm(x: float) -> str:
     return f"{x * 1e3:.3g} mm"
 
 
-def candidates(doc: dict, prediction: dict) -> list[dict]:
+def candidates(doc: dict, design) -> list[dict]:
     """Changes worth trying for this order, each ``{path: value}``, in the order offered."""
     out = []
     wire = doc.get("wire") or {}
     winding = doc.get("winding") or {}
-    p_wire = prediction.get("wire") or {}
-    p_wind = prediction.get("winding") or {}
-    strands = int(p_wind.get("strands") or 1)
-    layers = int(prediction.get("layers") or 1)
-    ov = float(p_wire.get("overall_diameter_m") or 0.0)
+    strands = design.winding.strands
+    layers = design.layers
+    ov = design.wire.overall_diameter_m
     if not wire.get("catalog"):
-        grade = int(p_wire.get("grade") or wire.get("grade") or 2)
+        grade = int(design.wire.grade or wire.get("grade") or 2)
         out += [{"wire.grade": g} for g in (2, 3) if g > grade]
-    pitch = float(p_wind.get("pitch_m") or 0.0)
+    pitch = float(design.winding.pitch_m or 0.0)
     for factor in (1.5, 2.0, 3.0):
         new = strands * ov * factor
         if new > pitch * (1 + 1e-6):
@@ -84,7 +82,7 @@ def candidates(doc: dict, prediction: dict) -> list[dict]:
                 change["winding.strand_spacing"] = "even"
             out.append(change)
     if layers > 1:
-        if not (p_wind.get("layer_tape_m") or 0) > 0:
+        if not design.winding.layer_tape_m > 0:
             out += [{"winding.layer_tape": "0.1 mm"}, {"winding.layer_tape": "0.25 mm"}]
         if 2 * layers <= 200:
             out.append({"winding.layers": 2 * layers})
@@ -94,13 +92,13 @@ def candidates(doc: dict, prediction: dict) -> list[dict]:
     if imp != "potted":
         out.append({"winding.impregnation": "potted"})
     routes = (winding.get("leads") or {})
-    for lead in prediction.get("leads") or []:
-        if lead.get("joint") and " + " in lead["joint"] and lead["route"] != "end-flange" \
-                and lead["lead"].endswith(".finish") and routes.get("joint") != "end-flange":
+    for lead in design.leads:
+        if lead.joint and " + " in lead.joint and lead.route != "end-flange" \
+                and lead.lead.endswith(".finish") and routes.get("joint") != "end-flange":
             out.append({"winding.leads.joint": "end-flange"})
-        elif lead["lead"].endswith(".finish") and not lead.get("joint") and lead["route"] != "end-flange":
+        elif lead.lead.endswith(".finish") and not lead.joint and lead.route != "end-flange":
             out.append({"winding.leads.finish": "end-flange"})
-        elif lead["lead"].endswith(".start") and lead["route"] != "through-form":
+        elif lead.lead.endswith(".start") and lead.route != "through-form":
             out.append({"winding.leads.start": "through-form"})
     unique = []
     for c in out:
@@ -109,17 +107,17 @@ def candidates(doc: dict, prediction: dict) -> list[dict]:
     return unique
 
 
-def find_remedies(order, prediction: dict, check) -> list[dict]:
+def find_remedies(order, design, check) -> list[dict]:
     """The candidate changes that improve the order's insulation verdict.
 
     Parameters
     ----------
     order : windsheet.order.document.Order
         The order as parsed (its YAML source is re-read and changed).
-    prediction : dict
-        The order's own prediction (verdict, wire, winding, leads).
+    design : windsheet.design.model.DesignCore
+        The order's own design (verdict, wire, winding, leads).
     check : callable
-        ``check(order) -> prediction`` sizing a changed order exactly as the
+        ``check(order) -> Design`` sizing a changed order exactly as the
         order itself was sized (without remedies of its own).
 
     Returns
@@ -134,8 +132,7 @@ def find_remedies(order, prediction: dict, check) -> list[dict]:
     """
     from windsheet.order.document import parse_order, read_yaml_bytes
 
-    ins = prediction.get("insulation") or {}
-    now = VERDICT_RANK.get(ins.get("verdict"), 2)
+    now = VERDICT_RANK.get(design.insulation.verdict, 2)
     if now == VERDICT_RANK["pass"]:
         return []
     doc = read_yaml_bytes(order.source, "order", label=order.path or "order")
@@ -147,14 +144,13 @@ def find_remedies(order, prediction: dict, check) -> list[dict]:
             result = check(parse_order(text, order.path))
         except InputError:
             return   # does not fit, or not an inductor at the duty: not a remedy
-        got = result["insulation"]
-        if VERDICT_RANK[got["verdict"]] > now:
-            found.append((-VERDICT_RANK[got["verdict"]], k, {
-                "set": change, "verdict": got["verdict"],
-                "worst_Vpk": float(result["worst_adjacent"]["voltage_Vpk"]),
-                "pdiv_Vpk": got.get("pdiv_Vpk")}))
+        got = result.insulation
+        if VERDICT_RANK[got.verdict] > now:
+            found.append((-VERDICT_RANK[got.verdict], k, {
+                "set": change, "verdict": got.verdict,
+                "worst_Vpk": float(result.worst_adjacent.voltage_Vpk), "pdiv_Vpk": got.pdiv_Vpk}))
 
-    singles = candidates(doc, prediction)
+    singles = candidates(doc, design)
     for k, change in enumerate(singles):
         attempt(k, change)
     if not any(r["verdict"] == "pass" for _, _, r in found):

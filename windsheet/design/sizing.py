@@ -1,7 +1,7 @@
 """One sizing pass: the order's layout at a turn count, its strand matrix and its network.
 
 The first links of the chain (order -> layout -> inductance + wire ->
-network), shared by :func:`windsheet.design.build.predict`, the target-inductance
+network), shared by :func:`windsheet.design.build.build_design`, the target-inductance
 search (:mod:`windsheet.design.target_turns`) and the sign-off's turn-count
 hypotheses.  Pure composition of the physics modules; no model of its own.
 """

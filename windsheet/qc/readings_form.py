@@ -29,9 +29,9 @@ _FILE_FIELDS = ("job", "revision", "inspector", "date", "instruments")
 _HEADER = re.compile(r"^\s*([^\[\]]+?)\s*(?:\[\s*([^\[\]]*?)\s*\])?\s*$")
 
 
-def _columns_for(key: str, prediction: dict) -> list[str]:
+def _columns_for(key: str, design) -> list[str]:
     """CSV columns (with units) that carry one required QC line."""
-    ids = [s["id"] for s in prediction.get("strands") or []]
+    ids = design.strand_ids
     if key == "ambient":
         return ["ambient [degC]"]
     if key == "hipot":
@@ -44,45 +44,45 @@ def _columns_for(key: str, prediction: dict) -> list[str]:
     return [f"{key} [{_COLUMNS[last]}]"] if last in _COLUMNS else [key]
 
 
-def csv_header(prediction: dict) -> list[str]:
+def csv_header(design) -> list[str]:
     cols = ["job", "revision", "inspector", "date", "serial"]
-    for key in prediction.get("qc_required") or []:
-        for c in _columns_for(key, prediction):
+    for key in design.qc_required:
+        for c in _columns_for(key, design):
             if c not in cols:
                 cols.append(c)
     return cols + ["notes"]
 
 
-def csv_form(prediction: dict) -> str:
+def csv_form(design) -> str:
     """The CSV form: header and one row per serial number, readings empty."""
-    job = prediction.get("job") or {}
-    head = csv_header(prediction)
+    job = design.job
+    head = csv_header(design)
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(head)
-    for serial in job.get("units") or []:
-        row = {"job": job.get("number"), "revision": job.get("revision") or "", "serial": serial}
+    for serial in job.units:
+        row = {"job": job.number, "revision": job.revision or "", "serial": serial}
         w.writerow([row.get(c, "") for c in head])
     return buf.getvalue()
 
 
-def yaml_form(prediction: dict) -> str:
+def yaml_form(design) -> str:
     """The YAML form: every required line of every unit, left empty."""
-    job = prediction.get("job") or {}
-    req = prediction.get("qc_required") or []
-    f_test = (prediction.get("test") or {}).get("frequency_Hz")
-    hip = prediction.get("hipot") or {}
-    ids = [s["id"] for s in prediction.get("strands") or []]
-    out = [f"# Measured values for job {job.get('number')} rev {job.get('revision')}: fill in every empty line.",
+    job = design.job
+    req = design.qc_required
+    f_test = design.test.frequency_Hz
+    hipot = design.qc_plan.line("hipot")
+    ids = design.strand_ids
+    out = [f"# Measured values for job {job.number} rev {job.revision}: fill in every empty line.",
            "# A line left empty is not read: the unit signs off INCOMPLETE.  To waive a line write",
            "#   waive: {hipot: \"reason\"}   under the unit.  Every quantity carries its unit.",
-           f"job: {job.get('number')}", f"revision: {job.get('revision') or ''}".rstrip(),
+           f"job: {job.number}", f"revision: {job.revision or ''}".rstrip(),
            "inspector:           # who signs the units off", "date:                # 2026-12-03",
            "instruments:", f"test_frequency: {f_test / 1e3:g} kHz" if f_test else "test_frequency:",
            "units:"]
     strand_keys = [k for k in req if k.startswith("strand.")]
     pair_keys = [k for k in req if k.startswith("pair.")]
-    for serial in job.get("units") or []:
+    for serial in job.units:
         out.append(f"  - serial: {serial}")
         if "ambient" in req:
             out.append("    ambient:           # e.g. 21.5 degC")
@@ -104,8 +104,8 @@ def yaml_form(prediction: dict) -> str:
             out.append("    continuity:")
             out += [f"      {a}-{b}:            # open or shorted" for a in ids for b in ids if a < b]
         if "hipot" in req:
-            spec = (f"   # spec {hip['voltage_V']:.0f} V for {hip.get('duration_s', 60):g} s"
-                    if hip.get("voltage_V") else "")
+            spec = (f"   # spec {hipot.test_voltage_V:.0f} V for {hipot.duration_s or 60:g} s"
+                    if hipot is not None and hipot.test_voltage_V else "")
             out += [f"    hipot:{spec}", "      voltage:", "      duration:", "      leakage:", "      result:"]
     return "\n".join(out) + "\n"
 

@@ -1,7 +1,9 @@
 """Sign-off: bench readings against the prediction, unit by unit, with a diagnosis.
 
-:func:`evaluate_signoff` takes the prediction dict (predict.py) and a
+:func:`evaluate_signoff` takes the issued :class:`~windsheet.design.model.Design` and a
 :class:`~windsheet.qc.measured.MeasuredFile` and returns a plain JSON-ready dict.
+Every line is judged against its band in the design's QC plan: the band the
+traveller's QC record and the bench page print.
 The chain inside sign-off:
 
 * signoff_lines.py -- one reading against its band; required lines and the
@@ -12,7 +14,7 @@ The chain inside sign-off:
 * signoff_text.py -- the terminal's text.
 
 It never recomputes the design: hypotheses are evaluated with the
-prediction's own strand matrix through the hookup network, and turn counts
+design's own strand matrix through the hookup network, and turn counts
 through the engine's ``resize`` callable when the caller gives one.
 """
 
@@ -24,16 +26,12 @@ from windsheet.qc import signoff_lines as sl
 from windsheet.common.errors import InputError, join_path
 from .measured import MeasuredFile, UnitReadings, coupling_coefficient, mutual_from_series, unit_ambient, \
     unit_test_frequency
-from windsheet.design.qc_plan import prediction_required_lines, status_of
+from windsheet.design.qc_plan import DEFAULT_MIN_INSULATION_OHM, leakage_band
 from .signoff_diagnosis import diagnose_strand, diagnose_terminals
 from .signoff_text import history_lines, register_lines, summary_lines  # noqa: F401 - the CLI's
 from .strand_balance import balance_lines, leakage_line
 from .trace import unit_trace
 from .wiring_hypotheses import GAUGE_STEP_R  # noqa: F401 - re-exported
-
-#: Insulation resistance below which a unit fails when the order gives no figure
-#: (common practice for small windings at 500 V d.c.; the applicable standard governs).
-DEFAULT_MIN_INSULATION_OHM = 100e6
 
 HIPOT_CAUTION = ("Hipot and insulation testing use dangerous voltages: follow local codes, the "
                  "applicable standard and your licensed test procedure.")
@@ -44,19 +42,29 @@ def _fact(scope, basis, text):
             "log_distance": None, "log_distance_as_ordered": None}
 
 
-def _conductor(prediction) -> str:
+def _conductor(design) -> str:
     # An aluminium winding is corrected to 20 °C with aluminium's coefficient, not copper's.
-    return (prediction.get("wire") or {}).get("conductor") or "copper"
+    return design.wire.conductor if design.wire else "copper"
 
 
-def _min_insulation(prediction) -> float:
-    ins = prediction.get("insulation") or {}
-    return float(ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM)
+def _bounds(design, key):
+    """The band of the plan's line ``key``: ``(low, high)``, or two Nones when it has none."""
+    ln = design.qc_plan.line(key)
+    return (ln.low, ln.high) if ln is not None and ln.judged in ("band", "minimum") else (None, None)
+
+
+def _min_insulation(design) -> float:
+    for key in ("insulation.to_core", "insulation.strand_to_strand"):
+        ln = design.qc_plan.line(key)
+        if ln is not None and ln.low is not None:
+            return float(ln.low)
+    ins = design.insulation
+    return float((ins.ir_min_ohm if ins else None) or DEFAULT_MIN_INSULATION_OHM)
 
 
 # --- Strands and pairs ----------------------------------------------------------------
 
-def _strand_lines(prediction, unit, base, strands, ambient, f_default, tol_L, tol_R, resize):
+def _strand_lines(design, unit, base, strands, ambient, f_default, tol_L, tol_R, resize):
     lines, findings, strand_L, strand_R = [], [], {}, {}
     for sid, sr in unit.strands.items():
         path = join_path(base, "strands", sid)
@@ -66,34 +74,37 @@ def _strand_lines(prediction, unit, base, strands, ambient, f_default, tol_L, to
         l_line = r_line = None
         if sr.inductance is not None:
             rd = sl.inductance_reading(sr.inductance, f_default)
-            lo, hi = sl.band(sp["inductance_H"], tol_L)
-            l_line = sl.line(f"strand.{sid}.inductance", f"Inductance, strand {sid} alone", "H",
-                             rd["inductance_H"], sp["inductance_H"], lo, hi, reading=rd, note=sl.freq_note(rd))
+            key = f"strand.{sid}.inductance"
+            lo, hi = _bounds(design, key) if design.qc_plan.line(key) else sl.band(sp.inductance_H, tol_L)
+            l_line = sl.line(key, f"Inductance, strand {sid} alone", "H",
+                             rd["inductance_H"], sp.inductance_H, lo, hi, reading=rd, note=sl.freq_note(rd))
             strand_L[sid] = rd["inductance_H"]
             lines.append(l_line)
         if sr.resistance is not None:
-            r_line = sl.resistance_line(f"strand.{sid}.resistance", f"Resistance, strand {sid}",
-                                        sr.resistance, ambient, sp["resistance_20C_ohm"], tol_R,
-                                        join_path(path, "resistance"), _conductor(prediction))
+            key = f"strand.{sid}.resistance"
+            r_line = sl.resistance_line(key, f"Resistance, strand {sid}", sr.resistance, ambient,
+                                        sp.resistance_20C_ohm,
+                                        _bounds(design, key) if design.qc_plan.line(key) else tol_R,
+                                        join_path(path, "resistance"), _conductor(design))
             if r_line["measured"] is not None:
                 strand_R[sid] = r_line["measured"]
             lines.append(r_line)
         if sr.turns is not None:
-            ok = sr.turns == int(sp["turns"])
+            ok = sr.turns == sp.turns
             lines.append(sl.line(f"strand.{sid}.turns", f"Turns counted, strand {sid}", "turns",
-                                 sr.turns, sp["turns"], result="pass" if ok else "fail"))
+                                 sr.turns, sp.turns, result="pass" if ok else "fail"))
             if not ok:
                 findings.append(_fact(f"strand {sid}", "turn count",
-                                      f"turn count off on strand {sid}: {sr.turns} counted, {sp['turns']} ordered"))
+                                      f"turn count off on strand {sid}: {sr.turns} counted, {sp.turns} ordered"))
         if any(x is not None and x["result"] == "fail" for x in (l_line, r_line)):
-            f = diagnose_strand(sid, idx, prediction, l_line and l_line["measured"], r_line and r_line["measured"],
+            f = diagnose_strand(sid, idx, design, l_line and l_line["measured"], r_line and r_line["measured"],
                                 resize=resize, open_circuit=bool(sr.resistance and sr.resistance.open))
             if f:
                 findings.append(f)
     return lines, findings, strand_L, strand_R
 
 
-def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
+def _pair_lines(design, unit, base, strands, strand_L, tol_L, f_default):
     lines, findings = [], []
     for key, pr in unit.before_joint.items():
         path = join_path(base, "before_joint", key)
@@ -101,17 +112,22 @@ def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
         for s in (a, b):
             if s not in strands:
                 raise InputError(path, f"strand {s} is not in this order")
-        pp = (prediction.get("pairs") or {}).get("-".join(sorted((a, b)))) or {}
-        La_p, Lo_p, k_p = pp.get("series_aiding_H"), pp.get("series_opposing_H"), pp.get("coupling")
+        pp = design.pairs.get("-".join(sorted((a, b))))
+        La_p, Lo_p, k_p = (pp.series_aiding_H, pp.series_opposing_H, pp.coupling) if pp else (None, None, None)
         ra = sl.inductance_reading(pr.series_aiding, f_default) if pr.series_aiding else None
         ro = sl.inductance_reading(pr.series_opposing, f_default) if pr.series_opposing else None
         if ra:
-            lo, hi = sl.band(La_p, tol_L) if La_p else (None, None)
+            plan_key = f"pair.{'-'.join(sorted((a, b)))}.series_aiding"
+            lo, hi = (_bounds(design, plan_key) if design.qc_plan.line(plan_key)
+                      else sl.band(La_p, tol_L) if La_p else (None, None))
             lines.append(sl.line(f"pair.{key}.series_aiding", f"Series-aiding {a}+{b}, before joint", "H",
                                  ra["inductance_H"], La_p, lo, hi, reading=ra, note=sl.freq_note(ra)))
         if ro:
+            plan = design.qc_plan.line(f"pair.{'-'.join(sorted((a, b)))}.series_opposing")
+            band = ((plan.low, plan.high) if plan is not None and plan.judged == "band"
+                    else leakage_band(Lo_p, tol_L))
             lines.append(leakage_line(f"pair.{key}.series_opposing", f"Series-opposing {a}−{b}, before joint",
-                                      ro["inductance_H"], Lo_p, tol_L, ro, sl.freq_note(ro)))
+                                      ro["inductance_H"], Lo_p, band, ro, sl.freq_note(ro)))
             if lines[-1]["result"] == "fail":
                 findings.append(_fact(f"strands {a}-{b}", "leakage",
                                       f"series-opposing {a}−{b} reads {lines[-1]['deviation'] * 100:+.0f} % "
@@ -120,12 +136,12 @@ def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
         if not (ra and ro):
             continue
         M = mutual_from_series(ra["inductance_H"], ro["inductance_H"])
-        L1 = strand_L.get(a, strands[a][1]["inductance_H"])
-        L2 = strand_L.get(b, strands[b][1]["inductance_H"])
+        L1 = strand_L.get(a, strands[a][1].inductance_H)
+        L2 = strand_L.get(b, strands[b][1].inductance_H)
         k = coupling_coefficient(M, L1, L2)
         src = "measured" if a in strand_L and b in strand_L else "predicted"
         lines.append(sl.line(f"pair.{key}.mutual", f"Mutual inductance {a}-{b}, (La - Lo)/4", "H", M,
-                             pp.get("mutual_H")))
+                             pp.mutual_H if pp else None))
         k_lo = k_p * (1 - tol_L) if k_p is not None else None
         lines.append(sl.line(f"pair.{key}.coupling", f"Coupling {a}-{b}, M/sqrt(L{a} L{b})", "", k, k_p,
                              k_lo, None, note=f"strand inductances {src}"))
@@ -143,32 +159,31 @@ def _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default):
 
 # --- Terminals, insulation ------------------------------------------------------------
 
-def _terminal_lines(prediction, unit, base, ambient, f_default, resize):
-    term = prediction["terminal"]
-    acc = term.get("accept") or {}
+def _terminal_lines(design, unit, base, ambient, f_default, resize):
+    term = design.terminal
+    acc = term.accept
     t = unit.terminals
     lines = []
     l_line = r_line = None
     if t.inductance is not None:
         rd = sl.inductance_reading(t.inductance, f_default)
         note = sl.freq_note(rd)
-        if acc.get("inductance_basis") == "target":
+        if acc.inductance_basis == "target":
             note += (f"; band is the ordered target ± tolerance, prediction "
-                     f"{acc.get('prediction_offset', 0) * 100:+.2f} % from target")
+                     f"{acc.prediction_offset * 100:+.2f} % from target")
+        lo, hi = _bounds(design, "terminal.inductance")
         l_line = sl.line("terminal.inductance", "Inductance at terminals", "H", rd["inductance_H"],
-                         acc.get("inductance_centre_H") or term["inductance_H"], acc.get("inductance_min_H"),
-                         acc.get("inductance_max_H"), reading=rd, note=note)
+                         acc.inductance_centre_H or term.inductance_H, lo, hi, reading=rd, note=note)
         lines.append(l_line)
     if t.resistance is not None:
         r_line = sl.resistance_line("terminal.resistance", "Resistance at terminals", t.resistance, ambient,
-                                    term["resistance_ohm"],
-                                    (acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm")),
-                                    join_path(base, "terminals", "resistance"), _conductor(prediction))
+                                    term.resistance_ohm, _bounds(design, "terminal.resistance"),
+                                    join_path(base, "terminals", "resistance"), _conductor(design))
         lines.append(r_line)
     finding = None
     if any(x is not None and x["result"] == "fail" for x in (l_line, r_line)):
         taps = [{"from": tp.from_, "to": tp.to, "inductance_H": tp.henries} for tp in unit.taps]
-        finding = diagnose_terminals(prediction, l_line and l_line["measured"], r_line and r_line["measured"],
+        finding = diagnose_terminals(design, l_line and l_line["measured"], r_line and r_line["measured"],
                                      taps=taps, resize=resize,
                                      open_circuit=bool(t.resistance and t.resistance.open))
     for tp in unit.taps:
@@ -184,9 +199,9 @@ _IR = (("strand_to_strand", "Insulation resistance strand to strand",
         "insulation to core is weak: enamel scraped at a core edge or lead exit"))
 
 
-def _insulation_lines(prediction, unit, base, strands):
+def _insulation_lines(design, unit, base, strands):
     lines, findings = [], []
-    ir_min = _min_insulation(prediction)
+    ir_min = _min_insulation(design)
     ins = unit.insulation
     if ins is not None:
         tv = f" at {ins.test_voltage:.4g} V d.c." if ins.test_voltage else ""
@@ -215,14 +230,14 @@ def _insulation_lines(prediction, unit, base, strands):
                                       "enamel, a pinched crossover or a stray strand at a joint)"))
     h = unit.hipot
     if h is not None and h.complete:
-        spec = prediction.get("hipot") or {}
-        v_spec, t_spec = spec.get("voltage_V"), spec.get("duration_s")
+        spec = design.qc_plan.line("hipot")
+        v_spec = spec.test_voltage_V if spec else (design.hipot.voltage_V if design.hipot else None)
+        t_spec = spec.duration_s if spec else (design.hipot.duration_s if design.hipot else None)
         lines.append(sl.line("hipot.voltage", "Hipot voltage applied", "V", h.voltage, v_spec, v_spec, None,
-                             note=spec.get("basis", "")))
+                             note=design.hipot.basis if design.hipot else ""))
         lines.append(sl.line("hipot.duration", "Hipot duration", "s", h.duration, t_spec, t_spec, None))
         if h.leakage is not None:
-            lines.append(sl.line("hipot.leakage", "Hipot leakage current", "A", h.leakage, None, None,
-                                 spec.get("leakage_max_A")))
+            lines.append(sl.line("hipot.leakage", "Hipot leakage current", "A", h.leakage))
         lines.append(sl.line("hipot.result", "Hipot withstand", "", None, result=h.result,
                              reading={"result": h.result}, note=h.result))
         if h.result == "fail":
@@ -237,34 +252,33 @@ def _insulation_lines(prediction, unit, base, strands):
 
 # --- One unit ------------------------------------------------------------------------
 
-def evaluate_unit(prediction: dict, measured: MeasuredFile, unit: UnitReadings, index: int,
+def evaluate_unit(design, measured: MeasuredFile, unit: UnitReadings, index: int,
                   resize: Optional[Callable] = None) -> dict:
     """Lines, verdict and diagnosis for one unit (see :func:`evaluate_signoff`)."""
     base = join_path("units", index)
-    tol = prediction.get("tolerances") or {}
-    tol_L, tol_R = float(tol.get("inductance") or 0.0), float(tol.get("resistance") or 0.0)
+    tol_L, tol_R = float(design.tolerances.inductance or 0.0), float(design.tolerances.resistance or 0.0)
     ambient = unit_ambient(measured, unit)
     f_default = unit_test_frequency(measured, unit)
     if f_default is None:
-        f_default = (prediction.get("test") or {}).get("frequency_Hz")
-    strands = {s["id"]: (i, s) for i, s in enumerate(prediction.get("strands") or [])}
-    lines, findings, strand_L, strand_R = _strand_lines(prediction, unit, base, strands, ambient, f_default,
+        f_default = design.test.frequency_Hz
+    strands = {s.id: (i, s) for i, s in enumerate(design.strands)}
+    lines, findings, strand_L, strand_R = _strand_lines(design, unit, base, strands, ambient, f_default,
                                                         tol_L, tol_R, resize)
-    b_lines, b_findings = balance_lines(prediction, strand_L, strand_R, resize)
+    b_lines, b_findings = balance_lines(design, strand_L, strand_R, resize)
     lines += b_lines
     findings += b_findings
-    p_lines, p_findings = _pair_lines(prediction, unit, base, strands, strand_L, tol_L, f_default)
+    p_lines, p_findings = _pair_lines(design, unit, base, strands, strand_L, tol_L, f_default)
     lines += p_lines
     findings += p_findings
-    t_lines, t_finding = _terminal_lines(prediction, unit, base, ambient, f_default, resize)
+    t_lines, t_finding = _terminal_lines(design, unit, base, ambient, f_default, resize)
     lines += t_lines
     if t_finding:
         findings.append(t_finding)
-    i_lines, i_findings = _insulation_lines(prediction, unit, base, strands)
+    i_lines, i_findings = _insulation_lines(design, unit, base, strands)
     lines += i_lines
     findings += i_findings
 
-    required = prediction_required_lines(prediction)
+    required = design.qc_required
     waive = {**measured.waive, **unit.waive}
     sl.check_waivers(unit.waive, required, join_path(base, "waive"))
     missing_all = sl.missing_lines(required, lines, ambient, list(strands))
@@ -273,10 +287,9 @@ def evaluate_unit(prediction: dict, measured: MeasuredFile, unit: UnitReadings, 
     lines += [sl.waived_line(k, r) for k, r in waived.items()]
     if missing:
         findings.append(_fact("unit", "incomplete", "not proven: required QC lines not read: " + ", ".join(missing)))
-    status = status_of(prediction)
     return {"serial": unit.serial, "verdict": sl.unit_verdict(lines, missing), "lines": lines,
             "diagnosis": findings, "missing": missing, "waived": waived, "ambient_C": ambient,
-            "notes": unit.notes, "design_status": status["state"], "trace": unit_trace(measured, unit)}
+            "notes": unit.notes, "design_status": design.state.state, "trace": unit_trace(measured, unit)}
 
 
 # --- All units ------------------------------------------------------------------------
@@ -304,15 +317,15 @@ def spread_of_units(units: list[dict]) -> list[dict]:
     return out
 
 
-def _check_job(prediction: dict, measured: MeasuredFile):
-    job = prediction.get("job") or {}
-    if measured.job != job.get("number"):
-        raise InputError("job", f"is {measured.job!r} but the order is job {job.get('number')!r}")
-    rev = job.get("revision")
+def _check_job(design, measured: MeasuredFile):
+    job = design.job
+    if measured.job != job.number:
+        raise InputError("job", f"is {measured.job!r} but the order is job {job.number!r}")
+    rev = job.revision
     if measured.revision is not None and rev is not None and str(measured.revision) != str(rev):
         raise InputError("revision", f"is {measured.revision!r} but the order is revision {rev!r}")
-    sl.check_waivers(measured.waive, prediction_required_lines(prediction), "waive")
-    serials = list(job.get("units") or [])
+    sl.check_waivers(measured.waive, design.qc_required, "waive")
+    serials = list(job.units)
     seen = {}
     for i, u in enumerate(measured.units):
         path = join_path("units", i, "serial")
@@ -324,14 +337,14 @@ def _check_job(prediction: dict, measured: MeasuredFile):
             raise InputError(path, f"{u.serial!r} is not a serial number of this job ({shown})")
 
 
-def evaluate_signoff(prediction: dict, measured: MeasuredFile, inspector: Optional[str] = None,
+def evaluate_signoff(design, measured: MeasuredFile, inspector: Optional[str] = None,
                      resize: Optional[Callable] = None) -> dict:
-    """Evaluate every unit's readings against the prediction.
+    """Evaluate every unit's readings against the issued design.
 
     Parameters
     ----------
-    prediction : dict
-        The Prediction of the order (predict.py); only its numbers are read.
+    design : windsheet.design.model.Design
+        The design the traveller was issued with; only its numbers and QC plan are read.
     measured : MeasuredFile
         The bench readings (measured.py), already in SI.
     inspector : str, optional
@@ -355,27 +368,26 @@ def evaluate_signoff(prediction: dict, measured: MeasuredFile, inspector: Option
     .. [1] IEC 60028 (copper resistance at 20 °C); F. W. Grover, Inductance
        Calculations (1946), ch. 1 (M from series-aiding and -opposing readings).
     """
-    _check_job(prediction, measured)
-    units = [evaluate_unit(prediction, measured, u, i, resize) for i, u in enumerate(measured.units)]
-    job = prediction.get("job") or {}
+    _check_job(design, measured)
+    units = [evaluate_unit(design, measured, u, i, resize) for i, u in enumerate(measured.units)]
+    job = design.job
     signed = {u["serial"] for u in units}
     count = {v: sum(u["verdict"] == v for u in units) for v in sl.VERDICTS}
     cautions = [HIPOT_CAUTION] if any(u.hipot or u.insulation for u in measured.units) else []
-    status = status_of(prediction)
     return {
         "schema": "windsheet.signoff/2",
-        "job": job.get("number"), "part": job.get("part"), "customer": job.get("customer"),
-        "revision": job.get("revision"), "order_hash": prediction.get("order_hash"),
+        "job": job.number, "part": job.part, "customer": job.customer,
+        "revision": job.revision, "order_hash": design.order_hash,
         "inspector": inspector or measured.inspector, "date": measured.date,
         "instruments": measured.instruments,
-        "design_status": status,
+        "design_status": design.state.model_dump(),
         "verdict": sl.job_verdict([u["verdict"] for u in units]),
         "units": units,
         "units_passed": count["pass"], "units_failed": count["fail"], "units_incomplete": count["incomplete"],
-        "units_not_signed": [s for s in (job.get("units") or []) if s not in signed],
+        "units_not_signed": [s for s in job.units if s not in signed],
         "spread": spread_of_units(units),
         "units_apart": [{"serial": u["serial"], "verdict": u["verdict"]} for u in units if u["verdict"] != "pass"],
-        "insulation_minimum_ohm": _min_insulation(prediction),
+        "insulation_minimum_ohm": _min_insulation(design),
         "cautions": cautions,
     }
 

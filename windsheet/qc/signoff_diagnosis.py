@@ -24,15 +24,14 @@ def _finding(scope, basis, text, likely, distance=None, d_ordered=None, **extra)
     return out
 
 
-def _ordered_arrays(prediction):
-    L = np.asarray(prediction["inductance_matrix_H"], dtype=float)
-    R = np.asarray([s["resistance_20C_ohm"] for s in prediction["strands"]], dtype=float)
+def _ordered_arrays(design):
+    L = np.asarray(design.inductance_matrix_H, dtype=float)
+    R = np.asarray([s.resistance_20C_ohm for s in design.strands], dtype=float)
     return L, R
 
 
-def _turns(prediction) -> int:
-    strands = prediction.get("strands") or []
-    return int(strands[0]["turns"]) if strands and strands[0].get("turns") else 0
+def _turns(design) -> int:
+    return design.strands[0].turns if design.strands else 0
 
 
 def _pick(scored, d_ordered, tol_L, scope):
@@ -65,13 +64,13 @@ def _resistance_on_prediction(scope, measured, ordered, tol_R, hookup_name):
                     turns_ruled_out="the resistance rules out a turn count")
 
 
-def diagnose_terminals(prediction: dict, L: Optional[float], R: Optional[float], *, taps=(),
+def diagnose_terminals(design, L: Optional[float], R: Optional[float], *, taps=(),
                        resize: Optional[Callable] = None, open_circuit=False) -> dict:
     """Explain terminal readings that miss, from the real wiring alternatives.
 
     Parameters
     ----------
-    prediction : dict
+    design : windsheet.design.model.Design
         The Prediction (reads ``inductance_matrix_H``, ``strands``, ``hookup``,
         ``test``, ``tolerances``, ``terminal``).
     L : float or None
@@ -97,18 +96,17 @@ def diagnose_terminals(prediction: dict, L: Optional[float], R: Optional[float],
     if open_circuit:
         return _finding(scope, "open", "open circuit at the terminals: a strand broken, a lead not "
                         "soldered, or a joint not made", True)
-    strands = len(prediction.get("strands") or [])
-    tol = prediction.get("tolerances") or {}
-    tol_L, tol_R = float(tol.get("inductance") or 0.1), float(tol.get("resistance") or 0.05)
-    f = float((prediction.get("test") or {}).get("frequency_Hz") or 1e3)
-    Lm, Rv = _ordered_arrays(prediction)
+    strands = len(design.strands)
+    tol_L, tol_R = float(design.tolerances.inductance or 0.1), float(design.tolerances.resistance or 0.05)
+    f = float(design.test.frequency_Hz or 1e3)
+    Lm, Rv = _ordered_arrays(design)
     floor = 1e-3 * float(np.trace(Lm))
-    hook = prediction.get("hookup") or {}
+    hook = design.hookup
     measured = {"L": L, "R": R}
-    wiring_ok = strands >= 2 and hook.get("name") != "separate" and hook.get("terminals")
+    wiring_ok = strands >= 2 and hook.name != "separate" and hook.terminals
     hyps = []
     if wiring_ok:
-        ordered_w = wh.wiring_from(hook.get("joins") or [], hook["terminals"], strands)
+        ordered_w = wh.wiring_from(hook.joins, hook.terminals, strands)
         tap_keys = wh._resolve_taps(ordered_w, list(taps))
         for key, (p, q), t in zip([k for k, _ in tap_keys], [x for _, x in tap_keys], taps):
             if p is not None and q is not None:
@@ -118,25 +116,24 @@ def diagnose_terminals(prediction: dict, L: Optional[float], R: Optional[float],
 
         def scored_wirings(two):
             out = []
-            for w, kind, text in wh.enumerate_wirings(ordered_w, strands, hook.get("name"), two):
+            for w, kind, text in wh.enumerate_wirings(ordered_w, strands, hook.name, two):
                 exp = wh.readings_of(w, Lm, Rv, f, tap_keys)
                 out.append({"basis": f"wiring:{kind}", "expected": exp, "wiring": w, "short": text,
                             "finding": text + wh._joint_text(ordered_w, w)})
             return out
         hyps = scored_wirings(False)
     else:
-        term = prediction["terminal"]
-        expected_ordered = {"L": term.get("inductance_H"), "R": term.get("resistance_ohm")}
+        expected_ordered = {"L": design.terminal.inductance_H, "R": design.terminal.resistance_ohm}
         tap_keys = []
 
     def reading(Lx, Rx):
         if wiring_ok:
             return wh.readings_of(ordered_w, Lx, Rx, f, tap_keys)
-        if hook.get("name") == "separate" or strands < 2:
+        if hook.name == "separate" or strands < 2:
             return {"L": float(np.asarray(Lx)[0, 0]), "R": float(Rx[0])}
         return {"L": None, "R": None}
 
-    turn_h = wh.turn_hypotheses(measured, _turns(prediction), resize, reading, tol_R)
+    turn_h = wh.turn_hypotheses(measured, _turns(design), resize, reading, tol_R)
     fixed = hyps + wh.gauge_hypotheses(expected_ordered)
     d_ordered = wh.log_distance(measured, expected_ordered, floor)
 
@@ -156,7 +153,7 @@ def diagnose_terminals(prediction: dict, L: Optional[float], R: Optional[float],
     picked = _pick(scored, d_ordered, tol_L, scope)
     rejected = [t for t in turn_h if t["rejected"]]
     if isinstance(picked, dict) and not picked["likely"]:
-        picked = _resistance_on_prediction(scope, measured, expected_ordered, tol_R, hook.get("name")) or picked
+        picked = _resistance_on_prediction(scope, measured, expected_ordered, tol_R, hook.name) or picked
     if isinstance(picked, dict):
         if rejected and picked["basis"] != "turns":
             picked["turns_ruled_out"] = "the resistance rules out a turn count"
@@ -202,7 +199,7 @@ def _priority(basis: str) -> int:
     return len(_KIND_ORDER)
 
 
-def diagnose_strand(sid: str, index: int, prediction: dict, L: Optional[float], R: Optional[float],
+def diagnose_strand(sid: str, index: int, design, L: Optional[float], R: Optional[float],
                     *, resize: Optional[Callable] = None, open_circuit=False) -> Optional[dict]:
     """Explain one strand's readings that miss: wrong wire or turn count.
 
@@ -211,9 +208,9 @@ def diagnose_strand(sid: str, index: int, prediction: dict, L: Optional[float], 
     sid : str
         Strand name ("A").
     index : int
-        Its position in the prediction's strands.
-    prediction : dict
-        The Prediction.
+        Its position in the design's strands.
+    design : windsheet.design.model.Design
+        The issued design.
     L, R : float or None
         Strand inductance [H] and resistance corrected to 20 °C [ohm].
     resize : callable, optional
@@ -226,16 +223,15 @@ def diagnose_strand(sid: str, index: int, prediction: dict, L: Optional[float], 
     scope = f"strand {sid}"
     if open_circuit:
         return _finding(scope, "open", f"strand {sid} is open: broken wire or a lead not terminated", True)
-    sp = prediction["strands"][index]
-    tol = prediction.get("tolerances") or {}
-    tol_L, tol_R = float(tol.get("inductance") or 0.1), float(tol.get("resistance") or 0.05)
-    ordered = {"L": sp.get("inductance_H"), "R": sp.get("resistance_20C_ohm")}
+    sp = design.strands[index]
+    tol_L, tol_R = float(design.tolerances.inductance or 0.1), float(design.tolerances.resistance or 0.05)
+    ordered = {"L": sp.inductance_H, "R": sp.resistance_20C_ohm}
     measured = {"L": L, "R": R}
 
     def reading(Lx, Rx):
         return {"L": float(np.asarray(Lx)[index, index]), "R": float(np.asarray(Rx)[index])}
 
-    turn_h = [t for t in wh.turn_hypotheses(measured, int(sp.get("turns") or 0), resize, reading, tol_R)
+    turn_h = [t for t in wh.turn_hypotheses(measured, sp.turns, resize, reading, tol_R)
               if not t["rejected"]]
     pool = wh.gauge_hypotheses(ordered) + turn_h
     scored = sorted(((wh.log_distance(measured, h["expected"]), h) for h in pool), key=lambda t: t[0])

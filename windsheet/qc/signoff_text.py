@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from windsheet.design.qc_plan import status_words
+from windsheet.design.state_rules import status_words
 
 
 def summary_lines(result: dict, eng) -> list[str]:

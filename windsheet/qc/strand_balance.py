@@ -21,25 +21,18 @@ from .signoff_lines import line
 #: spool agree far better than the design agrees with the bench (common practice).
 BALANCE_FRACTION = 0.5
 
-#: The series-opposing (leakage) reading before the joint is a small difference
-#: of large inductances; its band is this many times the inductance tolerance.
-LEAKAGE_BAND_FACTOR = 2.0
 
-
-def balance_tolerances(prediction: dict) -> tuple[float, float]:
+def balance_tolerances(design) -> tuple[float, float]:
     """Balance tolerances for strand L and R [fraction]."""
-    tol = prediction.get("tolerances") or {}
-    own = tol.get("strand_balance")
-    if own is not None:
-        return float(own), float(own)
-    return (BALANCE_FRACTION * float(tol.get("inductance") or 0.1),
-            BALANCE_FRACTION * float(tol.get("resistance") or 0.05))
+    tol = design.tolerances
+    if tol.strand_balance is not None:
+        return float(tol.strand_balance), float(tol.strand_balance)
+    return (BALANCE_FRACTION * float(tol.inductance or 0.1), BALANCE_FRACTION * float(tol.resistance or 0.05))
 
 
-def turn_exponents(prediction: dict, resize: Optional[Callable]) -> Optional[tuple[float, float]]:
+def turn_exponents(design, resize: Optional[Callable]) -> Optional[tuple[float, float]]:
     """Local exponents of a strand's L and R in its turn count, from the engine at N -/+ k."""
-    strands = prediction.get("strands") or []
-    n = int(strands[0].get("turns") or 0) if strands else 0
+    n = design.strands[0].turns if design.strands else 0
     if not resize or n < 2:
         return None
     k = max(1, round(0.05 * n))
@@ -53,12 +46,12 @@ def turn_exponents(prediction: dict, resize: Optional[Callable]) -> Optional[tup
     return a, b
 
 
-def _ratios(prediction, values, key):
+def _ratios(design, values, key):
     out = {}
-    for s in prediction.get("strands") or []:
-        v = values.get(s["id"])
-        if v is not None and s.get(key) and not math.isinf(v):
-            out[s["id"]] = v / s[key]
+    for s in design.strands:
+        v = values.get(s.id)
+        if v is not None and getattr(s, key) and not math.isinf(v):
+            out[s.id] = v / getattr(s, key)
     return out
 
 
@@ -72,14 +65,14 @@ def _deviations(ratios: dict) -> dict:
     return out
 
 
-def balance_lines(prediction: dict, strand_L: dict, strand_R: dict,
+def balance_lines(design, strand_L: dict, strand_R: dict,
                   resize: Optional[Callable] = None) -> tuple[list[dict], list[dict]]:
     """Balance lines for strand L and R, and a finding for the strand out of balance.
 
     Parameters
     ----------
-    prediction : dict
-        The Prediction (``strands``, ``tolerances``).
+    design : windsheet.design.model.Design
+        The issued design (``strands``, ``tolerances``).
     strand_L, strand_R : dict
         Measured strand inductance [H] and resistance at 20 °C [ohm] by strand id.
     resize : callable, optional
@@ -89,14 +82,14 @@ def balance_lines(prediction: dict, strand_L: dict, strand_R: dict,
     -------
     lines, findings : list of dict
     """
-    strands = prediction.get("strands") or []
+    strands = design.strands
     if len(strands) < 2:
         return [], []
-    tol_bL, tol_bR = balance_tolerances(prediction)
-    rl, rr = _ratios(prediction, strand_L, "inductance_H"), _ratios(prediction, strand_R, "resistance_20C_ohm")
+    tol_bL, tol_bR = balance_tolerances(design)
+    rl, rr = _ratios(design, strand_L, "inductance_H"), _ratios(design, strand_R, "resistance_20C_ohm")
     dl, dr = _deviations(rl), _deviations(rr)
     lines = []
-    for sid in [s["id"] for s in strands]:
+    for sid in [s.id for s in strands]:
         if sid in dl:
             lines.append(line(f"balance.{sid}.inductance", f"Balance, strand {sid} inductance against the others",
                               "", dl[sid], None, -tol_bL, tol_bL, note="ratio to prediction, against the "
@@ -113,19 +106,19 @@ def balance_lines(prediction: dict, strand_L: dict, strand_R: dict,
         return math.hypot(math.log(rl.get(sid, 1.0)), math.log(rr.get(sid, 1.0)))
     failing = {x["key"].split(".")[1] for x in lines if x["result"] == "fail"}
     sid = max(failing, key=off)
-    others = ", ".join(s["id"] for s in strands if s["id"] != sid)
+    others = ", ".join(s.id for s in strands if s.id != sid)
     dL = rl.get(sid, 1.0) / median([v for k, v in rl.items() if k != sid] or [1.0]) - 1
     dR = rr.get(sid, 1.0) / median([v for k, v in rr.items() if k != sid] or [1.0]) - 1
     parts = ([f"{dL * 100:+.1f} % inductance"] if sid in rl else []) + \
             ([f"{dR * 100:+.1f} % resistance"] if sid in rr else [])
     text = f"strand {sid} out of balance: {' and '.join(parts)} against strand(s) {others}"
-    expo = turn_exponents(prediction, resize)
+    expo = turn_exponents(design, resize)
     dn = None
     if expo:
         a, b = expo
         ys = ([(a, math.log(1 + dL))] if sid in rl else []) + ([(b, math.log(1 + dR))] if sid in rr else [])
         x = sum(c * y for c, y in ys) / sum(c * c for c, _ in ys)
-        n = int(strands[0]["turns"])
+        n = strands[0].turns
         dn = n * (math.exp(x) - 1)
         if abs(dn) >= 0.5:
             text += (f"; likely {abs(dn):.0f} turn{'s' if round(abs(dn)) != 1 else ''} "
@@ -136,10 +129,10 @@ def balance_lines(prediction: dict, strand_L: dict, strand_R: dict,
     return lines, [finding]
 
 
-def leakage_line(key, item, measured, predicted, tol_L, reading, note):
-    """The series-opposing reading before the joint against its prediction."""
-    if predicted is None or predicted <= 0:
+def leakage_line(key, item, measured, predicted, band, reading, note):
+    """The series-opposing reading before the joint against its band (the QC plan's leakage band)."""
+    lo, hi = band
+    if predicted is None or predicted <= 0 or lo is None:
         return line(key, item, "H", measured, predicted, reading=reading, note=note)
-    w = LEAKAGE_BAND_FACTOR * tol_L
-    return line(key, item, "H", measured, predicted, predicted * (1 - w), predicted * (1 + w),
-                reading=reading, note=note + f"; leakage band ±{w * 100:.0f} %")
+    return line(key, item, "H", measured, predicted, lo, hi, reading=reading,
+                note=note + f"; leakage band ±{(hi / predicted - 1) * 100:.0f} %")

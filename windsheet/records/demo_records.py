@@ -7,7 +7,6 @@ noise), drawn from a seeded generator so the register is the same each run.
 
 from __future__ import annotations
 
-import copy
 from pathlib import Path
 
 SAMPLES = Path(__file__).resolve().parents[2] / "samples"
@@ -19,10 +18,10 @@ FAMILIES = (
 )
 
 
-def _unit_readings(p: dict, serial: str, rng, l_bias: float, r_bias: float, spread: float, lot: str) -> dict:
-    t = p["terminal"]
-    L = t["inductance_H"] * (1 + l_bias + rng.normal(0, spread))
-    R = t["resistance_ohm"] * (1 + r_bias + rng.normal(0, spread / 2))
+def _unit_readings(p, serial: str, rng, l_bias: float, r_bias: float, spread: float, lot: str) -> dict:
+    t = p.terminal
+    L = t.inductance_H * (1 + l_bias + rng.normal(0, spread))
+    R = t.resistance_ohm * (1 + r_bias + rng.normal(0, spread / 2))
     return {"serial": serial, "terminals": {"inductance": f"{L * 1e6:.6g} uH", "resistance": f"{R:.6g} ohm"},
             "wire_lot": lot, "core_lot": "FORM-" + serial[-2:]}
 
@@ -33,7 +32,7 @@ def build_sample_register(path, seed: int = 2026) -> dict:
 
     from windsheet.qc.measured import measured_from_dict
     from windsheet.order.document import load_order
-    from windsheet.design.build import predict
+    from windsheet.design.build import build_design
     from .register import open_register
     from windsheet.qc.signoff import evaluate_signoff
 
@@ -42,21 +41,20 @@ def build_sample_register(path, seed: int = 2026) -> dict:
     with open_register(path) as reg:
         for sample, jobs, n, l_bias, r_bias, spread in FAMILIES:
             o = load_order(SAMPLES / sample)
-            base = predict(o, remedies=False)
+            base = build_design(o, remedies=False)
             for j, number in enumerate(jobs):
-                p = copy.deepcopy(base)
                 serials = [f"{number}-{k + 1:02d}" for k in range(n)]
-                p["job"].update(number=number, units=serials, quantity=n)
                 sha = f"{number}-{o.sha256}"[:64]
-                p["order_hash"] = sha
+                p = base.model_copy(update={"job": base.job.model_copy(update={
+                    "number": number, "units": serials, "quantity": n}), "order_hash": sha})
                 reg.record_issue(p, o.source.decode("utf-8", "replace"), sha)
                 lot = f"R-{2290 + j}"
                 measured = measured_from_dict({
-                    "job": number, "revision": p["job"]["revision"], "inspector": "M. Lindqvist (QC)",
+                    "job": number, "revision": p.job.revision, "inspector": "M. Lindqvist (QC)",
                     "ambient": "20 degC", "test_frequency": "1 kHz", "instrument_ids": {"lcr": "LCR-07"},
                     # Simulated units carry terminal readings only; the rest is waived, saying so.
                     "waive": {k: "simulated demo sign-off: terminal readings only"
-                              for k in p.get("qc_required") or () if not k.startswith("terminal.")},
+                              for k in p.qc_required if not k.startswith("terminal.")},
                     "units": [_unit_readings(p, s, rng, l_bias, r_bias, spread, lot) for s in serials]})
                 result = evaluate_signoff(p, measured)
                 reg.record_signoff(result, sha, "M. Lindqvist (QC)")

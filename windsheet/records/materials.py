@@ -1,6 +1,7 @@
 """Bill of materials across jobs: what to pull from stores for a set of orders.
 
-Reads predictions only (``predict``'s dict); nothing here computes physics.
+Reads designs only (:class:`windsheet.design.model.Design`); nothing here computes
+physics or counts what the design holds (its sleeving pieces, its quantity).
 Wire is grouped by standard, size, grade, conductor and thermal class; each
 group's length and mass are the jobs' ``wire_length_with_scrap_m`` and
 ``mass_kg`` times the job quantity, summed over strands.  Reels are counted
@@ -20,28 +21,22 @@ from windsheet.common.errors import InputError
 TAPE_OVERLAP = 0.10
 
 
-def wire_group(p: dict) -> tuple:
+def wire_group(wire) -> tuple:
     """The stock item a job's wire is drawn as: (standard, size [m], grade, conductor, thermal class [°C]).
 
     Examples
     --------
-    >>> wire_group({"wire": {"standard": "IEC 60317-0-1", "copper_diameter_m": 5.0e-4, "grade": 2,
-    ...                      "conductor": "copper", "thermal_class_C": 155}})
+    >>> from windsheet.design.model import WireSpec
+    >>> wire_group(WireSpec(label="0.500 mm grade 2", standard="IEC 60317-0-1", copper_diameter_m=5.0e-4,
+    ...                     overall_diameter_m=5.66e-4, grade=2, thermal_class_C=155))
     ('IEC 60317-0-1', 0.0005, 2, 'copper', 155)
     """
-    w = p["wire"]
     # Rounded to 0.1 µm so the same nominal size read two ways groups together.
-    return (w.get("standard"), round(float(w["copper_diameter_m"]), 7), w.get("grade"),
-            w.get("conductor") or "copper", w.get("thermal_class_C"))
+    return (wire.standard, round(float(wire.copper_diameter_m), 7), wire.grade, wire.conductor or "copper",
+            wire.thermal_class_C)
 
 
-def job_quantity(p: dict) -> int:
-    """Units to build: ``job.quantity``, else the serial count, else 1."""
-    job = p.get("job") or {}
-    return int(job.get("quantity") or len(job.get("units") or []) or 1)
-
-
-def job_wire(p: dict) -> dict:
+def job_wire(p) -> dict:
     """One job's wire: per unit and for the job's quantity, scrap included.
 
     Returns
@@ -50,88 +45,77 @@ def job_wire(p: dict) -> dict:
         ``group`` (see :func:`wire_group`), ``label``, ``strands``, ``quantity``,
         ``length_per_unit_m``, ``length_m`` and ``mass_kg`` (conductor mass;
         the enamel is not weighed) for the whole job.
-
-    Examples
-    --------
-    >>> p = {"job": {"quantity": 3}, "wire": {"standard": "S", "copper_diameter_m": 5e-4, "grade": 1,
-    ...      "conductor": "copper", "thermal_class_C": 155, "label": "0.500 mm grade 1"},
-    ...      "strands": [{"wire_length_with_scrap_m": 11.0, "mass_kg": 0.02},
-    ...                  {"wire_length_with_scrap_m": 11.0, "mass_kg": 0.02}]}
-    >>> r = job_wire(p); (r["length_m"], round(r["mass_kg"], 6))
-    (66.0, 0.12)
     """
-    qty = job_quantity(p)
-    per_unit = sum(float(s["wire_length_with_scrap_m"]) for s in p["strands"])
-    mass_unit = sum(float(s["mass_kg"]) for s in p["strands"])
-    return {"group": wire_group(p), "label": p["wire"].get("label"), "strands": len(p["strands"]),
+    qty = p.quantity
+    per_unit = sum(float(s.wire_length_with_scrap_m) for s in p.strands)
+    mass_unit = sum(float(s.mass_kg) for s in p.strands)
+    return {"group": wire_group(p.wire), "label": p.wire.label, "strands": len(p.strands),
             "quantity": qty, "length_per_unit_m": per_unit, "length_m": qty * per_unit,
             "mass_kg": qty * mass_unit}
 
 
-def _base_perimeter(form: dict) -> Optional[float]:
-    if form.get("kind") == "toroid":
+def _base_perimeter(form) -> Optional[float]:
+    if form.kind == "toroid":
         return None  # tape round a toroid's section spirals the whole ring: not estimated
-    if form.get("diameter_m"):
-        return math.pi * float(form["diameter_m"])
-    if form.get("mean_turn_length_m"):
-        return float(form["mean_turn_length_m"])
+    if form.diameter_m:
+        return math.pi * float(form.diameter_m)
+    if form.mean_turn_length_m:
+        return float(form.mean_turn_length_m)
     return None
 
 
-def job_tape(p: dict, overlap: float = TAPE_OVERLAP) -> Optional[dict]:
+def job_tape(p, overlap: float = TAPE_OVERLAP) -> Optional[dict]:
     """Layer tape of one job: wraps, width and length, or None when the winding has none.
 
     A wrap over layer k (of L) lies at height k·b/L on the form (b the build);
     its length is the form's perimeter plus 2π times that height, plus the overlap.
     """
-    w = p.get("winding") or {}
-    layers = int(p.get("layers") or w.get("layers") or 1)
-    if not (w.get("layer_tape_m") or 0) > 0 or layers < 2:
+    w = p.winding
+    layers = p.layers
+    if not w.layer_tape_m > 0 or layers < 2:
         return None
-    qty = job_quantity(p)
-    base = _base_perimeter(p.get("form") or {})
-    build = float((p.get("fit") or {}).get("build_m") or 0.0)
+    qty = p.quantity
+    base = _base_perimeter(p.form)
+    build = float(p.fit.build_m or 0.0)
     length = None
     if base is not None:
         length = qty * sum((base + 2 * math.pi * k * build / layers) * (1 + overlap) for k in range(1, layers))
-    width = (p.get("fit") or {}).get("traverse_m")
-    return {"spec": f"{w.get('layer_tape_material') or 'insulating tape'}, {w['layer_tape_m'] * 1e6:.0f} µm thick"
+    width = p.fit.traverse_m
+    return {"spec": f"{w.layer_tape_material or 'insulating tape'}, {w.layer_tape_m * 1e6:.0f} µm thick"
                     + (f", {width * 1e3:.1f} mm wide" if width else ""),
             "wraps": qty * (layers - 1), "length_m": length, "quantity": qty}
 
 
-def job_sleeving(p: dict) -> dict:
-    """Sleeving: one piece over each terminal lead and each joint, each a lead length (common practice)."""
-    qty = job_quantity(p)
-    h = p.get("hookup") or {}
-    w = p.get("winding") or {}
-    od = float(p["wire"]["overall_diameter_m"])
-    pieces = len(h.get("terminals") or []) + len(h.get("joins") or [])
-    lead = float(w.get("lead_length_m") or 0.0)
-    joints = len(h.get("joins") or [])
+def job_sleeving(p) -> dict:
+    """Sleeving: the design's pieces per unit (one over each terminal lead and each joint), each a lead length
+    (common practice)."""
+    qty = p.quantity
+    od = float(p.wire.overall_diameter_m)
+    pieces = p.connections.sleeving_pieces_per_unit
+    lead = float(p.winding.lead_length_m or 0.0)
     # A joint holds two wires side by side: the bore must take both.
-    bore = 2 * od if joints else od
-    cls = p["wire"].get("thermal_class_C")
+    bore = 2 * od if p.connections.joints else od
+    cls = p.wire.thermal_class_C
     return {"spec": f"sleeving, bore at least {bore * 1e3:.2f} mm" + (f", class {cls} °C" if cls else ""),
-            "pieces": qty * pieces, "length_m": qty * pieces * lead, "quantity": qty}
+            "pieces": qty * pieces, "pieces_per_unit": pieces, "length_m": qty * pieces * lead, "quantity": qty}
 
 
-def job_form(p: dict) -> dict:
+def job_form(p) -> dict:
     """The form or core: one per unit, described by kind, material and size."""
-    f = p.get("form") or {}
+    f = p.form
     dims = []
     for key, name in (("diameter_m", "Ø"), ("inner_diameter_m", "ID"), ("outer_diameter_m", "OD"),
                       ("height_m", "h"), ("traverse_m", "traverse"), ("width_m", "window")):
-        if f.get(key):
-            dims.append(f"{name} {f[key] * 1e3:g} mm")
-    spec = f"{f.get('kind') or 'form'}, {f.get('material') or '—'}" + (f", {' '.join(dims)}" if dims else "")
-    return {"spec": spec, "count": job_quantity(p)}
+        if getattr(f, key):
+            dims.append(f"{name} {getattr(f, key) * 1e3:g} mm")
+    spec = f"{f.kind or 'form'}, {f.material or '—'}" + (f", {' '.join(dims)}" if dims else "")
+    return {"spec": spec, "count": p.quantity}
 
 
-def job_labels(p: dict) -> dict:
+def job_labels(p) -> dict:
     """Unit labels: one per serial number (or per unit when the order lists none)."""
-    serials = list((p.get("job") or {}).get("units") or [])
-    return {"count": max(len(serials), job_quantity(p)), "serials": serials}
+    serials = list(p.job.units)
+    return {"count": max(len(serials), p.quantity), "serials": serials}
 
 
 # --- Reels ---------------------------------------------------------------------------
@@ -200,8 +184,8 @@ def bill_of_materials(predictions: list[dict], reels: Optional[list[dict]] = Non
 
     Parameters
     ----------
-    predictions : list of dict
-        One prediction per job (:func:`windsheet.design.build.predict`).
+    predictions : list of Design
+        One design per job (:func:`windsheet.design.build.build_design`).
     reels : list of dict, optional
         The shop's reel list (:func:`load_reels`).
     tape_overlap : float
@@ -215,24 +199,15 @@ def bill_of_materials(predictions: list[dict], reels: Optional[list[dict]] = Non
         tape and sleeving by specification, forms by specification, labels),
         lengths in metres and masses in kilograms.
 
-    Examples
-    --------
-    >>> p = {"job": {"number": "J1", "quantity": 2, "units": ["J1-1", "J1-2"]},
-    ...      "wire": {"standard": "S", "copper_diameter_m": 5e-4, "grade": 1, "conductor": "copper",
-    ...               "thermal_class_C": 155, "label": "w", "overall_diameter_m": 5.4e-4},
-    ...      "strands": [{"wire_length_with_scrap_m": 10.0, "mass_kg": 0.02}], "form": {"kind": "cylinder"},
-    ...      "winding": {"lead_length_m": 0.15}, "hookup": {"terminals": ["A.start", "A.finish"], "joins": []}}
-    >>> b = bill_of_materials([p, p]); b["total"]["wire"][0]["length_m"], b["total"]["labels"]
-    (40.0, 4)
     """
     jobs, wires = [], []
     for p in predictions:
-        job = p.get("job") or {}
-        wire = {**job_wire(p), "job": job.get("number")}
+        job = p.job
+        wire = {**job_wire(p), "job": job.number}
         _add_reels(wire, reels)
         wires.append(wire)
-        jobs.append({"job": job.get("number"), "part": job.get("part"), "customer": job.get("customer"),
-                     "revision": job.get("revision"), "quantity": job_quantity(p), "wire": wire,
+        jobs.append({"job": job.number, "part": job.part, "customer": job.customer,
+                     "revision": job.revision, "quantity": p.quantity, "wire": wire,
                      "tape": job_tape(p, tape_overlap), "sleeving": job_sleeving(p), "form": job_form(p),
                      "labels": job_labels(p)})
     return {"schema": "windsheet.materials/1", "jobs": jobs,

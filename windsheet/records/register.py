@@ -28,7 +28,7 @@ from windsheet.records import register_schema as schema
 from windsheet.common.fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
 from .sheet_ledger import finish_pending, record_pending
-from windsheet.design.qc_plan import status_of
+from windsheet.design.state_rules import recorded_state
 from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
 
 DEFAULT_FILE = "windsheet-register.db"
@@ -295,7 +295,7 @@ class Register:
 
     # -- issue -------------------------------------------------------------------------
 
-    def record_issue(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
+    def record_issue(self, design, order_text: str, order_sha256: Optional[str] = None,
                      revision: Optional[str] = None, sheet=None) -> int:
         """Record that a traveller was issued; returns the issue id.
 
@@ -304,17 +304,21 @@ class Register:
         issue, whose id is returned.  The same revision with different content
         is refused: a changed order needs a new revision.
         """
-        return self.issue_or_reprint(predictions, order_text, order_sha256, revision, sheet)[0]
+        return self.issue_or_reprint(design, order_text, order_sha256, revision, sheet)[0]
 
-    def issue_or_reprint(self, predictions: dict, order_text: str, order_sha256: Optional[str] = None,
+    def issue_or_reprint(self, design, order_text: str, order_sha256: Optional[str] = None,
                          revision: Optional[str] = None, sheet=None) -> tuple[int, str]:
-        """Like :meth:`record_issue`; returns ``(issue id, "issued" or "reprinted")``."""
-        job = predictions.get("job") or {}
-        number = job.get("number")
+        """Like :meth:`record_issue`; returns ``(issue id, "issued" or "reprinted")``.
+
+        ``design`` is the :class:`~windsheet.design.model.Design` the traveller shows; it is
+        stored whole, as its JSON, and sign-off judges the units against it.
+        """
+        job = design.job
+        number = job.number
         if not number:
             raise InputError("job.number", "the prediction has no job number")
-        revision = str(revision if revision is not None else (job.get("revision") or "-"))
-        order_sha256 = order_sha256 or predictions.get("order_hash")
+        revision = str(revision if revision is not None else (job.revision or "-"))
+        order_sha256 = order_sha256 or design.order_hash
         if not order_sha256:
             raise InputError("order", "no order hash to record")
         with self.transaction() as c:
@@ -330,20 +334,17 @@ class Register:
                               (number, revision)).fetchone()
             if first is not None:
                 c.execute("INSERT INTO reprints (issue_id, printed_by, printed_at) VALUES (?, ?, ?)",
-                          (first[0], job.get("issued_by"), now))
+                          (first[0], job.issued_by, now))
                 if sheet is not None:
                     record_pending(c, sheet, first[0], now)
                 return int(first[0]), "reprinted"
-            c.execute("INSERT OR IGNORE INTO jobs VALUES (?, ?, ?, ?)",
-                      (number, job.get("part"), job.get("customer"), now))
-            c.execute("UPDATE jobs SET part = ?, customer = ? WHERE number = ?",
-                      (job.get("part"), job.get("customer"), number))
+            c.execute("INSERT OR IGNORE INTO jobs VALUES (?, ?, ?, ?)", (number, job.part, job.customer, now))
+            c.execute("UPDATE jobs SET part = ?, customer = ? WHERE number = ?", (job.part, job.customer, number))
             cur = c.execute(
                 "INSERT INTO issues (job, revision, order_sha256, order_text, predictions_json, units_json,"
                 " issued_by, issued_at, design_state) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
-                (number, revision, order_sha256, order_text, _dumps(predictions),
-                 _dumps(list(job.get("units") or [])), job.get("issued_by"), now,
-                 schema.design_state_of(predictions)))
+                (number, revision, order_sha256, order_text, _dumps(design.as_json()),
+                 _dumps(list(job.units)), job.issued_by, now, design.state.state))
             if sheet is not None:
                 record_pending(c, sheet, cur.lastrowid, now)
             return int(cur.lastrowid), "issued"
@@ -369,13 +370,13 @@ class Register:
                                          f"(issued: {issued}); issue its traveller first")
 
     @_reads
-    def find_issue(self, number: str, revision: Optional[str], order_sha256: str) -> tuple[int, dict]:
-        """The issue a sign-off of this order belongs to, and its recorded predictions.
+    def find_issue(self, number: str, revision: Optional[str], order_sha256: str):
+        """The issue a sign-off of this order belongs to, and the design it was issued with.
 
         Raises the same refusals as :meth:`record_signoff`.
         """
         issue_id = self._issue_for(self.conn, number, str(revision or "-"), order_sha256)
-        return issue_id, self.issued_predictions(issue_id)
+        return issue_id, self.issued_design(issue_id)
 
     def record_signoff(self, result: dict, order_sha256: Optional[str] = None,
                        inspector: Optional[str] = None, measured_units: Optional[list] = None,
@@ -472,7 +473,7 @@ class Register:
             state = ("failed" if failed else "incomplete" if incomplete
                      else "passed" if got and everyone <= set(passed) else "issued")
             if dstate is None:  # a version-1 register read as it is
-                dstate = schema.design_state_of(self.issued_predictions(iid))
+                dstate = recorded_state(self.issued_record(iid))["state"]
             out.append({"number": job, "revision": rev, "order_sha256": sha, "issued_at": at,
                         "issued_by": by, "state": state, "units": serials, "part": part, "customer": customer,
                         "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
@@ -487,7 +488,7 @@ class Register:
         if not found:
             raise InputError("job", f"job {number} is not in register {self.label}")
         st = found[0]
-        st["design_status"] = status_of(self.issued_predictions(st["issue_id"]))
+        st["design_status"] = recorded_state(self.issued_record(st["issue_id"]))
         return st
 
     @_reads
@@ -502,7 +503,7 @@ class Register:
         for rid, rev, sha, at, by in self.conn.execute(
                 "SELECT id, revision, order_sha256, issued_at, issued_by FROM issues WHERE job = ? ORDER BY id",
                 (number,)):
-            status = status_of(self.issued_predictions(rid))["state"]
+            status = recorded_state(self.issued_record(rid))["state"]
             events.append({"event": "issued", "id": rid, "revision": rev, "order_sha256": sha, "at": at,
                            "by": by, "design_status": status})
             if self._has_reprints():
@@ -529,7 +530,8 @@ class Register:
                                  ).fetchone() is not None
 
     @_reads
-    def issued_predictions(self, issue_id: int) -> dict:
+    def issued_record(self, issue_id: int) -> dict:
+        """The design an issue was recorded with, as its stored JSON (any version)."""
         row = self.conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()
         if row is None:
             raise InputError("register", f"no issue {issue_id}")
@@ -537,6 +539,14 @@ class Register:
         if not isinstance(p, dict) or not isinstance(p.get("job"), dict):
             raise ValueError(f"issue {issue_id}: its prediction is not a prediction")
         return p
+
+    @_reads
+    def issued_design(self, issue_id: int):
+        """The :class:`~windsheet.design.model.Design` an issue was recorded with; an earlier
+        version's record is read through :func:`windsheet.design.legacy.read_design`."""
+        from windsheet.design.legacy import read_design
+
+        return read_design(self.issued_record(issue_id))
 
 
 def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = True) -> Register:

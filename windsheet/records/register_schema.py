@@ -73,7 +73,7 @@ JSON_COLUMNS = (("issues", "predictions_json", "object"), ("issues", "units_json
 
 
 def design_state_of(predictions: dict) -> str:
-    """``ok``, ``forced`` or ``failing``: the design status an issue is recorded with.
+    """``ok``, ``marginal``, ``forced`` or ``failing``: the design state an issue is recorded with.
 
     Examples
     --------
@@ -84,12 +84,9 @@ def design_state_of(predictions: dict) -> str:
     >>> design_state_of({"insulation": {"verdict": "pass"}, "thermal": {"verdict": "fail"}})
     'failing'
     """
-    st = (predictions.get("design_status") or {}).get("state") if isinstance(predictions, dict) else None
-    if st:
-        return str(st)
-    from windsheet.design.qc_plan import design_fails
+    from windsheet.design.state_rules import recorded_state
 
-    return "failing" if design_fails(predictions or {}) else "ok"
+    return recorded_state(predictions)["state"]
 
 
 def columns(conn: sqlite3.Connection, table: str) -> set:

@@ -1,8 +1,9 @@
 """The shop's QC report from its register: bias per family, control charts.
 
 Reads every unit signed off in the register (the latest sign-off of each
-unit counts), groups them by family (:func:`windsheet.qc.qc_stats.family_of`, read
-from the issued prediction) and hands them to :mod:`windsheet.qc.qc_stats`.  This
+unit counts), groups them by family (the design's ``family``, recorded with the
+issue; :func:`windsheet.design.family.family_of` for an earlier version's record)
+and hands them to :mod:`windsheet.qc.qc_stats`.  This
 module only gathers and packages; the statistics are qc_stats', the drawing
 sheets/control_chart's.
 """
@@ -23,21 +24,29 @@ BIAS_NOTE = ("Bias is the mean of measured / predicted − 1 over the family's u
 
 def register_units(conn) -> list[dict]:
     """Every signed-off unit (its latest sign-off), in sign-off order, with its family and lines."""
-    from windsheet.qc.qc_stats import family_of
-
     fam_by_issue: dict = {}
     latest: dict = {}
     for uid, job, serial, at, mjson, issue_id in conn.execute(
             "SELECT u.id, u.job, u.serial, u.signed_at, u.measurements_json, s.issue_id FROM unit_signoffs u"
             " JOIN signoffs s ON s.id = u.signoff_id ORDER BY u.signed_at, u.id"):
         if issue_id not in fam_by_issue:
-            row = conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()
-            fam_by_issue[issue_id] = family_of(json.loads(row[0]))
+            fam_by_issue[issue_id] = recorded_family(conn, issue_id)
         latest.pop((job, serial), None)  # a re-test supersedes, and takes its own place in time
         latest[(job, serial)] = {"job": job, "serial": serial, "signed_at": at,
                                  "family": fam_by_issue[issue_id],
                                  "lines": (json.loads(mjson) or {}).get("lines") or []}
     return list(latest.values())
+
+
+def recorded_family(conn, issue_id: int) -> tuple[str, str]:
+    """``(key, label)`` of an issue's family: read from its recorded design, made for an older record."""
+    from windsheet.design.family import family_of
+
+    key, label, raw = conn.execute(
+        "SELECT json_extract(predictions_json, '$.family.key'), json_extract(predictions_json, '$.family.label'),"
+        " CASE WHEN json_extract(predictions_json, '$.family') IS NULL THEN predictions_json END"
+        " FROM issues WHERE id = ?", (issue_id,)).fetchone()
+    return (key, label) if key is not None else family_of(json.loads(raw))
 
 
 def build_report(units: list[dict], chart_lines=CHART_LINES) -> dict:
@@ -64,14 +73,14 @@ def report_from_register(reg, chart_lines=CHART_LINES) -> dict:
     return rep
 
 
-def family_chart(reg, prediction: dict, result: dict, line_key: str = "terminal.inductance"):
+def family_chart(reg, design, result: dict, line_key: str = "terminal.inductance"):
     """The chart data of a sign-off's family with its new units appended, and its title; or None.
 
     The units of ``result`` (not yet recorded) follow the register's units of the same family.
     """
-    from windsheet.qc.qc_stats import family_of, family_statistics
+    from windsheet.qc.qc_stats import family_statistics
 
-    fam = family_of(prediction)
+    fam = (design.family.key, design.family.label)
     units = [u for u in register_units(reg.conn)
              if u["family"][0] == fam[0] and not (u["job"] == result.get("job")
                                                    and u["serial"] in {x["serial"] for x in result["units"]})]

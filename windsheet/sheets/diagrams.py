@@ -126,7 +126,8 @@ def _nets(hookup):
     return [tuple(str(e) for e in join) for join in hookup.get("joins") or [] if len(join) >= 2]
 
 
-def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None, pins=None) -> str:
+def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None, pins=None,
+               terminals=None) -> str:
     """Wiring diagram of a hookup as an SVG string.
 
     Every strand is a coil symbol on its own row, start on the left (with the
@@ -149,6 +150,9 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None
     pins : dict, optional
         Strand end -> pin (``{"A.start": "1"}``): printed under each terminal
         box, and as a pin box under a joint made on a pin.
+    terminals : sequence of str, optional
+        The ends brought out, in T1, T2, … order: the design's connections.
+        Without it they follow from the hookup (a drawing on its own).
     """
     ids = [str(s) for s in strand_ids]
     labels = labels or {}
@@ -163,7 +167,7 @@ def wiring_svg(hookup: dict, strand_ids, labels: dict | None = None, routes=None
         for end in net:
             if end not in end_xy:
                 raise ValueError(f"joint names {end!r}, which is not an end of strands {ids}")
-    terminals = winding_terminals(hookup, ids)
+    terminals = list(terminals) if terminals is not None else winding_terminals(hookup, ids)
     for t in terminals:
         if t not in end_xy:
             raise ValueError(f"terminal names {t!r}, which is not an end of strands {ids}")

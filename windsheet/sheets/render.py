@@ -1,6 +1,6 @@
 """The printable sheets: the traveller and the sign-off sheet, HTML and PDF.
 
-The chain: the prediction dict → a context of words and rows
+The chain: the design (:class:`windsheet.design.model.Design`) → a context of words and rows
 (:mod:`windsheet.sheets.traveller_sheet`, :mod:`windsheet.sheets.procedure`,
 :mod:`windsheet.sheets.signoff_sheet`) → HTML by Jinja2 → PDF by WeasyPrint
 (:mod:`windsheet.sheets.sheet_pdf`).  Nothing here computes physics.
@@ -18,21 +18,21 @@ from .sheet_pdf import (PAPER_SIZES, TEMPLATES_DIR, _page_size, _stylesheet, env
                         farad, henry, hertz, joule, ohm, render_pdf, templates_only_fetcher, volt)
 from .signoff_sheet import SIGNOFF_SECTIONS, measured_text, signoff_context  # noqa: F401
 from .traveller_sheet import (DEFERRAL, SECTIONS, cautions, duty_rows, form_rows,  # noqa: F401
-                              insulation_rows, pick_list, qc_items, terminal_names, traveller_context)
+                              insulation_rows, pick_list, qc_items, traveller_context)
 
 # --- issuing -------------------------------------------------------------------------
 
-def check_issuable(prediction: dict, force: bool = False) -> None:
-    """Refuse to issue a traveller whose insulation check fails, unless forced."""
-    ins = prediction.get("insulation") or {}
-    if ins.get("verdict") == "fail" and not force:
-        why = "; ".join(str(r) for r in ins.get("reasons") or []) or "see the insulation check"
+def check_issuable(design, force: bool = False) -> None:
+    """Refuse to issue a traveller whose insulation or thermal check fails, unless forced."""
+    ins = design.insulation
+    if ins is not None and ins.verdict == "fail" and not force:
+        why = "; ".join(str(r) for r in ins.reasons) or "see the insulation check"
         raise InputError("insulation", f"insulation check fails ({why}); "
                          "not issued — fix the order, or issue with --force")
-    thermal = prediction.get("thermal") or {}
-    if thermal.get("verdict") == "fail" and not force:
+    thermal = design.thermal
+    if thermal is not None and thermal.verdict == "fail" and not force:
         # Enamel run over its thermal class ages fast: as much a fail as a voltage it cannot hold.
-        raise InputError("duty.current", f"thermal check fails ({thermal.get('reason')}); "
+        raise InputError("duty.current", f"thermal check fails ({thermal.reason}); "
                          "not issued — lower the current, use a heavier wire or a higher thermal class, "
                          "or issue with --force")
 
@@ -41,31 +41,31 @@ def check_issuable(prediction: dict, force: bool = False) -> None:
 UNIT_SYSTEMS = ("imperial", "metric")
 
 
-def _imperial(prediction: dict, units: str | None) -> bool:
+def _imperial(design, units: str | None) -> bool:
     """Inches beside millimetres: as the order was written, unless ``--units`` says otherwise."""
     if units is None:
-        return prediction.get("sheet_units") == "imperial"
+        return design.sheet_units == "imperial"
     key = str(units).strip().lower()
     if key not in UNIT_SYSTEMS:
         raise InputError("--units", f"expected imperial or metric, got {units!r}")
     return key == "imperial"
 
 
-def render_traveller_html(prediction: dict, paper: str = "a4", forced: bool = False,
+def render_traveller_html(prediction, paper: str = "a4", forced: bool = False,
                           templates_dir: Path = TEMPLATES_DIR, units: str | None = None) -> str:
     """The traveller for one order as a standalone HTML document.
 
     Parameters
     ----------
-    prediction : dict
-        What ``windsheet.design.build.predict`` returns.
+    prediction : windsheet.design.model.Design
+        What ``windsheet.design.build.build_design`` returns.
     paper : {"a4", "letter"}
     forced : bool
         The sheet was issued with ``--force`` over a failing insulation check;
         printed prominently on the first page.
     units : {None, "imperial", "metric"}
         Lengths in millimetres, with inches beside them for ``imperial``;
-        by default as the order was written (``prediction["sheet_units"]``).
+        by default as the order was written (``design.sheet_units``).
     """
     from windsheet.common.fmt import IMPERIAL
 
@@ -98,14 +98,14 @@ def order_files(path) -> list[Path]:
     return [path]
 
 
-def traveller(prediction: dict, paper: str = "a4", forced: bool = False,
+def traveller(prediction, paper: str = "a4", forced: bool = False,
               units: str | None = None) -> tuple[str, bytes]:
     """HTML and PDF of one traveller."""
     html = render_traveller_html(prediction, paper=paper, forced=forced, units=units)
     return html, render_pdf(html)
 
 
-def render_signoff_html(prediction: dict, signoff_result: dict, paper: str = "a4",
+def render_signoff_html(prediction, signoff_result: dict, paper: str = "a4",
                         templates_dir: Path = TEMPLATES_DIR, units: str | None = None,
                         qc_chart_svg: str | None = None) -> str:
     """The sign-off sheet (measured against predicted, diagnosis, verdict) as HTML.

@@ -142,8 +142,8 @@ def _page_size(paper: str) -> str:
 HEADER_CHARS = 58
 
 
-def header_part(job: dict, forced: bool = False) -> str:
+def header_part(job, forced: bool = False) -> str:
     """The part name as the running header prints it: clipped so the header keeps to one line."""
-    part = str(job.get("part") or "")
-    room = HEADER_CHARS - len(str(job.get("number") or "")) - 5 - (17 if forced else 0)
+    part = str(job.part or "")
+    room = HEADER_CHARS - len(str(job.number or "")) - 5 - (17 if forced else 0)
     return part if len(part) <= room else part[:max(room - 1, 8)].rstrip() + "…"

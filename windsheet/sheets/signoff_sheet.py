@@ -50,7 +50,7 @@ def _line_row(line: dict) -> dict:
     }
 
 
-def signoff_context(prediction: dict, result: dict) -> dict:
+def signoff_context(prediction, result: dict) -> dict:
     units = []
     for u in result.get("units") or []:
         units.append({"serial": u.get("serial"), "verdict": u.get("verdict"), "design_status": u.get("design_status"),
@@ -67,13 +67,13 @@ def signoff_context(prediction: dict, result: dict) -> dict:
                        "mean": measured_text(sp.get("mean"), unit if unit != "turns" else ""),
                        "min": measured_text(sp.get("min"), unit), "max": measured_text(sp.get("max"), unit),
                        "range": f"{rf * 100:.1f}{_NBSP}%" if rf is not None else "—"})
-    same_order = (result.get("order_hash") == prediction.get("order_hash")) if result.get("order_hash") else None
-    from windsheet.design.qc_plan import status_words
+    same_order = (result.get("order_hash") == prediction.order_hash) if result.get("order_hash") else None
+    from windsheet.design.state_rules import status_words
 
     design = result.get("design_status") or {"state": "ok", "reasons": []}
-    return {"p": prediction, "r": result, "job": prediction.get("job") or {}, "units": units,
+    return {"p": prediction, "r": result, "job": prediction.job, "units": units,
             # A design banner flags the running header as a forced issue does.
-            "header_part": header_part(prediction.get("job") or {}, bool(status_words(design))),
+            "header_part": header_part(prediction.job, bool(status_words(design))),
             "spread": spread, "same_order": same_order, "design": design, "design_words": status_words(design),
             "apart": list(result.get("units_apart") or []),
             "cautions": list(result.get("cautions") or []), "deferral": DEFERRAL}

@@ -1,6 +1,6 @@
-"""What the traveller shows: its context, arranged from the prediction dict.
+"""What the traveller shows: its context, arranged from the design (:class:`windsheet.design.model.Design`).
 
-Rendering shows what ``windsheet.design.build.predict`` says and computes no
+Rendering shows what ``windsheet.design.build.build_design`` says and computes no
 physics.  It does choose words and layout: which cautions its duty calls for,
 how numbers are written for people (``61.20 µH``, ``1.234 Ω``, ``12.30 m``).
 """
@@ -9,9 +9,8 @@ from __future__ import annotations
 
 from markupsafe import Markup
 
-from .diagrams import cross_section_svg, winding_terminals, wiring_svg
-from windsheet.common.fmt import NBSP as _NBSP
-from windsheet.common.fmt import OHM, celsius, eng, length, mass, percent
+from .diagrams import cross_section_svg, wiring_svg
+from windsheet.common.fmt import NBSP, OHM, celsius, eng, length, mass, percent
 from .sheet_pdf import band, farad, header_part, henry, hertz, joule, ohm, volt
 from .wiring_words import form_rows, lead_notes, pin_rows, pins_of_ends, terminal_names
 from .procedure import procedure_steps
@@ -46,44 +45,42 @@ DEFERRAL = ("These notes do not replace local electrical codes, the applicable "
 
 # --- what goes on the sheet ----------------------------------------------------------
 
-def traveller_context(p: dict, forced: bool = False) -> dict:
-    """Everything the template shows, arranged for it; values straight from ``p``."""
-    strands = p.get("strands") or []
-    ids = [s["id"] for s in strands]
-    hookup = p.get("hookup") or {}
-    labels = {s["id"]: s.get("identification") for s in strands}
-    ins = p.get("insulation") or {}
+def traveller_context(p, forced: bool = False) -> dict:
+    """Everything the template shows, arranged for it; values straight from the design ``p``."""
+    ids = p.strand_ids
+    labels = {s.id: s.identification for s in p.strands}
+    cs = p.cross_section.model_dump() if p.cross_section else {}
+    kind = p.form.kind or ""
+    placement = p.fit.placement.model_dump() if p.fit and p.fit.placement else None
     return {
         "p": p,
-        "job": p.get("job") or {},
+        "job": p.job,
         "forced": bool(forced),
-        "header_part": header_part(p.get("job") or {}, forced),
-        "verdict": ins.get("verdict") or "unknown",
+        "header_part": header_part(p.job, forced),
+        "verdict": p.insulation.verdict if p.insulation else "unknown",
         "strand_ids": ids,
-        "terminal_names": terminal_names(hookup, ids),
-        "joins_text": [" + ".join(j) for j in hookup.get("joins") or []],
-        "wiring_svg": Markup(wiring_svg(hookup, ids, labels, lead_notes(p), pins_of_ends(p))),
+        "terminal_names": terminal_names(p),
+        "joints": p.connections.joints,
+        "joins_text": [" + ".join(j.ends) for j in p.connections.joints],
+        "wiring_svg": Markup(wiring_svg(p.hookup.model_dump(), ids, labels, lead_notes(p), pins_of_ends(p),
+                                        terminals=[end for _, end in terminal_names(p)])),
         "pin_rows": pin_rows(p),
-        "cross_section_svg": svg_image(cross_section_svg(p.get("cross_section") or {},
-                                                      (p.get("form") or {}).get("kind") or "",
-                                                      placement=(p.get("fit") or {}).get("placement"))),
-        "section_wide": _widest_layer(p.get("cross_section") or {}) > 14,
+        "cross_section_svg": svg_image(cross_section_svg(cs, kind, placement=placement)),
+        "section_wide": _widest_layer(cs) > 14,
         "ring_svgs": _ring_svgs(p),
-        "voltage_svg": svg_image(cross_section_svg(p.get("cross_section") or {},
-                                                (p.get("form") or {}).get("kind") or "", shade=True))
-        if (p.get("cross_section") or {}).get("potential_max_Vpk") else None,
-        "form_rows": form_rows(p.get("form") or {}),
-        "duty_rows": duty_rows(p.get("duty") or {}),
+        "voltage_svg": svg_image(cross_section_svg(cs, kind, shade=True)) if cs.get("potential_max_Vpk") else None,
+        "form_rows": form_rows(p.form),
+        "duty_rows": duty_rows(p.duty),
         "picks": pick_list(p),
         "steps": procedure_steps(p),
         "cautions": cautions(p),
         "deferral": DEFERRAL,
         "qc_items": qc_items(p),
-        "unit_tables": unit_tables((p.get("job") or {}).get("units") or []),
-        "insulation_rows": insulation_rows(ins),
+        "unit_tables": unit_tables(p.job.units),
+        "insulation_rows": insulation_rows(p.insulation),
         "duty_physics_rows": duty_physics_rows(p),
-        "thermal": p.get("thermal") or {},
-        "impulse_rows": impulse_rows(p.get("impulse")),
+        "thermal": p.thermal,
+        "impulse_rows": impulse_rows(p.impulse),
     }
 
 
@@ -92,33 +89,35 @@ def _widest_layer(cross_section: dict) -> int:
     return max([len(l.get("slots") or [] if isinstance(l, dict) else l) for l in layers] + [0])
 
 
-def is_dc(duty: dict) -> bool:
-    return not duty.get("frequency_Hz")
+def is_dc(duty) -> bool:
+    return not duty.frequency_Hz
 
 
-def duty_rows(duty: dict) -> list[tuple[str, str]]:
+def duty_rows(duty) -> list[tuple[str, str]]:
     dc = is_dc(duty)
-    rows = [("Voltage", eng(duty.get("voltage_V"), "V", trim=True) + (" d.c." if dc else " rms")
-             + (" per winding" if duty.get("between_windings_V") is not None else ""))]
-    if duty.get("between_windings_V") is not None:
-        rows.append(("Between windings", eng(duty["between_windings_V"], "V", trim=True)
+    rows = [("Voltage", eng(duty.voltage_V, "V", trim=True) + (" d.c." if dc else " rms")
+             + (" per winding" if duty.between_windings_V is not None else ""))]
+    if duty.between_windings_V is not None:
+        rows.append(("Between windings", eng(duty.between_windings_V, "V", trim=True)
                      + (" d.c." if dc else " rms")))
     rows += [
-            ("Frequency", "d.c." if dc else eng(duty.get("frequency_Hz"), "Hz", trim=True)),
-            ("Current", eng(duty.get("current_A"), "A", trim=True) + ("" if dc else " rms")),
-            ("Ambient", celsius(duty.get("ambient_C")))]
-    if duty.get("operating_temperature_C") is not None:
-        rows.append(("Operating temperature", celsius(duty["operating_temperature_C"])))
+            ("Frequency", "d.c." if dc else eng(duty.frequency_Hz, "Hz", trim=True)),
+            ("Current", eng(duty.current_A, "A", trim=True) + ("" if dc else " rms")),
+            ("Ambient", celsius(duty.ambient_C))]
+    if duty.operating_temperature_C is not None:
+        rows.append(("Operating temperature", celsius(duty.operating_temperature_C)))
     return rows
 
 
-def insulation_rows(ins: dict) -> list[tuple[str, str]]:
+def insulation_rows(ins) -> list[tuple[str, str]]:
     """The check's figures, in the order a reader follows the argument."""
     rows = []
+    if ins is None:
+        return rows
 
     def add(label, key, fmt):
-        if ins.get(key) is not None:
-            rows.append((label, fmt(ins[key])))
+        if getattr(ins, key) is not None:
+            rows.append((label, fmt(getattr(ins, key))))
 
     add("Worst adjacent voltage", "worst_adjacent_Vpk", lambda v: volt(v) + " peak")
     add("Enamel breakdown (minimum, grade)", "breakdown_V", volt)
@@ -126,11 +125,9 @@ def insulation_rows(ins: dict) -> list[tuple[str, str]]:
     add("Allowed between adjacent turns", "allowed_Vpk", lambda v: volt(v) + " peak")
     add("Margin (allowed ÷ worst)", "margin", lambda v: f"{float(v):.2f}")
     add("Paschen minimum, air", "paschen_min_Vpk", lambda v: volt(v) + " peak")
-    basis = {"estimated": "estimated", "measured": "measured"}.get(ins.get("pdiv_basis"), "")
-    pair = (ins.get("pd_pair") or {}).get("where")
-    if pair:
-        rows.append(("Pair nearest partial discharge", f"{pair}, "
-                     f"{volt((ins.get('pd_pair') or {}).get('voltage_Vpk'))} peak"))
+    basis = {"estimated": "estimated", "measured": "measured"}.get(ins.pdiv_basis, "")
+    if ins.pd_pair and ins.pd_pair.where:
+        rows.append(("Pair nearest partial discharge", f"{ins.pd_pair.where}, {volt(ins.pd_pair.voltage_Vpk)} peak"))
     add(f"Its partial-discharge inception, 20 °C ({basis})" if basis else
         "Partial-discharge inception, 20 °C", "pdiv_Vpk", lambda v: volt(v) + " peak")
     add("Its partial-discharge inception, hot", "pdiv_hot_Vpk", lambda v: volt(v) + " peak")
@@ -139,26 +136,25 @@ def insulation_rows(ins: dict) -> list[tuple[str, str]]:
     return rows
 
 
-def duty_physics_rows(p: dict) -> list[tuple[str, str]]:
-    """AC resistance, loss, temperatures and current density on the duty, as the prediction gives them."""
-    t, ac, th = p.get("terminal") or {}, p.get("ac_resistance") or {}, p.get("thermal") or {}
+def duty_physics_rows(p) -> list[tuple[str, str]]:
+    """AC resistance, loss, temperatures and current density on the duty, as the design gives them."""
+    t, ac, th = p.terminal, p.ac_resistance, p.thermal
     rows = []
-    if t.get("resistance_ac_ohm") is not None and ac:
-        f = ac.get("frequency_Hz")
+    if t.resistance_ac_ohm is not None and ac:
+        f = ac.frequency_Hz
         rows.append((f"Resistance at the duty frequency ({hertz(f)}), hot" if f else "Resistance on the d.c. duty, hot",
-                     f"{ohm(t['resistance_ac_ohm'])} (AC/DC {float(ac.get('ratio', 1.0)):.3f}; {ac.get('model', '')})"))
-    if t.get("loss_W") is not None:
-        rows.append(("Copper loss at the duty current", eng(t["loss_W"], "W", sig=3)))
+                     f"{ohm(t.resistance_ac_ohm)} (AC/DC {float(ac.ratio):.3f}; {ac.model})"))
+    if t.loss_W is not None:
+        rows.append(("Copper loss at the duty current", eng(t.loss_W, "W", sig=3)))
     if th:
         rows.append(("Temperature rise of the surface (still air)",
-                     f"{float(th['surface_rise_K']):.1f} K, surface {celsius(th['surface_C'])}"))
-        rows.append(("Hot spot (estimate) / mean winding",
-                     f"{celsius(th['hot_spot_C'])} / {celsius(th['mean_C'])}"))
-        rows.append(("Thermal check", f"{str(th.get('verdict', '')).upper()}: {th.get('reason', '')}"))
-        lo, hi = th.get("current_density_range_A_per_mm2") or (None, None)
-        rows.append(("Current density", f"{float(th['current_density_A_per_mm2']):.2f} A/mm²"
+                     f"{float(th.surface_rise_K):.1f} K, surface {celsius(th.surface_C)}"))
+        rows.append(("Hot spot (estimate) / mean winding", f"{celsius(th.hot_spot_C)} / {celsius(th.mean_C)}"))
+        rows.append(("Thermal check", f"{th.verdict.upper()}: {th.reason}"))
+        lo, hi = th.current_density_range_A_per_mm2 or (None, None)
+        rows.append(("Current density", f"{float(th.current_density_A_per_mm2):.2f} A/mm²"
                      + (f" (common practice {lo:g}–{hi:g} A/mm² for natural cooling)" if lo else "")))
-        rows.append(("Heat method", th.get("method", "")))
+        rows.append(("Heat method", th.method))
     return rows
 
 
@@ -166,68 +162,56 @@ def impulse_rows(imp) -> list[tuple[str, str]]:
     """The fast edge's share on the first turns, when the duty has one."""
     if not imp:
         return []
-    rows = [("Fast edge", f"{volt(imp['edge_Vpk'])} peak"
-             + (f", rise time {eng(imp['rise_time_s'], 's', sig=3)}" if imp.get("rise_time_s") else ""))]
-    rows.append(("First turn under the edge", f"{volt(imp['first_turn_Vpk'])} peak "
-                 f"(even share {volt(imp['first_turn_uniform_Vpk'])})"))
-    rows.append(("Worst pair under the edge", f"{volt(imp['worst_pair_Vpk'])} peak, {imp.get('worst_pair_where')}"))
-    if imp.get("alpha") is not None:
-        rows.append(("Distribution constant α = √(Cg/Cs)", f"{float(imp['alpha']):.3g}"))
-    rows.append(("Capacitance to ground / core / shield", farad(imp["ground_capacitance_F"])
-                 + ("" if imp.get("ground_capacitance_given") else " (assumed: give duty.ground_capacitance)")))
+    rows = [("Fast edge", f"{volt(imp.edge_Vpk)} peak"
+             + (f", rise time {eng(imp.rise_time_s, 's', sig=3)}" if imp.rise_time_s else ""))]
+    rows.append(("First turn under the edge", f"{volt(imp.first_turn_Vpk)} peak "
+                 f"(even share {volt(imp.first_turn_uniform_Vpk)})"))
+    rows.append(("Worst pair under the edge", f"{volt(imp.worst_pair_Vpk)} peak, {imp.worst_pair_where}"))
+    if imp.alpha is not None:
+        rows.append(("Distribution constant α = √(Cg/Cs)", f"{float(imp.alpha):.3g}"))
+    rows.append(("Capacitance to ground / core / shield", farad(imp.ground_capacitance_F)
+                 + ("" if imp.ground_capacitance_given else " (assumed: give duty.ground_capacitance)")))
     return rows
 
 
-def pick_list(p: dict) -> list[dict]:
+def pick_list(p) -> list[dict]:
     """Materials to draw from stores, one row each, with the quantity to pick."""
-    wire = p.get("wire") or {}
-    w = p.get("winding") or {}
-    form = p.get("form") or {}
-    hookup = p.get("hookup") or {}
-    job = p.get("job") or {}
-    qty = int(job.get("quantity") or len(job.get("units") or []) or 1)
-    picks = [{"item": "Form / core",
-              "spec": form.get("material") or form.get("description") or form.get("kind") or "—",
-              "qty": f"{qty}"}]
-    for s in p.get("strands") or []:
-        per_unit = s.get("wire_length_with_scrap_m")
+    wire, w, form, job, conn = p.wire, p.winding, p.form, p.job, p.connections
+    qty = p.quantity
+    picks = [{"item": "Form / core", "spec": form.material or form.kind or "—", "qty": f"{qty}"}]
+    for s in p.strands:
         picks.append({
-            "item": f"Wire, strand {s['id']}",
-            "spec": f"{wire.get('label', '—')}; {s.get('identification') or 'no marking'}",
-            "qty": f"{length(per_unit)} per unit (incl. {percent(w.get('scrap_allowance'))} scrap), "
-                   f"{mass(s.get('mass_kg'))} per unit",
+            "item": f"Wire, strand {s.id}",
+            "spec": f"{wire.label}; {s.identification or 'no marking'}",
+            "qty": f"{length(s.wire_length_with_scrap_m)} per unit (incl. {percent(w.scrap_allowance)} scrap), "
+                   f"{mass(s.mass_kg)} per unit",
         })
-    layers = int(p.get("layers") or w.get("layers") or 1)
-    if (w.get("layer_tape_m") or 0) > 0 and layers > 1:
-        rating = w.get("layer_tape_rating_V")
+    if w.layer_tape_m > 0 and p.layers > 1:
+        rating = w.layer_tape_rating_V
         picks.append({"item": "Layer tape",
-                      "spec": f"{w.get('layer_tape_material') or 'insulating tape'}, "
-                              f"{length(w['layer_tape_m'])} thick"
+                      "spec": f"{w.layer_tape_material or 'insulating tape'}, {length(w.layer_tape_m)} thick"
                               + (f", rated {volt(rating)}" if rating else "") + ", full traverse width",
-                      "qty": f"{layers - 1} wrap(s) per unit"})
-    if form.get("margin_tape_m"):
+                      "qty": f"{p.layers - 1} wrap(s) per unit"})
+    if form.margin_tape_m:
         picks.append({"item": "Margin tape",
-                      "spec": f"{form.get('margin_tape_material') or 'margin tape'}, "
-                              f"{length(form['margin_tape_m'])} wide, built to "
-                              f"{length((p.get('fit') or {}).get('build_m'))}",
+                      "spec": f"{form.margin_tape_material or 'margin tape'}, {length(form.margin_tape_m)} wide, "
+                              f"built to {length(p.fit.build_m)}",
                       "qty": "2 strips per unit (one at each end of the traverse)"})
-    ends = 2 * len(p.get("strands") or [])
     picks.append({"item": "Sleeving",
                   "spec": "over every joint and lead, rated for the duty and thermal class "
-                          f"{(wire.get('thermal_class_C') or '—')} °C",
-                  "qty": f"{len(hookup.get('joins') or [])} joint(s) + "
-                         f"{len(hookup.get('terminals') or [])} lead(s) per unit"})
-    if w.get("lead_length_m"):
-        picks.append({"item": "Leads", "spec": f"{length(w['lead_length_m'])} left at each of "
-                                              f"{ends} wire ends (included in wire length)",
-                      "qty": f"{ends} ends per unit"})
-    picks.append({"item": "Unit labels", "spec": "serial numbers " + _serial_span(job),
-                  "qty": f"{qty}"})
+                          f"{(wire.thermal_class_C or '—')} °C",
+                  "qty": f"{conn.sleeving_pieces_per_unit} piece(s) per unit: {len(conn.joints)} joint(s) + "
+                         f"{len(conn.terminals)} lead(s)"})
+    if w.lead_length_m:
+        picks.append({"item": "Leads", "spec": f"{length(w.lead_length_m)} left at each of "
+                                              f"{conn.wire_ends_per_unit} wire ends (included in wire length)",
+                      "qty": f"{conn.wire_ends_per_unit} ends per unit"})
+    picks.append({"item": "Unit labels", "spec": "serial numbers " + _serial_span(job), "qty": f"{qty}"})
     return picks
 
 
-def _serial_span(job: dict) -> str:
-    units = job.get("units") or []
+def _serial_span(job) -> str:
+    units = job.units
     if not units:
         return "—"
     return units[0] if len(units) == 1 else f"{units[0]} … {units[-1]}"
@@ -235,29 +219,27 @@ def _serial_span(job: dict) -> str:
 
 # --- cautions -------------------------------------------------------------------------
 
-def cautions(p: dict) -> list[dict]:
+def cautions(p) -> list[dict]:
     """Cautions the duty calls for; each ends by deferring to the governing rules."""
-    duty = p.get("duty") or {}
-    cau = p.get("cautions") or {}
-    hipot = p.get("hipot") or {}
+    duty, cau, hipot = p.duty, p.cautions, p.hipot
     out = []
-    v = cau.get("highest_V") if cau.get("highest_V") is not None else duty.get("voltage_V")
-    if cau.get("above_elv"):
-        limit = cau.get("elv_limit_V") or (ELV_DC_V if is_dc(duty) else ELV_AC_V)
+    v = cau.highest_V if cau.highest_V is not None else duty.voltage_V
+    if cau.above_elv:
+        limit = cau.elv_limit_V or (ELV_DC_V if is_dc(duty) else ELV_AC_V)
         out.append({"level": "warning", "title": "Above extra-low voltage",
                     "text": f"The highest working voltage, {eng(v, 'V', trim=True)}"
                             f"{' d.c.' if is_dc(duty) else ' rms'}, "
                             f"exceeds the extra-low-voltage limit of {eng(limit, 'V', trim=True)} "
                             f"(IEC 61140: 50 V a.c. rms, 120 V ripple-free d.c.). Treat the "
                             "finished coil and its leads as hazardous live when energised."})
-    if cau.get("hipot"):
+    if cau.hipot:
         out.append({"level": "warning", "title": "Hipot test",
-                    "text": f"Test voltage {volt(hipot.get('voltage_V'))}: only trained, authorised "
+                    "text": f"Test voltage {volt(hipot.voltage_V)}: only trained, authorised "
                             "staff, in a marked test area, with an interlocked tester; one hand rule; "
                             "discharge and earth the winding after the test before touching it."})
-    energy = cau.get("stored_energy_J")
-    if energy is None:
-        energy = (p.get("energy") or {}).get("magnetic_J")
+    energy = cau.stored_energy_J
+    if energy is None and p.energy:
+        energy = p.energy.magnetic_J
     if energy is not None and energy >= STORED_ENERGY_CAUTION_J:
         out.append({"level": "warning", "title": "Stored magnetic energy",
                     "text": f"At the duty current the coil stores {joule(energy)} (½LI²). Opening "
@@ -266,10 +248,10 @@ def cautions(p: dict) -> list[dict]:
     elif energy is not None:
         out.append({"level": "note", "title": "Stored magnetic energy",
                     "text": f"{joule(energy)} at the duty current (½LI²)."})
-    if cau.get("hot_surface"):
+    if cau.hot_surface:
         out.append({"level": "warning", "title": "Hot surface",
                     "text": f"On its duty the winding's surface is computed to reach about "
-                            f"{celsius(cau.get('surface_C'))} (in still air): it burns on contact. Let it "
+                            f"{celsius(cau.surface_C)} (in still air): it burns on contact. Let it "
                             "cool before handling, and keep it guarded where people can touch it."})
     out.append({"level": "note", "title": "Ring-test fixtures",
                 "text": "The capacitor of a ring (resonance) test fixture holds charge after the "
@@ -279,82 +261,34 @@ def cautions(p: dict) -> list[dict]:
 
 # --- QC record -------------------------------------------------------------------------
 
-def _tol_band(value, tol, fmt) -> str:
-    # Same arithmetic as the sign-off's band: predicted x (1 -/+ tolerance).
-    if value is None or tol is None:
-        return "—"
-    return band(value * (1 - tol), value * (1 + tol), fmt)
+_FORMAT = {"H": henry, "ohm": ohm}
 
 
-def qc_items(p: dict) -> list[dict]:
-    """What the inspector measures on every unit, with what it should read.
+def qc_items(p) -> list[dict]:
+    """What the inspector measures on every unit, with what it should read: the design's QC plan, worded.
 
     Keys follow the sign-off's line keys.  ``judged`` items get pass/fail
     boxes; the others are only recorded (they feed the sign-off's diagnosis).
     """
-    from windsheet.design.qc_plan import prediction_required_lines
-    from windsheet.qc.signoff import DEFAULT_MIN_INSULATION_OHM
-
-    term = p.get("terminal") or {}
-    acc = term.get("accept") or {}
-    tol = p.get("tolerances") or {}
-    tol_L, tol_R = tol.get("inductance"), tol.get("resistance")
-    strands = p.get("strands") or []
-    ids = [s["id"] for s in strands]
-    ins = p.get("insulation") or {}
-
-    def item(key, label, predicted="", accept="record", judged=True):
-        return {"key": key, "label": label, "predicted": predicted, "band": accept,
-                "judged": judged}
-
     items = []
-    # One strand alone is what the terminals read; its own rows would repeat them.
-    for s in strands if len(strands) > 1 else []:
-        sid = s["id"]
-        alone = " alone" if len(strands) > 1 else ""
-        items.append(item(f"strand.{sid}.inductance", f"Inductance, strand {sid}{alone}",
-                          henry(s.get("inductance_H")), _tol_band(s.get("inductance_H"), tol_L, henry)))
-        items.append(item(f"strand.{sid}.resistance", f"DC resistance, strand {sid} (at 20 °C)",
-                          ohm(s.get("resistance_20C_ohm")),
-                          _tol_band(s.get("resistance_20C_ohm"), tol_R, ohm)))
-    if (p.get("hookup") or {}).get("joins") and len(strands) >= 2:
-        pairs = p.get("pairs") or {}
-        for a, b in zip(ids, ids[1:]):
-            aid = (pairs.get(f"{a}-{b}") or {}).get("series_aiding_H")
-            opp = (pairs.get(f"{a}-{b}") or {}).get("series_opposing_H")
-            items.append(item(f"pair.{a}-{b}.series_aiding", f"Before joint: {a}+{b} series-aiding",
-                              henry(aid) if aid else "", _tol_band(aid, tol_L, henry) if aid else "record",
-                              judged=bool(aid)))
-            items.append(item(f"pair.{a}-{b}.series_opposing", f"Before joint: {a}−{b} series-opposing",
-                              henry(opp) if opp else "", "record (leakage)", judged=False))
-    items += [
-        item("terminal.inductance", "Inductance at the terminals" + (
-             " (band: ordered target ± tolerance)" if acc.get("inductance_basis") == "target" else ""),
-             henry(term.get("inductance_H")) + (
-             f" ({acc['prediction_offset'] * 100:+.2f}{_NBSP}% from target)"
-             if acc.get("inductance_basis") == "target" else ""),
-             band(acc.get("inductance_min_H"), acc.get("inductance_max_H"), henry)),
-        item("terminal.resistance", "DC resistance at the terminals (at 20 °C)",
-             ohm(term.get("resistance_ohm")),
-             band(acc.get("resistance_min_ohm"), acc.get("resistance_max_ohm"), ohm)),
-    ]
-    ir_min = ins.get("ir_min_ohm") or DEFAULT_MIN_INSULATION_OHM
-    if len(strands) > 1:
-        items.append(item("continuity.strand_to_strand", "Continuity between strands", "open", "open"))
-        items.append(item("insulation.strand_to_strand", "Insulation resistance, strand to strand", "",
-                          f"≥ {eng(ir_min, OHM, sig=3, trim=True)}"))
-    items.append(item("insulation.to_core", "Insulation resistance to core/form", "",
-                      f"≥ {eng(ir_min, OHM, sig=3, trim=True)}"))
-    hipot = p.get("hipot") or {}
-    if (p.get("cautions") or {}).get("hipot") and hipot.get("voltage_V"):
-        dur = hipot.get("duration_s")
-        items.append(item("hipot", f"Hipot {volt(hipot['voltage_V'])}"
-                          + (f", {float(dur):g} s" if dur else "") + ": leakage, withstand",
-                          "", "withstands"))
-    items.append(item("ambient", "Ambient temperature at test", "", "record (°C)", judged=False))
-    # The record prints exactly the lines the prediction requires, in its order.
-    by_key = {i["key"]: i for i in items}
-    return [by_key.get(k) or item(k, k) for k in prediction_required_lines(p)]
+    for ln in p.qc_plan.lines:
+        fmt = _FORMAT.get(ln.unit, lambda v: eng(v, ln.unit, sig=3, trim=True))
+        predicted = fmt(ln.predicted) if ln.predicted is not None and ln.unit in _FORMAT else ""
+        if ln.key == "terminal.inductance" and p.terminal.accept.inductance_basis == "target":
+            predicted += f" ({p.terminal.accept.prediction_offset * 100:+.2f}{NBSP}% from target)"
+        if ln.judged == "expect" and ln.expect == "open":
+            predicted = "open"
+        if ln.judged == "band":
+            accept = band(ln.low, ln.high, fmt)
+        elif ln.judged == "minimum":
+            accept = f"≥ {eng(ln.low, OHM if ln.unit == 'ohm' else ln.unit, sig=3, trim=True)}"
+        elif ln.judged == "expect":
+            accept = ln.expect or ""
+        else:
+            accept = "record (°C)" if ln.unit == "degC" else "record"
+        items.append({"key": ln.key, "label": ln.label, "predicted": predicted, "band": accept,
+                      "judged": ln.judged != "record", "note": ln.note})
+    return items
 
 
 def unit_tables(units: list[str]) -> list[list[str]]:
@@ -365,15 +299,14 @@ def unit_tables(units: list[str]) -> list[list[str]]:
 
 
 
-def _ring_svgs(p: dict):
+def _ring_svgs(p):
     """A toroid's top view and section through the ring, or ``None`` for other forms."""
-    ring = p.get("ring")
-    if not ring:
+    if not p.ring:
         return None
     from .ring_diagrams import ring_section_svg, ring_top_view_svg
 
-    form = p.get("form") or {}
-    direction = (p.get("winding") or {}).get("direction") or "clockwise"
+    ring, form = p.ring.model_dump(), p.form.model_dump()
+    direction = p.winding.direction or "clockwise"
     return {"top": svg_image(ring_top_view_svg(ring, form, direction)),
             "section": svg_image(ring_section_svg(ring, form))}
 

@@ -1,0 +1,574 @@
+"""The sized design: one typed, versioned model that every output reads.
+
+:func:`windsheet.design.build.build_design` fills it once from the order and
+the physics; the traveller, the sign-off, the bench page, the bill of
+materials, the register and ``windsheet size --json`` read its attributes and
+never recount what it holds.  ``Design.model_dump(mode="json")`` is the JSON
+of ``windsheet size --json``, marked ``"schema": "windsheet.prediction/2"``;
+``windsheet schema prediction`` prints its JSON Schema (also committed as
+``windsheet/design/prediction.schema.json``).
+
+Units are in the field names, as in the JSON: ``_m`` metres, ``_H`` henries,
+``_ohm`` ohms, ``_F`` farads, ``_Hz`` hertz, ``_V`` volts (rms or d.c. as the
+duty gives), ``_Vpk`` volts peak, ``_C`` degrees Celsius, ``_K`` kelvin,
+``_W`` watts, ``_J`` joules, ``_s`` seconds, ``_kg`` kilograms, ``_deg``
+degrees of angle; a fraction (tolerance, derating) is a plain number.
+
+Sections that predictions from before this model may lack are optional: an
+issue recorded by an earlier version is read through
+:func:`windsheet.design.legacy.design_from_v1`, which fills in the derived
+facts (connections, QC plan, design state) by the same rules as a new design.
+"""
+
+from __future__ import annotations
+
+from typing import Literal, Optional, Union
+
+from pydantic import BaseModel, ConfigDict, Field, StrictBool, StrictFloat, StrictInt
+
+SCHEMA = "windsheet.prediction/2"
+SCHEMA_V1 = "windsheet.prediction/1"
+
+
+class Part(BaseModel):
+    """A section of the design: typed, closed to unknown fields, never changed once built."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True, defer_build=True)
+
+
+# --- the order as sized ----------------------------------------------------------------
+
+class Job(Part):
+    number: str
+    part: str = ""
+    customer: str = ""
+    quantity: Optional[int] = None
+    revision: str = "A"
+    issued_by: str = ""
+    issue_date: Optional[str] = Field(None, description="ISO date the sheet is issued")
+    units: list[str] = Field(default_factory=list, description="serial numbers")
+    notes: str = ""
+
+
+class Form(Part):
+    kind: str = "cylinder"
+    material: Optional[str] = None
+    diameter_m: Optional[float] = None
+    traverse_m: Optional[float] = None
+    max_build_m: Optional[float] = None
+    inner_diameter_m: Optional[float] = None
+    outer_diameter_m: Optional[float] = None
+    height_m: Optional[float] = None
+    width_m: Optional[float] = None
+    mean_turn_length_m: Optional[float] = None
+    al_H: Optional[float] = Field(None, description="inductance per turn squared [H]")
+    permeability: Optional[float] = None
+    gap_deg: Optional[float] = Field(None, description="toroid: bare angle between start and finish [deg]")
+    core_gap_m: Optional[float] = Field(None, description="bobbin core: gap as assembled [m]; 0 ungapped")
+    margin_tape_m: Optional[float] = None
+    margin_tape_material: Optional[str] = None
+
+
+class WireSpec(Part):
+    label: str
+    standard: Optional[str] = None
+    copper_diameter_m: float
+    overall_diameter_m: float
+    grade: Optional[int] = None
+    thermal_class_C: Optional[int] = None
+    breakdown_V: Optional[float] = None
+    source: Optional[str] = None
+    conductor: str = "copper"
+    min_overall_diameter_m: Optional[float] = None
+    breakdown_test: Optional[str] = None
+    sources: list[str] = Field(default_factory=list)
+
+
+class TargetSearch(Part):
+    """Turns found for an order given by target inductance."""
+
+    inductance_H: float = Field(description="the ordered target [H]")
+    turns_exact: float
+    turns_chosen: int
+    inductance_at_chosen_H: float
+    error: float = Field(description="chosen / target - 1")
+    fits: bool = True
+
+
+class Winding(Part):
+    strands: int
+    turns_per_strand: int
+    layers: int
+    layer_style: Optional[str] = None
+    strand_spacing: Optional[str] = None
+    impregnation: str = "none"
+    turns_in_layer: list[int] = Field(default_factory=list, description="turns per strand in each layer")
+    pitch_m: Optional[float] = None
+    layer_tape_m: float = 0.0
+    layer_tape_material: Optional[str] = None
+    layer_tape_rating_V: Optional[float] = None
+    lead_length_m: Optional[float] = None
+    scrap_allowance: float = 0.0
+    close_wound: bool = True
+    target: Optional[TargetSearch] = None
+    direction: str = "clockwise"
+    spread: Optional[str] = None
+
+
+class RingLayer(Part):
+    layer: int
+    turns: int
+    pitch_deg: float
+    radius_m: float
+    build_m: float
+    from_deg: float
+    to_deg: float
+    angles_deg: dict[str, list[float]] = Field(description="turn angles per strand, from the start [deg]")
+
+
+class Ring(Part):
+    """A toroid's turns round the ring, for its top view."""
+
+    spread: Optional[str] = None
+    ring_radius_m: float
+    wire_diameter_m: float
+    span_deg: float
+    gap_deg: float
+    layers: list[RingLayer]
+
+
+class Hookup(Part):
+    name: str
+    joins: list[list[str]] = Field(default_factory=list)
+    terminals: list[str] = Field(default_factory=list, description="the hookup's two terminals")
+    description: str = ""
+
+
+class PinTermination(Part):
+    pin: str
+    ends: list[str]
+    node: Optional[int] = Field(None, description="hookup node: pins with one node are joined only by the board")
+
+
+class Duty(Part):
+    voltage_V: float = Field(description="rms (sine), d.c. or the pulse's peak, as voltage_form says [V]")
+    voltage_form: Optional[str] = None
+    waveform: Optional[str] = None
+    between_windings_V: Optional[float] = None
+    frequency_Hz: float = 0.0
+    current_A: float = Field(0.0, description="terminal current on the duty, rms or d.c. [A]")
+    current_given: bool = True
+    ambient_C: float = 25.0
+    operating_temperature_C: Optional[float] = None
+
+
+class TestSetup(Part):
+    frequency_Hz: float = Field(1000.0, description="the LCR meter's test frequency [Hz]")
+
+
+class Tolerances(Part):
+    inductance: float = 0.1
+    resistance: float = 0.05
+    strand_balance: Optional[float] = None
+
+
+class Placement(Part):
+    end: str
+    offset_m: float
+    margin_m: float
+    first_turn_m: float
+    bare_start_m: float
+    bare_finish_m: float
+
+
+class Fit(Part):
+    slots_per_layer: Optional[int] = None
+    traverse_used_m: Optional[float] = None
+    traverse_m: Optional[float] = None
+    build_m: Optional[float] = None
+    max_build_m: Optional[float] = None
+    fits: bool = True
+    notes: list[str] = Field(default_factory=list)
+    placement: Optional[Placement] = None
+
+
+# --- what it reads ---------------------------------------------------------------------
+
+class Strand(Part):
+    id: str
+    turns: int
+    identification: Optional[str] = None
+    wire_length_m: Optional[float] = Field(None, description="turns plus both leads [m]")
+    wire_length_with_scrap_m: Optional[float] = None
+    mass_kg: Optional[float] = None
+    resistance_20C_ohm: float
+    resistance_hot_ohm: Optional[float] = None
+    resistance_ac_ohm: Optional[float] = Field(None, description="hot, at the duty frequency [ohm]")
+    loss_W: Optional[float] = None
+    current_density_A_per_mm2: Optional[float] = None
+    inductance_H: float
+    current_A: Optional[float] = None
+
+
+class AcceptBands(Part):
+    inductance_min_H: float
+    inductance_max_H: float
+    inductance_basis: Literal["prediction", "target"] = "prediction"
+    inductance_centre_H: Optional[float] = None
+    prediction_offset: float = 0.0
+    resistance_min_ohm: float
+    resistance_max_ohm: float
+
+
+class Terminal(Part):
+    inductance_H: float = Field(description="at the test frequency [H]")
+    resistance_ohm: float = Field(description="at 20 °C [ohm]")
+    resistance_hot_ohm: Optional[float] = None
+    resistance_ac_ohm: Optional[float] = None
+    loss_W: Optional[float] = None
+    capacitance_F: Optional[float] = None
+    self_resonance_Hz: Optional[float] = None
+    accept: AcceptBands
+
+
+class HookupReading(Part):
+    inductance_H: float
+    resistance_ohm: float
+
+
+class PairReading(Part):
+    """What two strands read linked before the joint."""
+
+    series_aiding_H: Optional[float] = None
+    series_opposing_H: Optional[float] = None
+    mutual_H: Optional[float] = None
+    coupling: Optional[float] = None
+
+
+# --- stress ----------------------------------------------------------------------------
+
+class WorstPair(Part):
+    voltage_Vpk: float
+    where: Optional[str] = None
+    strands: Optional[list[Optional[str]]] = None
+    turns: Optional[list[Optional[int]]] = None
+    layer: Optional[int] = None
+    layers: Optional[list[Optional[int]]] = None
+    kind: Optional[str] = Field(None, description="side, layer, lead, …")
+
+
+class Impulse(Part):
+    """A fast edge's initial (capacitive) distribution over the turns."""
+
+    edge_Vpk: float
+    rise_time_s: Optional[float] = None
+    first_turn_Vpk: float
+    first_turn_uniform_Vpk: float
+    first_turn_uniform_winding_Vpk: Optional[float] = None
+    worst_pair_Vpk: float
+    worst_pair_where: Optional[str] = None
+    alpha: Optional[float] = None
+    series_capacitance_F: Optional[float] = None
+    ground_capacitance_F: float
+    ground_capacitance_given: bool = False
+    method: str = ""
+
+
+class AcResistance(Part):
+    ratio: float = Field(description="AC/DC resistance, taken")
+    dowell: Optional[float] = None
+    round_wire: Optional[float] = None
+    skin_depth_m: Optional[float] = None
+    model: str = ""
+    frequency_Hz: float = 0.0
+    temperature_C: Optional[float] = None
+
+
+class Thermal(Part):
+    loss_W: float
+    surface_rise_K: float
+    surface_C: float
+    hot_spot_C: float
+    mean_C: float
+    converged: bool = Field(description="false: thermal runaway")
+    surface_area_m2: Optional[float] = None
+    characteristic_length_m: Optional[float] = None
+    method: str = ""
+    emissivity: Optional[float] = None
+    winding_conductivity_W_per_mK: Optional[float] = None
+    thermal_class_C: Optional[int] = None
+    verdict: str = Field(description="pass, marginal, fail or unknown")
+    reason: str = ""
+    operating_temperature_given_C: Optional[float] = None
+    current_density_A_per_mm2: float = 0.0
+    current_density_range_A_per_mm2: list[float] = Field(default_factory=list)
+    current_density_basis: Optional[str] = None
+
+
+class LeadRoute(Part):
+    lead: str = Field(description="the strand end whose wire this is, like 'A.finish'")
+    route: str
+    route_text: str = ""
+    joint: Optional[str] = Field(None, description="the join it carries, like 'A.finish + B.start'")
+    beside_turns: int = 0
+    worst_Vpk: float = 0.0
+    where: Optional[str] = None
+
+
+class Capacitance(Part):
+    self_F: Optional[float] = None
+    strand_to_strand_F: Optional[float] = None
+    layer_to_layer_F: Optional[float] = None
+    terminal_F: Optional[float] = None
+    method: str = ""
+
+
+class PdPair(Part):
+    where: Optional[str] = None
+    voltage_Vpk: float = 0.0
+
+
+Setting = Union[StrictBool, StrictInt, StrictFloat, str]
+
+
+class Remedy(Part):
+    """An order change, as the order writes it, with what windsheet got by sizing it again."""
+
+    set: dict[str, Setting]
+    verdict: str
+    worst_Vpk: Optional[float] = None
+    pdiv_Vpk: Optional[float] = None
+
+
+class Insulation(Part):
+    verdict: str = Field("unknown", description="pass, marginal or fail (unknown: not checked)")
+    reasons: list[str] = Field(default_factory=list)
+    worst_adjacent_Vpk: Optional[float] = None
+    enamel_Vpk: Optional[float] = None
+    breakdown_V: Optional[float] = None
+    derating: Optional[float] = None
+    allowed_Vpk: Optional[float] = None
+    margin: Optional[float] = None
+    paschen_min_Vpk: Optional[float] = None
+    pdiv_Vpk: Optional[float] = None
+    pdiv_hot_Vpk: Optional[float] = None
+    pdiv_basis: Optional[str] = None
+    pd_pair: Optional[PdPair] = None
+    pd_safety_factor: Optional[float] = None
+    layer_Vpk: float = 0.0
+    tape_rating_V: Optional[float] = None
+    impregnation: Optional[str] = None
+    duty: Optional[str] = Field(None, description="ac or dc")
+    pdiv_touching_Vpk: Optional[float] = None
+    layer_style: Optional[str] = None
+    ir_min_ohm: Optional[float] = Field(None, description="least insulation resistance accepted [ohm]")
+    remedies: Optional[list[Remedy]] = None
+
+
+class Hipot(Part):
+    voltage_V: Optional[float] = None
+    duration_s: Optional[float] = None
+    basis: str = ""
+
+
+class Energy(Part):
+    magnetic_J: float = 0.0
+
+
+class Cautions(Part):
+    above_elv: bool = False
+    highest_V: Optional[float] = None
+    elv_limit_V: Optional[float] = None
+    hipot: bool = True
+    stored_energy_J: Optional[float] = None
+    surface_C: Optional[float] = None
+    hot_surface: bool = False
+    hot_surface_limit_C: Optional[float] = None
+
+
+class SectionSlot(Part):
+    slot: int
+    strand: str
+    potential_Vpk: Optional[float] = None
+    worst: Optional[bool] = None
+
+
+class SectionLayer(Part):
+    layer: int
+    turns: int
+    slots: list[SectionSlot]
+    elided: bool = False
+
+
+class CrossSection(Part):
+    """The slots drawn in the winding's cross-section: each layer's first and last few."""
+
+    layers: list[SectionLayer] = Field(default_factory=list)
+    tape_between_layers: bool = False
+    kind: Optional[str] = None
+    potential_max_Vpk: Optional[float] = None
+
+
+# --- facts derived once from the above --------------------------------------------------
+
+class StrandEnd(Part):
+    """One strand end, and everything the sheets say of it."""
+
+    name: str = Field(description="like 'A.start'")
+    strand: str
+    terminal: Optional[str] = Field(None, description="'T1', 'T2', … when brought out as a terminal")
+    joint: Optional[int] = Field(None, description="index of its joint in connections.joints")
+    pin: Optional[str] = None
+    route: Optional[str] = None
+    route_text: Optional[str] = Field(None, description="how its lead is laid, in words")
+
+
+class TerminalLead(Part):
+    """A lead brought out of the winding, numbered as on the wiring diagram."""
+
+    label: str = Field(description="'T1', 'T2', …")
+    end: str
+    pin: Optional[str] = None
+
+
+class Joint(Part):
+    ends: list[str]
+    pins: list[str] = Field(default_factory=list)
+
+
+class PinLink(Part):
+    """One hookup node spread over several pins: only the board joins them, so the bench links them."""
+
+    pins: list[str]
+    ends: list[str]
+
+
+class Connections(Part):
+    """The ends a hookup brings out: per strand end, the terminals, the joints and the sleeving."""
+
+    ends: list[StrandEnd]
+    terminals: list[TerminalLead]
+    joints: list[Joint]
+    linked_pins: list[PinLink] = Field(default_factory=list)
+    wire_ends_per_unit: int = Field(description="two per strand, each with its lead length")
+    sleeving_pieces_per_unit: int = Field(description="one over each terminal lead and one over each joint")
+
+
+class QcLine(Part):
+    """One reading the traveller asks for, and how the sign-off judges it."""
+
+    key: str
+    label: str
+    judged: Literal["band", "minimum", "expect", "record"] = Field(
+        description="band: within [low, high]; minimum: at least low; expect: reads as the expected "
+                    "word (open, withstands); record: written down only")
+    unit: str = Field("", description="H, ohm, degC, or '' for a word")
+    predicted: Optional[float] = None
+    low: Optional[float] = None
+    high: Optional[float] = None
+    expect: Optional[str] = None
+    required: bool = True
+    note: str = ""
+    test_voltage_V: Optional[float] = Field(None, description="hipot: the test voltage [V]")
+    duration_s: Optional[float] = Field(None, description="hipot: how long it is held [s]")
+
+
+class QcPlan(Part):
+    lines: list[QcLine]
+
+    def line(self, key: str) -> Optional[QcLine]:
+        """The plan's line for ``key``, or None."""
+        return next((ln for ln in self.lines if ln.key == key), None)
+
+    @property
+    def required(self) -> list[str]:
+        return [ln.key for ln in self.lines if ln.required]
+
+
+class Family(Part):
+    """The family a job belongs to for the QC statistics: same form, wire family, strands and hookup."""
+
+    key: str
+    label: str
+
+
+class DesignState(Part):
+    """How the design stands: ok, marginal, failing, or forced (a failing design issued with --force)."""
+
+    state: Literal["ok", "marginal", "failing", "forced"]
+    reasons: list[str] = Field(default_factory=list)
+
+
+# --- the whole -------------------------------------------------------------------------
+
+class DesignCore(Part):
+    """What sizing gives: the order as sized and every figure the physics computes."""
+
+    schema_: Literal["windsheet.prediction/2"] = Field(SCHEMA, alias="schema")
+    job: Job
+    order_hash: Optional[str] = None
+    form: Form = Field(default_factory=Form)
+    wire: Optional[WireSpec] = None
+    winding: Optional[Winding] = None
+    ring: Optional[Ring] = None
+    sheet_units: Literal["metric", "imperial"] = "metric"
+    hookup: Hookup
+    terminations: list[PinTermination] = Field(default_factory=list)
+    duty: Optional[Duty] = None
+    test: TestSetup = Field(default_factory=TestSetup)
+    tolerances: Tolerances = Field(default_factory=Tolerances)
+    fit: Optional[Fit] = None
+    strands: list[Strand]
+    layers: int = 1
+    inductance_matrix_H: list[list[float]]
+    coupling_matrix: list[list[float]] = Field(default_factory=list)
+    terminal: Terminal
+    current_sheet_inductance_H: Optional[float] = None
+    current_sheet_rosa_corrected_H: Optional[float] = None
+    alternatives: dict[str, HookupReading] = Field(default_factory=dict)
+    pairs: dict[str, PairReading] = Field(default_factory=dict)
+    worst_adjacent: Optional[WorstPair] = None
+    impulse: Optional[Impulse] = None
+    ac_resistance: Optional[AcResistance] = None
+    thermal: Optional[Thermal] = None
+    leads: list[LeadRoute] = Field(default_factory=list)
+    capacitance: Optional[Capacitance] = None
+    insulation: Optional[Insulation] = None
+    hipot: Optional[Hipot] = None
+    energy: Optional[Energy] = None
+    cautions: Optional[Cautions] = None
+    cross_section: Optional[CrossSection] = None
+    warnings: list[str] = Field(default_factory=list)
+
+    model_config = ConfigDict(extra="forbid", frozen=True, defer_build=True, populate_by_name=True,
+                              serialize_by_alias=True)
+
+
+class Design(DesignCore):
+    """A sized coil order: every figure the outputs print, in SI units, and the facts derived from them."""
+
+    connections: Connections
+    qc_plan: QcPlan
+    qc_required: list[str] = Field(description="keys of the QC lines every unit must be read for")
+    state: DesignState
+    family: Family
+
+    def as_json(self) -> dict:
+        """The JSON-ready dict of ``windsheet size --json``."""
+        return self.model_dump(mode="json")
+
+    @property
+    def strand_ids(self) -> list[str]:
+        return [s.id for s in self.strands]
+
+    def strand(self, sid: str) -> Optional[Strand]:
+        return next((s for s in self.strands if s.id == sid), None)
+
+    @property
+    def quantity(self) -> int:
+        """Units to build: ``job.quantity``, else the serial count, else 1."""
+        return int(self.job.quantity or len(self.job.units) or 1)
+
+    def with_state(self, state: DesignState) -> "Design":
+        """This design with another state: how it was issued (``forced``) is known only at issue."""
+        return self.model_copy(update={"state": state})
