@@ -9,7 +9,6 @@ largest size. Medians of 3; no pass/fail on time.
 
 from __future__ import annotations
 
-import json
 import subprocess
 import sys
 import tempfile
@@ -21,7 +20,7 @@ ROOT = Path(__file__).resolve().parent.parent
 SIZES = (100, 1_000, 10_000)
 
 
-def _fill(path: Path, n: int, prediction: dict) -> None:
+def _fill(path: Path, n: int, design) -> None:
     from windsheet.records.register import open_register
 
     with open_register(path) as reg:
@@ -29,9 +28,9 @@ def _fill(path: Path, n: int, prediction: dict) -> None:
         for k in range(n):
             number = f"HB-{k:05d}"
             units = [f"{number}-{u:02d}" for u in range(1, 5)]
-            p = {**prediction, "job": {**prediction["job"], "number": number, "units": units}}
+            p = design.model_copy(update={"job": design.job.model_copy(update={"number": number, "units": units})})
             reg.record_issue(p, "order", f"{k:064x}")
-            reg.record_signoff({"job": number, "revision": p["job"]["revision"], "verdict": "pass",
+            reg.record_signoff({"job": number, "revision": p.job.revision, "verdict": "pass",
                                 "units": [{"serial": s, "verdict": "pass", "lines": []} for s in units]},
                                f"{k:064x}", "QC")
 
@@ -41,8 +40,7 @@ def main() -> int:
     from windsheet.design.build import build_design
     from windsheet.records.register import open_register_readonly
 
-    prediction = json.loads(json.dumps(build_design(load_order(ROOT / "samples" / "hl-0412-bifilar-aiding.yaml")),
-                                       default=str))
+    prediction = build_design(load_order(ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"))
     cli = [sys.executable, "-m", "windsheet.cli"]
     print(f"{'jobs':>7}  {'register (CLI)':>15}  {'list_jobs':>10}  {'per job':>9}  file")
     per_job = {}

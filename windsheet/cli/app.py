@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import typer
 
-from . import bench_cmd, records_cmd, register_cmd, signoff_cmd, size_cmd, tables_cmd, traveller_cmd
+from . import bench_cmd, records_cmd, register_cmd, schema_cmd, signoff_cmd, size_cmd, tables_cmd, traveller_cmd
 
 app = typer.Typer(add_completion=False, no_args_is_help=True, pretty_exceptions_enable=False,
                   rich_markup_mode=None,  # plain usage errors: a few lines, no boxes
@@ -36,7 +36,8 @@ def _root(version: bool = typer.Option(False, "--version", is_eager=True, callba
 
 
 # Each command module adds its own commands; none imports this module back.
-for _commands in (size_cmd, traveller_cmd, signoff_cmd, register_cmd, records_cmd, tables_cmd, bench_cmd):
+for _commands in (size_cmd, traveller_cmd, signoff_cmd, register_cmd, records_cmd, tables_cmd, schema_cmd,
+                  bench_cmd):
     _commands.register(app)
 
 

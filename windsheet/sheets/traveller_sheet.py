@@ -60,6 +60,7 @@ def traveller_context(p, forced: bool = False) -> dict:
         "verdict": p.insulation.verdict if p.insulation else "unknown",
         "strand_ids": ids,
         "terminal_names": terminal_names(p),
+        "terminal_heading": terminal_heading(p),
         "joints": p.connections.joints,
         "joins_text": [" + ".join(j.ends) for j in p.connections.joints],
         "wiring_svg": Markup(wiring_svg(p.hookup.model_dump(), ids, labels, lead_notes(p), pins_of_ends(p),
@@ -82,6 +83,20 @@ def traveller_context(p, forced: bool = False) -> dict:
         "thermal": p.thermal,
         "impulse_rows": impulse_rows(p.impulse),
     }
+
+
+def terminal_heading(p) -> str:
+    """The heading of the terminal table: which terminals its values are read between.
+
+    Separate windings are each a winding of their own: the values are one winding's,
+    read between that winding's own pair of terminals.
+    """
+    if p.hookup.name == "separate" and len(p.strands) > 1:
+        pairs = ", ".join(
+            f"{sid} {'–'.join(e.terminal for e in p.connections.ends if e.strand == sid and e.terminal)}"
+            for sid in p.strand_ids)
+        return f"Each winding at its own terminals ({pairs}): the values are one winding's"
+    return f"At the terminals ({' – '.join(label for label, _ in terminal_names(p))})"
 
 
 def _widest_layer(cross_section: dict) -> int:
