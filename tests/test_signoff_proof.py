@@ -98,9 +98,10 @@ def test_unit_with_only_L_and_R_is_incomplete_and_exits_nonzero():
     unit = full_unit(p, L, R)
     del unit["insulation"], unit["hipot"]
     res = sign(p, o, [unit])
-    # The traveller's QC record requires insulation and hipot on every unit (qc_lines.required_lines).
+    # The traveller's QC record requires the hipot on every unit (qc_plan.required_lines); insulation
+    # to core only where there is a core or a conductive former, and this is an air coil on a plain tube.
     assert res["units"][0]["verdict"] == "incomplete"
-    assert set(res["units"][0]["missing"]) == {"insulation.to_core", "hipot"}
+    assert set(res["units"][0]["missing"]) == {"hipot"}
     assert res["verdict"] == "incomplete" and exit_status(res) == 3
     assert res["units_passed"] == 0
 
