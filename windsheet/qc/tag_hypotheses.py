@@ -99,7 +99,8 @@ def hypotheses(strands: int, separate: bool):
         w[2 * s], w[2 * s + 1] = w[2 * s + 1], w[2 * s]
         out.append((f"reversed:{STRAND_IDS[s]}", w, (),
                     f"{word} {STRAND_IDS[s]} reversed: its start and finish tags are swapped"))
-    for e1, e2 in itertools.combinations(range(2 * strands), 2):
+    # Finish tags first: two mistakes that read alike are named in this order.
+    for e1, e2 in sorted(itertools.combinations(range(2 * strands), 2), key=lambda p: (-(p[0] % 2 + p[1] % 2), p)):
         if e1 // 2 == e2 // 2:
             continue
         w = ident.copy()
@@ -153,8 +154,8 @@ def diagnose_tags(design, measured: dict) -> Optional[dict]:
         return None
     # Two mistakes that read alike cannot be told apart by these readings: name the first, say so.
     alike = [t for t in scored[1:] if t[0] - best[0] < 1e-6 and not t[1].startswith("broken")]
-    text = best[2] + (f" (or: {'; '.join(t[2] for t in alike[:2])}: these readings read alike)" if alike
-                      else "")
+    text = best[2] + (f" (or {'; or '.join(t[2] for t in alike[:2])}: these readings cannot tell them apart)"
+                      if alike else "")
     return {"kind": best[1], "text": text, "distance": best[0], "distance_as_tagged": d0}
 
 

@@ -50,7 +50,7 @@ def _q_evidence(design, by) -> list[str]:
         explained = (rl or 1.0) / (rr or 1.0)
         if _ratio(q) >= explained * (1 - tol_q):
             continue
-        moved = f"the inductance {_pct(rl - 1)}" if rl is not None else "the inductance not read"
+        moved = f"the inductance reads {_pct(rl - 1)}" if rl is not None else "the inductance is not read"
         out.append(f"Q {words} reads {_pct(_ratio(q) - 1)} against its prediction while {moved}")
     return out
 
@@ -116,6 +116,34 @@ def _explained_by_tags(f: dict, kind: str) -> bool:
             or basis in _UNEXPLAINED)
 
 
+def _one_turn_count(findings: list[dict]) -> list[dict]:
+    """One turn-count finding: the strands' and the terminals' fits said once, the balance's kept first."""
+    balanced = {f.get("strand") for f in findings if f.get("basis") == "balance" and f.get("turns_difference")}
+    out = []
+    for f in findings:
+        if f.get("basis") != "turns":
+            out.append(f)
+            continue
+        scope = f.get("scope") or ""
+        # The balance names the one strand that differs; a fit of every strand at the terminals would not.
+        if balanced and (scope == "terminals" or scope.removeprefix("strand ") in balanced):
+            continue
+        out.append(f)
+    fits = [f for f in out if f.get("basis") == "turns" and f.get("turns") is not None]
+    counts = {f["turns"] for f in fits}
+    if len(fits) > 1 and len(counts) == 1:
+        ids = [f["scope"].removeprefix("strand ") for f in fits if f["scope"].startswith("strand ")]
+        where = (f"strand{'s' if len(ids) > 1 else ''} {' and '.join([', '.join(ids[:-1]), ids[-1]] if len(ids) > 1 else ids)}"
+                 if ids else "")
+        if any(f["scope"] == "terminals" for f in fits):
+            where += (" and " if where else "") + "at the terminals"
+        first = fits[0]
+        merged = dict(first, scope="winding",
+                      finding=f"turn count off on {where}: " + first["finding"].split("turn count off: ", 1)[-1])
+        out = [merged if f is first else f for f in out if f not in fits[1:]]
+    return out
+
+
 def one_diagnosis(design, unit, lines: list[dict], findings: list[dict]) -> list[dict]:
     """The unit's findings, gathered: each stated once, none contradicting another.
 
@@ -139,12 +167,17 @@ def one_diagnosis(design, unit, lines: list[dict], findings: list[dict]) -> list
         out = [f for f in out if not _explained_by_tags(f, kind)] + [tags]
     short = shorted_turn_finding(design, lines)
     if short is not None:
-        # The short explains L and R off their prediction: no turn count or layup is claimed beside it.
+        # The short explains L and R off their prediction: no turn count or layup is claimed beside it,
+        # nor a strand "a turn or two short" that the balance could not tell from a shorted turn.
         out = [f for f in out if f.get("basis") not in _UNEXPLAINED + ("turns",) or f.get("scope") == "unit"]
+        out = [f for f in out if not (f.get("basis") == "balance" and f.get("turns_difference") is not None
+                                      and abs(f["turns_difference"]) < 2.5)]
         out.append(short)
+    out = _one_turn_count(out)
     if any(f.get("likely") and f.get("basis") not in _UNEXPLAINED and f.get("scope") != "unit" for f in out):
-        # Something explains the readings: a line saying nothing does would contradict it.
-        out = [f for f in out if f.get("basis") != "as ordered"]
+        # Something explains the readings: a line saying nothing does (or that turns and wire are as
+        # ordered) would contradict it.
+        out = [f for f in out if f.get("basis") not in _UNEXPLAINED]
     seen, once = set(), []
     for f in out:
         if f["finding"] not in seen:
