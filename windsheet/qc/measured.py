@@ -186,6 +186,16 @@ LOT_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._/:#-]{0,63}$")
 LotId = Annotated[str, BeforeValidator(_lot_id)]
 
 
+def _instrument_map(value):
+    if value is not None and not isinstance(value, dict):
+        raise PydanticCustomError("ids", "expected each instrument's id by what it measures, like "
+                                         "{lcr: LCR-07, hipot: HV-03} (on the bench page: 'lcr: LCR-07; hipot: HV-03')")
+    return value
+
+
+InstrumentIds = Annotated[Optional[dict[str, LotId]], BeforeValidator(_instrument_map)]
+
+
 def _resistance_or_open(value):
     if isinstance(value, str) and value.strip().lower() in ("open", "open circuit", "ol"):
         return {"open": True}
@@ -488,7 +498,7 @@ class UnitReadings(_Model):
     # Traceability (windsheet.records.traceability): stored per unit in the register.
     wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
     core_lot: Optional[LotId] = None
-    instrument_ids: Optional[dict[str, LotId]] = None
+    instrument_ids: InstrumentIds = None
 
     @field_validator("serial")
     @classmethod
@@ -508,7 +518,7 @@ class MeasuredFile(_Model):
     test_frequency: Optional[Frequency] = None
     wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
     core_lot: Optional[LotId] = None
-    instrument_ids: Optional[dict[str, LotId]] = None
+    instrument_ids: InstrumentIds = None
     #: QC lines waived for every unit of the file, each with the reason.
     waive: dict[str, Text] = Field(default_factory=dict)
     units: list[UnitReadings] = Field(min_length=1, max_length=10_000)
