@@ -28,6 +28,7 @@ from .remedies import advice, find_remedies
 from windsheet.physics.network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
 from windsheet.order.wire_choice import resolve_wire
+from .bench_tests import bench_tests
 from .derived import complete
 from .model import SCHEMA, Design, DesignCore
 from .target_turns import solve_turns
@@ -331,6 +332,9 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
               + [w for w in own["warnings"] if "self-resonance" in w]}
     _refuse_above_self_resonance(duty, st["self_resonance_Hz"])
     warnings.extend(st.get("warnings", []))
+    bench = bench_tests(L, R20, layout, wire, order.hookup_name, order.joins, order.terminals,
+                        doc.test.frequency, st["capacitance"]["terminal_F"], doc.test.ring_capacitor,
+                        doc.tolerances.inductance, doc.tolerances.resistance, sizing.core_al(order))
 
     ident = doc.winding.identification or {}
     strands = []
@@ -350,6 +354,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter)),
             "inductance_H": float(L[s, s]),
             "current_A": float(strand_i[s]),
+            "resistance_ac_test_ohm": bench["strand_resistance_ac_ohm"][s],
+            "q_test": bench["strand_q"][s],
         })
     f = doc.form
     job = doc.job
@@ -374,7 +380,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                  "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
                  "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
                  "margin_tape_m": order.margin or None,
-                 "margin_tape_material": order.margin_material if order.margin else None},
+                 "margin_tape_material": order.margin_material if order.margin else None,
+                 "conductive": f.conductive if f.conductive is not None else not isinstance(f, CylinderForm)},
         "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
                  "overall_diameter_m": wire.overall_diameter, "grade": wire.grade,
                  "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source,
@@ -397,7 +404,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
                  "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
                  "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
-        "test": {"frequency_Hz": doc.test.frequency},
+        "test": {"frequency_Hz": doc.test.frequency, "ring_capacitor_F": doc.test.ring_capacitor},
         "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
                        "strand_balance": tol.strand_balance},
         "fit": {"slots_per_layer": layout.slots_per_layer, "traverse_used_m": layout.traverse_used,
@@ -421,6 +428,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
                        "resistance_min_ohm": net.resistance * (1 - tol.resistance),
                        "resistance_max_ohm": net.resistance * (1 + tol.resistance)},
+            "resistance_ac_test_ohm": bench["terminal_resistance_ac_ohm"],
+            "q_test": bench["terminal_q"],
         },
         "current_sheet_inductance_H": current_sheet,
         "current_sheet_rosa_corrected_H": rosa,
@@ -442,6 +451,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
                                         worst=st.get("worst_pair") or (None, None)),
         "warnings": warnings,
+        "shorted_turn": bench["shorted_turn"],
+        "ring_wave": bench["ring_wave"],
     }
     core = DesignCore.model_validate(out)
     if remedies:
