@@ -18,7 +18,6 @@ from windsheet.physics import layout as lay
 from windsheet.design import sizing
 from windsheet.physics import stress
 from windsheet.common.errors import InputError
-from windsheet.physics.ac_resistance import winding_ac_ratio
 from windsheet.physics.fast_front import DEFAULT_GROUND_CAPACITANCE_F
 from windsheet.physics import heating
 from windsheet.physics.insulation import hipot_voltage
@@ -28,6 +27,7 @@ from windsheet.physics.network import STRAND_IDS, alternative_hookups, separate_
 from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
 from windsheet.order.wire_choice import resolve_wire
 from .derived import complete
+from .duty_heating import DutyCurrent, ac_ratio, thermal_section, winding_heat
 from .model import SCHEMA, Design, DesignCore
 from .target_turns import solve_turns
 from windsheet.physics.wire import copper_mass, dc_resistance
@@ -62,69 +62,6 @@ def _refuse_above_self_resonance(duty, srf):
 def _lead_routes(order: Order):
     r = order.doc.winding.leads
     return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
-
-
-def _outer_surface(order: Order, layout):
-    """The winding's outer surface, which sheds its heat [m²], and its characteristic length [m]."""
-    f = order.doc.form
-    b = float(layout.build_height)
-    if isinstance(f, ToroidForm):
-        od, hole, h = f.outer_diameter + 2 * b, max(f.inner_diameter - 2 * b, 0.0), f.height + 2 * b
-        return math.pi * (od + hole) * h + math.pi / 2 * (od ** 2 - hole ** 2), od
-    # The outer layer's turn, out to its surface, along the traverse; the winding's ends lie
-    # against flanges or the form and are not counted (errs hot).
-    perimeter = float(np.max(layout.turn_length)) + math.pi * layout.overall_diameter
-    return perimeter * float(layout.traverse_used), perimeter / math.pi
-
-
-def _resistivity(wire, temperature_C):
-    d = wire.copper_diameter
-    return float(dc_resistance(1.0, d, temperature_C, conductor=wire.conductor)) * math.pi * d * d / 4
-
-
-def _ac_ratio(order: Order, wire, layout, temperature_C):
-    return winding_ac_ratio(order.doc.duty.frequency, wire.copper_diameter, _resistivity(wire, temperature_C),
-                            layout.layers, layout.pitch / layout.strands)
-
-
-def _heat(order: Order, wire, layout, length, L):
-    """Temperatures of the winding on its duty (:mod:`windsheet.physics.heating`), loss rising with them.
-
-    The strand currents are found again at each temperature: a winding driven by a voltage
-    without a stated current draws less as it warms.
-    """
-    duty = order.doc.duty
-
-    def loss_at(t):
-        r = dc_resistance(length, wire.copper_diameter, t, conductor=wire.conductor)
-        i = _strand_currents(duty, sizing.network_at(order, L, r, duty.frequency))
-        return float(np.sum(i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
-
-    area, size = _outer_surface(order, layout)
-    temps = heating.winding_temperatures(loss_at, area, size, float(layout.build_height), order.doc.duty.ambient)
-    return {**temps, "surface_area_m2": area, "characteristic_length_m": size}
-
-
-def _thermal(temps, wire, strand_i, order_t):
-    """The thermal report: temperatures, the class verdict, current density."""
-    verdict, reason = heating.thermal_verdict(temps["hot_spot_C"], wire.thermal_class,
-                                              converged=temps["converged"])
-    j = [float(heating.current_density(i, wire.copper_diameter)) for i in strand_i]
-    lo, hi = heating.CURRENT_DENSITY_RANGE_A_PER_MM2
-    return {**temps, "method": heating.METHOD, "emissivity": heating.EMISSIVITY,
-            "winding_conductivity_W_per_mK": heating.WINDING_CONDUCTIVITY,
-            "thermal_class_C": wire.thermal_class, "verdict": verdict, "reason": reason,
-            "operating_temperature_given_C": order_t,
-            "current_density_A_per_mm2": max(j) if j else 0.0,
-            "current_density_range_A_per_mm2": [lo, hi],
-            "current_density_basis": "common practice for naturally cooled small windings (memory)"}
-
-
-def _strand_currents(duty, duty_net):
-    """rms current in each strand at duty: the order's, or the voltage over the impedance. [A]"""
-    z = abs(complex(duty_net.resistance, 2 * math.pi * duty.frequency * duty_net.inductance))
-    i = duty.current if duty.current > 0 else (duty.voltage / z if z > 0 else 0.0)
-    return np.abs(duty_net.strand_current) * i
 
 
 def _end(name: str):
@@ -255,21 +192,26 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     L = sizing.inductance_matrix(order, wire, layout)
     length = sizing.strand_lengths(order, layout)
     duty = doc.duty
-    t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
     R20 = dc_resistance(length, wire.copper_diameter, conductor=wire.conductor)
-    Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
     net = sizing.network_at(order, L, R20, doc.test.frequency)
-    duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
-    temps = _heat(order, wire, layout, length, L)
-    if duty.operating_temperature is None:
+    current = DutyCurrent(order, wire, length, L, net.inductance)
+    temps = winding_heat(order, wire, layout, length, L, current)
+    steady = temps is not None and temps["converged"]
+    if duty.operating_temperature is not None:
+        t_op, t_basis = duty.operating_temperature, "given"
+        if steady and duty.operating_temperature < temps["mean_C"] - 0.5:
+            warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
+                            f"{temps['mean_C']:.0f} °C the winding is computed to run at "
+                            f"(hot spot {temps['hot_spot_C']:.0f} °C): hot resistance and losses may read low.")
+    elif steady:
         # The order gives no running temperature: the heat balance's mean winding temperature is used.
-        t_op = temps["mean_C"]
-        Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
-        duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
-    elif duty.operating_temperature < temps["mean_C"] - 0.5:
-        warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
-                        f"{temps['mean_C']:.0f} °C the winding is computed to run at "
-                        f"(hot spot {temps['hot_spot_C']:.0f} °C): hot resistance and losses may read low.")
+        t_op, t_basis = temps["mean_C"], "heat balance"
+    else:
+        # Nothing heats the winding (no current), or it has no steady temperature: the resistance
+        # at the ambient is the one stated, and the sheet says why.
+        t_op, t_basis = duty.ambient, "ambient"
+    Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
+    duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
     tol = doc.tolerances
     diag = np.sqrt(np.diag(L))
     coupling = L / np.outer(diag, diag)
@@ -281,16 +223,15 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         current_sheet = float(cf.current_sheet_inductance(r0, turns * layout.pitch, turns))
         rosa = float(cf.rosa_corrected_inductance(r0, layout.pitch, wire.copper_diameter, turns))
 
-    # Terminal current at duty: the order's current, or the voltage over the impedance.
-    w = 2 * math.pi * duty.frequency
-    z_duty = abs(complex(duty_net.resistance, w * duty_net.inductance))
-    i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
-    strand_i = np.abs(duty_net.strand_current) * i_term
-    ac = {**_ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
+    # Terminal current at duty: only what the order gives (or its pulse train), never assumed.
+    i_term = current.terminal(t_op)
+    has_current = i_term is not None
+    strand_i = np.abs(duty_net.strand_current) * (i_term or 0.0)
+    ac = {**ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
     Rac = Rhot * ac["ratio"]
     ac_terminal = sizing.network_at(order, L, Rac, duty.frequency).resistance if ac["ratio"] != 1.0 else duty_net.resistance
     strand_loss = strand_i ** 2 * Rac
-    thermal = _thermal(temps, wire, strand_i, duty.operating_temperature)
+    thermal = thermal_section(temps, wire, strand_i, duty.operating_temperature, current.missing)
     if thermal["verdict"] in ("fail", "marginal"):
         warnings.append(thermal["reason"])
 
@@ -338,15 +279,17 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "resistance_20C_ohm": float(R20[s]),
             "resistance_hot_ohm": float(Rhot[s]),
             "resistance_ac_ohm": float(Rac[s]),
-            "loss_W": float(strand_loss[s]),
-            "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter)),
+            "loss_W": float(strand_loss[s]) if has_current else None,
+            "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter))
+            if has_current else None,
             "inductance_H": float(L[s, s]),
-            "current_A": float(strand_i[s]),
+            "current_A": float(strand_i[s]) if has_current else None,
         })
     f = doc.form
     job = doc.job
-    energy = 0.5 * net.inductance * i_term ** 2
-    elv = 120.0 if duty.frequency == 0 else 50.0
+    energy = 0.5 * net.inductance * i_term ** 2 if has_current else None
+    # A pulse is not ripple-free d.c.: its peak is held to the stricter a.c. figure.
+    elv = 120.0 if duty.frequency == 0 and duty.waveform != "pulse" else 50.0
     highest_V = max(duty.voltage, duty.between_windings or 0.0)
     out = {
         "schema": SCHEMA,
@@ -387,8 +330,11 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                    "description": HOOKUP_TEXT[order.hookup_name]},
         "terminations": [dict(t) for t in order.pins],
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
-                 "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
-                 "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
+                 "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term or 0.0,
+                 "current_given": duty.current > 0, "current_basis": current.basis,
+                 "voltage_peak_V": duty.voltage_peak, "rise_time_s": duty.rise_time,
+                 "repetition_rate_Hz": duty.repetition_rate, "pulse_width_s": duty.pulse_width,
+                 "pulse_energy_J": duty.pulse_energy, "operating_temperature_basis": t_basis, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
         "test": {"frequency_Hz": doc.test.frequency},
         "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
                        "strand_balance": tol.strand_balance},
@@ -407,7 +353,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "inductance_H": net.inductance, "resistance_ohm": net.resistance,
             "resistance_hot_ohm": duty_net.resistance,
             "resistance_ac_ohm": float(ac_terminal),
-            "loss_W": float(np.sum(strand_loss)),
+            "loss_W": float(np.sum(strand_loss)) if has_current else None,
             "capacitance_F": st["capacitance"]["terminal_F"],
             "self_resonance_Hz": st["self_resonance_Hz"],
             "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
@@ -426,10 +372,12 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "capacitance": st["capacitance"],
         "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
         "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
-        "energy": {"magnetic_J": energy},
+        "energy": {"magnetic_J": energy} if has_current else None,
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
-                     "stored_energy_J": energy, "surface_C": thermal["surface_C"],
-                     "hot_surface": thermal["surface_C"] >= heating.HOT_SURFACE_C,
+                     "stored_energy_J": energy, "surface_C": thermal.get("surface_C"),
+                     # A run-away winding has no steady surface temperature, and is hot all the same.
+                     "hot_surface": thermal["converged"] is False
+                     or (thermal.get("surface_C") or 0.0) >= heating.HOT_SURFACE_C,
                      "hot_surface_limit_C": heating.HOT_SURFACE_C},
         "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
                                         worst=st.get("worst_pair") or (None, None)),

@@ -156,10 +156,21 @@ class Duty(Part):
     waveform: Optional[str] = None
     between_windings_V: Optional[float] = None
     frequency_Hz: float = 0.0
-    current_A: float = Field(0.0, description="terminal current on the duty, rms or d.c. [A]")
+    current_A: float = Field(0.0, description="terminal current on the duty, rms or d.c. [A]; 0 when "
+                                               "current_basis is null (none given, none assumed)")
     current_given: bool = True
+    current_basis: Optional[str] = Field(None, description="where current_A comes from: given, pulse width and "
+                                         "repetition rate, pulse energy and repetition rate; null: not known")
+    voltage_peak_V: Optional[float] = Field(None, description="peak of the duty voltage [V]")
+    rise_time_s: Optional[float] = Field(None, description="the edge's rise time as ordered [s]")
+    repetition_rate_Hz: Optional[float] = Field(None, description="pulse duty: pulses per second [Hz]")
+    pulse_width_s: Optional[float] = Field(None, description="pulse duty: each pulse's width [s]")
+    pulse_energy_J: Optional[float] = Field(None, description="pulse duty: energy each pulse leaves in the "
+                                            "winding [J]")
     ambient_C: float = 25.0
     operating_temperature_C: Optional[float] = None
+    operating_temperature_basis: Optional[str] = Field(None, description="given, heat balance, or ambient "
+                                                       "(no current, or no steady temperature)")
 
 
 class TestSetup(Part):
@@ -285,12 +296,15 @@ class AcResistance(Part):
 
 
 class Thermal(Part):
-    loss_W: float
-    surface_rise_K: float
-    surface_C: float
-    hot_spot_C: float
-    mean_C: float
-    converged: bool = Field(description="false: thermal runaway")
+    """The heat balance on the duty; temperatures null when not computed (no current) or run away."""
+
+    loss_W: Optional[float] = None
+    surface_rise_K: Optional[float] = None
+    surface_C: Optional[float] = None
+    hot_spot_C: Optional[float] = None
+    mean_C: Optional[float] = None
+    converged: Optional[bool] = Field(description="false: thermal runaway; null: not computed")
+    missing: Optional[str] = Field(None, description="what the order must give for the heating to be computed")
     surface_area_m2: Optional[float] = None
     characteristic_length_m: Optional[float] = None
     method: str = ""
@@ -300,7 +314,7 @@ class Thermal(Part):
     verdict: str = Field(description="pass, marginal, fail or unknown")
     reason: str = ""
     operating_temperature_given_C: Optional[float] = None
-    current_density_A_per_mm2: float = 0.0
+    current_density_A_per_mm2: Optional[float] = None
     current_density_range_A_per_mm2: list[float] = Field(default_factory=list)
     current_density_basis: Optional[str] = None
 

@@ -20,8 +20,8 @@ from windsheet.common.errors import InputError, field_name, join_path
 from windsheet.common.fileio import parse_yaml_bytes, read_limited
 from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                       pin_assignment)
-from .fields import (Angle, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
-                           PeakVoltage, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
+from .fields import (Angle, Energy, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
+                           PeakVoltage, PulseWidth, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
                            quantity, strand_keys)
 from .units import SINE_CREST, parse_quantity, read_quantity
 
@@ -258,11 +258,33 @@ class Duty(_M):
     #: Capacitance from the whole winding to ground, core or shield, for a fast edge's
     #: distribution; by default windsheet.physics.fast_front.DEFAULT_GROUND_CAPACITANCE_F (10 pF), stated.
     ground_capacitance: Optional[Annotated[float, quantity("capacitance")]] = None
+    #: A pulse duty's repetition: pulses per second, and each pulse's width or the energy it leaves
+    #: in the winding; the heating is computed from them (no current is assumed).
+    #: ``current: voltage-driven`` says the winding sits across the duty voltage, so its current is
+    #: the voltage over its impedance (a relay or solenoid coil); otherwise no current is assumed.
+    voltage_driven: bool = False
+    repetition_rate: Optional[Frequency] = None
+    pulse_width: Optional[PulseWidth] = None
+    pulse_energy: Optional[Energy] = None
 
     @model_validator(mode="before")
     @classmethod
     def _amplitudes(cls, data):
         return duty_amplitudes(data) if isinstance(data, dict) else data
+
+    @model_validator(mode="after")
+    def _pulse_train(self):
+        given = [k for k in ("repetition_rate", "pulse_width", "pulse_energy") if getattr(self, k) is not None]
+        if given and self.waveform != "pulse":
+            raise InputError(f"duty.{given[0]}", "belongs to a pulse duty (waveform: pulse)")
+        if self.pulse_width is not None and self.pulse_energy is not None:
+            raise InputError("duty.pulse_energy", "give the pulse's width or its energy, not both: "
+                             "the heating is computed from one of them")
+        if self.pulse_width is not None and self.repetition_rate is not None \
+                and self.pulse_width * self.repetition_rate >= 1.0:
+            raise InputError("duty.pulse_width", "is as long as the repetition period or longer: "
+                             "the pulses would overlap")
+        return self
 
     @property
     def voltage_peak(self) -> float:
@@ -327,7 +349,14 @@ def duty_amplitudes(data: dict) -> dict:
         data[key] = reading.value * factor
         if key == "voltage":
             data["voltage_form"] = form
-    if data.get("current") is not None:
+    if "voltage_driven" in data:
+        raise InputError("duty.voltage_driven", "is not a field: write current: voltage-driven")
+    if isinstance(data.get("current"), str) and lowered(data["current"]) in ("voltage-driven", "voltage driven"):
+        if waveform == "pulse":
+            raise InputError("duty.current", "a pulse across an inductance has no steady current: give the "
+                             "pulse's repetition_rate and pulse_width (or pulse_energy), or its rms current")
+        data["current"], data["voltage_driven"] = 0.0, True
+    if data.get("current") is not None and not data.get("voltage_driven"):
         amps = read_quantity(data["current"], "current", "duty.current", allow_zero=True)
         if amps.qualifier not in _CURRENT_FORMS[waveform]:
             raise InputError("duty.current", f"a {waveform} duty's current is its "
