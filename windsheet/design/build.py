@@ -137,7 +137,28 @@ def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
             "potential_max_Vpk": float(np.max(potential)) if potential is not None and len(potential) else None}
 
 
-def _ring(layout, most=90):
+def _outer_wrap(wrap):
+    if wrap is None:
+        return None
+    ov = wrap.overlap
+    return {"material": wrap.material, "thickness_m": wrap.thickness, "wraps": wrap.wraps,
+            "overlap_m": ov.length if ov else None, "overlap_fraction": ov.fraction if ov else None}
+
+
+def _sector_angles(sectors, most):
+    """Per layer, each winding's turn angles in its own sector (degrees from the start mark)."""
+    per_layer = {}
+    for s, (a0, one) in enumerate(sectors):
+        deg = np.degrees(one.theta)
+        for lay_i in range(one.layers):
+            sel = np.flatnonzero(one.layer == lay_i)
+            sel = sel[np.argsort(one.index[sel])]
+            pick = sel if sel.size <= most else sel[np.linspace(0, sel.size - 1, most).round().astype(int)]
+            per_layer.setdefault(lay_i, {})[STRAND_IDS[s]] = [round(float(a0 + a), 2) for a in deg[pick]]
+    return per_layer
+
+
+def _ring(layout, sectors=None, most=90):
     """A toroid's turns round the ring, for the top view: each layer's turn angles.
 
     Angles are degrees from the start in the winding direction, one list per
@@ -165,6 +186,23 @@ def _ring(layout, most=90):
                        "radius_m": rho, "build_m": layout.ring_radius - rho + layout.overall_diameter / 2,
                        "from_deg": float(deg[sel].min()), "to_deg": float(deg[sel].max()),
                        "angles_deg": per_strand})
+    if sectors:
+        # Each winding in its own sector: its turns' angles, and the bare angle left between sectors.
+        by_layer = _sector_angles(sectors, most)
+        for row in layers:
+            angles = by_layer.get(row["layer"] - 1, {})
+            row["angles_deg"] = angles
+            flat = [a for v in angles.values() for a in v]
+            if flat:
+                row["from_deg"], row["to_deg"] = min(flat), max(flat)
+        spans = [{"strand": STRAND_IDS[s], "from_deg": float(a0),
+                  "to_deg": float(a0 + math.degrees(one.theta.max()) + wire_deg / 2)}
+                 for s, (a0, one) in enumerate(sectors)]
+        gaps = [(spans[(k + 1) % len(spans)]["from_deg"] + (360.0 if k + 1 == len(spans) else 0.0))
+                - spans[k]["to_deg"] for k in range(len(spans))]
+        return {"spread": "sectors", "ring_radius_m": layout.ring_radius, "wire_diameter_m": layout.overall_diameter,
+                "span_deg": spans[-1]["to_deg"] - spans[0]["from_deg"], "gap_deg": float(min(gaps)),
+                "sectors": spans, "layers": layers}
     return {"spread": layout.spread, "ring_radius_m": layout.ring_radius,
             "wire_diameter_m": layout.overall_diameter,
             "span_deg": float(deg.max() - deg.min() + wire_deg),
@@ -188,6 +226,11 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         turns = doc.winding.turns
     layout = sizing.layout_at(order, wire, turns)
     warnings.extend(layout.notes)
+    sectors = None
+    if doc.winding.arrangement.kind == "sectors":
+        sectors = sizing.sector_layouts(order, wire, turns)
+        warnings.append("windings in sectors: the insulation check takes them side by side in every turn, "
+                        "the worst case; in their sectors they meet only across the gaps between sectors")
     S = layout.strands
     L = sizing.inductance_matrix(order, wire, layout)
     length = sizing.strand_lengths(order, layout)
@@ -307,7 +350,11 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                  "mean_turn_length_m": getattr(f, "mean_turn_length", None),
                  "al_H": sizing.core_al(order), "permeability": getattr(f, "permeability", None),
                  "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
-                 "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
+                 "core_gap_m": f.gap.thickness if isinstance(f, BobbinForm) and f.gap is not None else None,
+                 "core_gap_material": f.gap.material if isinstance(f, BobbinForm) and f.gap is not None else None,
+                 "core_assembly": f.assembly if isinstance(f, BobbinForm) else None,
+                 "margin_tape_thickness_m": order.margin_thickness if order.margin else None,
+                 "pin_header": f.pin_header.model_dump() if getattr(f, "pin_header", None) else None,
                  "margin_tape_m": order.margin or None,
                  "margin_tape_material": order.margin_material if order.margin else None},
         "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
@@ -323,8 +370,10 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                     "layer_tape_rating_V": order.tape_rating,
                     "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
                     "close_wound": doc.winding.pitch is None, "target": target,
-                    "direction": doc.winding.direction, "spread": layout.spread or None},
-        "ring": _ring(layout),
+                    "direction": doc.winding.direction, "spread": layout.spread or None,
+                    "outer_wrap": _outer_wrap(doc.winding.outer_wrap),
+                    "arrangement": doc.winding.arrangement.kind if isinstance(f, ToroidForm) and S > 1 else None},
+        "ring": _ring(layout, sectors),
         "sheet_units": "imperial" if getattr(order, "imperial", False) else "metric",
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},

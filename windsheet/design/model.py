@@ -50,6 +50,14 @@ class Job(Part):
     notes: str = ""
 
 
+class PinHeader(Part):
+    """A row of pins at one end of the form: pin 1 first, the rest ``pitch_m`` apart."""
+
+    end: str = Field(description="start-end or finish-end")
+    pitch_m: float
+    pins: int
+
+
 class Form(Part):
     kind: str = "cylinder"
     material: Optional[str] = None
@@ -67,6 +75,10 @@ class Form(Part):
     core_gap_m: Optional[float] = Field(None, description="bobbin core: gap as assembled [m]; 0 ungapped")
     margin_tape_m: Optional[float] = None
     margin_tape_material: Optional[str] = None
+    margin_tape_thickness_m: Optional[float] = Field(None, description="one wrap of the margin tape [m]")
+    core_gap_material: Optional[str] = Field(None, description="the spacer that sets the core gap")
+    core_assembly: Optional[str] = Field(None, description="interleaved, butt-gapped or ground-centre-leg")
+    pin_header: Optional[PinHeader] = None
 
 
 class WireSpec(Part):
@@ -82,6 +94,16 @@ class WireSpec(Part):
     min_overall_diameter_m: Optional[float] = None
     breakdown_test: Optional[str] = None
     sources: list[str] = Field(default_factory=list)
+
+
+class OuterWrap(Part):
+    """The cover over the finished winding."""
+
+    material: str
+    thickness_m: Optional[float] = None
+    wraps: int
+    overlap_m: Optional[float] = Field(None, description="past the seam, round a cylinder or bobbin [m]")
+    overlap_fraction: Optional[float] = Field(None, description="of the tape's width, through a toroid's hole")
 
 
 class TargetSearch(Part):
@@ -113,6 +135,8 @@ class Winding(Part):
     target: Optional[TargetSearch] = None
     direction: str = "clockwise"
     spread: Optional[str] = None
+    outer_wrap: Optional[OuterWrap] = None
+    arrangement: Optional[str] = Field(None, description="several windings on a toroid: together or sectors")
 
 
 class RingLayer(Part):
@@ -126,10 +150,19 @@ class RingLayer(Part):
     angles_deg: dict[str, list[float]] = Field(description="turn angles per strand, from the start [deg]")
 
 
+class RingSector(Part):
+    """One winding's own sector of the ring (arrangement: sectors)."""
+
+    strand: str
+    from_deg: float
+    to_deg: float
+
+
 class Ring(Part):
     """A toroid's turns round the ring, for its top view."""
 
     spread: Optional[str] = None
+    sectors: list[RingSector] = Field(default_factory=list, description="each winding's sector, when in sectors")
     ring_radius_m: float
     wire_diameter_m: float
     span_deg: float
@@ -435,6 +468,10 @@ class StrandEnd(Part):
     pin: Optional[str] = None
     route: Optional[str] = None
     route_text: Optional[str] = Field(None, description="how its lead is laid, in words")
+    crosses_turns: int = Field(0, description="turns its lead lies against on its route")
+    lead_Vpk: Optional[float] = Field(None, description="the most its lead holds off against those turns [V peak]")
+    sleeve_when_laid: bool = Field(False, description="its sleeving goes on when the lead is laid, "
+                                   "before the turns it crosses")
 
 
 class TerminalLead(Part):
@@ -465,6 +502,9 @@ class Connections(Part):
     joints: list[Joint]
     linked_pins: list[PinLink] = Field(default_factory=list)
     wire_ends_per_unit: int = Field(description="two per strand, each with its lead length")
+    sleeving_rating_Vpk: Optional[float] = Field(None, description="least voltage the sleeving must hold off: "
+                                                 "the highest of any lead against the turns it crosses and the "
+                                                 "terminal voltage [V peak]")
     sleeving_pieces_per_unit: int = Field(description="one over each terminal lead and one over each joint")
 
 
@@ -485,6 +525,20 @@ class QcLine(Part):
     note: str = ""
     test_voltage_V: Optional[float] = Field(None, description="hipot: the test voltage [V]")
     duration_s: Optional[float] = Field(None, description="hipot: how long it is held [s]")
+
+
+class LayerRow(Part):
+    """One layer as the operator winds it: a row of the layer table."""
+
+    layer: int
+    turns: int = Field(description="turns per strand in this layer")
+    from_end: str = Field(description="where the layer starts: start-end or finish-end (a toroid: start-mark, "
+                          "or the end of the layer below)")
+    counter_start: int = Field(description="the turn counter at the layer's first turn, counted per strand from "
+                               "the start of the winding")
+    counter_end: int = Field(description="the turn counter at the layer's last turn")
+    tape_after: Optional[str] = Field(None, description="what goes over it: layer-tape, outer-wrap, or null")
+    margin_wraps: Optional[int] = Field(None, description="margin-tape wraps at each end built up with this layer")
 
 
 class QcPlan(Part):
@@ -562,6 +616,7 @@ class Design(DesignCore):
     """A sized coil order: every figure the outputs print, in SI units, and the facts derived from them."""
 
     connections: Connections
+    layer_plan: list[LayerRow] = Field(default_factory=list, description="each layer as wound: the layer table")
     qc_plan: QcPlan
     qc_required: list[str] = Field(description="keys of the QC lines every unit must be read for")
     state: DesignState

@@ -12,8 +12,8 @@ from markupsafe import Markup
 from .diagrams import cross_section_svg, wiring_svg
 from windsheet.common.fmt import NBSP, OHM, celsius, eng, kelvin, length, mass, percent
 from .sheet_pdf import band, farad, header_part, henry, hertz, joule, ohm, thermal_class, volt
-from .wiring_words import form_rows, lead_notes, pin_rows, pins_of_ends, terminal_names
-from .procedure import procedure_steps
+from .wiring_words import form_rows, pin_rows, pins_of_ends, terminal_names, termination_rows
+from .procedure import procedure_blocks, procedure_steps
 
 #: Section headings in job-flow order; the tests look for each in the PDF text.
 SECTIONS = (
@@ -63,8 +63,10 @@ def traveller_context(p, forced: bool = False) -> dict:
         "terminal_heading": terminal_heading(p),
         "joints": p.connections.joints,
         "joins_text": [" + ".join(j.ends) for j in p.connections.joints],
-        "wiring_svg": Markup(wiring_svg(p.hookup.model_dump(), ids, labels, lead_notes(p), pins_of_ends(p),
+        # Lead routes are in the termination table, where they wrap; the drawing holds the circuit only.
+        "wiring_svg": Markup(wiring_svg(p.hookup.model_dump(), ids, labels, None, pins_of_ends(p),
                                         terminals=[end for _, end in terminal_names(p)])),
+        "termination_rows": termination_rows(p),
         "pin_rows": pin_rows(p),
         "cross_section_svg": svg_image(cross_section_svg(cs, kind, placement=placement)),
         "section_wide": _widest_layer(cs) > 14,
@@ -72,9 +74,11 @@ def traveller_context(p, forced: bool = False) -> dict:
         "voltage_svg": svg_image(cross_section_svg(cs, kind, shade=True)) if cs.get("potential_max_Vpk") else None,
         "form_rows": form_rows(p.form),
         "duty_rows": duty_rows(p.duty),
+        "layer_counts": layer_counts(p.winding.turns_in_layer),
         "hot_resistance_label": hot_resistance_label(p),
         "picks": pick_list(p),
         "steps": procedure_steps(p),
+        "procedure": procedure_blocks(p),
         "cautions": cautions(p),
         "deferral": DEFERRAL,
         "qc_items": qc_items(p),
@@ -84,6 +88,19 @@ def traveller_context(p, forced: bool = False) -> dict:
         "thermal": p.thermal,
         "impulse_rows": impulse_rows(p.impulse),
     }
+
+
+def layer_counts(turns_in_layer) -> str:
+    """Turns per layer, runs of equal layers written once: ``66 (layers 1–28), 48 (layer 29)``."""
+    runs = []
+    for k, t in enumerate(turns_in_layer, start=1):
+        if runs and runs[-1][0] == t:
+            runs[-1][2] = k
+        else:
+            runs.append([t, k, k])
+    if len(runs) == len(turns_in_layer) and len(runs) <= 6:
+        return ", ".join(str(t) for t in turns_in_layer)
+    return ", ".join(f"{t} (layer{'s' if a != b else ''} {a}{f'–{b}' if a != b else ''})" for t, a, b in runs)
 
 
 def terminal_heading(p) -> str:
