@@ -195,10 +195,34 @@ def test_engineering_notation(value, unit, expected):
 
 
 def test_lengths_print_in_millimetres_below_a_metre():
-    # Shop practice (common practice): wire and form sizes in mm, wire lengths in m.
-    assert normalise(render.length(0.000578)) == "0.5780 mm"
-    assert normalise(render.length(12.3)) == "12.30 m"
+    # Shop practice (common practice): wire and form sizes in mm, wire lengths in m, each to the
+    # reading of the tool that measures it: a micrometer 0.001 mm, a caliper 0.01 mm, a tape 1 cm.
+    assert normalise(render.length(0.000578, fine=True)) == "0.578 mm"
+    assert normalise(render.length(0.00005, fine=True)) == "0.05 mm"
+    assert normalise(render.length(0.0003)) == "0.3 mm"
+    assert normalise(render.length(0.0762)) == "76.2 mm"
+    assert normalise(render.length(12.3)) == "12.3 m"
     assert normalise(render.mass(0.01699)) == "17.0 g"
+
+
+def test_imperial_sheets_print_inches_and_fahrenheit_and_millimetres_only_when_asked():
+    from windsheet.common.fmt import IMPERIAL, celsius, kelvin
+
+    # 1 in = 25.4 mm exactly (international inch, 1959); °F = °C × 9/5 + 32.
+    token = IMPERIAL.set("imperial")
+    try:
+        assert normalise(render.length(0.0381)) == "1.5 in"
+        assert normalise(render.length(0.000508, fine=True)) == "0.02 in"
+        assert normalise(celsius(60.0)) == "140 °F" and normalise(kelvin(10.0)) == "18 °F"
+        assert "mm" not in render.length(0.0381)
+    finally:
+        IMPERIAL.reset(token)
+    token = IMPERIAL.set("both")
+    try:
+        assert normalise(render.length(0.0381)) == "1.5 in (38.1 mm)"
+        assert normalise(celsius(25.0)) == "77 °F (25 °C)"
+    finally:
+        IMPERIAL.reset(token)
 
 
 @pytest.mark.parametrize("paper, size", [("a4", (595, 842)), ("letter", (612, 792))])

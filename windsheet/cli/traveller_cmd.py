@@ -62,8 +62,9 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
                   fmt: Optional[str] = typer.Option(None, "--format", help="pdf, html or json (the prediction); "
                                                     "default: from the output file's extension, else pdf."),
                   paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
-                  units: Optional[str] = typer.Option(None, "--units", help="imperial (inches beside "
-                                                      "millimetres) or metric; default as the order is written."),
+                  units: Optional[str] = typer.Option(None, "--units", help="metric (mm, °C), imperial "
+                                                      "(inches, °F) or both (inches and °F first, mm and °C "
+                                                      "beside); default as the order is written."),
                   force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
                                              "fails; the sheet then says FORCED."),
                   jobs: int = typer.Option(0, "--jobs", min=0, help="Worker processes for several orders "

@@ -43,6 +43,8 @@ DIMENSIONS = {
     "resistance": ("resistance", "ohm", "1.5 ohm"),
     "time": ("time", "s", "60 s"),
     "rise_time": ("time", "s", "100 ns"),
+    "pulse_width": ("time", "s", "10 us"),
+    "energy": ("energy", "J", "50 mJ"),
     "temperature": ("temperature", "degC", "25 degC"),
     "inductance_factor": ("inductance", "H", "2.2 uH"),
     "mass": ("mass", "kg", "12 g"),
@@ -63,6 +65,8 @@ SANE_RANGE = {
     "resistance": (1e-9, 1e18),
     "time": (1e-6, 1e7),
     "rise_time": (1e-12, 1.0),
+    "pulse_width": (1e-12, 10.0),
+    "energy": (1e-12, 1e7),
     "temperature": (-273.15, 1000.0),
     "mass": (1e-9, 1e4),
 }

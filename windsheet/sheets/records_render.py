@@ -34,7 +34,15 @@ def _q(value, unit):
         return f"{value:,.2f} m"
     if unit == "kg":
         return f"{value * 1e3:,.1f} g" if value < 1 else f"{value:,.3f} kg"
-    return f"{value:,} {unit}"
+    return f"{value:,} {_singular(unit) if value == 1 else unit}"
+
+
+#: A count of one is written in the singular on the printed bill ("1 reel"); the CSV keeps its unit words.
+_SINGULAR = {"reels": "reel", "pieces": "piece", "wraps": "wrap", "labels": "label"}
+
+
+def _singular(unit: str) -> str:
+    return _SINGULAR.get(unit, unit)
 
 
 def materials_html(bill: dict, paper: str = "a4") -> str:
