@@ -164,6 +164,16 @@ def test_a_schema_violation_is_caught():
 
 # --- a record written by the earlier version ---------------------------------------------
 
+def _close(a, b, rel=1e-12):
+    if isinstance(a, dict):
+        return a.keys() == b.keys() and all(_close(a[k], b[k], rel) for k in a)
+    if isinstance(a, list):
+        return len(a) == len(b) and all(_close(x, y, rel) for x, y in zip(a, b))
+    if isinstance(a, float) and isinstance(b, float):
+        return a == pytest.approx(b, rel=rel)
+    return a == b
+
+
 def test_a_version_1_record_reads_as_todays_design():
     # tests/data/hl-0412.prediction-v1.json: windsheet size --json of the HL-0412 sample as the
     # version before the typed model wrote it (schema windsheet.prediction/1).
@@ -172,8 +182,10 @@ def test_a_version_1_record_reads_as_todays_design():
     got = design_from_v1(old)
     new = design("hl-0412-bifilar-aiding")
     assert got.qc_required == old["qc_required"] == new.qc_required
-    assert got.terminal == new.terminal and got.strands == new.strands and got.pairs == new.pairs
-    assert got.connections == new.connections and got.qc_plan == new.qc_plan
+    # The same sizing, to the last digits a different order of summation moves.
+    for section in ("terminal", "strands", "pairs", "qc_plan"):
+        assert _close(got.model_dump()[section], new.model_dump()[section]), section
+    assert got.connections == new.connections
     assert got.state == new.state and got.family == new.family
 
 

@@ -20,6 +20,7 @@ from windsheet.physics import stress
 from windsheet.common.errors import InputError
 from windsheet.physics.ac_resistance import winding_ac_ratio
 from windsheet.physics.fast_front import DEFAULT_GROUND_CAPACITANCE_F
+from windsheet.physics.flux_linkage import strand_sums, turn_linkage_matrix
 from windsheet.physics import heating
 from windsheet.physics.insulation import hipot_voltage
 from windsheet.physics.leads import lead_routes
@@ -252,7 +253,14 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     layout = sizing.layout_at(order, wire, turns)
     warnings.extend(layout.notes)
     S = layout.strands
-    L = sizing.inductance_matrix(order, wire, layout)
+    linkage = None
+    if doc.duty.frequency > 0 and sizing.core_al(order) is None:
+        # An a.c. duty needs every turn's flux linkage for its voltage map; the strand matrix
+        # is the same double sum gathered by strand, so the engine runs once.
+        linkage = turn_linkage_matrix(layout)
+        L = strand_sums(layout, linkage)
+    else:
+        L = sizing.inductance_matrix(order, wire, layout)
     length = sizing.strand_lengths(order, layout)
     duty = doc.duty
     t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
@@ -299,7 +307,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     ohm_per_m = float(dc_resistance(1.0, wire.copper_diameter, t_op))
     cored = sizing.core_al(order) is not None
     drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
-                                 doc.winding.lead_length)
+                                 doc.winding.lead_length, linkage)
     leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
     stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
@@ -313,7 +321,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         own_net = separate_windings(L, Rhot)
         own = stress.assess(layout, own_net, duty.voltage, duty.frequency, wire.breakdown,
                             drops=stress.winding_drops(layout, own_net, duty.frequency, ohm_per_m, L,
-                                                       cored, doc.winding.lead_length),
+                                                       cored, doc.winding.lead_length, linkage),
                             **stress_args)
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
