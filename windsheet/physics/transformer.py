@@ -234,3 +234,56 @@ def regulation(v_secondary, current_secondary, r_equivalent, x_equivalent, power
     """
     sin_phi = math.sqrt(max(0.0, 1.0 - power_factor ** 2))
     return (current_secondary * (r_equivalent * power_factor + x_equivalent * sin_phi)) / float(v_secondary)
+
+
+def mmf_leakage_inductance(segments, mean_turn_length, height):
+    """Leakage inductance of windings stacked in a window, from the magnetomotive force across the build.
+
+    Each segment is a winding section (its ampere-turns spread evenly over its
+    build) or a gap (no current).  The MMF ``F(x)`` rises or falls linearly
+    through a section and is flat across a gap; the energy in the window is
+    ``µ0 MLT / (2h) ∫ F² dx`` and, for a reference current of 1 A,
+    ``L = µ0 MLT ∫ F² dx / h``.  Interleaved sections (P/2 S P/2) lower the
+    peak MMF and so the leakage.
+
+    Parameters
+    ----------
+    segments : sequence of (float, float)
+        In build order: ``(radial build [m], ampere-turns carried [A])`` per
+        section or gap (0 for a gap), for 1 A in the reference winding; the
+        ampere-turns sum to zero (balanced, as with a shorted secondary).
+    mean_turn_length : float
+        Mean turn length over the build. [m]
+    height : float
+        Height of the windings along the core leg. [m]
+
+    Returns
+    -------
+    L_lk : float
+        Leakage inductance referred to the winding whose 1 A set the ampere-turns. [H]
+
+    References
+    ----------
+    .. [1] P. L. Dowell, "Effects of eddy currents in transformer windings",
+       Proc. IEE 113(8), 1966 (the MMF diagram).
+    .. [2] W. T. McLyman, Transformer and Inductor Design Handbook, 3rd ed.,
+       2004, ch. 17 (memory).
+
+    Examples
+    --------
+    Two windings of 100 turns with a 0.5 mm gap read as the concentric formula
+    (:func:`leakage_inductance_concentric`, 115.19 µH):
+
+    >>> segs = [(2e-3, 100.0), (0.5e-3, 0.0), (2e-3, -100.0)]
+    >>> round(mmf_leakage_inductance(segs, 0.1, 0.02) * 1e6, 2)
+    115.19
+    """
+    total, f0 = 0.0, 0.0
+    for width, amp_turns in segments:
+        f1 = f0 + amp_turns
+        total += width * (f0 * f0 + f0 * f1 + f1 * f1) / 3.0
+        f0 = f1
+    if abs(f0) > 1e-9 * max(1.0, max(abs(a) for _, a in segments)):
+        raise ValueError("the ampere-turns do not balance: the MMF method needs a shorted secondary")
+    # Ampere-turns for 1 A in the reference winding: ∫F² is already per ampere squared.
+    return MU0 * float(mean_turn_length) * total / float(height)
