@@ -14,8 +14,23 @@ def _register_in_tmp(tmp_path, monkeypatch):
     yield
 
 
-def sample_orders():
+def _orders():
     return sorted(p for p in SAMPLES.glob("*.yaml") if not p.name.endswith(".measured.yaml"))
+
+
+def _is_transformer(path) -> bool:
+    # A transformer order lists its windings at the top level.
+    return any(line.startswith("windings:") for line in path.read_text().splitlines())
+
+
+def sample_orders():
+    """The sample coil orders."""
+    return [p for p in _orders() if not _is_transformer(p)]
+
+
+def transformer_orders():
+    """The sample transformer orders."""
+    return [p for p in _orders() if _is_transformer(p)]
 
 
 def redesign(design, **changes):

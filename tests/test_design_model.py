@@ -278,7 +278,7 @@ def test_bill_of_materials_counts_the_designs_sleeving(name):
     job = bill["jobs"][0]
     assert job["sleeving"]["pieces"] == want["quantity"] * d.connections.sleeving_pieces_per_unit
     assert job["quantity"] == want["quantity"] == d.quantity
-    assert job["wire"]["strands"] == len(d.strands)
+    assert [w["strands"] for w in job["wires"]] == [len(d.strands)]
 
 
 @pytest.mark.parametrize("name", CASES)

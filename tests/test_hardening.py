@@ -29,7 +29,9 @@ from conftest import SAMPLES, sample_orders
 runner = CliRunner()
 
 SAMPLE_DOCS = [yaml.safe_load(p.read_text()) for p in sample_orders()]
-MEASURED_DOCS = [yaml.safe_load(p.read_text()) for p in sorted(SAMPLES.glob("*.measured.yaml"))]
+# The coils' readings (a transformer's are read winding by winding: tests/test_transformer_signoff.py).
+MEASURED_DOCS = [d for d in (yaml.safe_load(p.read_text()) for p in sorted(SAMPLES.glob("*.measured.yaml")))
+                 if not any("windings" in u for u in d["units"])]
 SECTIONS = {"job", "form", "wire", "winding", "hookup", "duty", "tolerances", "insulation", "test", "terminations"}
 PROPERTY = settings(max_examples=200, deadline=None, derandomize=True,
                     suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])

@@ -21,14 +21,14 @@ from windsheet.common.errors import InputError
 from windsheet.order.document import load_order
 from windsheet.design.build import build_design
 
-from conftest import redesign
+from conftest import redesign, sample_orders
 
 SVG = "{http://www.w3.org/2000/svg}"
 
 # --- the real engine on the samples --------------------------------------------------
 
 ROOT = Path(__file__).resolve().parent.parent
-SAMPLES = sorted(p for p in (ROOT / "samples").glob("*.yaml") if not p.name.endswith(".measured.yaml"))
+SAMPLES = sample_orders()
 SAMPLE_IDS = [p.stem for p in SAMPLES]
 
 

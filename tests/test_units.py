@@ -23,11 +23,11 @@ REG = pint.UnitRegistry()
 UNITS, FOLDED, FOREIGN = table()
 SI_OF_KIND = {"length": "m", "inductance": "H", "capacitance": "F", "voltage": "V", "current": "A",
               "frequency": "Hz", "resistance": "ohm", "time": "s", "mass": "kg", "angle": "rad",
-              "energy": "J"}
+              "energy": "J", "flux_density": "T"}
 FIELD_OF_KIND = {"length": "length", "inductance": "inductance", "capacitance": "capacitance",
                  "voltage": "voltage", "current": "current", "frequency": "frequency",
                  "resistance": "resistance", "time": "time", "mass": "mass", "angle": "angle",
-                 "temperature": "temperature", "energy": "energy"}
+                 "temperature": "temperature", "energy": "energy", "flux_density": "flux_density"}
 
 
 # Where the trade and pint read a spelling differently, windsheet keeps the trade's meaning:

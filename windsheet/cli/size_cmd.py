@@ -127,15 +127,15 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
         raise typer.Exit(2) from None
     if len(files) == 1:
         p = _size_one(files[0])
-        typer.echo(to_json(p.as_json()) if as_json else "\n".join(summary_lines(p)))
+        typer.echo(to_json(p.as_json()) if as_json else "\n".join(describe(p)))
         raise typer.Exit(1 if _insulation_fails(p) else 0)
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
 
     refused, failing = [], []
     with progress(len(files), "sizing") as step:
         for f in files:
             try:
-                p = build_design(load_order_arg(f))
+                p = size_any(load_order_arg(f))
             except InputError as exc:
                 # Named by its file; the batch carries on.
                 msg = str(exc)
@@ -148,7 +148,7 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
             if as_json:
                 typer.echo(json.dumps({"file": f, **p.as_json()}, ensure_ascii=False, allow_nan=False, default=str))
             else:
-                typer.echo(f"== {f}\n" + "\n".join(summary_lines(p)) + "\n")
+                typer.echo(f"== {f}\n" + "\n".join(describe(p)) + "\n")
             step()
     sized = len(files) - len(refused)
     tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
@@ -160,10 +160,26 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
 @guarded
 def _size_one(arg: str):
     from .batch import load_order_arg
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
 
-    return build_design(load_order_arg(arg))
+    return size_any(load_order_arg(arg))
+
+
+def describe(p) -> list[str]:
+    """The summary of a coil's design, or of a transformer's."""
+    from windsheet.design.dispatch import is_transformer_design
+
+    if is_transformer_design(p):
+        from .transformer_summary import transformer_summary_lines
+
+        return transformer_summary_lines(p)
+    return summary_lines(p)
 
 
 def _insulation_fails(p) -> bool:
+    from windsheet.design.dispatch import is_transformer_design
+
+    if is_transformer_design(p):
+        return (any(b.verdict == "fail" for b in p.barriers)
+                or any(w.insulation_verdict == "fail" for w in p.windings))
     return p.insulation.verdict == "fail"

@@ -49,6 +49,7 @@ DIMENSIONS = {
     "inductance_factor": ("inductance", "H", "2.2 uH"),
     "mass": ("mass", "kg", "12 g"),
     "angle": ("angle", "rad", "30 deg"),
+    "flux_density": ("flux_density", "T", "1.2 T"),
 }
 
 # Plausible magnitudes for a coil-shop document (SI, outside zero).  Far wider
@@ -69,6 +70,7 @@ SANE_RANGE = {
     "energy": (1e-12, 1e7),
     "temperature": (-273.15, 1000.0),
     "mass": (1e-9, 1e4),
+    "flux_density": (1e-6, 1e2),
 }
 
 _QUALIFIERS = {"rms": "rms", "ac": "rms", "a.c.": "rms", "peak": "peak", "pk": "peak",

@@ -56,7 +56,9 @@ def materials_html(bill: dict, paper: str = "a4") -> str:
     job_tables = []
     for j in bill["jobs"]:
         job_tables.append({"caption": f"{j['job']} rev {j.get('revision') or '—'} — {j.get('part') or ''}, "
-                                      f"{j['quantity']} unit(s), {j['wire']['strands']} strand(s)",
+                                      f"{j['quantity']} unit(s), "
+                                      + ", ".join(f"{w['winding'] + ' ' if w.get('winding') else ''}{w['strands']} "
+                                                  "strand(s)" for w in j["wires"]),
                            "head": ["Category", "Item", "Quantity"], "num": (2,),
                            "rows": [[r["category"], r["item"], _q(r["quantity"], r["unit"])]
                                     for r in rows if r["scope"] == j["job"]]})
