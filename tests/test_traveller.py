@@ -133,7 +133,17 @@ def test_html_is_standalone_and_carries_the_same_sections(stem):
 
 
 def _printed_values(p):
-    """The engine's numbers as the sheet must print them."""
+    """The engine's numbers as the sheet must print them, in the sheet's own unit system."""
+    from windsheet.common.fmt import IMPERIAL
+
+    token = IMPERIAL.set(render._units(p, None))
+    try:
+        return _values(p)
+    finally:
+        IMPERIAL.reset(token)
+
+
+def _values(p):
     t = p.terminal
     values = [render.henry(t.inductance_H), render.ohm(t.resistance_ohm),
               render.ohm(t.resistance_hot_ohm), render.farad(t.capacitance_F),
@@ -399,9 +409,13 @@ def test_procedure_depends_on_the_order():
     assert any("series-aiding" in t for t in bif)
     assert bif.index(next(t for t in bif if "identify every end" in t)) < bif.index(
         next(t for t in bif if "series-aiding" in t)) < bif.index(next(t for t in bif if t.startswith("make the joint")))
+    # A taped multi-layer winding: one row per layer in the layer table, tape after every layer
+    # but the last (which takes the outer wrap).
     layers = sample_prediction(taped).layers
-    assert sum(t.startswith("Tape over layer") for t in _titles(taped)) == layers - 1
-    assert sum(t.startswith("Wind layer") for t in _titles(taped)) == layers
+    blocks = render.traveller_context(sample_prediction(taped))["procedure"]
+    table = next(b["layers"] for b in blocks if "layers" in b)
+    assert [r["layer"] for r in table] == list(range(1, layers + 1))
+    assert [r["then"] for r in table][:-1] == ["layer tape"] * (layers - 1)
     tor = [t.lower() for t in _titles(toroid)]
     assert any("gap" in t for t in tor)
     # Every step gets a tick box and an initials blank on the sheet.

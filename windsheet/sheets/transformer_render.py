@@ -21,10 +21,10 @@ def render_transformer_html(design, paper: str = "a4", forced: bool = False,
     """The traveller of a transformer order as one standalone HTML document."""
     from windsheet.common.fmt import IMPERIAL
 
-    from .render import _imperial
+    from .render import _units
     from .transformer_sheet import SECTIONS, transformer_context
 
-    token = IMPERIAL.set(_imperial(design, units))
+    token = IMPERIAL.set(_units(design, units))
     try:
         env = environment(templates_dir)
         ctx = transformer_context(design, forced=forced)
