@@ -71,3 +71,12 @@ def design_for_job(number, revision="A", units=(), order_hash=None, **job):
     base = sample_design()
     new_job = base.job.model_copy(update={"number": number, "revision": revision, "units": list(units), **job})
     return base.model_copy(update={"job": new_job, "order_hash": order_hash})
+
+
+#: ``make test-long`` (WINDSHEET_LONG=1) runs ten times the property tests' examples.
+LONG = bool(os.environ.get("WINDSHEET_LONG"))
+
+
+def examples(n: int) -> int:
+    """A property test's example count: ``n`` on every change, ten times that in the nightly run."""
+    return n * 10 if LONG else n

@@ -1,5 +1,6 @@
 """The insulation verdict of whole orders: every neighbour, leads, the construction, remedies."""
 
+from conftest import examples
 import copy
 
 import pytest
@@ -141,7 +142,7 @@ def test_sample_remedies_hold(path):
     assert p.insulation.verdict in ("fail", "marginal", "pass")
 
 
-@settings(max_examples=6, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=examples(6), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(volts=st.sampled_from(["300 V", "600 V", "1.2 kV", "2.5 kV"]),
        grade=st.sampled_from([1, 2]),
        layers=st.sampled_from([1, 2, 3]),

@@ -6,6 +6,7 @@ so each spelling's factor is checked against pint's default registry.
 
 from __future__ import annotations
 
+from conftest import examples
 import math
 
 import numpy as np
@@ -229,7 +230,7 @@ ALPHABET = st.sampled_from(list("0123456789.eE+-*/^() %") + ["mm", "uH", "V", "H
                                                               "degC", "kHz", "Ω", "µ", "°", "C", "**", "9"])
 
 
-@settings(max_examples=300, deadline=None, derandomize=True)
+@settings(max_examples=examples(300), deadline=None, derandomize=True)
 @given(parts=st.lists(ALPHABET, max_size=12), field=st.sampled_from(sorted(DIMENSIONS)))
 def test_any_text_reads_or_is_refused_in_one_line(parts, field):
     text = "".join(parts)

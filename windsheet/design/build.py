@@ -231,6 +231,9 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     sectors = None
     if doc.winding.arrangement.kind == "sectors":
         sectors = sizing.sector_layouts(order, wire, turns)
+        warnings = [w for w in warnings if w not in layout.notes] + [
+            f"each winding spread evenly over its own sector, {math.degrees(doc.form.gap):.0f}° left free "
+            "between sectors (common practice)"]
         warnings.append("windings in sectors: the insulation check takes them side by side in every turn, "
                         "the worst case; in their sectors they meet only across the gaps between sectors")
     S = layout.strands
@@ -368,7 +371,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                  "core_gap_material": f.gap.material if isinstance(f, BobbinForm) and f.gap is not None else None,
                  "core_assembly": f.assembly if isinstance(f, BobbinForm) else None,
                  "margin_tape_thickness_m": order.margin_thickness if order.margin else None,
-                 "pin_header": f.pin_header.model_dump() if getattr(f, "pin_header", None) else None,
+                 "pin_header": {"end": f.pin_header.end, "pitch_m": f.pin_header.pitch, "pins": f.pin_header.pins}
+                 if getattr(f, "pin_header", None) else None,
                  "margin_tape_m": order.margin or None,
                  "margin_tape_material": order.margin_material if order.margin else None,
                  "conductive": f.conductive if f.conductive is not None else not isinstance(f, CylinderForm)},

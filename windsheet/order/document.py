@@ -320,7 +320,7 @@ class Winding(_M):
     # Cylinders and bobbins: where the first turn goes (default: hard against the start end).
     start: Annotated[WindingStart, BeforeValidator(_start)] = WindingStart()
     #: The cover over the winding; ``none`` for none (a potted part, say).
-    outer_wrap: Optional[Annotated[OuterWrap, BeforeValidator(_outer_wrap)]] = OuterWrap()
+    outer_wrap: Annotated[Optional[OuterWrap], BeforeValidator(_outer_wrap)] = OuterWrap()
     #: Several windings on a toroid: side by side in every turn, or each in its own sector.
     arrangement: Annotated[Arrangement, BeforeValidator(_arrangement)] = Arrangement()
 

@@ -76,7 +76,9 @@ def start_step(p) -> dict:
         text = f"Anchor the start of strand {ids[0]} leaving {lead}; tag it \"{ids[0]} start\"."
     else:
         marks = "; ".join(f"{s.id}: {s.identification or 'tag it'}" for s in p.strands)
-        text = (f"Anchor the starts of strands {strand_list(ids)} side by side, in that order from the start end, "
+        sectors = toroid and w.arrangement == "sectors" and p.ring and p.ring.sectors
+        together = "each at its own sector's mark" if sectors else "side by side, in that order from the start end"
+        text = (f"Anchor the starts of strands {strand_list(ids)} {together}, "
                 f"each leaving {lead}. Tag every start (\"A start\", …). Telling the strands apart: {marks}.")
     if toroid:
         if w.arrangement == "sectors" and p.ring and p.ring.sectors:
@@ -121,9 +123,9 @@ def winding_step(p) -> dict:
         where = "" if toroid else "from the start end, "
         return step("Wind", f"{t} turns{per} {where}{how}{together}; {pitch}.", ["turns counted"])
     text = (f"Wind layers 1 to {len(rows)} as the layer table below: each row gives the layer's turns{per}, the "
-            "end it starts from, and the turn counter's reading at its end (counted from the start of the winding; "
-            f"zero the counter at the first turn). Every layer {how}{together}; {pitch}. Check the counter at the "
-            "end of each layer and tick the row.")
+            "end it starts from (start or finish end of the traverse) and the turn counter at its end, counted "
+            f"from the first turn (zero the counter there). Every layer {how}{together}; {pitch}. Check the "
+            "counter at each layer's end and tick its row.")
     tape = _layer_tape_words(p)
     if tape:
         text += " " + tape
@@ -151,16 +153,16 @@ def layer_table(p) -> list[dict]:
     toroid = (p.form.kind or "") == "toroid"
     way = p.winding.direction or "clockwise"
     back = "anticlockwise" if way == "clockwise" else "clockwise"
-    then = {"layer-tape": "layer tape", "outer-wrap": "outer wrap", None: "—"}
+    then = {"layer-tape": "tape", "outer-wrap": "outer wrap", None: "—"}
     out = []
     for r in rows:
         if toroid:
-            start = "start mark" if r.from_end == "start-mark" else "end of layer below"
+            start = "start mark" if r.from_end == "start-mark" else "layer below's end"
             run = f"advance {way if r.layer % 2 else back}"
             spread = _toroid_spacing(p, r.layer - 1, short=True)
         else:
-            start = "start end" if r.from_end == "start-end" else "finish end"
-            run = "→ to finish end" if r.from_end == "start-end" else "← to start end"
+            start = "start" if r.from_end == "start-end" else "finish"
+            run = "→ to finish" if r.from_end == "start-end" else "← to start"
             spread = ""
         out.append({"layer": r.layer, "turns": r.turns, "start": start, "run": run, "spread": spread,
                     "counter": r.counter_end, "then": then.get(r.tape_after, r.tape_after or "—"),
@@ -245,7 +247,16 @@ def _toroid_spacing(p, lay: int, short: bool = False) -> str:
     L = ring.layers[lay]
     if short:
         return f"{float(L.pitch_deg):.1f}° per turn, {float(L.from_deg):.0f}°–{float(L.to_deg):.0f}°"
+    if ring.sectors and not short:
+        # Each winding's own turns, read from the top view's angles: one pitch and one range per sector.
+        spans = []
+        for sec in ring.sectors:
+            a = L.angles_deg.get(sec.strand) or []
+            if a:
+                step_deg = (a[-1] - a[0]) / (len(a) - 1) if len(a) > 1 else 0.0
+                spans.append(f"{sec.strand} {float(a[0]):.0f}°–{float(a[-1]):.0f}°, about {step_deg:.1f}° per turn")
+        return "spread each winding over its own sector (" + "; ".join(spans) + " from the start mark; see the top view)"
     where = (f"over the {float(ring.span_deg or 0):.0f}° sector marked on the core" if ring.spread == "sector"
-             else "each winding over its own sector" if ring.sectors else "evenly round the whole core")
+             else "evenly round the whole core")
     return (f"spread {where}, about {float(L.pitch_deg):.1f}° per turn "
             f"(from {float(L.from_deg):.0f}° to {float(L.to_deg):.0f}° from the start mark; see the top view)")

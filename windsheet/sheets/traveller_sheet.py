@@ -64,8 +64,9 @@ def traveller_context(p, forced: bool = False) -> dict:
         "joints": p.connections.joints,
         "joins_text": [" + ".join(j.ends) for j in p.connections.joints],
         # Lead routes are in the termination table, where they wrap; the drawing holds the circuit only.
-        "wiring_svg": Markup(wiring_svg(p.hookup.model_dump(), ids, labels, None, pins_of_ends(p),
-                                        terminals=[end for _, end in terminal_names(p)])),
+        "wiring_svg": natural_size(wiring_svg(p.hookup.model_dump(), ids, labels, None, pins_of_ends(p),
+                                              terminals=[end for _, end in terminal_names(p)])),
+        "pin_header_svg": _pin_header(p),
         "termination_rows": termination_rows(p),
         "pin_rows": pin_rows(p),
         "cross_section_svg": svg_image(cross_section_svg(cs, kind, placement=placement)),
@@ -386,6 +387,24 @@ def unit_tables(units: list[str]) -> list[list[str]]:
     return [units[i:i + UNITS_PER_QC_TABLE] for i in range(0, len(units), UNITS_PER_QC_TABLE)]
 
 
+
+
+def natural_size(svg: str) -> Markup:
+    """An inline drawing no larger than drawn (one unit a CSS pixel), so its text stays the size it was set."""
+    import re
+
+    width = re.search(r'width="([0-9.]+)"', svg)
+    return Markup(svg.replace("<svg ", f'<svg style="max-width:{width.group(1)}px" ', 1) if width else svg)
+
+
+def _pin_header(p):
+    """The pin header drawing, when the order gives one."""
+    if p.form.pin_header is None:
+        return None
+    from .pin_diagrams import pin_header_svg
+
+    term = {t.end: t.label for t in p.connections.terminals}
+    return svg_image(pin_header_svg(p.form.pin_header.model_dump(), [t.model_dump() for t in p.terminations], term))
 
 
 def _ring_svgs(p):
