@@ -8,9 +8,11 @@ import datetime as _dt
 
 def size_any(order, today: _dt.date | None = None, remedies: bool = True):
     """The design of a coil order, or of a transformer order."""
-    from windsheet.order.transformer import TransformerOrder
+    from windsheet.order.document import Order
 
-    if isinstance(order, TransformerOrder):
+    # A coil order is an Order; anything else read by order.reader is a transformer's, whose
+    # models are not built unless one is sized (start-up is part of the product).
+    if not isinstance(order, Order):
         from .transformer_build import build_transformer
 
         return build_transformer(order, today)

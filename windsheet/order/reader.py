@@ -5,7 +5,11 @@ from __future__ import annotations
 import os
 
 from .document import MAX_ORDER_BYTES, parse_order, read_limited, read_yaml_bytes
-from .transformer import is_transformer, parse_transformer
+
+
+def is_transformer(raw) -> bool:
+    """Whether an order's mapping is a transformer's (it lists ``windings``)."""
+    return isinstance(raw, dict) and "windings" in raw
 
 
 def parse_any_order(data: bytes, path: str | None = None):
@@ -13,6 +17,9 @@ def parse_any_order(data: bytes, path: str | None = None):
     :class:`~windsheet.order.transformer.TransformerOrder`, as the document is written."""
     raw = read_yaml_bytes(data, "order", label=path or "order")
     if is_transformer(raw):
+        # The transformer's models are built only for a transformer order: start-up is part of the product.
+        from .transformer import parse_transformer
+
         return parse_transformer({str(k): v for k, v in raw.items()}, data, path)
     return parse_order(data, path)
 

@@ -281,11 +281,6 @@ def _build(doc: TransformerDoc, turns: list[int]) -> list[Section]:
     return sections
 
 
-def is_transformer(raw: dict) -> bool:
-    """Whether an order's mapping is a transformer's (it lists ``windings``)."""
-    return isinstance(raw, dict) and "windings" in raw
-
-
 def parse_transformer(raw: dict, source: bytes, path: str | None) -> TransformerOrder:
     """Validate a transformer order's mapping."""
     if "winding" in raw or "wire" in raw or "hookup" in raw:
