@@ -73,6 +73,15 @@
       })
       .catch(function () { message("could not reach the bench server: your entry is not saved yet", true); });
   }
+  // The inspector's name is this browser's: kept in a cookie the server reads back on every page
+  // and download, so a reload keeps it and the files carry it.
+  var who = document.getElementById("inspector");
+  if (who) {
+    who.addEventListener("input", function () {
+      document.cookie = "ws_bench_inspector=" + encodeURIComponent(who.value.trim().slice(0, 200)) +
+        "; path=/; SameSite=Strict; max-age=31536000";
+    });
+  }
   Array.prototype.forEach.call(form.querySelectorAll("input[data-field]"), function (el) {
     saved[el.name] = el.value;
   });

@@ -125,3 +125,100 @@ def test_drafts_survive_a_server_restart(page, server):
     page.goto(server.url + "/job/HL-0412")
     assert page.input_value('input[name="r:3:terminals.inductance"]') == "400.6 uH"
     assert page.input_value('input[name="r:3:terminals.resistance"]') == "1.7488 ohm"
+
+
+# ---------------------------------------------------------------- a page that fits the job
+
+def test_placeholders_are_this_jobs_own_prediction(page, server):
+    from conftest import sample_design
+    from windsheet.bench.readings import typed
+
+    d = sample_design()
+    page.goto(server.url + "/job/HL-0412")
+    ph = lambda name: page.get_attribute(f'input[name="{name}"]', "placeholder")  # noqa: E731
+    # Written as an inspector types it, from the issued design's plan (not a fixed example).
+    assert ph("r:0:terminals.inductance") == typed(d.qc_plan.line("terminal.inductance").predicted, "H")
+    assert ph("r:0:terminals.inductance").endswith(" uH") and ph("r:0:terminals.inductance").startswith("397.9")
+    assert ph("r:0:hipot.voltage") == typed(d.qc_plan.line("hipot").test_voltage_V, "V")
+    assert ph("r:0:strands.B.resistance") == typed(d.strand("B").resistance_20C_ohm, "ohm")
+    assert ph("r:job:test_frequency") == "1 kHz"
+    # The optional Q line is offered with its prediction, Q or D.
+    assert ph("r:0:terminals.q").startswith(f"{d.terminal.q_test:.3g} or D ")
+
+
+def test_the_inspectors_name_survives_a_reload(page, server):
+    page.goto(server.url + "/job/HL-0412")
+    page.fill("#inspector", "R. Reloaded")
+    page.reload()
+    assert page.input_value("#inspector") == "R. Reloaded"
+    page.goto(server.url + "/")
+    page.get_by_role("link", name="HL-0412").click()
+    assert page.input_value("#inspector") == "R. Reloaded"
+
+
+def _saved(page, unit, row):
+    _cell(page, unit, row).get_by_text(re.compile("PASS|FAIL|read")).wait_for()
+
+
+def test_downloads_carry_inspector_lots_and_instruments(page, server, tmp_path):
+    import yaml
+
+    from windsheet.qc.readings_form import measured_from_csv
+
+    page.goto(server.url + "/job/HL-0412")
+    page.fill("#inspector", "D. Ownload")
+    # One instruments field for the job; unit 2 names its own LCR meter.
+    page.fill('input[name="r:job:instrument_ids"]', "lcr: LCR-07; hipot: HV-03")
+    page.fill('input[name="r:job:ambient"]', "21.5 degC")
+    for i in (1, 2):
+        page.fill(f'input[name="r:{i}:terminals.inductance"]', "399.0 uH")
+        page.fill(f'input[name="r:{i}:terminals.resistance"]', "1.741 ohm")
+        _saved(page, i, "terminal.resistance")
+    page.fill('input[name="r:1:wire_lot"]', "A: R-2291; B: R-2305")
+    page.fill('input[name="r:1:core_lot"]', "GE50-1107")
+    # The last field's save: the page posts it 350 ms after typing stops.
+    with page.expect_response(lambda r: r.url.endswith("/field") and "LCR-09" in (r.request.post_data or "")):
+        page.fill('input[name="r:2:instrument_ids"]', "lcr: LCR-09")
+    page.reload()
+    assert page.input_value('input[name="r:2:instrument_ids"]') == "lcr: LCR-09"
+
+    with page.expect_download() as dl:
+        page.get_by_role("link", name="Measured-values file (YAML)").click()
+    doc = yaml.safe_load(Path(dl.value.path()).read_text())
+    assert doc["inspector"] == "D. Ownload"
+    assert doc["instrument_ids"] == {"lcr": "LCR-07", "hipot": "HV-03"}
+    units = {u["serial"]: u for u in doc["units"]}
+    assert units["HL-0412-02"]["wire_lot"] == {"A": "R-2291", "B": "R-2305"}
+    assert units["HL-0412-02"]["core_lot"] == "GE50-1107"
+    assert units["HL-0412-03"]["instrument_ids"] == {"lcr": "LCR-09"}
+
+    with page.expect_download() as dl:
+        page.get_by_role("link", name="Readings (CSV)").click()
+    text = Path(dl.value.path()).read_text()
+    head = text.splitlines()[0].split(",")
+    assert {"inspector", "wire_lot.A", "wire_lot.B", "core_lot", "instrument_ids.lcr", "instrument_ids.hipot"} <= set(head)
+    # Read back by the sign-off's own CSV reader: the same inspector, lots and instruments per unit.
+    m = measured_from_csv(text)
+    by = {u.serial: u for u in m.units}
+    assert m.inspector == "D. Ownload"
+    assert by["HL-0412-02"].wire_lot == {"A": "R-2291", "B": "R-2305"}
+    assert by["HL-0412-02"].instrument_ids == {"lcr": "LCR-07", "hipot": "HV-03"}
+    assert by["HL-0412-03"].instrument_ids == {"lcr": "LCR-09"}
+
+
+def test_row_labels_stay_in_view_when_the_table_scrolls_sideways(browser, server):
+    context = browser.new_context(viewport={"width": 640, "height": 800})
+    page = context.new_page()
+    try:
+        page.goto(server.url + "/job/HL-0412")
+        box = page.locator("div.scroll")
+        assert page.evaluate("() => { const s = document.querySelector('div.scroll');"
+                             " return s.scrollWidth > s.clientWidth; }"), "the table should be wider than the page"
+        page.evaluate("() => { const s = document.querySelector('div.scroll'); s.scrollLeft = s.scrollWidth; }")
+        label = page.locator('tr[data-row="terminal.inductance"] th[scope="row"]')
+        left = box.bounding_box()["x"]
+        # Scrolled to the far right, the label still sits at the scroll box's left edge, whole.
+        assert label.bounding_box()["x"] == pytest.approx(left, abs=2)
+        assert label.is_visible() and "Inductance at the terminals" in label.inner_text()
+    finally:
+        context.close()

@@ -312,3 +312,17 @@ def test_bifilar_single_layer_adds_a_quarter_of_strand_to_strand():
     strand = c[(kind == "side") & (lay.strand[i] != lay.strand[j])].sum()
     # Energy method, common practice: strands V/2 apart store C_ss/4 beyond Medhurst's even share.
     assert total - medhurst == pytest.approx(strand / 4 - c.sum() / lay.n_turns ** 2, rel=0.02)
+
+
+def test_layer_sums_equal_a_plain_sum_per_layer_pair():
+    # An independent per-layer sum over the pairs' capacitances (the plain loop the bincount replaced).
+    from windsheet.physics.capacitance import pair_capacitances
+    from windsheet.physics.layout import cylinder_layout
+
+    lay = cylinder_layout(0.02, 12e-3, 0.45e-3, 0.5e-3, 2, 60, layers=5, tape=5e-5)
+    i, j, kind, c, layer_C = pair_capacitances(lay)
+    lower = np.minimum(lay.layer[i], lay.layer[j])
+    plain = {(k, k + 1): float(c[(kind == "layer") & (lower == k)].sum()) for k in range(lay.layers - 1)}
+    assert layer_C.keys() == plain.keys()
+    for key in plain:
+        assert layer_C[key] == pytest.approx(plain[key], rel=1e-12)

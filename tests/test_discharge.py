@@ -172,3 +172,15 @@ def test_inception_always_above_paschens_minimum():
     # model, with its Townsend constants (minimum 305 V), never goes below its own minimum.
     v = dis.construction_inception(np.linspace(0, 1e-3, 11), np.zeros(11, bool), 2e-6, 3.5)
     assert np.all(v >= dis.paschen_minimum()[1] * (1 - 1e-9))
+
+
+def test_distinct_rows_is_numpys_unique():
+    # numpy's own np.unique(axis=0) is the reference for the one-sort replacement.
+    from windsheet.physics.discharge import _distinct_rows
+
+    rng = np.random.default_rng(7)
+    rows = np.round(rng.integers(0, 12, (5000, 3)) * 1e-5, 12)
+    uniq, inverse = np.unique(rows, axis=0, return_inverse=True)
+    got_uniq, got_inverse = _distinct_rows(rows)
+    np.testing.assert_array_equal(got_uniq, uniq)
+    np.testing.assert_array_equal(got_inverse, np.ravel(inverse))

@@ -36,6 +36,9 @@ from .readings import JOB_FIELDS, is_unit_field, qc_rows, readings_csv_rows
 MAX_BODY_BYTES = 64 * 1024
 TOKEN_COOKIE = "ws_bench_token"
 CSRF_COOKIE = "ws_bench_csrf"
+#: The inspector's name in this browser: read back on every page and download (not a secret; the page's
+#: own script sets it as it is typed, a form post sets it too).
+INSPECTOR_COOKIE = "ws_bench_inspector"
 _STATIC = {"bench.js": "text/javascript", "bench.css": "text/css"}
 
 
@@ -110,9 +113,9 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
     env = environment()
     register_path = str(register_path)
 
-    def render(name: str, request: Request, status: int = 200, **ctx) -> HTMLResponse:
+    def render(name: str, request: Request, status: int = 200, inspector=None, **ctx) -> HTMLResponse:
         csrf = request.cookies.get(CSRF_COOKIE) or secrets.token_urlsafe(24)
-        html = env.get_template(name).render(csrf=csrf, **ctx)
+        html = env.get_template(name).render(csrf=csrf, inspector=inspector or _inspector(request), **ctx)
         resp = HTMLResponse(html, status_code=status)
         resp.headers["Content-Security-Policy"] = ("default-src 'self'; script-src 'self'; "
                                                    "style-src 'self'; frame-ancestors 'none'")
@@ -203,7 +206,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
             ctx = await with_register(_save_then_signoff, number, form, who)
         else:
             ctx = await with_register(_save_form, number, form, who)
-        return render("bench_job.html.j2", request, **ctx)
+        return _keep_inspector(render("bench_job.html.j2", request, inspector=who, **ctx), who)
 
     def _save_then_signoff(reg, number, form, who):
         ctx = _save_form(reg, number, form, who)
@@ -238,7 +241,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         value, seen = str(form.get("value") or ""), _int(form.get("version"))
         who = str(form.get("inspector") or "").strip()[:200] or None
         body = await with_register(_save_one, number, where, field, value, seen, who)
-        return JSONResponse(body, status_code=409 if body.get("stale") else 200)
+        return _keep_inspector(JSONResponse(body, status_code=409 if body.get("stale") else 200), who)
 
     def _save_one(reg, number, where, field, value, seen, who):
         state, prediction = service.issued(reg, number)
@@ -306,7 +309,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
 
     async def readings_csv(request: Request):
         number = request.path_params["number"]
-        who = (request.query_params.get("inspector") or "").strip()[:200] or None
+        who = (request.query_params.get("inspector") or "").strip()[:200] or _inspector(request)
         text = await with_register(_csv, number, who)
         return _attachment(text, "text/csv; charset=utf-8", number, "-readings.csv")
 
@@ -320,7 +323,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
 
     async def measured_yaml(request: Request):
         number = request.path_params["number"]
-        who = (request.query_params.get("inspector") or "").strip()[:200] or None
+        who = (request.query_params.get("inspector") or "").strip()[:200] or _inspector(request)
         text = await with_register(_yaml, number, who)
         return _attachment(text, "application/yaml; charset=utf-8", number, ".measured.yaml")
 
@@ -366,6 +369,22 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
 
         app.add_middleware(TrustedHostMiddleware, allowed_hosts=list(allowed_hosts))
     return app
+
+
+def _inspector(request: Request):
+    """The inspector this browser named (its cookie), or None."""
+    from urllib.parse import unquote
+
+    name = unquote(request.cookies.get(INSPECTOR_COOKIE) or "").strip()[:200]
+    return name if name and all(ord(c) >= 32 for c in name) else None
+
+
+def _keep_inspector(resp: Response, who) -> Response:
+    from urllib.parse import quote
+
+    if who:
+        resp.set_cookie(INSPECTOR_COOKIE, quote(who, safe=""), max_age=365 * 24 * 3600, samesite="strict")
+    return resp
 
 
 def _serial_at(serials: list, where: str):

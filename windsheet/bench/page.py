@@ -65,6 +65,12 @@ def preview_unit(prediction, revision: str, job_entries: dict, serial: str,
             elif _in_document(unit, field):
                 errors[field] = exc.message
                 entries.pop(field)
+            elif field.split(".")[0] not in ("terminals", "hipot") and field.split(".")[0] in unit:
+                # A part of a section left empty (the ring's capacitor): said at that field, the section left out.
+                errors[field] = exc.message
+                section = field.split(".")[0] + "."
+                for f in [f for f in entries if f.startswith(section)]:
+                    entries.pop(f)
             else:
                 return dict(out, state="waiting",
                             message="enter the terminal inductance and resistance to judge this unit")
@@ -134,9 +140,23 @@ def job_view(prediction, state: dict, drafts: dict, order_text: Optional[str] = 
                       "summary": unit_summary(pv),
                       "values": {f: drafts.get((serial, f), {"value": "", "version": 0}) for r in rows
                                  for f, _ in r["fields"]}})
-    job_values = {f: drafts.get(("", f), {"value": "", "version": 0})
-                  for f in ("ambient", "test_frequency", "instruments")}
-    return {"rows": rows, "units": units, "job_values": job_values, "job_errors": job_errors}
+    job_fields = job_wide_fields(prediction)
+    job_values = {f: drafts.get(("", f), {"value": "", "version": 0}) for f, _, _ in job_fields}
+    return {"rows": rows, "units": units, "job_fields": job_fields, "job_values": job_values,
+            "job_errors": job_errors}
+
+
+def job_wide_fields(prediction) -> list[tuple[str, str, str]]:
+    """The fields for every unit: (field, label, placeholder), the test frequency the traveller's own.
+
+    One instruments field for the job (``instrument_ids``); a unit names its own only where it
+    differs (its row replaces the job's, as in the measured-values file).
+    """
+    from .readings import typed
+
+    return [("ambient", "Ambient", "21.5 degC"),
+            ("test_frequency", "LCR test frequency", typed(prediction.test.frequency_Hz, "Hz")),
+            ("instrument_ids", "Instruments (every unit, unless its own row says)", "lcr: LCR-07; hipot: HV-03")]
 
 
 def signoff_document(prediction, state: dict, drafts: dict, inspector: str,

@@ -20,12 +20,13 @@ JOB_FIELDS = ("ambient", "test_frequency", "instruments", "wire_lot", "core_lot"
 _TRACE = ("wire_lot", "core_lot", "instrument_ids")
 #: Sections a unit needs complete before it can be judged today (the terminals line).
 _WHOLE = {"terminals": ("inductance", "resistance"),
-          "hipot": ("voltage", "duration", "result")}
+          "hipot": ("voltage", "duration", "result"),
+          "ring": ("capacitor",)}
 _PAIR_PARTS = ("series_aiding", "series_opposing")
 _INDUCTANCE = re.compile(r"(^strands\.[A-Z]\.inductance$)|(^terminals\.inductance$)|"
                          r"(^before_joint\.[A-Z]-[A-Z]\.series_(aiding|opposing)$)")
-_FIELD = re.compile(r"^(strands\.[A-Z]\.(inductance|resistance|turns)|before_joint\.[A-Z]-[A-Z]\."
-                    r"series_(aiding|opposing)|terminals\.(inductance|resistance)|"
+_FIELD = re.compile(r"^(strands\.[A-Z]\.(inductance|resistance|turns|q)|before_joint\.[A-Z]-[A-Z]\."
+                    r"series_(aiding|opposing)|terminals\.(inductance|resistance|q)|ring\.(capacitor|frequency|decay)|"
                     r"insulation\.(strand_to_strand|to_core|test_voltage)|"
                     r"hipot\.(voltage|duration|leakage|result)|continuity\.strand_to_strand|ambient|waive|notes|wire_lot|core_lot|instrument_ids)$")
 
@@ -36,17 +37,17 @@ def is_unit_field(field: str) -> bool:
 
 
 def qc_rows(prediction, required: set) -> list[dict]:
-    """The QC record's rows, each with the unit fields it takes.
+    """The QC record's rows, each with the unit fields it takes, and the plan's optional lines.
 
     Labels, predictions and accept bands are the traveller's own (render.qc_items),
-    so the form and the printed sheet cannot disagree.
+    so the form and the printed sheet cannot disagree; each field's placeholder is
+    this job's own prediction, written as it would be typed.
     """
     from windsheet.sheets.render import qc_items
 
-    ids = prediction.strand_ids
     rows = []
-    for it in qc_items(prediction):
-        fields = _fields_for(it["key"], ids)
+    for it in qc_items(prediction, every=True):
+        fields = _fields_for(it["key"], prediction)
         rows.append({**it, "fields": fields, "required": it["key"] in required})
     turns = prediction.strands[0].turns if prediction.strands else None
     extra = [("strand.turns", "Turns counted (where checked)", f"{turns or ''}",
@@ -54,39 +55,70 @@ def qc_rows(prediction, required: set) -> list[dict]:
              ("waive", "Lines waived, with the reason", "", "line: reason; …"),
              ("wire_lot", "Wire reel or lot (or per strand)", "", "R-2291, or A: R-2291; B: R-2305"),
              ("core_lot", "Form or core lot", "", "GE50-1107"),
-             ("instrument_ids", "Instruments used", "", "lcr: LCR-07; hipot: HV-03"),
+             ("instrument_ids", "Instruments, where not the job's", "", "lcr: LCR-07; hipot: HV-03"),
              ("notes", "Notes", "", "")]
     for key, label, predicted, band in extra:
         if key not in {r["key"] for r in rows}:
             rows.append({"key": key, "label": label, "predicted": predicted, "band": band, "judged": False,
-                         "fields": _fields_for(key, ids), "required": key in required})
+                         "fields": _fields_for(key, prediction), "required": key in required})
     return rows
 
 
-def _fields_for(key: str, ids: list) -> list[tuple[str, str]]:
-    """(field, placeholder) pairs for one QC row."""
+def typed(value, unit: str) -> str:
+    """A predicted value written as an inspector types it: ``1.920 mH``, ``100 Mohm``.
+
+    Examples
+    --------
+    >>> typed(1.92e-3, "H"), typed(100e6, "ohm"), typed(1.0e-8, "F"), typed(None, "H")
+    ('1.92 mH', '100 Mohm', '10 nF', '')
+    """
+    from windsheet.common.fmt import eng
+
+    if value is None:
+        return ""
+    return eng(value, unit, sig=4, trim=True, sep=" ").replace("µ", "u")
+
+
+def _fields_for(key: str, prediction) -> list[tuple[str, str]]:
+    """(field, placeholder) pairs for one QC row; placeholders from this job's prediction."""
+    ids = prediction.strand_ids
+    plan = prediction.qc_plan.line(key)
+    predicted = plan.predicted if plan is not None else None
     if key == "strand.turns":
-        return [(f"strands.{s}.turns", f"{s}: turns") for s in ids]
+        return [(f"strands.{s}.turns", f"{s}: {prediction.strand(s).turns}") for s in ids]
+    if key.endswith(".q") and key.split(".")[0] in ("strand", "terminal"):
+        field = f"strands.{key.split('.')[1]}.q" if key.startswith("strand.") else "terminals.q"
+        hint = f"{predicted:.3g} or D {1 / predicted:.3g}" if predicted else "Q, or D 0.05"
+        return [(field, hint)]
     if key.startswith("strand."):
         _, sid, what = key.split(".")
-        return [(f"strands.{sid}.{what}", "100.4 uH" if what == "inductance" else "0.871 ohm")]
+        return [(f"strands.{sid}.{what}", typed(predicted, "H" if what == "inductance" else "ohm"))]
     if key.startswith("pair."):
         _, pair, what = key.split(".")
-        return [(f"before_joint.{pair}.{what}", "398.6 uH")]
+        return [(f"before_joint.{pair}.{what}", typed(predicted, "H"))]
     if key == "terminal.inductance":
-        return [("terminals.inductance", "398 uH or 50.3 kHz / 100 nF")]
+        return [("terminals.inductance", typed(predicted, "H"))]
     if key == "terminal.resistance":
-        return [("terminals.resistance", "1.743 ohm")]
+        return [("terminals.resistance", typed(predicted, "ohm"))]
+    if key == "ring.frequency":
+        rw = prediction.ring_wave
+        return [("ring.capacitor", typed(rw.capacitor_F if rw else None, "F")),
+                ("ring.frequency", typed(predicted, "Hz"))]
+    if key == "ring.decay":
+        return [("ring.decay", f"{predicted:.3g}" if predicted else "")]
     if key == "continuity.strand_to_strand":
         return [("continuity.strand_to_strand", "open / shorted")]
     if key == "insulation.strand_to_strand":
-        return [("insulation.strand_to_strand", "25 Gohm")]
+        return [("insulation.strand_to_strand", typed(plan.low if plan else None, "ohm"))]
     if key == "insulation.to_core":
-        # Every coil has this row; the tester's voltage goes with it.
-        return [("insulation.to_core", "10 Gohm"), ("insulation.test_voltage", "500 V")]
+        # The tester's voltage goes with it.
+        return [("insulation.to_core", typed(plan.low if plan else None, "ohm")),
+                ("insulation.test_voltage", "500 V")]
     if key in ("hipot", "hipot.result"):
-        return [("hipot.voltage", "1460 V"), ("hipot.duration", "60 s"),
-                ("hipot.leakage", "0.05 mA"), ("hipot.result", "pass / fail")]
+        volts = plan.test_voltage_V if plan is not None else None
+        dur = plan.duration_s if plan is not None else None
+        return [("hipot.voltage", typed(volts, "V")), ("hipot.duration", f"{dur:g} s" if dur else ""),
+                ("hipot.leakage", "leakage, mA"), ("hipot.result", "pass / fail")]
     if key == "ambient":
         return [("ambient", "21.5 degC")]
     if key == "waive":
@@ -200,7 +232,8 @@ def csv_column(field: str) -> Optional[str]:
         return f"pair.{parts[1]}.{parts[2]}"
     if head == "terminals":
         return f"terminal.{parts[1]}"
-    if head in ("insulation", "hipot", "continuity") or field in ("ambient", "notes"):
+    if head in ("insulation", "hipot", "continuity", "ring", "wire_lot", "core_lot", "instrument_ids") \
+            or field in ("ambient", "notes"):
         return field
     return None
 
@@ -230,11 +263,17 @@ def readings_csv_rows(document: dict) -> list[list[str]]:
             for path, v in _rung(unit.get(field)):
                 flat[csv_column(f"{field}.{path}")] = f"{v['resonant_frequency']} / {v['capacitor']}"
         flat_units.append(flat)
-    # The CSV has no file-wide ambient or test frequency: each unit's row carries it.
-    for key in ("ambient", "test_frequency"):
-        if document.get(key):
-            for flat in flat_units:
-                flat.setdefault(key, str(document[key]))
+    # The CSV has no file-wide ambient, test frequency, lots or instruments: each unit's row carries them
+    # (a unit's own lot or instruments replace the file's, as in the measured-values file).
+    for key in ("ambient", "test_frequency", *_TRACE):
+        value = document.get(key)
+        if not value:
+            continue
+        cells = ({f"{key}.{k}": str(v) for k, v in value.items()} if isinstance(value, dict)
+                 else {key: str(value)})
+        for flat in flat_units:
+            if not any(c == key or c.startswith(key + ".") for c in flat):
+                flat.update(cells)
     head = ["job", "revision", "inspector", "date", "instruments", "serial"]
     for flat in flat_units:
         head += [c for c in flat if c not in head]

@@ -20,6 +20,7 @@ from windsheet.physics import stress
 from windsheet.common.errors import InputError
 from windsheet.physics.ac_resistance import winding_ac_ratio
 from windsheet.physics.fast_front import DEFAULT_GROUND_CAPACITANCE_F
+from windsheet.physics.flux_linkage import strand_sums, turn_linkage_matrix
 from windsheet.physics import heating
 from windsheet.physics.insulation import hipot_voltage
 from windsheet.physics.leads import lead_routes
@@ -27,6 +28,7 @@ from .remedies import advice, find_remedies
 from windsheet.physics.network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
 from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
 from windsheet.order.wire_choice import resolve_wire
+from .bench_tests import bench_tests
 from .derived import complete
 from .model import SCHEMA, Design, DesignCore
 from .target_turns import solve_turns
@@ -252,7 +254,14 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     layout = sizing.layout_at(order, wire, turns)
     warnings.extend(layout.notes)
     S = layout.strands
-    L = sizing.inductance_matrix(order, wire, layout)
+    linkage = None
+    if doc.duty.frequency > 0 and sizing.core_al(order) is None:
+        # An a.c. duty needs every turn's flux linkage for its voltage map; the strand matrix
+        # is the same double sum gathered by strand, so the engine runs once.
+        linkage = turn_linkage_matrix(layout)
+        L = strand_sums(layout, linkage)
+    else:
+        L = sizing.inductance_matrix(order, wire, layout)
     length = sizing.strand_lengths(order, layout)
     duty = doc.duty
     t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
@@ -299,7 +308,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     ohm_per_m = float(dc_resistance(1.0, wire.copper_diameter, t_op))
     cored = sizing.core_al(order) is not None
     drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
-                                 doc.winding.lead_length)
+                                 doc.winding.lead_length, linkage)
     leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
     stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
@@ -313,7 +322,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         own_net = separate_windings(L, Rhot)
         own = stress.assess(layout, own_net, duty.voltage, duty.frequency, wire.breakdown,
                             drops=stress.winding_drops(layout, own_net, duty.frequency, ohm_per_m, L,
-                                                       cored, doc.winding.lead_length),
+                                                       cored, doc.winding.lead_length, linkage),
                             **stress_args)
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},
@@ -323,6 +332,9 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
               + [w for w in own["warnings"] if "self-resonance" in w]}
     _refuse_above_self_resonance(duty, st["self_resonance_Hz"])
     warnings.extend(st.get("warnings", []))
+    bench = bench_tests(L, R20, layout, wire, order.hookup_name, order.joins, order.terminals,
+                        doc.test.frequency, st["capacitance"]["terminal_F"], doc.test.ring_capacitor,
+                        doc.tolerances.inductance, doc.tolerances.resistance, sizing.core_al(order))
 
     ident = doc.winding.identification or {}
     strands = []
@@ -342,6 +354,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter)),
             "inductance_H": float(L[s, s]),
             "current_A": float(strand_i[s]),
+            "resistance_ac_test_ohm": bench["strand_resistance_ac_ohm"][s],
+            "q_test": bench["strand_q"][s],
         })
     f = doc.form
     job = doc.job
@@ -366,7 +380,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                  "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
                  "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
                  "margin_tape_m": order.margin or None,
-                 "margin_tape_material": order.margin_material if order.margin else None},
+                 "margin_tape_material": order.margin_material if order.margin else None,
+                 "conductive": f.conductive if f.conductive is not None else not isinstance(f, CylinderForm)},
         "wire": {"label": wire.label, "standard": wire.standard, "copper_diameter_m": wire.copper_diameter,
                  "overall_diameter_m": wire.overall_diameter, "grade": wire.grade,
                  "thermal_class_C": wire.thermal_class, "breakdown_V": wire.breakdown, "source": wire.source,
@@ -389,7 +404,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
                  "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
                  "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
-        "test": {"frequency_Hz": doc.test.frequency},
+        "test": {"frequency_Hz": doc.test.frequency, "ring_capacitor_F": doc.test.ring_capacitor},
         "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
                        "strand_balance": tol.strand_balance},
         "fit": {"slots_per_layer": layout.slots_per_layer, "traverse_used_m": layout.traverse_used,
@@ -413,6 +428,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
                        "resistance_min_ohm": net.resistance * (1 - tol.resistance),
                        "resistance_max_ohm": net.resistance * (1 + tol.resistance)},
+            "resistance_ac_test_ohm": bench["terminal_resistance_ac_ohm"],
+            "q_test": bench["terminal_q"],
         },
         "current_sheet_inductance_H": current_sheet,
         "current_sheet_rosa_corrected_H": rosa,
@@ -434,6 +451,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
                                         worst=st.get("worst_pair") or (None, None)),
         "warnings": warnings,
+        "shorted_turn": bench["shorted_turn"],
+        "ring_wave": bench["ring_wave"],
     }
     core = DesignCore.model_validate(out)
     if remedies:

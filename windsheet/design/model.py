@@ -67,6 +67,8 @@ class Form(Part):
     core_gap_m: Optional[float] = Field(None, description="bobbin core: gap as assembled [m]; 0 ungapped")
     margin_tape_m: Optional[float] = None
     margin_tape_material: Optional[str] = None
+    conductive: Optional[bool] = Field(None, description="the core or former conducts (cores do unless the "
+                                       "order says not): insulation to it is a required reading")
 
 
 class WireSpec(Part):
@@ -164,6 +166,8 @@ class Duty(Part):
 
 class TestSetup(Part):
     frequency_Hz: float = Field(1000.0, description="the LCR meter's test frequency [Hz]")
+    ring_capacitor_F: Optional[float] = Field(None, description="the ring (surge comparison) test's "
+                                              "capacitor, when the order asks for the ring test [F]")
 
 
 class Tolerances(Part):
@@ -208,6 +212,8 @@ class Strand(Part):
     current_density_A_per_mm2: Optional[float] = None
     inductance_H: float
     current_A: Optional[float] = None
+    resistance_ac_test_ohm: Optional[float] = Field(None, description="at the test frequency, 20 °C [ohm]")
+    q_test: Optional[float] = Field(None, description="Q = ωL/R_ac at the test frequency, 20 °C; D = 1/Q")
 
 
 class AcceptBands(Part):
@@ -229,6 +235,8 @@ class Terminal(Part):
     capacitance_F: Optional[float] = None
     self_resonance_Hz: Optional[float] = None
     accept: AcceptBands
+    resistance_ac_test_ohm: Optional[float] = Field(None, description="at the test frequency, 20 °C [ohm]")
+    q_test: Optional[float] = Field(None, description="Q = ωL/R_ac at the test frequency, 20 °C; D = 1/Q")
 
 
 class HookupReading(Part):
@@ -243,6 +251,53 @@ class PairReading(Part):
     series_opposing_H: Optional[float] = None
     mutual_H: Optional[float] = None
     coupling: Optional[float] = None
+
+
+class ShortedTurn(Part):
+    """What the terminals read with one turn shorted at the winding's worst place for the test.
+
+    The worst place: of the first, middle and last turns of each strand in the
+    inner, middle and outer layers, the one whose short changes Q least.
+    """
+
+    where: str
+    strand: str
+    layer: int
+    turn: int = Field(description="the turn's number along its strand, 1 = the start")
+    loop_inductance_H: float = Field(description="the shorted turn's own inductance [H]")
+    loop_resistance_ohm: float = Field(description="its resistance at the test frequency, 20 °C [ohm]")
+    mutual_H: float = Field(description="mutual inductance between the turn and the rest of the winding, "
+                                        "per terminal ampere [H]")
+    frequency_Hz: float = Field(description="the test frequency [Hz]")
+    inductance_H: float = Field(description="terminal inductance read with the short [H]")
+    resistance_ac_ohm: float = Field(description="terminal series resistance read with the short [ohm]")
+    q: float = Field(description="terminal Q read with the short")
+    inductance_change: float = Field(description="with the short / without − 1")
+    q_change: float = Field(description="with the short / without − 1")
+    q_caught: bool = Field(description="the Q reading falls below the Q line's band")
+    shows_from_Hz: float = Field(description="where the turn's reactance equals its resistance: well below, a "
+                                             "short hides in L and Q [Hz]")
+    ring_frequency_Hz: Optional[float] = Field(None, description="ring frequency with the short (null: it no "
+                                               "longer rings) [Hz]")
+    ring_decay: Optional[float] = None
+    ring_caught: Optional[bool] = Field(None, description="the ring reading falls outside its lines")
+    model: str = ""
+    contact: str = ""
+
+
+class RingWave(Part):
+    """The ring (surge comparison) test: the order's capacitor discharged into the winding."""
+
+    capacitor_F: float
+    winding_capacitance_F: Optional[float] = None
+    frequency_Hz: Optional[float] = Field(None, description="damped frequency of the ring (null: overdamped) [Hz]")
+    decay: Optional[float] = Field(None, description="ratio of successive peaks of one polarity")
+    inductance_H: Optional[float] = Field(None, description="the winding's inductance at the ring frequency [H]")
+    resistance_ac_ohm: Optional[float] = Field(None, description="its AC resistance there, 20 °C [ohm]")
+    frequency_tolerance: float = Field(description="half the inductance tolerance: f ∝ L^-1/2")
+    decrement_tolerance: float = Field(description="of the log decrement ln(1/decay): the resistance "
+                                                   "tolerance plus half the inductance's")
+    method: str = ""
 
 
 # --- stress ----------------------------------------------------------------------------
@@ -468,6 +523,8 @@ class QcLine(Part):
     high: Optional[float] = None
     expect: Optional[str] = None
     required: bool = True
+    printed: bool = Field(True, description="the traveller's QC record prints it: every required line, and "
+                                            "the optional lines the order asks for (the ring wave)")
     note: str = ""
     test_voltage_V: Optional[float] = Field(None, description="hipot: the test voltage [V]")
     duration_s: Optional[float] = Field(None, description="hipot: how long it is held [s]")
@@ -539,6 +596,8 @@ class DesignCore(Part):
     cautions: Optional[Cautions] = None
     cross_section: Optional[CrossSection] = None
     warnings: list[str] = Field(default_factory=list)
+    shorted_turn: Optional[ShortedTurn] = None
+    ring_wave: Optional[RingWave] = None
 
     model_config = ConfigDict(extra="forbid", frozen=True, defer_build=True, populate_by_name=True,
                               serialize_by_alias=True)

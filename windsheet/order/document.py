@@ -20,7 +20,7 @@ from windsheet.common.errors import InputError, field_name, join_path
 from windsheet.common.fileio import parse_yaml_bytes, read_limited
 from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                       pin_assignment)
-from .fields import (Angle, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
+from .fields import (Angle, Flag, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
                            PeakVoltage, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
                            quantity, strand_keys)
 from .units import SINE_CREST, parse_quantity, read_quantity
@@ -79,6 +79,8 @@ class CylinderForm(_M):
     traverse: Length
     max_build: Optional[Length] = None
     material: Text = "non-magnetic former"
+    #: The former conducts (a metal tube, carbon-filled plastic): insulation to it is then tested.
+    conductive: Optional[Flag] = None
     #: Width at each end of the traverse (or ``{width, material}``).
     margin_tape: Optional[Union[Length, MarginTape]] = None
 
@@ -92,6 +94,8 @@ class ToroidForm(_M):
     permeability: Optional[Annotated[float, Field(gt=0, le=1e6, allow_inf_nan=False)]] = None
     gap: Angle = math.radians(30.0)
     material: Text = "toroidal core"
+    #: A core conducts unless the order says not (a plastic ring former: ``conductive: false``).
+    conductive: Optional[Flag] = None
 
 
 class BobbinForm(_M):
@@ -102,6 +106,7 @@ class BobbinForm(_M):
     diameter: Optional[Length] = None
     mean_turn_length: Optional[Length] = None
     material: Text = "bobbin on core"
+    conductive: Optional[Flag] = None
     #: The core's gap as assembled (from the core's data; ``al`` is the AL at this gap); 0 = ungapped.
     gap: Optional[Length0] = None
     margin_tape: Optional[Union[Length, MarginTape]] = None
@@ -354,6 +359,8 @@ class Insulation(_M):
 
 class Test(_M):
     frequency: Frequency = 1e3
+    #: The ring (surge comparison) test's capacitor; the traveller then asks for the ring wave.
+    ring_capacitor: Optional[Annotated[float, quantity("capacitance")]] = None
 
 
 class OrderDoc(_M):

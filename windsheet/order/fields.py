@@ -90,3 +90,15 @@ def strand_keys(v):
             raise ValueError(f"strand {key} is named twice")
         out[key] = val
     return out
+
+
+def _flag(v):
+    if isinstance(v, bool):
+        return v
+    if isinstance(v, str) and v.strip().lower() in ("true", "yes", "false", "no"):
+        return v.strip().lower() in ("true", "yes")
+    raise ValueError("expected true or false")
+
+
+#: A yes/no field: YAML's true/false (or the words yes/no), nothing else (1 and 0 are refused).
+Flag = Annotated[bool, BeforeValidator(_flag)]

@@ -26,7 +26,28 @@ from .conductor_capacitance import (ENAMEL_EPS_R, TAPE_EPS_R, layer_pair_capacit
 
 @lru_cache(maxsize=1)
 def medhurst_table():
-    """Medhurst's shape factor table: (ℓ/D array, H array [pF/cm])."""
+    """Medhurst's shape factor table of a single-layer solenoid, ascending in ℓ/D.
+
+    Returns
+    -------
+    length_over_diameter : ndarray
+        Winding length over coil diameter, 0.1 to 50. [-]
+    H : ndarray
+        Self-capacitance per unit diameter at each ℓ/D. [pF/cm]
+
+    References
+    ----------
+    .. [1] R. G. Medhurst, "H.F. resistance and self-capacitance of
+       single-layer solenoids", Wireless Engineer 24, pp. 35–43 (Feb 1947)
+       and pp. 80–92 (Mar 1947); the rows are in
+       windsheet/physics/data/medhurst.csv with their sources.
+
+    Examples
+    --------
+    >>> x, h = medhurst_table()
+    >>> float(x[0]), float(x[-1]), float(h[list(x).index(2.0)])   # Medhurst 1947: H = 0.50 at ℓ/D = 2
+    (0.1, 50.0, 0.5)
+    """
     with resources.files("windsheet.physics").joinpath("data", "medhurst.csv").open(encoding="utf-8") as fh:
         rows = sorted(csv.DictReader(fh), key=lambda r: float(r["length_over_diameter"]))
     x = np.array([float(r["length_over_diameter"]) for r in rows])
@@ -70,6 +91,28 @@ def medhurst_H(length_over_diameter):
 
 
 def medhurst_in_table(length_over_diameter) -> bool:
+    """Whether a length over diameter lies within Medhurst's table (no extrapolation).
+
+    Parameters
+    ----------
+    length_over_diameter : float
+        Winding length over coil diameter. [-]
+
+    Returns
+    -------
+    inside : bool
+        True for 0.1 ≤ ℓ/D ≤ 50, the range Medhurst tabulated.
+
+    References
+    ----------
+    .. [1] R. G. Medhurst, Wireless Engineer 24 (Feb/Mar 1947); table of H
+       in windsheet/physics/data/medhurst.csv.
+
+    Examples
+    --------
+    >>> medhurst_in_table(2.0), medhurst_in_table(50.0), medhurst_in_table(60.0)   # table runs 0.1–50
+    (True, True, False)
+    """
     x, _ = medhurst_table()
     return bool(x[0] <= length_over_diameter <= x[-1])
 
@@ -161,12 +204,12 @@ def pair_capacitances(layout: Layout, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R,
                                                layout.pitch / layout.strands, eps_r, layout.tape,
                                                tape_eps_r)
         c[facing] = cl * length[facing]
-    layer_C = {}
-    lower = np.minimum(layout.layer[i], layout.layer[j])
-    for lay in range(layout.layers - 1):
-        sel = (kind == "layer") & (lower == lay)
-        if sel.any():
-            layer_C[(lay, lay + 1)] = float(c[sel].sum())
+    # One pass over the layer pairs (a string compare per layer was O(layers × pairs)).
+    is_layer = kind == "layer"
+    lower = np.minimum(layout.layer[i], layout.layer[j])[is_layer]
+    sums = np.bincount(lower, weights=c[is_layer], minlength=max(layout.layers - 1, 0))
+    present = np.bincount(lower, minlength=max(layout.layers - 1, 0)) > 0
+    layer_C = {(lay, lay + 1): float(sums[lay]) for lay in range(layout.layers - 1) if present[lay]}
     return i, j, kind, c, layer_C
 
 

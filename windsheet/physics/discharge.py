@@ -223,10 +223,27 @@ def inception_voltage(min_air_gap, solid, gaps=1, pressure=ATMOSPHERE):
     g0, sol, n = np.broadcast_arrays(np.asarray(min_air_gap, dtype=float),
                                      np.asarray(solid, dtype=float), np.asarray(gaps, dtype=float))
     flat = np.column_stack([np.round(g0.ravel(), 12), np.round(sol.ravel(), 12), n.ravel()])
-    uniq, inverse = np.unique(flat, axis=0, return_inverse=True)
+    uniq, inverse = _distinct_rows(flat)
     values = np.array([_inception_one(u[0] / u[2], u[1], u[2], pressure)[0] for u in uniq])
-    out = values[np.ravel(inverse)].reshape(g0.shape)
+    out = values[inverse].reshape(g0.shape)
     return float(out) if out.ndim == 0 else out
+
+
+def _distinct_rows(rows):
+    """Distinct rows of a 2-D array and the index of each row's distinct one.
+
+    The same as ``np.unique(rows, axis=0, return_inverse=True)`` by one lexical
+    sort: ``np.unique`` with an axis sorts a structured view and took about a
+    second on 50,000 pairs.
+    """
+    if rows.shape[0] == 0:
+        return rows, np.zeros(0, dtype=np.int64)
+    order = np.lexsort(rows.T[::-1])
+    s = rows[order]
+    new = np.concatenate([[True], np.any(s[1:] != s[:-1], axis=1)])
+    inverse = np.empty(rows.shape[0], dtype=np.int64)
+    inverse[order] = np.cumsum(new) - 1
+    return s[new], inverse
 
 
 def construction_inception(gap, across_tape, film, eps_r, tape=0.0, tape_eps_r=3.2,

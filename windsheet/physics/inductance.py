@@ -215,20 +215,21 @@ def _aranges(start, stop):
     return start[seg] + np.arange(seg.size) - first[seg], seg
 
 
-def _double_prefix(values, seg_len):
-    """Second cumulative sums of each segment of ``values``, each with two leading zeros.
+def _double_prefix(values, seg_len, times=2):
+    """Second (or ``times``-th) cumulative sums of each segment of ``values``, with leading zeros.
 
     For a segment ``g(0..n-1)`` the result ``C2`` has ``C2[t] = Σ_{u<t} Σ_{i<u} g(i)``
-    for ``t = 0..n+1``.  Segments are padded to a common length within
-    power-of-two size buckets so that no sum runs across segments (a global
-    running sum would lose the small segments' digits to the large ones').
+    for ``t = 0..n+1`` (``times=1``: ``C1[t] = Σ_{i<t} g(i)`` for ``t = 0..n``, one
+    leading zero).  Segments are padded to a common length within power-of-two
+    size buckets so that no sum runs across segments (a global running sum would
+    lose the small segments' digits to the large ones').
 
     Returns
     -------
     C2 : ndarray (flat), base : ndarray of int
         The sums and where each segment's ``C2[0]`` sits in them.
     """
-    width = seg_len + 2
+    width = seg_len + times
     bucket = np.ceil(np.log2(width)).astype(np.int64)
     starts = np.cumsum(seg_len) - seg_len
     base = np.empty(seg_len.size, dtype=np.int64)
@@ -238,9 +239,9 @@ def _double_prefix(values, seg_len):
         w = int(width[rows].max())
         block = np.zeros((rows.size, w))
         col, row = _aranges(np.zeros(rows.size, dtype=np.int64), seg_len[rows])
-        block[row, col + 2] = values[starts[rows][row] + col]
-        np.cumsum(block, axis=1, out=block)
-        np.cumsum(block, axis=1, out=block)
+        block[row, col + times] = values[starts[rows][row] + col]
+        for _ in range(times):
+            np.cumsum(block, axis=1, out=block)
         base[rows] = offset + np.arange(rows.size) * w
         parts.append(block.ravel())
         offset += block.size
@@ -324,8 +325,8 @@ def _cached_kernel_lattice(r_lo, r_hi, u, e_lo, e_hi, pitch, cache):
     return np.concatenate([g[2][a - g[0]:b - g[0] + 1] for g, a, b in zip(got, e_lo.tolist(), e_hi.tolist())])
 
 
-def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch, cache=None):
-    """Double prefix sums of Maxwell's kernel on each class's lattice.
+def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch, cache=None, times=2):
+    """Double (``times=1``: single) prefix sums of Maxwell's kernel on each class's lattice.
 
     Each distinct ``|dz|`` of a class is evaluated once (and, with a
     ``cache`` shared between calls, once across them).
@@ -340,7 +341,7 @@ def _lattice_sums(r_lo, r_hi, u, lat_lo, lat_hi, pitch, cache=None):
         kernel = _cached_kernel_lattice(r_lo, r_hi, u, e_lo, e_hi, pitch, cache)
     e_base = np.cumsum(e_hi - e_lo + 1) - (e_hi - e_lo + 1)
     i, k = _aranges(lat_lo, lat_hi + 1)
-    return _double_prefix(kernel[e_base[k] + _fold(i, u[k]) - e_lo[k]], lat_hi - lat_lo + 1)
+    return _double_prefix(kernel[e_base[k] + _fold(i, u[k]) - e_lo[k]], lat_hi - lat_lo + 1, times)
 
 
 def _distinct(values):

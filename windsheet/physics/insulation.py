@@ -30,7 +30,30 @@ HIPOT_BASIS = "2U + 1000 V for 1 min (common practice; the applicable standard g
 
 
 def volts(v) -> str:
-    """A voltage to 3 significant figures, never in exponent form: 4.37, 163, 1150."""
+    """A voltage to 3 significant figures, never in exponent form: 4.37, 163, 1150.
+
+    Parameters
+    ----------
+    v : float
+        The voltage, in whatever measure the text states (peak, rms). [V]
+
+    Returns
+    -------
+    text : str
+        ``v`` rounded to 3 significant figures, in plain decimal notation; 0,
+        inf and nan as Python writes them with no decimals. [V]
+
+    References
+    ----------
+    Rounding to significant figures, common practice.
+
+    Examples
+    --------
+    >>> volts(4.3712), volts(1149.9)                 # 3 significant figures
+    ('4.37', '1150')
+    >>> volts(230 * math.sqrt(2))                    # 230 V rms is 325.27 V peak
+    '325'
+    """
     v = float(v)
     if v == 0 or not math.isfinite(v):
         return f"{v:.0f}"

@@ -501,16 +501,49 @@ def bobbin_layout(width, height, copper_diameter, overall_diameter, strands, tur
     ----------
     width, height : float
         Window width (traverse) and height (largest build). [m]
+    copper_diameter, overall_diameter : float
+        Bare and insulated wire diameter. [m]
+    strands : int
+        Strands wound side by side (1–4). [-]
+    turns : int
+        Turns per strand. [-]
     diameter : float or None
         Diameter of the bobbin's winding surface. [m]
     mean_turn_length : float or None
         Mean length of turn over the full window, when the bobbin is not round
-        (used instead of ``diameter``). [m]
+        (used instead of ``diameter``): the winding surface is taken round,
+        of diameter ``MLT/π − height``. [m]
     Other parameters as :func:`cylinder_layout`.
+
+    Returns
+    -------
+    Layout
+        ``kind`` ``"bobbin"``; ``build_height`` [m] includes the bulge allowance.
+
+    Raises
+    ------
+    WindingDoesNotFit
+        The turns need more than ``width`` per layer or more than ``height`` of build.
 
     References
     ----------
     Same construction as :func:`cylinder_layout` (common practice).
+
+    Examples
+    --------
+    40 turns of 0.5 mm overall in a 10 mm wide window: 20 a layer, two nested
+    layers, build (0.5 + 0.5·√3/2) mm × 1.10 bulge allowance = 1.026 mm.
+
+    >>> lay = bobbin_layout(10e-3, 3e-3, 0.45e-3, 0.5e-3, 1, 40, diameter=0.02)
+    >>> lay.kind, lay.turns_in_layer, round(lay.build_height * 1e3, 3)
+    ('bobbin', (20, 20), 1.026)
+
+    A square bobbin of MLT 75.4 mm, 3 mm high: surface 75.4/π − 3 = 21.0 mm
+    across, so the first turn runs π × (21.0 + 0.5) mm = 67.5 mm.
+
+    >>> lay = bobbin_layout(10e-3, 3e-3, 0.45e-3, 0.5e-3, 1, 40, mean_turn_length=75.4e-3)
+    >>> round(float(lay.turn_length[0]) * 1e3, 1)
+    67.5
     """
     if diameter is None:
         # An equivalent round surface whose middle of the window has the stated MLT.

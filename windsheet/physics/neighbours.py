@@ -55,6 +55,33 @@ def neighbour_gap_limit(layout: Layout) -> float:
 
     ``NEIGHBOUR_GAP_FRACTION × overall diameter``, plus the layer tape (which
     always separates layers that face each other across it).
+
+    Parameters
+    ----------
+    layout : Layout
+        The winding (its overall wire diameter [m], layers and tape [m]).
+
+    Returns
+    -------
+    gap : float
+        Largest distance between two insulation surfaces that still makes a
+        neighbour pair. [m]
+
+    References
+    ----------
+    Plain geometry: half a diameter takes in the diagonal of stacked layers,
+    whose surfaces are (√2 − 1)·d = 0.414·d apart, and leaves out the turn
+    but one, d apart.
+
+    Examples
+    --------
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> one = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 1, 5, layers=1)
+    >>> round(neighbour_gap_limit(one) * 1e3, 3)          # 0.5 × 0.5 mm
+    0.25
+    >>> two = cylinder_layout(0.02, 2e-3, 0.45e-3, 0.5e-3, 1, 8, tape=50e-6)
+    >>> round(neighbour_gap_limit(two) * 1e3, 3)          # 0.25 mm + 0.05 mm of tape
+    0.3
     """
     tape = layout.tape if layout.layers > 1 else 0.0
     return NEIGHBOUR_GAP_FRACTION * layout.overall_diameter + tape
@@ -231,13 +258,33 @@ def neighbour_pairs(layout: Layout) -> Neighbours:
 def neighbours(layout: Layout):
     """Pairs of neighbouring conductors as ``(i, j, kind)`` (see :func:`neighbour_pairs`).
 
+    Parameters
+    ----------
+    layout : Layout
+        The winding.
+
     Returns
     -------
     i, j : ndarray of int
-        Turn indices (into the layout arrays) of each pair.
+        Turn indices (into the layout arrays) of each pair. [-]
     kind : ndarray of str
         ``"side"``, ``"layer"`` or ``"lead"`` (a toroid's start and finish,
         which meet across the gap).
+
+    References
+    ----------
+    As :func:`neighbour_pairs`.
+
+    Examples
+    --------
+    Five close-wound turns in one layer: each touches the next (4 pairs); the
+    turn but one is a whole diameter away, beyond the half-diameter limit.
+
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 1, 5, layers=1)
+    >>> i, j, kind = neighbours(lay)
+    >>> i.tolist(), j.tolist(), sorted(set(kind))
+    ([0, 1, 2, 3], [1, 2, 3, 4], ['side'])
     """
     nb = neighbour_pairs(layout)
     return nb.i, nb.j, nb.kind

@@ -22,7 +22,7 @@ from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R
 from .discharge import construction_inception
 from .fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
                          uniform_initial_distribution)
-from .flux_linkage import cored_turn_flux_linkage, turn_flux_linkage
+from .flux_linkage import cored_turn_flux_linkage, turn_linkage_matrix
 from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTOR, hipot_voltage,
                          insulation_verdict, volts)
 from .layout import Layout
@@ -39,7 +39,7 @@ def _single_layer_solenoid(layout: Layout) -> bool:
 
 
 def winding_drops(layout: Layout, network, frequency, ohm_per_m, strand_matrix_H=None,
-                  cored=False, lead_length=0.0):
+                  cored=False, lead_length=0.0, linkage=None):
     """Each turn's and each lead's voltage drop for the network's strand currents.
 
     Parameters
@@ -58,6 +58,10 @@ def winding_drops(layout: Layout, network, frequency, ohm_per_m, strand_matrix_H
         Wound on a magnetic core (AL given): uniform EMF per turn of a strand.
     lead_length : float
         Length of each lead. [m]
+    linkage : ndarray, shape (n_turns, strands), optional
+        The layout's per-turn linkage matrix
+        (:func:`windsheet.physics.flux_linkage.turn_linkage_matrix`) when the
+        caller has it already; air core only.
 
     Returns
     -------
@@ -82,8 +86,10 @@ def winding_drops(layout: Layout, network, frequency, ohm_per_m, strand_matrix_H
     current = np.asarray(network.strand_current, dtype=complex).reshape(layout.strands)
     flux = None
     if frequency > 0:
-        flux = (cored_turn_flux_linkage(layout, strand_matrix_H, current) if cored
-                else turn_flux_linkage(layout, current))
+        if cored:
+            flux = cored_turn_flux_linkage(layout, strand_matrix_H, current)
+        else:
+            flux = (linkage if linkage is not None else turn_linkage_matrix(layout)) @ current
     return (turn_drops(layout, current, frequency, ohm_per_m, flux),
             float(ohm_per_m) * float(lead_length) * current)
 
@@ -115,7 +121,35 @@ def _lead_pair_record(layout, lead, t, voltage, where):
 
 
 def end_turn(layout: Layout, strand: int, which: int) -> int:
-    """Index of a strand's first (``which`` 0) or last (1) turn."""
+    """Index of a strand's first (``which`` 0) or last (1) turn.
+
+    Parameters
+    ----------
+    layout : Layout
+        The winding.
+    strand : int
+        Strand number, 0 = A. [-]
+    which : int
+        0 for the start turn, 1 for the finish turn. [-]
+
+    Returns
+    -------
+    t : int
+        Index of that turn into the layout arrays. [-]
+
+    References
+    ----------
+    Winding order of :func:`windsheet.physics.layout.cylinder_layout`: each
+    slot holds strands A, B, … side by side, so in a bifilar winding slot
+    ``k`` is turns ``2k`` (A) and ``2k + 1`` (B).
+
+    Examples
+    --------
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 2, 5, layers=1)   # bifilar, 5 slots
+    >>> [end_turn(lay, s, w) for s in (0, 1) for w in (0, 1)]             # 2·0, 2·4, 2·0 + 1, 2·4 + 1
+    [0, 8, 1, 9]
+    """
     sel = np.flatnonzero(layout.strand == strand)
     return int(sel[np.argmin(layout.index[sel])] if which == 0 else sel[np.argmax(layout.index[sel])])
 

@@ -23,7 +23,27 @@ _STRAND_LETTERS = "ABCDEFGH"
 
 
 def strand_letter(s: int) -> str:
-    """``0 → "A"``, ``1 → "B"`` …"""
+    """``0 → "A"``, ``1 → "B"`` …
+
+    Parameters
+    ----------
+    s : int
+        Strand number, 0 = the first strand. [-]
+
+    Returns
+    -------
+    letter : str
+        The strand's letter as the sheets write it.
+
+    References
+    ----------
+    Strands lettered A, B, … in winding order (the project's convention).
+
+    Examples
+    --------
+    >>> strand_letter(0), strand_letter(np.int64(3))
+    ('A', 'D')
+    """
     return _STRAND_LETTERS[int(s)]
 
 
@@ -183,18 +203,86 @@ def adjacent_voltages(layout: Layout, potentials, applied_peak):
     References
     ----------
     As :func:`pair_voltages`.
+
+    Examples
+    --------
+    Bifilar, 5 turns a strand, series aiding at 100 V: strand A runs 100 → 50 V
+    and B 50 → 0 V, 10 V a turn, so A and B of one slot are 50 V apart and B
+    to the next slot's A 50 − 10 = 40 V.
+
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 2, 5, layers=1)
+    >>> v = turn_potentials(lay, [[1.0, 0.5], [0.5, 0.0]])
+    >>> i, j, kind, dv = adjacent_voltages(lay, v, 100.0)
+    >>> dv.round(6).tolist()
+    [50.0, 40.0, 50.0, 40.0, 50.0, 40.0, 50.0, 40.0, 50.0]
     """
     i, j, kind = neighbours(layout)
     return i, j, kind, pair_voltages(potentials, i, j, applied_peak)
 
 
 def describe_turn(layout: Layout, t: int) -> str:
-    """``"strand A turn 3"`` (1-based)."""
+    """``"strand A turn 3"`` (1-based).
+
+    Parameters
+    ----------
+    layout : Layout
+        The winding.
+    t : int
+        Index of the turn into the layout arrays. [-]
+
+    Returns
+    -------
+    text : str
+        The turn's strand letter and its number along that strand from the start.
+
+    References
+    ----------
+    Turns counted from the start lead, 1-based, as a winder counts them (common practice).
+
+    Examples
+    --------
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 2, 5, layers=1)
+    >>> describe_turn(lay, 3)                          # bifilar: index 3 is slot 1's B
+    'strand B turn 2'
+    """
     return f"strand {strand_letter(layout.strand[t])} turn {int(layout.index[t]) + 1}"
 
 
 def describe_pair(layout: Layout, i: int, j: int, kind: str) -> str:
-    """Shop-floor words for where a pair of turns sits (1-based turn and layer numbers)."""
+    """Shop-floor words for where a pair of turns sits (1-based turn and layer numbers).
+
+    Parameters
+    ----------
+    layout : Layout
+        The winding.
+    i, j : int
+        Indices of the two turns into the layout arrays. [-]
+    kind : str
+        ``"side"``, ``"layer"`` or ``"lead"`` (see :func:`windsheet.physics.neighbours.neighbour_pairs`).
+
+    Returns
+    -------
+    text : str
+        Which turns, in which layers; a layer pair is "under" when their
+        centres are less than half a diameter apart along the traverse,
+        otherwise "diagonally under".
+
+    References
+    ----------
+    Back-and-forth layer winding, common practice.
+
+    Examples
+    --------
+    Two taped (stacked) layers of 2 turns: layer 2 winds back, so turn 4 lies
+    straight over turn 1.
+
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 1e-3, 0.45e-3, 0.5e-3, 1, 4, tape=50e-6)
+    >>> describe_pair(lay, 0, 3, "layer")
+    'strand A turn 1 (layer 1) under strand A turn 4 (layer 2)'
+    """
     li, lj = int(layout.layer[i]) + 1, int(layout.layer[j]) + 1
     if kind == "layer":
         lo, hi = (i, j) if li < lj else (j, i)
@@ -209,7 +297,40 @@ def describe_pair(layout: Layout, i: int, j: int, kind: str) -> str:
 
 
 def pair_record(layout: Layout, i: int, j: int, kind: str, voltage) -> dict:
-    """The JSON record of one pair of turns: voltage, strands, turns, layers, words."""
+    """The JSON record of one pair of turns: voltage, strands, turns, layers, words.
+
+    Parameters
+    ----------
+    layout : Layout
+        The winding.
+    i, j : int
+        Indices of the two turns into the layout arrays. [-]
+    kind : str
+        ``"side"``, ``"layer"`` or ``"lead"``.
+    voltage : float
+        Peak voltage between the two turns. [V]
+
+    Returns
+    -------
+    record : dict
+        ``voltage_Vpk`` [V], ``i``, ``j``, ``kind``, ``strands`` (letters),
+        ``turns`` and ``layers`` (1-based), ``layer`` (of turn ``i``) and
+        ``where`` (:func:`describe_pair`).
+
+    References
+    ----------
+    As :func:`describe_pair`.
+
+    Examples
+    --------
+    A bifilar pair in slot 0 at 100 V series aiding: half the terminal voltage, 50 V.
+
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 2, 5, layers=1)
+    >>> rec = pair_record(lay, 0, 1, "side", 50.0)
+    >>> rec["voltage_Vpk"], rec["strands"], rec["turns"], rec["where"]
+    (50.0, ['A', 'B'], [1, 1], 'strand A turn 1 next to strand B turn 1, layer 1')
+    """
     return {
         "voltage_Vpk": float(voltage),
         "i": int(i), "j": int(j), "kind": str(kind),

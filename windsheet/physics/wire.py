@@ -61,7 +61,25 @@ _constants = conductor  # the physics functions below take a ``conductor`` name 
 
 
 def copper() -> dict:
-    """Annealed copper constants (IEC 60028), SI: see :func:`conductor`."""
+    """Annealed copper constants (IEC 60028), SI: see :func:`conductor`.
+
+    Returns
+    -------
+    constants : dict
+        ``resistivity_20C`` [ohm m], ``temperature_coefficient_20C`` [1/K],
+        ``density`` [kg/m^3].
+
+    References
+    ----------
+    .. [1] IEC 60028, International standard of resistance for copper:
+       1/58 ohm mm^2/m at 20 degC, 0.00393 /K, 8.89 g/cm^3 (memory).
+
+    Examples
+    --------
+    >>> c = copper()                  # 1/58 ohm mm^2/m is 1.7241e-8 ohm m
+    >>> round(c["resistivity_20C"] * 58e6, 4), c["temperature_coefficient_20C"], c["density"]
+    (1.0, 0.00393, 8890.0)
+    """
     return conductor("copper")
 
 
@@ -122,7 +140,32 @@ def enamel_build(nominal_d: float, grade: int) -> EnamelBuild:
 
 
 def grade_breakdowns(nominal_d: float) -> dict:
-    """Minimum breakdown [V] of every grade the table gives for a diameter: ``{grade: V}``."""
+    """Minimum breakdown [V] of every grade the table gives for a diameter: ``{grade: V}``.
+
+    Parameters
+    ----------
+    nominal_d : float
+        Nominal conductor diameter (a gauge size takes the next larger row,
+        as :func:`enamel_build`). [m]
+
+    Returns
+    -------
+    breakdowns : dict
+        ``{grade: minimum breakdown voltage [V]}`` for grades 1–3 that the
+        row gives; empty when none does.
+
+    References
+    ----------
+    .. [1] IEC 60317-0-1, dielectric breakdown table; per-row sources in
+       ``windsheet/physics/data/iec60317_0_1_copper.csv``.
+
+    Examples
+    --------
+    >>> grade_breakdowns(0.500e-3)     # IEC 60317-0-1 table row 0.500 mm: 2400 / 4600 / 7000 V
+    {1: 2400.0, 2: 4600.0, 3: 7000.0}
+    >>> grade_breakdowns(0.3759e-3)    # 28 SWG takes the 0.400 mm row: 2300 / 4400 / 6600 V
+    {1: 2300.0, 2: 4400.0, 3: 6600.0}
+    """
     out = {}
     for g in (1, 2, 3):
         try:
@@ -288,10 +331,51 @@ def standard_wire(nominal_d, grade, thermal_class=155, label=None, standard=IEC,
     A value the row lacks must come from the datasheet; both datasheet values
     together accept any size, with no table at all.
 
+    Parameters
+    ----------
+    nominal_d : float
+        Nominal conductor diameter. [m]
+    grade : int
+        Enamel grade 1, 2 or 3 (single, heavy, triple build). [-]
+    thermal_class : int
+        Thermal class (IEC 60085). [degC]
+    label : str or None
+        Name on the sheets; by default the size and grade.
+    standard : str
+        :data:`IEC` or :data:`NEMA`.
+    overall_d : float or None
+        Datasheet maximum overall diameter, replacing the table's. [m]
+    breakdown : float or None
+        Datasheet minimum breakdown voltage, replacing the table's. [V]
+    conductor : str
+        ``"copper"`` or ``"aluminium"``.
+    size : Size or None
+        The size as ordered (a gauge); by default metric ``nominal_d``.
+
+    Returns
+    -------
+    Wire
+        Diameters [m], breakdown [V], and where each value came from.
+
     Raises
     ------
     NotInTable
         The size or a needed value is not in the table and the datasheet does not give it.
+
+    References
+    ----------
+    .. [1] IEC 60317-0-1, Enamelled round copper wire (dimension and breakdown tables).
+    .. [2] NEMA MW 1000, Magnet Wire, Part 2, as tabulated in a maker's catalogue.
+       Per-row sources in ``windsheet/physics/data``.
+
+    Examples
+    --------
+    >>> w = standard_wire(0.500e-3, 2)       # IEC 60317-0-1 table row 0.500 mm grade 2: max 0.566 mm, 4600 V
+    >>> round(w.overall_diameter * 1e3, 3), w.breakdown, w.source
+    (0.566, 4600.0, 'IEC 60317-0-1 table row')
+    >>> w = standard_wire(0.37592e-3, 1, size=parse_gauge("28 SWG"))
+    >>> round(w.overall_diameter * 1e3, 4), w.breakdown       # 0.3759 + (0.439 - 0.400) mm, the 0.400 mm row
+    (0.4149, 2300.0)
     """
     size = size or Size("metric", None, nominal_d, f"{nominal_d * 1e3:.3f} mm")
     warnings = [_ALUMINIUM_NOTE] if conductor == "aluminium" else []

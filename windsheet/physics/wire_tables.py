@@ -92,7 +92,26 @@ _QUANTITY = {"min_increase_mm": ("min_increase", 1e-3), "max_overall_mm": ("max_
 
 @lru_cache(maxsize=1)
 def iec_table() -> dict:
-    """IEC 60317-0-1 rows: ``{(nominal_um, grade): EnamelRow}``, loaded once."""
+    """IEC 60317-0-1 rows: ``{(nominal_um, grade): EnamelRow}``, loaded once.
+
+    Returns
+    -------
+    rows : dict
+        Keyed by (nominal conductor diameter [µm], grade); each
+        :class:`EnamelRow` holds its values in SI ([m], [V]).
+
+    References
+    ----------
+    .. [1] IEC 60317-0-1, Enamelled round copper wire, dimension and
+       breakdown tables; sources per row in
+       ``windsheet/physics/data/iec60317_0_1_copper.csv``.
+
+    Examples
+    --------
+    >>> row = iec_table()[(500, 2)]         # IEC 60317-0-1 table row 0.500 mm grade 2
+    >>> round(row.min_overall * 1e3, 3), round(row.max_overall * 1e3, 3), row.breakdown
+    (0.545, 0.566, 4600.0)
+    """
     acc: dict = {}
     for r in _read_csv("iec60317_0_1_copper.csv"):
         key = (int(round(float(r["nominal_mm"]) * 1000)), int(r["grade"]))
@@ -107,7 +126,28 @@ def iec_table() -> dict:
 
 @lru_cache(maxsize=1)
 def nema_table() -> dict:
-    """NEMA MW 1000 rows: ``{(awg, grade): EnamelRow}`` plus bare nominals ``{awg: d}`` under key ``'bare'``."""
+    """NEMA MW 1000 rows: ``{(awg, grade): EnamelRow}`` plus bare nominals ``{awg: d}`` under key ``'bare'``.
+
+    Returns
+    -------
+    table : dict
+        ``"rows"``: ``{(awg, grade): EnamelRow}``, values in SI ([m]);
+        ``"bare"``: ``{awg: (nominal bare diameter [m], (source, sureness))}``.
+
+    References
+    ----------
+    .. [1] NEMA MW 1000, Magnet Wire, Part 2 (round film-insulated copper), as
+       tabulated in a maker's catalogue; see ``windsheet/physics/data/nema_mw1000_copper.csv``.
+
+    Examples
+    --------
+    22 AWG: bare 25.3 mil (ASTM B258 gives 0.6438 mm = 25.35 mil), single
+    build at most 27.0 mil overall (NEMA MW 1000 row as stored).
+
+    >>> t = nema_table()
+    >>> round(t["bare"][22][0] / 25.4e-6, 1), round(t["rows"][(22, 1)].max_overall / 25.4e-6, 1)
+    (25.3, 27.0)
+    """
     bare, acc = {}, {}
     build_grade = {v: k for k, v in NEMA_BUILDS.items()}
     for r in _read_csv("nema_mw1000_copper.csv"):
@@ -126,13 +166,53 @@ def nema_table() -> dict:
 
 @lru_cache(maxsize=1)
 def swg_table() -> dict:
-    """Imperial Standard Wire Gauge: ``{gauge: (diameter_m, source, sureness)}``."""
+    """Imperial Standard Wire Gauge: ``{gauge: (diameter_m, source, sureness)}``.
+
+    Returns
+    -------
+    table : dict
+        ``{SWG number: (diameter [m], source, sureness)}``, 10 to 48 SWG.
+
+    References
+    ----------
+    .. [1] Imperial Standard Wire Gauge, Order in Council of 23 August 1883
+       (later BS 3737); rows in ``windsheet/physics/data/swg.csv``.
+
+    Examples
+    --------
+    >>> d, source, sure = swg_table()[30]
+    >>> round(d * 1e3, 4), sure                  # 30 SWG = 0.0124 in × 25.4 = 0.31496 mm
+    (0.315, 'seen')
+    """
     return {int(r["swg"]): (float(r["diameter_in"]) * 0.0254, r["source"], r["sureness"])
             for r in _read_csv("swg.csv")}
 
 
 def iec_nominals(series=("R20", "R40")) -> list[float]:
-    """The nominal conductor diameters of IEC 60317-0-1's table, ascending. [m]"""
+    """The nominal conductor diameters of IEC 60317-0-1's table, ascending. [m]
+
+    Parameters
+    ----------
+    series : tuple of str
+        Which series to list: ``"R20"`` (preferred) and/or ``"R40"`` (intermediate).
+
+    Returns
+    -------
+    nominals : list of float
+        Nominal conductor diameters. [m]
+
+    References
+    ----------
+    .. [1] IEC 60317-0-1, nominal conductor diameters.
+    .. [2] ISO 3, Preferred numbers: the R20 series
+       1.00, 1.12, 1.25, 1.40, 1.60, 1.80, 2.00, 2.24, 2.50, 2.80, 3.15, 3.55,
+       4.00, 4.50, 5.00, 5.60, 6.30, 7.10, 8.00, 9.00 (memory).
+
+    Examples
+    --------
+    >>> [round(d * 1e3, 3) for d in iec_nominals(("R20",)) if 0.3e-3 < d < 0.6e-3]   # ISO 3 R20 (memory)
+    [0.315, 0.355, 0.4, 0.45, 0.5, 0.56]
+    """
     return sorted({row.nominal for row in iec_table().values() if row.series in series})
 
 
@@ -231,7 +311,30 @@ def swg_diameter(gauge: int) -> float:
 
 
 def nearest_sizes(d: float, grade: int) -> tuple:
-    """The IEC 60317-0-1 nominal diameters just below and just above ``d`` with a full row for ``grade``. [m]"""
+    """The IEC 60317-0-1 nominal diameters just below and just above ``d`` with a full row for ``grade``. [m]
+
+    Parameters
+    ----------
+    d : float
+        Conductor diameter asked for. [m]
+    grade : int
+        Enamel grade 1, 2 or 3. [-]
+
+    Returns
+    -------
+    below, above : float or None
+        Nearest tabulated nominal diameters with all three values for the
+        grade; ``None`` past either end of the table. [m]
+
+    References
+    ----------
+    .. [1] IEC 60317-0-1, nominal conductor diameters (R20 with R40 intermediates).
+
+    Examples
+    --------
+    >>> [round(x * 1e3, 3) for x in nearest_sizes(0.47e-3, 2)]    # R20 0.450 and R40 0.475 mm
+    [0.45, 0.475]
+    """
     full = sorted(r.nominal for r in iec_table().values() if r.grade == grade and r.complete)
     below = [x for x in full if x < d]
     above = [x for x in full if x > d]
@@ -394,7 +497,36 @@ class Size:
 
 
 def parse_gauge(text: str) -> Size | None:
-    """``'28 SWG'`` or ``'22 AWG'`` as a :class:`Size`; ``None`` if ``text`` is not a gauge."""
+    """``'28 SWG'`` or ``'22 AWG'`` as a :class:`Size`; ``None`` if ``text`` is not a gauge.
+
+    Parameters
+    ----------
+    text : str
+        The size as written in the order: ``"22 AWG"``, ``"4/0 AWG"``, ``"0000 AWG"``, ``"28 SWG"``.
+
+    Returns
+    -------
+    size : Size or None
+        Gauge system, number (4/0 AWG is -3) and diameter [m].
+
+    Raises
+    ------
+    NotInTable
+        An AWG number outside 4/0–46 or an SWG number outside the table.
+
+    References
+    ----------
+    .. [1] ASTM B258 (AWG diameters), see :func:`awg_diameter`.
+    .. [2] Imperial Standard Wire Gauge (1883), see :func:`swg_diameter`.
+
+    Examples
+    --------
+    >>> s = parse_gauge("4/0 AWG")            # ASTM B258: 4/0 AWG = 0.4600 in = 11.684 mm
+    >>> s.system, s.number, round(s.diameter * 1e3, 3)
+    ('AWG', -3, 11.684)
+    >>> parse_gauge("28 swg").label, parse_gauge("0.5 mm")
+    ('28 SWG (0.3759 mm)', None)
+    """
     m = _AWG.match(text)
     if m:
         n = _awg_number(m.group(1))
@@ -409,7 +541,41 @@ def parse_gauge(text: str) -> Size | None:
 
 
 def row_for(size: Size, grade: int, standard: str = IEC) -> EnamelRow:
-    """The table row a size takes under ``standard`` (see the module's rules)."""
+    """The table row a size takes under ``standard`` (see the module's rules).
+
+    Parameters
+    ----------
+    size : Size
+        The size as ordered; its diameter in [m].
+    grade : int
+        Enamel grade (or NEMA build) 1, 2 or 3. [-]
+    standard : str
+        :data:`IEC` or :data:`NEMA`.
+
+    Returns
+    -------
+    row : EnamelRow
+        A metric size's own IEC row, a gauge size's next larger IEC row, or an
+        AWG size's NEMA row; values in [m] and [V].
+
+    Raises
+    ------
+    NotInTable
+        No row covers the size (a metric size that is not a nominal
+        diameter, or a non-AWG size under NEMA).
+
+    References
+    ----------
+    .. [1] IEC 60317-0-1, intermediate sizes take the next larger row (IS 13730 table notes).
+    .. [2] NEMA MW 1000, Part 2, as tabulated in a maker's catalogue.
+
+    Examples
+    --------
+    >>> row_for(parse_gauge("28 SWG"), 1).rule          # 0.3759 mm lies between 0.355 and 0.400 mm
+    'next larger IEC 60317-0-1 row, 0.400 mm'
+    >>> round(row_for(parse_gauge("30 AWG"), 1, NEMA).max_overall / 25.4e-6, 1)   # NEMA row: 11.2 mil
+    11.2
+    """
     if standard == NEMA:
         if size.system != "AWG":
             raise NotInTable(f"{NEMA} tabulates AWG sizes only; {size.text} is {size.system}")
@@ -421,7 +587,31 @@ def row_for(size: Size, grade: int, standard: str = IEC) -> EnamelRow:
 
 def listing(standard: str | None = None, grade: int | None = None, lo: float = 0.0,
             hi: float = math.inf) -> list[EnamelRow]:
-    """Rows of the tables, filtered by standard, grade and nominal diameter range [m]."""
+    """Rows of the tables, filtered by standard, grade and nominal diameter range [m].
+
+    Parameters
+    ----------
+    standard : str or None
+        :data:`IEC`, :data:`NEMA`, or ``None`` for both.
+    grade : int or None
+        Enamel grade 1, 2 or 3; ``None`` for all. [-]
+    lo, hi : float
+        Nominal conductor diameter range, inclusive (±0.5 µm). [m]
+
+    Returns
+    -------
+    rows : list of EnamelRow
+        Sorted by standard, nominal diameter, grade.
+
+    References
+    ----------
+    As :func:`iec_table` and :func:`nema_table`.
+
+    Examples
+    --------
+    >>> [round(r.nominal * 1e3, 3) for r in listing(IEC, 2, 0.45e-3, 0.50e-3)]   # R20, R40, R20
+    [0.45, 0.475, 0.5]
+    """
     out = []
     if standard in (None, IEC):
         out += [r for r in iec_table().values()]
@@ -435,7 +625,33 @@ _SURENESS_ORDER = ("memory", "computed", "seen")
 
 
 def row_record(row: EnamelRow) -> dict:
-    """A row as plain JSON-ready data (SI units), with each value's source and sureness."""
+    """A row as plain JSON-ready data (SI units), with each value's source and sureness.
+
+    Parameters
+    ----------
+    row : EnamelRow
+        A table row.
+
+    Returns
+    -------
+    record : dict
+        ``nominal_diameter_m``, ``min_increase_m``, ``min_overall_diameter_m``,
+        ``max_overall_diameter_m`` [m], ``min_breakdown_V`` [V], the test,
+        the rule, ``least_sure`` (``memory`` < ``computed`` < ``seen``) and
+        ``sources``.
+
+    References
+    ----------
+    As the row's own ``sources``.
+
+    Examples
+    --------
+    IEC 60317-0-1 table row 0.500 mm grade 2: 0.500 + 0.045 = 0.545 mm minimum overall.
+
+    >>> rec = row_record(iec_row(0.500e-3, 2))
+    >>> round(rec["min_overall_diameter_m"] * 1e3, 3), rec["min_breakdown_V"], rec["least_sure"]
+    (0.545, 4600.0, 'computed')
+    """
     sure = [s for _src, s in row.sources.values()]
     return {"standard": row.standard, "nominal_diameter_m": row.nominal, "series": row.series,
             "grade": row.grade, "min_increase_m": row.min_increase, "min_overall_diameter_m": row.min_overall,

@@ -33,8 +33,12 @@ An inductance is either read directly (``61.2 uH``, optionally as
 capacitor, ``{resonant_frequency: ..., capacitor: ...}`` (add
 ``stray_capacitance`` when the coil's own capacitance is not negligible
 beside the capacitor; a capacitor 100 times larger keeps the error near 1 %).
-A resistance may be
-``open`` when the meter shows no continuity.
+Any inductance or resistance may be ``open`` when the meter shows no
+continuity (an insulation resistance read ``open`` is above the tester's
+range).  ``q`` is the LCR meter's Q at the test frequency, a plain number, or
+its dissipation factor as ``D 0.035`` (or ``{D: 0.035}``).  ``ring`` is the
+ring (surge comparison) test: ``{capacitor: 10 nF, frequency: 48.3 kHz,
+decay: 0.82}``, decay the ratio of successive peaks of one polarity.
 """
 
 from __future__ import annotations
@@ -182,6 +186,16 @@ LOT_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._/:#-]{0,63}$")
 LotId = Annotated[str, BeforeValidator(_lot_id)]
 
 
+def _instrument_map(value):
+    if value is not None and not isinstance(value, dict):
+        raise PydanticCustomError("ids", "expected each instrument's id by what it measures, like "
+                                         "{lcr: LCR-07, hipot: HV-03} (on the bench page: 'lcr: LCR-07; hipot: HV-03')")
+    return value
+
+
+InstrumentIds = Annotated[Optional[dict[str, LotId]], BeforeValidator(_instrument_map)]
+
+
 def _resistance_or_open(value):
     if isinstance(value, str) and value.strip().lower() in ("open", "open circuit", "ol"):
         return {"open": True}
@@ -219,10 +233,14 @@ def _inductance_value(value):
         raise PydanticCustomError("quantity", exc.message) from None
 
 
+_OPEN_WORDS = ("open", "open circuit", "ol")
+
+
 class InductanceReading(_Model):
-    """An inductance read directly or rung against a known capacitor."""
+    """An inductance read directly, rung against a known capacitor, or ``open`` (no path)."""
 
     value: Optional[Annotated[float, BeforeValidator(_inductance_value)]] = None
+    open: bool = False
     resonant_frequency: Optional[Frequency] = None
     capacitor: Optional[Capacitance] = None
     #: Coil and fixture capacitance in parallel with the capacitor, if known.
@@ -232,6 +250,8 @@ class InductanceReading(_Model):
     @model_validator(mode="before")
     @classmethod
     def _direct_reading(cls, data):
+        if isinstance(data, str) and data.strip().lower() in _OPEN_WORDS:
+            return {"open": True}
         if data is None or isinstance(data, (str, int, float)):
             # Parse here so a fault is reported at the field the user wrote.
             try:
@@ -244,6 +264,10 @@ class InductanceReading(_Model):
     def _one_method(self):
         rung = self.resonant_frequency is not None or self.capacitor is not None
         rung = rung or self.stray_capacitance is not None
+        if self.open:
+            if self.value is not None or rung:
+                raise PydanticCustomError("reading", "an open reading has no value")
+            return self
         if self.value is not None and rung:
             raise PydanticCustomError(
                 "reading", "give either a value or resonant_frequency with capacitor, not both")
@@ -259,21 +283,26 @@ class InductanceReading(_Model):
 
     @property
     def method(self) -> str:
-        return "direct" if self.value is not None else "ringing"
+        return "open" if self.open else "direct" if self.value is not None else "ringing"
 
     @property
     def henries(self) -> float:
+        """The inductance read [H]; infinite for an open circuit."""
+        if self.open:
+            return float("inf")
         if self.value is not None:
             return self.value
         return resonance_inductance(self.resonant_frequency,
                                     self.capacitor + (self.stray_capacitance or 0.0))
 
     def frequency(self, default: Optional[float]) -> Optional[float]:
-        if self.value is None:
+        if self.value is None and not self.open:
             return self.resonant_frequency
         return self.test_frequency if self.test_frequency is not None else default
 
     def describe(self) -> dict:
+        if self.open:
+            return {"method": "open", "inductance_H": None, "open": True}
         out = {"method": self.method, "inductance_H": self.henries}
         if self.value is None:
             out.update(resonant_frequency_Hz=self.resonant_frequency, capacitor_F=self.capacitor,
@@ -281,9 +310,77 @@ class InductanceReading(_Model):
         return out
 
 
+class QReading(_Model):
+    """An LCR meter's Q at the test frequency (``35``), or its dissipation factor D = 1/Q (``D 0.0286``)."""
+
+    q: Optional[Annotated[float, Field(gt=0, le=1e6, allow_inf_nan=False)]] = None
+    d: Optional[Annotated[float, Field(gt=0, le=1e6, allow_inf_nan=False)]] = None
+
+    @model_validator(mode="before")
+    @classmethod
+    def _forms(cls, data):
+        if isinstance(data, bool):
+            raise PydanticCustomError("q", _Q_FORMS)
+        if isinstance(data, (int, float)):
+            out = {"q": data}
+        elif isinstance(data, str):
+            m = re.fullmatch(r"\s*(?:(q|d)\s*[=:]?\s*)?([0-9]*\.?[0-9]+(?:[eE][-+]?[0-9]+)?)\s*", data, re.I)
+            if not m:
+                raise PydanticCustomError("q", _Q_FORMS)
+            out = {(m.group(1) or "q").lower(): float(m.group(2))}
+        elif isinstance(data, dict):
+            out = {str(k).strip().lower(): v for k, v in data.items()}
+            if any(isinstance(v, bool) or not isinstance(v, (int, float)) for v in out.values() if v is not None):
+                raise PydanticCustomError("q", _Q_FORMS)
+        else:
+            raise PydanticCustomError("q", _Q_FORMS)
+        if any(v is not None and not (0 < v <= 1e6) for v in out.values() if isinstance(v, (int, float))):
+            raise PydanticCustomError("q", "Q and D are numbers above 0 (and at most 1e6)")
+        return out
+
+    @model_validator(mode="after")
+    def _one(self):
+        if (self.q is None) == (self.d is None):
+            raise PydanticCustomError("q", _Q_FORMS)
+        return self
+
+    @property
+    def value(self) -> float:
+        """Q [-]."""
+        return self.q if self.q is not None else 1.0 / self.d
+
+    def describe(self) -> str:
+        return f"D {self.d:g} read, Q = 1/D" if self.d is not None else f"Q {self.q:g} read"
+
+
+_Q_FORMS = "expected Q as a number like '35', or the dissipation factor as 'D 0.0286'"
+
+
+def _decay(value):
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        raise PydanticCustomError("decay", "expected the ratio of successive peaks, a number like 0.82")
+    try:
+        x = float(value)
+    except ValueError:
+        raise PydanticCustomError("decay", "expected the ratio of successive peaks, a number like 0.82") from None
+    if not 0 < x <= 1:
+        raise PydanticCustomError("decay", "the ratio of successive peaks lies above 0 and at most 1, like 0.82")
+    return x
+
+
+class RingReading(_Model):
+    """A ring (surge comparison) test: the capacitor, the ring's frequency and its decay."""
+
+    capacitor: Capacitance
+    frequency: Optional[Frequency] = None
+    #: Ratio of successive peaks of one polarity.
+    decay: Optional[Annotated[float, BeforeValidator(_decay)]] = None
+
+
 class StrandReadings(_Model):
     inductance: Optional[InductanceReading] = None
     resistance: Optional[Resistance] = None
+    q: Optional[QReading] = None
     turns: Optional[Annotated[int, Field(strict=True, ge=1, le=1_000_000)]] = None
 
 
@@ -295,6 +392,7 @@ class PairReadings(_Model):
 class TerminalReadings(_Model):
     inductance: Optional[InductanceReading] = None
     resistance: Optional[Resistance] = None
+    q: Optional[QReading] = None
 
 
 class TapReading(_Model):
@@ -323,9 +421,19 @@ class TapReading(_Model):
         return float("inf") if self.inductance == "open" else self.inductance.henries
 
 
+def _over_range(value):
+    # An insulation tester's "open" (OL) is a reading above its range.
+    if isinstance(value, str) and value.strip().lower() in _OPEN_WORDS:
+        return "open"
+    return value
+
+
+InsulationOrOpen = Annotated[Union[Literal["open"], InsulationResistance], BeforeValidator(_over_range)]
+
+
 class InsulationReadings(_Model):
-    strand_to_strand: Optional[InsulationResistance] = None
-    to_core: Optional[InsulationResistance] = None
+    strand_to_strand: Optional[InsulationOrOpen] = None
+    to_core: Optional[InsulationOrOpen] = None
     # An insulation-resistance tester applies dc: '500 V' or '500 V dc'.
     test_voltage: Optional[Annotated[float, _quantity("voltage", form="dc")]] = None
 
@@ -383,13 +491,14 @@ class UnitReadings(_Model):
     continuity: dict[str, Optional[Annotated[ContinuityWord, BeforeValidator(_continuity_word)]]] = Field(
         default_factory=dict)
     taps: list[TapReading] = Field(default_factory=list, max_length=64)
+    ring: Optional[RingReading] = None
     #: QC lines the inspector waives for this unit, each with the reason.
     waive: dict[str, Text] = Field(default_factory=dict)
     notes: Optional[Text] = None
     # Traceability (windsheet.records.traceability): stored per unit in the register.
     wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
     core_lot: Optional[LotId] = None
-    instrument_ids: Optional[dict[str, LotId]] = None
+    instrument_ids: InstrumentIds = None
 
     @field_validator("serial")
     @classmethod
@@ -409,7 +518,7 @@ class MeasuredFile(_Model):
     test_frequency: Optional[Frequency] = None
     wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
     core_lot: Optional[LotId] = None
-    instrument_ids: Optional[dict[str, LotId]] = None
+    instrument_ids: InstrumentIds = None
     #: QC lines waived for every unit of the file, each with the reason.
     waive: dict[str, Text] = Field(default_factory=dict)
     units: list[UnitReadings] = Field(min_length=1, max_length=10_000)

@@ -184,15 +184,22 @@ def family_statistics(units: list[dict]) -> list[dict]:
         (each job's ``n``, ``mean`` and ``sd`` of the ratio) and ``chart``
         (:func:`line_chart`).
     """
+    # One grouped pass: each unit's ratios go straight to their family, line and job, so the work is
+    # the units' lines once over (scanning a line's points for every job was quadratic in jobs).
     fams: dict = {}
     for u in units:
         key, label = u["family"]
-        fam = fams.setdefault(key, {"key": key, "label": label, "jobs": [], "lines": {}})
-        if u["job"] not in fam["jobs"]:
-            fam["jobs"].append(u["job"])
+        fam = fams.get(key)
+        if fam is None:
+            fam = fams[key] = {"key": key, "label": label, "jobs": {}, "lines": {}}
+        fam["jobs"].setdefault(u["job"], None)
         for lkey, (item, r) in line_ratios(u["lines"]).items():
-            fam["lines"].setdefault(lkey, {"key": lkey, "item": item, "points": []})["points"].append(
-                {"ratio": r, "job": u["job"], "serial": u["serial"], "signed_at": u.get("signed_at")})
+            line = fam["lines"].get(lkey)
+            if line is None:
+                line = fam["lines"][lkey] = {"key": lkey, "item": item, "points": [], "by_job": {}}
+            line["points"].append({"ratio": r, "job": u["job"], "serial": u["serial"],
+                                   "signed_at": u.get("signed_at")})
+            line["by_job"].setdefault(u["job"], []).append(r)
     out = []
     for fam in fams.values():
         lines = []
@@ -201,12 +208,12 @@ def family_statistics(units: list[dict]) -> list[dict]:
             b = bias(x)
             per_job = []
             for job in fam["jobs"]:
-                xs = [p["ratio"] for p in line["points"] if p["job"] == job]
+                xs = line["by_job"].get(job)
                 if xs:
                     jb = bias(xs)
                     per_job.append({"job": job, "n": jb["n"], "mean": float(np.mean(xs)), "sd": jb["sd"]})
             lines.append({"key": line["key"], "item": line["item"], "bias": b,
                           "statement": bias_text(fam["label"], line["item"].lower(), b),
                           "per_job": per_job, "chart": line_chart(line["points"])})
-        out.append({"key": fam["key"], "label": fam["label"], "jobs": fam["jobs"], "lines": lines})
+        out.append({"key": fam["key"], "label": fam["label"], "jobs": list(fam["jobs"]), "lines": lines})
     return out

@@ -40,13 +40,21 @@ def _columns_for(key: str, design) -> list[str]:
         return [f"continuity.{a}-{b}" for a in ids for b in ids if a < b]
     if key.startswith("insulation."):
         return [f"{key} [Gohm]"] + (["insulation.test_voltage [V]"] if key.endswith("to_core") else [])
+    if key == "ring.frequency":
+        return ["ring.capacitor [nF]", "ring.frequency [kHz]"]
     last = key.rsplit(".", 1)[-1]
     return [f"{key} [{_COLUMNS[last]}]"] if last in _COLUMNS else [key]
 
 
+def _form_lines(design) -> list[str]:
+    """The lines a form asks for: the required ones and the optional ones the traveller prints (the ring)."""
+    return list(design.qc_required) + [ln.key for ln in design.qc_plan.lines
+                                       if not ln.required and ln.printed and ln.key not in design.qc_required]
+
+
 def csv_header(design) -> list[str]:
     cols = ["job", "revision", "inspector", "date", "serial"]
-    for key in design.qc_required:
+    for key in _form_lines(design):
         for c in _columns_for(key, design):
             if c not in cols:
                 cols.append(c)
@@ -107,6 +115,11 @@ def yaml_form(design) -> str:
             spec = (f"   # spec {hipot.test_voltage_V:.0f} V for {hipot.duration_s or 60:g} s"
                     if hipot is not None and hipot.test_voltage_V else "")
             out += [f"    hipot:{spec}", "      voltage:", "      duration:", "      leakage:", "      result:"]
+        if "ring.frequency" in _form_lines(design) and design.ring_wave is not None:
+            cap = design.ring_wave.capacitor_F * 1e9
+            out += ["    ring:              # optional: the ring (surge comparison) test",
+                    f"      capacitor: {cap:g} nF", "      frequency:       # e.g. 48.3 kHz",
+                    "      decay:           # ratio of successive peaks, e.g. 0.82"]
     return "\n".join(out) + "\n"
 
 
@@ -127,6 +140,10 @@ def _path_of(key: str, where: str) -> list[str]:
         return [head, parts[1]]
     if head == "continuity" and len(parts) == 2:
         return ["continuity", parts[1]]
+    if head == "ring" and len(parts) == 2:
+        return ["ring", parts[1]]
+    if head in ("wire_lot", "instrument_ids") and len(parts) <= 2 or key == "core_lot":
+        return parts
     if head == "waive" and len(parts) >= 2:
         return ["waive", ".".join(parts[1:])]
     raise InputError(where, f"unknown column {key!r}; expected a QC line like 'terminal.inductance [uH]'")

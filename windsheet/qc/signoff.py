@@ -28,6 +28,7 @@ from .measured import MeasuredFile, UnitReadings, coupling_coefficient, mutual_f
     unit_test_frequency
 from windsheet.design.qc_plan import DEFAULT_MIN_INSULATION_OHM, leakage_band
 from .signoff_diagnosis import diagnose_strand, diagnose_terminals
+from .unit_diagnosis import one_diagnosis
 from .signoff_text import history_lines, register_lines, summary_lines  # noqa: F401 - the CLI's
 from .strand_balance import balance_lines, leakage_line
 from .trace import unit_trace
@@ -53,6 +54,11 @@ def _bounds(design, key):
     return (ln.low, ln.high) if ln is not None and ln.judged in ("band", "minimum") else (None, None)
 
 
+def _waivable(design) -> list[str]:
+    """Lines a waiver may name: the required ones, then the plan's optional ones."""
+    return list(design.qc_required) + [ln.key for ln in design.qc_plan.lines if ln.key not in design.qc_required]
+
+
 def _min_insulation(design) -> float:
     for key in ("insulation.to_core", "insulation.strand_to_strand"):
         ln = design.qc_plan.line(key)
@@ -76,9 +82,10 @@ def _strand_lines(design, unit, base, strands, ambient, f_default, tol_L, tol_R,
             rd = sl.inductance_reading(sr.inductance, f_default)
             key = f"strand.{sid}.inductance"
             lo, hi = _bounds(design, key) if design.qc_plan.line(key) else sl.band(sp.inductance_H, tol_L)
-            l_line = sl.line(key, f"Inductance, strand {sid} alone", "H",
-                             rd["inductance_H"], sp.inductance_H, lo, hi, reading=rd, note=sl.freq_note(rd))
-            strand_L[sid] = rd["inductance_H"]
+            l_line = sl.inductance_line(key, f"Inductance, strand {sid} alone", rd, sp.inductance_H, lo, hi,
+                                        note=sl.freq_note(rd))
+            if not rd.get("open"):
+                strand_L[sid] = rd["inductance_H"]
             lines.append(l_line)
         if sr.resistance is not None:
             key = f"strand.{sid}.resistance"
@@ -98,10 +105,29 @@ def _strand_lines(design, unit, base, strands, ambient, f_default, tol_L, tol_R,
                                       f"turn count off on strand {sid}: {sr.turns} counted, {sp.turns} ordered"))
         if any(x is not None and x["result"] == "fail" for x in (l_line, r_line)):
             f = diagnose_strand(sid, idx, design, l_line and l_line["measured"], r_line and r_line["measured"],
-                                resize=resize, open_circuit=bool(sr.resistance and sr.resistance.open))
+                                resize=resize, open_circuit=bool(sr.resistance and sr.resistance.open
+                                                                 or sr.inductance and sr.inductance.open))
             if f:
                 findings.append(f)
+        if sr.q is not None:
+            lines.append(_q_line(design, f"strand.{sid}.q", f"Q, strand {sid} alone", sr.q, f_default,
+                                 join_path(path, "q")))
     return lines, findings, strand_L, strand_R
+
+
+def _q_line(design, key, item, reading, f_unit, path):
+    """A Q (or D) reading against the plan's Q line, at the test frequency it was predicted at."""
+    f_design = design.test.frequency_Hz
+    if f_unit and f_design and abs(f_unit / f_design - 1) > 0.01:
+        raise InputError(path, f"Q is predicted at the traveller's test frequency, {f_design / 1e3:g} kHz; "
+                               f"these readings are at {f_unit / 1e3:g} kHz: read Q at {f_design / 1e3:g} kHz")
+    plan = design.qc_plan.line(key)
+    rd = {"q": reading.q, "d": reading.d}
+    if plan is None or plan.predicted is None:
+        return sl.line(key, item, "", reading.value, None, reading=rd,
+                       note=reading.describe() + "; no Q predicted for this issue: recorded only")
+    return sl.line(key, item, "", reading.value, plan.predicted, plan.low, plan.high, reading=rd,
+                   note=f"{reading.describe()} at {f_design / 1e3:g} kHz")
 
 
 def _pair_lines(design, unit, base, strands, strand_L, tol_L, f_default):
@@ -116,24 +142,29 @@ def _pair_lines(design, unit, base, strands, strand_L, tol_L, f_default):
         La_p, Lo_p, k_p = (pp.series_aiding_H, pp.series_opposing_H, pp.coupling) if pp else (None, None, None)
         ra = sl.inductance_reading(pr.series_aiding, f_default) if pr.series_aiding else None
         ro = sl.inductance_reading(pr.series_opposing, f_default) if pr.series_opposing else None
+        when = "with temporary links" if design.hookup.name == "separate" else "before joint"
         if ra:
             plan_key = f"pair.{'-'.join(sorted((a, b)))}.series_aiding"
             lo, hi = (_bounds(design, plan_key) if design.qc_plan.line(plan_key)
                       else sl.band(La_p, tol_L) if La_p else (None, None))
-            lines.append(sl.line(f"pair.{key}.series_aiding", f"Series-aiding {a}+{b}, before joint", "H",
-                                 ra["inductance_H"], La_p, lo, hi, reading=ra, note=sl.freq_note(ra)))
+            lines.append(sl.inductance_line(f"pair.{key}.series_aiding", f"Series-aiding {a}+{b}, {when}", ra,
+                                            La_p, lo, hi, note=sl.freq_note(ra)))
         if ro:
             plan = design.qc_plan.line(f"pair.{'-'.join(sorted((a, b)))}.series_opposing")
             band = ((plan.low, plan.high) if plan is not None and plan.judged == "band"
                     else leakage_band(Lo_p, tol_L))
-            lines.append(leakage_line(f"pair.{key}.series_opposing", f"Series-opposing {a}−{b}, before joint",
-                                      ro["inductance_H"], Lo_p, band, ro, sl.freq_note(ro)))
-            if lines[-1]["result"] == "fail":
+            if ro.get("open"):
+                lines.append(sl.inductance_line(f"pair.{key}.series_opposing",
+                                                f"Series-opposing {a}−{b}, {when}", ro, Lo_p, *band))
+            else:
+                lines.append(leakage_line(f"pair.{key}.series_opposing", f"Series-opposing {a}−{b}, {when}",
+                                          ro["inductance_H"], Lo_p, band, ro, sl.freq_note(ro)))
+            if lines[-1]["result"] == "fail" and not ro.get("open"):
                 findings.append(_fact(f"strands {a}-{b}", "leakage",
                                       f"series-opposing {a}−{b} reads {lines[-1]['deviation'] * 100:+.0f} % "
                                       f"against its prediction: strands {a} and {b} differ (see the balance) "
                                       "or are not laid tight together"))
-        if not (ra and ro):
+        if not (ra and ro) or ra.get("open") or ro.get("open"):
             continue
         M = mutual_from_series(ra["inductance_H"], ro["inductance_H"])
         L1 = strand_L.get(a, strands[a][1].inductance_H)
@@ -172,8 +203,8 @@ def _terminal_lines(design, unit, base, ambient, f_default, resize):
             note += (f"; band is the ordered target ± tolerance, prediction "
                      f"{acc.prediction_offset * 100:+.2f} % from target")
         lo, hi = _bounds(design, "terminal.inductance")
-        l_line = sl.line("terminal.inductance", "Inductance at terminals", "H", rd["inductance_H"],
-                         acc.inductance_centre_H or term.inductance_H, lo, hi, reading=rd, note=note)
+        l_line = sl.inductance_line("terminal.inductance", "Inductance at terminals", rd,
+                                    acc.inductance_centre_H or term.inductance_H, lo, hi, note=note)
         lines.append(l_line)
     if t.resistance is not None:
         r_line = sl.resistance_line("terminal.resistance", "Resistance at terminals", t.resistance, ambient,
@@ -185,12 +216,45 @@ def _terminal_lines(design, unit, base, ambient, f_default, resize):
         taps = [{"from": tp.from_, "to": tp.to, "inductance_H": tp.henries} for tp in unit.taps]
         finding = diagnose_terminals(design, l_line and l_line["measured"], r_line and r_line["measured"],
                                      taps=taps, resize=resize,
-                                     open_circuit=bool(t.resistance and t.resistance.open))
+                                     open_circuit=bool(t.resistance and t.resistance.open
+                                                       or t.inductance and t.inductance.open))
+    if t.q is not None:
+        lines.append(_q_line(design, "terminal.q", "Q at terminals", t.q, f_default,
+                             join_path(base, "terminals", "q")))
     for tp in unit.taps:
-        open_ = tp.inductance == "open"
+        open_ = tp.inductance == "open" or tp.inductance.open
         lines.append(sl.line(f"tap.{tp.from_}>{tp.to}", f"Inductance {tp.from_} to {tp.to}", "H",
                              None if open_ else tp.henries, note="open" if open_ else "extra reading for the diagnosis"))
     return lines, finding
+
+
+def _ring_lines(design, unit, base):
+    """The ring wave against the plan's ring lines; a ring with another capacitor cannot be judged."""
+    r = unit.ring
+    if r is None:
+        return []
+    path = join_path(base, "ring")
+    rw = design.ring_wave
+    if rw is None or not rw.frequency_Hz or design.qc_plan.line("ring.frequency") is None:
+        raise InputError(join_path(path, "capacitor"), "this traveller asks for no ring test (the order's "
+                                                       "test.ring_capacitor): the ring cannot be judged")
+    if abs(r.capacitor / rw.capacitor_F - 1) > 0.02:
+        raise InputError(join_path(path, "capacitor"),
+                         f"the traveller's ring test uses {rw.capacitor_F * 1e9:.4g} nF; a ring with "
+                         f"{r.capacitor * 1e9:.4g} nF cannot be judged against it")
+    if r.frequency is None and r.decay is None:
+        raise InputError(path, "give the ring's frequency or its decay (ratio of successive peaks), or both")
+    lines = []
+    cap = f"with {rw.capacitor_F * 1e9:.4g} nF"
+    if r.frequency is not None:
+        ln = design.qc_plan.line("ring.frequency")
+        lines.append(sl.line("ring.frequency", f"Ring frequency {cap}", "Hz", r.frequency, ln.predicted,
+                             ln.low, ln.high, reading={"capacitor_F": r.capacitor}, note=ln.note))
+    if r.decay is not None:
+        ln = design.qc_plan.line("ring.decay")
+        lines.append(sl.line("ring.decay", f"Ring decay {cap} (ratio of successive peaks)", "", r.decay,
+                             ln.predicted, ln.low, ln.high, reading={"capacitor_F": r.capacitor}, note=ln.note))
+    return lines
 
 
 _IR = (("strand_to_strand", "Insulation resistance strand to strand",
@@ -208,6 +272,11 @@ def _insulation_lines(design, unit, base, strands):
         for key, label, words in _IR:
             value = getattr(ins, key)
             if value is None:
+                continue
+            if value == "open":
+                # Above the tester's range: more than any minimum it can show.
+                lines.append(sl.line(f"insulation.{key}", label, "ohm", None, None, ir_min, None, result="pass",
+                                     reading={"open": True}, note=("open: above the tester's range " + tv).strip()))
                 continue
             lines.append(sl.line(f"insulation.{key}", label, "ohm", value, None, ir_min, None, note=tv.strip()))
             if lines[-1]["result"] == "fail":
@@ -274,15 +343,20 @@ def evaluate_unit(design, measured: MeasuredFile, unit: UnitReadings, index: int
     lines += t_lines
     if t_finding:
         findings.append(t_finding)
+    lines += _ring_lines(design, unit, base)
     i_lines, i_findings = _insulation_lines(design, unit, base, strands)
     lines += i_lines
     findings += i_findings
+    findings = one_diagnosis(design, unit, lines, findings)
 
     required = design.qc_required
     waive = {**measured.waive, **unit.waive}
-    sl.check_waivers(unit.waive, required, join_path(base, "waive"))
+    sl.check_waivers(unit.waive, _waivable(design), join_path(base, "waive"))
     missing_all = sl.missing_lines(required, lines, ambient, list(strands))
-    waived = {k: v for k, v in waive.items() if k in missing_all}
+    # An optional line not read may be waived too: the reason is kept with the unit.
+    unread = missing_all + sl.missing_lines([k for k in _waivable(design) if k not in required], lines, ambient,
+                                            list(strands))
+    waived = {k: v for k, v in waive.items() if k in unread}
     missing = [k for k in missing_all if k not in waived]
     lines += [sl.waived_line(k, r) for k, r in waived.items()]
     if missing:
@@ -324,7 +398,7 @@ def _check_job(design, measured: MeasuredFile):
     rev = job.revision
     if measured.revision is not None and rev is not None and str(measured.revision) != str(rev):
         raise InputError("revision", f"is {measured.revision!r} but the order is revision {rev!r}")
-    sl.check_waivers(measured.waive, design.qc_required, "waive")
+    sl.check_waivers(measured.waive, _waivable(design), "waive")
     serials = list(job.units)
     seen = {}
     for i, u in enumerate(measured.units):

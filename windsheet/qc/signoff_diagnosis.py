@@ -122,6 +122,9 @@ def diagnose_terminals(design, L: Optional[float], R: Optional[float], *, taps=(
                             "finding": text + wh._joint_text(ordered_w, w)})
             return out
         hyps = scored_wirings(False)
+        # A wiring that reads exactly as ordered (the two terminal leads named the other way round)
+        # is no fault the readings can show.
+        hyps = [h for h in hyps if wh.log_distance(h["expected"], expected_ordered, floor) > 1e-9]
     else:
         expected_ordered = {"L": design.terminal.inductance_H, "R": design.terminal.resistance_ohm}
         tap_keys = []
@@ -143,7 +146,7 @@ def diagnose_terminals(design, L: Optional[float], R: Optional[float], *, taps=(
         return scored
     scored = rank(fixed + [t for t in turn_h if not t["rejected"]])
     if wiring_ok and (not scored or scored[0][0] > wh.CLEAR_MATCH):
-        hyps2 = scored_wirings(True)
+        hyps2 = [h for h in scored_wirings(True) if wh.log_distance(h["expected"], expected_ordered, floor) > 1e-9]
         scored = rank(hyps2 + wh.gauge_hypotheses(expected_ordered) + [t for t in turn_h if not t["rejected"]])
     # A turn count is fitted (a free parameter): a fixed hypothesis that matches clearly goes first.
     fixed_clear = [t for t in scored if t[1]["basis"] != "turns" and t[0] <= wh.CLEAR_MATCH]
@@ -163,7 +166,7 @@ def diagnose_terminals(design, L: Optional[float], R: Optional[float], *, taps=(
     distance = wh.log_distance(measured, best["expected"], floor)
     if len(picked) == 1 or not wiring_ok or any(h["basis"] == "turns" or h["basis"].startswith("gauge")
                                                  for h in picked):
-        return _finding(scope, best["basis"], best["finding"], True, distance, d_ordered)
+        return _finding(scope, best["basis"], best["finding"], True, distance, d_ordered, turns=best.get("turns"))
     cands = [(h["wiring"], h["basis"], h["short"]) for h in picked[:6]]
     seps = wh.separating_readings(cands, Lm, Rv, f, tol_L, taken=[(t["from"], t["to"]) for t in taps])
     if not seps:
@@ -244,4 +247,4 @@ def diagnose_strand(sid: str, index: int, design, L: Optional[float], R: Optiona
         return picked
     best = picked[0]
     return _finding(scope, best["basis"], f"strand {sid}: {best['finding']}", True,
-                    wh.log_distance(measured, best["expected"]), d_ordered)
+                    wh.log_distance(measured, best["expected"]), d_ordered, turns=best.get("turns"))

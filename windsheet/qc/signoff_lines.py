@@ -46,6 +46,14 @@ def band(value, tol):
     return value * (1 - tol), value * (1 + tol)
 
 
+def inductance_line(key, item, rd: dict, predicted, lo=None, hi=None, note=""):
+    """An inductance line; an ``open`` reading fails as an open circuit."""
+    if rd.get("open"):
+        return line(key, item, "H", None, predicted, lo, hi, result="fail", reading={"open": True},
+                    note="open circuit")
+    return line(key, item, "H", rd["inductance_H"], predicted, lo, hi, reading=rd, note=note)
+
+
 def inductance_reading(reading: InductanceReading, default_f) -> dict:
     """The reading in SI with the frequency it was taken at."""
     out = reading.describe()
@@ -55,6 +63,8 @@ def inductance_reading(reading: InductanceReading, default_f) -> dict:
 
 def freq_note(reading: dict) -> str:
     f = reading.get("test_frequency_Hz")
+    if reading.get("open"):
+        return "open circuit"
     if reading.get("method") == "ringing":
         return (f"rung at {reading['resonant_frequency_Hz'] / 1e3:.4g} kHz against "
                 f"{reading['capacitor_F'] * 1e9:.4g} nF")
@@ -112,8 +122,8 @@ def check_waivers(waive: dict, required: list[str], path: str) -> None:
     """A waiver names a required line and gives a reason; anything else is refused."""
     for key, reason in waive.items():
         if key not in required:
-            raise InputError(f"{path}.{key}", "waives a line this traveller does not require; "
-                                              f"required lines: {', '.join(required)}")
+            raise InputError(f"{path}.{key}", "waives a line this traveller does not list; "
+                                              f"its lines: {', '.join(required)}")
         if not str(reason).strip():
             raise InputError(f"{path}.{key}", "a waiver needs a reason, like 'hipot: tested by the customer'")
 

@@ -124,9 +124,19 @@ def balance_lines(design, strand_L: dict, strand_R: dict,
             text += (f"; likely {abs(dn):.0f} turn{'s' if round(abs(dn)) != 1 else ''} "
                      f"{'fewer' if dn < 0 else 'more'} ({n + round(dn)} of {n}; engine: L ∝ N^{a:.2f}, "
                      f"R ∝ N^{b:.2f})")
+            if dn < 0 and round(abs(dn)) <= 2:
+                text += _or_shorted(design, sid)
     finding = {"scope": f"strand {sid}", "basis": "balance", "likely": True, "finding": text,
                "strand": sid, "turns_difference": dn, "log_distance": None, "log_distance_as_ordered": None}
     return lines, [finding]
+
+
+def _or_shorted(design, sid: str) -> str:
+    """A turn or two short reads at the LCR meter much as a shorted turn does: say so, and what tells them apart."""
+    st = getattr(design, "shorted_turn", None)
+    how = (f"a Q reading at {st.shows_from_Hz / 1e3:.2g} kHz or above, or the ring test," if st is not None
+           else "a Q reading or the ring test")
+    return f", or a shorted turn in strand {sid}, which reads alike at this frequency: {how} tells them apart"
 
 
 def leakage_line(key, item, measured, predicted, band, reading, note):

@@ -276,17 +276,21 @@ def cautions(p) -> list[dict]:
 
 # --- QC record -------------------------------------------------------------------------
 
-_FORMAT = {"H": henry, "ohm": ohm}
+_FORMAT = {"H": henry, "ohm": ohm, "Hz": hertz, "": lambda v: f"{v:.3g}"}
 
 
-def qc_items(p) -> list[dict]:
+def qc_items(p, every: bool = False) -> list[dict]:
     """What the inspector measures on every unit, with what it should read: the design's QC plan, worded.
 
     Keys follow the sign-off's line keys.  ``judged`` items get pass/fail
     boxes; the others are only recorded (they feed the sign-off's diagnosis).
+    The traveller prints the plan's ``printed`` lines; ``every`` gives the
+    optional ones too (the bench page offers them).
     """
     items = []
     for ln in p.qc_plan.lines:
+        if not (ln.printed or every):
+            continue
         fmt = _FORMAT.get(ln.unit, lambda v: eng(v, ln.unit, sig=3, trim=True))
         predicted = fmt(ln.predicted) if ln.predicted is not None and ln.unit in _FORMAT else ""
         if ln.key == "terminal.inductance" and p.terminal.accept.inductance_basis == "target":
@@ -296,13 +300,13 @@ def qc_items(p) -> list[dict]:
         if ln.judged == "band":
             accept = band(ln.low, ln.high, fmt)
         elif ln.judged == "minimum":
-            accept = f"≥ {eng(ln.low, OHM if ln.unit == 'ohm' else ln.unit, sig=3, trim=True)}"
+            accept = f"≥ {eng(ln.low, OHM, sig=3, trim=True) if ln.unit == 'ohm' else fmt(ln.low)}"
         elif ln.judged == "expect":
             accept = ln.expect or ""
         else:
             accept = "record (°C)" if ln.unit == "degC" else "record"
         items.append({"key": ln.key, "label": ln.label, "predicted": predicted, "band": accept,
-                      "judged": ln.judged != "record", "note": ln.note})
+                      "judged": ln.judged != "record", "note": ln.note, "required": ln.required})
     return items
 
 
