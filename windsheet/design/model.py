@@ -366,7 +366,9 @@ class LeadRoute(Part):
     route_text: str = ""
     joint: Optional[str] = Field(None, description="the join it carries, like 'A.finish + B.start'")
     beside_turns: int = 0
-    worst_Vpk: float = 0.0
+    beside_leads: list[str] = Field(default_factory=list,
+                                    description="the other leads it lies beside where it leaves the winding")
+    worst_Vpk: float = Field(0.0, description="its worst voltage against a turn or a lead it touches [V peak]")
     where: Optional[str] = None
 
 

@@ -27,7 +27,7 @@ from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTO
                          insulation_verdict, volts)
 from .layout import Layout
 from .neighbours import neighbour_pairs
-from .leads import ROUTE_TEXT
+from .leads import BUNDLE_TEXT, ROUTE_TEXT
 from .voltage_map import describe_turn, pair_record, pair_voltages, turn_drops, turn_potentials
 
 #: Duty frequency must stay below this fraction of self-resonance (common practice).
@@ -111,6 +111,42 @@ def _lead_report(layout, leads, end_potential, v, peak):
             pairs.append((k, lead.beside, dv))
         out.append(rec)
     return out, pairs
+
+
+def _lead_lead_pairs(leads, end_potential, peak):
+    """Every two leads that lie together (one bundle) and are not one joint: ``(a, b, voltage)``."""
+    out = []
+    for a, la in enumerate(leads):
+        for b in range(a + 1, len(leads)):
+            lb = leads[b]
+            if la.bundle != lb.bundle or (la.joint is not None and la.joint == lb.joint):
+                continue
+            dv = abs(end_potential[la.strand, la.which] - end_potential[lb.strand, lb.which]) * peak
+            out.append((a, b, float(dv)))
+    return out
+
+
+def _lead_lead_where(la, lb):
+    return (f"{la.end} lead ({la.route}) against {lb.end} lead ({lb.route}), "
+            f"{BUNDLE_TEXT.get(la.bundle, la.bundle)}")
+
+
+def _lead_lead_record(la, lb, voltage):
+    return {"voltage_Vpk": float(voltage), "i": None, "j": None, "kind": "lead-lead",
+            "strands": [la.end.split(".")[0], lb.end.split(".")[0]], "turns": [None, None],
+            "layer": None, "layers": [None, None], "where": _lead_lead_where(la, lb)}
+
+
+def _with_lead_partners(reports, leads, lead_lead):
+    """Each lead's report with the leads it lies beside, its worst taken over them too."""
+    out = [dict(r, beside_leads=[]) for r in reports]
+    for a, b, dv in lead_lead:
+        for me, other in ((a, b), (b, a)):
+            out[me]["beside_leads"].append(leads[other].end)
+            if dv > out[me]["worst_Vpk"]:
+                out[me]["worst_Vpk"] = dv
+                out[me]["where"] = _lead_lead_where(leads[me], leads[other])
+    return out
 
 
 def _lead_pair_record(layout, lead, t, voltage, where):
@@ -339,6 +375,12 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         edge_reports, edge_pairs = _lead_report(layout, leads, ends_edge, v_edge, peak)
         lead_reports = [e if e["worst_Vpk"] > q["worst_Vpk"] else q for q, e in zip(lead_reports, edge_reports)]
         lead_pairs = [(k, b, np.maximum(q, e)) for (k, b, q), (_, _, e) in zip(lead_pairs, edge_pairs)]
+    # Leads that leave at one place lie together: each pair of them at its own voltage.
+    lead_lead = _lead_lead_pairs(leads, ends, peak)
+    if edge is not None:
+        lead_lead = [(a, b, max(q, e)) for (a, b, q), (_, _, e)
+                     in zip(lead_lead, _lead_lead_pairs(leads, ends_edge, peak))]
+    lead_reports = _with_lead_partners(lead_reports, leads, lead_lead)
     touching = float(construction_inception([0.0], [False], film, eps_r, impregnation=impregnation)[0])
     basis = "no air path" if impregnation == "potted" else "estimated"
     if pdiv_Vpk is not None:
@@ -349,7 +391,7 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
             pdiv = pdiv * (float(pdiv_Vpk) / touching)
         touching = float(pdiv_Vpk)
 
-    # Every stressed pair: turn pairs, then each lead against the turns it touches.
+    # Every stressed pair: turn pairs, each lead against the turns it touches, lead against lead.
     volts_all = [dv]
     pdiv_all = [pdiv]
     taped = [nb.across_tape & (tape_rating_V is not None)]
@@ -357,6 +399,10 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         volts_all.append(ldv)
         pdiv_all.append(np.full(beside.size, touching))
         taped.append(np.zeros(beside.size, dtype=bool))
+    if lead_lead:
+        volts_all.append(np.array([x[2] for x in lead_lead]))
+        pdiv_all.append(np.full(len(lead_lead), touching))
+        taped.append(np.zeros(len(lead_lead), dtype=bool))
     volts_all = np.concatenate(volts_all) if volts_all else np.zeros(0)
     pdiv_all = np.concatenate(pdiv_all) if pdiv_all else np.zeros(0)
     taped = np.concatenate(taped) if taped else np.zeros(0, dtype=bool)
@@ -373,7 +419,8 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                          f"layer {int(layout.layer[t]) + 1}")
                 return _lead_pair_record(layout, lead, t, ldv[k], where)
             k -= beside.size
-        raise IndexError(k)
+        a, b, lv = lead_lead[k]
+        return _lead_lead_record(leads[a], leads[b], lv)
 
     if volts_all.size:
         worst = record(int(np.argmax(volts_all)))
