@@ -401,7 +401,7 @@ class Insulation(Part):
     verdict: str = Field("unknown", description="pass, marginal or fail (unknown: not checked)")
     reasons: list[str] = Field(default_factory=list)
     worst_adjacent_Vpk: Optional[float] = None
-    enamel_Vpk: Optional[float] = None
+    enamel_Vpk: Optional[float] = Field(None, description="worst peak across enamel alone: touching conductors and lead pairs, no air or rated tape between [V peak]")
     breakdown_V: Optional[float] = None
     derating: Optional[float] = None
     allowed_Vpk: Optional[float] = None

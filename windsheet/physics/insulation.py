@@ -64,7 +64,8 @@ def volts(v) -> str:
 def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=None, layer_Vpk=0.0,
                        tape_rating_V=None, pd_Vpk=None, pdiv_Vpk=math.inf,
                        pdiv_hot_factor=PDIV_HOT_FACTOR, pd_where=None, pdiv_basis="estimated",
-                       ac=True, impregnation="none", safety_factor=PD_SAFETY_FACTOR) -> dict:
+                       ac=True, impregnation="none", safety_factor=PD_SAFETY_FACTOR, worst_where=None,
+                       enamel_where=None, layer_where=None) -> dict:
     """Judge turn, layer and lead insulation: pass, marginal or fail.
 
     Policy
@@ -92,8 +93,9 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
     derating : float
         Fraction of the breakdown allowed in service. [-]
     enamel_Vpk : float or None
-        Worst peak over the pairs insulated by enamel alone (pairs across a
-        rated tape excluded); ``worst_Vpk`` by default. [V]
+        Worst peak over the pairs insulated by enamel alone: touching
+        conductors, no air and no rated tape between them (a spaced or
+        diagonal pair has air between); ``worst_Vpk`` by default. [V]
     layer_Vpk : float
         Worst peak voltage across the layer tape. [V]
     tape_rating_V : float or None
@@ -116,6 +118,10 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
         ``"none"``, ``"varnish"`` or ``"potted"``.
     safety_factor : float
         Margin kept below the hot inception voltage on AC. [-]
+    worst_where, enamel_where, layer_where : str or None
+        Where the worst pair, the worst pair across enamel alone and the
+        worst pair across the layer tape are, in words.  Each reason states
+        the quantity it judged, where it is, and that quantity's own limit.
 
     Returns
     -------
@@ -144,14 +150,15 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
     place = f" ({pd_where})" if pd_where else ""
     basis = {"estimated": "estimated from the construction", "measured": "from the measured PDIV",
              "no air path": "none: no air path"}.get(pdiv_basis, pdiv_basis)
+    at = lambda where: f" ({where})" if where else ""  # noqa: E731
+    limit = f"{volts(allowed)} V peak ({derating:.0%} of the wire's {volts(breakdown_V)} V breakdown)"
     fails, marginals, notes = [], [], []
     if enamel > allowed:
-        fails.append(f"Worst voltage across enamel alone, {volts(enamel)} V peak, is over the allowed "
-                     f"{volts(allowed)} V peak ({derating:.0%} of the wire's {volts(breakdown_V)} V "
-                     "breakdown).")
+        fails.append(f"Worst voltage across enamel alone, {volts(enamel)} V peak{at(enamel_where)}, is over "
+                     f"the enamel's allowed {limit}.")
     if tape_rating_V is not None and layer_Vpk > tape_rating_V:
-        fails.append(f"Layer-to-layer voltage {volts(layer_Vpk)} V peak is over the layer tape's "
-                     f"{volts(tape_rating_V)} V rating.")
+        fails.append(f"Worst voltage across the layer tape, {volts(layer_Vpk)} V peak{at(layer_where)}, is "
+                     f"over the tape's {volts(tape_rating_V)} V rating.")
     if math.isfinite(pdiv_hot) and pd_v > pdiv_hot:
         text = (f"{volts(pd_v)} V peak{place} is over that pair's hot partial-discharge inception "
                 f"voltage {volts(pdiv_hot)} V peak ({volts(pdiv_Vpk)} V at 20 °C, {basis}, less "
@@ -179,11 +186,18 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
                    f"the pair nearest partial discharge, {volts(pd_v)} V peak{place}, is below "
                    f"{volts(pdiv_hot / safety_factor)} V peak (its hot inception voltage "
                    f"{volts(pdiv_hot)} V, {basis}, over {safety_factor:g})")
-        reasons = [f"Worst voltage between neighbours {volts(worst_Vpk)} V peak is within the allowed "
-                   f"{volts(allowed)} V peak, and {pd_text}."]
+        reasons = [f"Worst voltage across enamel alone, {volts(enamel)} V peak{at(enamel_where)}, is within "
+                   f"the enamel's allowed {limit}." if enamel > 0 else
+                   "No pair of conductors is held by enamel alone."]
         if tape_rating_V is not None and layer_Vpk > 0:
-            reasons.append(f"Layer-to-layer voltage {volts(layer_Vpk)} V peak is within the tape's "
-                           f"{volts(tape_rating_V)} V rating.")
+            reasons.append(f"Worst voltage across the layer tape, {volts(layer_Vpk)} V peak{at(layer_where)}, "
+                           f"is within the tape's {volts(tape_rating_V)} V rating.")
+        across_tape = tape_rating_V is not None and worst_Vpk <= layer_Vpk * (1 + 1e-9)
+        if worst_Vpk > enamel * (1 + 1e-9) and not across_tape:
+            reasons.append(f"The worst pair of all, {volts(worst_Vpk)} V peak{at(worst_where)}, has air as "
+                           "well as enamel between its conductors: it is judged by its own partial-discharge "
+                           "inception voltage, not the enamel's breakdown.")
+        reasons.append(pd_text[0].upper() + pd_text[1:] + ".")
     return {
         "verdict": verdict,
         "reasons": reasons + notes,

@@ -403,6 +403,12 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         volts_all.append(np.array([x[2] for x in lead_lead]))
         pdiv_all.append(np.full(len(lead_lead), touching))
         taped.append(np.zeros(len(lead_lead), dtype=bool))
+    # Held by enamel alone: touching turns (no air, no tape between), pairs across an unrated tape
+    # (the enamel is relied on) and every lead pair.  A spaced or diagonal pair has air between.
+    touching_turns = (nb.gap <= 1e-3 * layout.overall_diameter) & ~nb.across_tape
+    enamel_alone = [touching_turns | (nb.across_tape & (tape_rating_V is None))]
+    enamel_alone += [np.ones(x.size, dtype=bool) for x in volts_all[1:]]
+    enamel_alone = np.concatenate(enamel_alone)
     volts_all = np.concatenate(volts_all) if volts_all else np.zeros(0)
     pdiv_all = np.concatenate(pdiv_all) if pdiv_all else np.zeros(0)
     taped = np.concatenate(taped) if taped else np.zeros(0, dtype=bool)
@@ -429,7 +435,12 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                  "layers": None, "kind": None}
     layer_sel = nb.kind == "layer"
     layer_Vpk = float(dv[layer_sel].max()) if layer_sel.any() else 0.0
-    enamel_Vpk = float(volts_all[~taped].max()) if (~taped).any() else 0.0
+    layer_where = (record(int(np.flatnonzero(layer_sel)[np.argmax(dv[layer_sel])]))["where"]
+                   if layer_sel.any() else None)
+    enamel_Vpk, enamel_where = 0.0, None
+    if enamel_alone.any():
+        k_en = int(np.flatnonzero(enamel_alone)[np.argmax(volts_all[enamel_alone])])
+        enamel_Vpk, enamel_where = float(volts_all[k_en]), record(k_en)["where"]
     finite = np.isfinite(pdiv_all)
     if finite.any():
         ratio = np.where(finite, volts_all / np.where(finite, pdiv_all, 1.0), -1.0)
@@ -478,7 +489,8 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                         "not checked against the tape (the enamel alone is relied on).")
 
     insulation = insulation_verdict(worst["voltage_Vpk"], wire_breakdown_V, derating=derating,
-                                    enamel_Vpk=enamel_Vpk, layer_Vpk=layer_Vpk,
+                                    enamel_Vpk=enamel_Vpk, layer_Vpk=layer_Vpk, worst_where=worst["where"],
+                                    enamel_where=enamel_where, layer_where=layer_where,
                                     tape_rating_V=tape_rating_V, pd_Vpk=pd_V, pdiv_Vpk=pd_div,
                                     pdiv_hot_factor=pdiv_hot_factor, pd_where=pd_where,
                                     pdiv_basis=basis, ac=ac or edge is not None, impregnation=impregnation)
