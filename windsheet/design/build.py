@@ -312,8 +312,13 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
     stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
-                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
-                       leads=leads, impregnation=doc.winding.impregnation)
+                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_margin=doc.insulation.hot_pdiv_derating,
+                       leads=leads, impregnation=doc.winding.impregnation,
+                       film_min=None if wire.min_increase is None else wire.min_increase / 2.0,
+                       # Beyond the wire's thermal class the thermal verdict fails the job anyway;
+                       # the air there is taken at the class temperature (a runaway has no hot spot).
+                       hot_spot_C=min(max(temps["hot_spot_C"], duty.operating_temperature or -273.15),
+                                      float(wire.thermal_class)))
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
                        edge=_edge(order, duty_net, turns), **stress_args)
     if order.hookup_name == "separate" and S > 1:

@@ -417,6 +417,17 @@ class Insulation(Part):
     impregnation: Optional[str] = None
     duty: Optional[str] = Field(None, description="ac or dc")
     pdiv_touching_Vpk: Optional[float] = None
+    pdiv_max_film_Vpk: Optional[float] = Field(None, description="the pd pair's inception at 20 °C with the "
+                                               "thickest film the standard allows, shown beside pdiv_Vpk "
+                                               "(judged at the thinnest) [V peak]")
+    pdiv_film_m: Optional[float] = Field(None, description="enamel film a side the inception is judged at: "
+                                         "half the standard's minimum increase [m]")
+    pdiv_hot_spot_C: Optional[float] = Field(None, description="temperature whose air density sets the hot "
+                                             "inception voltage [degC]")
+    pdiv_density_factor: Optional[float] = Field(None, description="hot over 20 °C inception of the pd pair "
+                                                 "from the air's density alone (Paschen; physics) [-]")
+    pdiv_hot_margin: Optional[float] = Field(None, description="margin taken off beyond the density "
+                                             "(insulation.hot_pdiv_derating) [-]")
     layer_style: Optional[str] = None
     ir_min_ohm: Optional[float] = Field(None, description="least insulation resistance accepted [ohm]")
     remedies: Optional[list[Remedy]] = None

@@ -106,6 +106,40 @@ def paschen_minimum(A=PASCHEN_A, B=PASCHEN_B, gamma=PASCHEN_GAMMA):
     return k, B * k
 
 
+def air_density_ratio(temperature_C, reference_C=20.0):
+    """Number density of air at a temperature over its density at the reference, at one pressure.
+
+    A winding breathes: its air stays at the room's pressure as it warms, so
+    the gas density falls as ``T_ref / T`` (ideal gas).  Paschen's law is a
+    law of density × gap (similarity), so the hot inception voltage is the
+    cold construction's at the pressure ``p · T_ref / T``.
+
+    Parameters
+    ----------
+    temperature_C : float
+        Air temperature, e.g. the winding's hot spot. [degC]
+    reference_C : float
+        Temperature of the reference value (a PDIV at 20 °C). [degC]
+
+    Returns
+    -------
+    ratio : float
+        ``(reference + 273.15) / (temperature + 273.15)``. [-]
+
+    References
+    ----------
+    .. [1] Ideal gas law; Paschen's similarity law (breakdown a function of
+       N·d, N the gas number density), e.g. Yu. P. Raizer, Gas Discharge
+       Physics (1991), ch. 7 (memory).
+
+    Examples
+    --------
+    >>> round(air_density_ratio(155.0), 3)            # 293.15 K / 428.15 K
+    0.685
+    """
+    return (float(reference_C) + 273.15) / (float(temperature_C) + 273.15)
+
+
 def air_gap_share(air_path, solid, gaps=1):
     """Share of the voltage between two conductors that one air path takes.
 

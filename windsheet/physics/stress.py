@@ -19,11 +19,13 @@ import numpy as np
 
 from windsheet.physics import capacitance as cap
 from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R
-from .discharge import construction_inception
+from windsheet.physics.constants import ATMOSPHERE
+
+from .discharge import air_density_ratio, construction_inception
 from .fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
                          uniform_initial_distribution)
 from .flux_linkage import cored_turn_flux_linkage, turn_linkage_matrix
-from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTOR, hipot_voltage,
+from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_MARGIN, hipot_voltage,
                          insulation_verdict, volts)
 from .layout import Layout
 from .neighbours import neighbour_pairs
@@ -111,6 +113,17 @@ def _lead_report(layout, leads, end_potential, v, peak):
             pairs.append((k, lead.beside, dv))
         out.append(rec)
     return out, pairs
+
+
+def _hot_text(film, film_max, film_unknown, hot_C, density_factor, margin, basis):
+    """How the hot inception voltage was reached, physics and margin named apart."""
+    if density_factor is None:
+        return None
+    films = ("at the wire's film (its minimum not tabulated)" if film_unknown or film >= film_max else
+             f"at the standard's minimum film, {film * 1e6:.1f} µm a side")
+    return (f"{basis}, 20 °C {films}; × {density_factor:.2f} for the air's density at the "
+            f"{hot_C:.0f} °C hot spot (Paschen's law, physics); less a {margin:.0%} margin "
+            "(enamel permittivity rising with temperature, humidity)")
 
 
 def _lead_lead_pairs(leads, end_potential, peak):
@@ -290,8 +303,8 @@ def _edge_reason(rep):
 
 def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
            inductance_H=None, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R, tape_rating_V=None,
-           derating=DERATING, pdiv_Vpk=None, pdiv_hot_factor=PDIV_HOT_FACTOR, drops=None,
-           leads=(), impregnation="none", edge=None) -> dict:
+           derating=DERATING, pdiv_Vpk=None, pdiv_hot_margin=PDIV_HOT_MARGIN, drops=None,
+           leads=(), impregnation="none", edge=None, film_min=None, hot_spot_C=None) -> dict:
     """Voltage map, capacitance, self-resonance and insulation verdict for a duty.
 
     Parameters
@@ -313,8 +326,18 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         Relative permittivity of enamel and layer tape. [-]
     tape_rating_V : float or None
         Rated voltage of the layer tape. [V]
-    derating, pdiv_hot_factor
+    derating
         As :func:`windsheet.physics.insulation.insulation_verdict`.
+    pdiv_hot_margin : float
+        Margin taken off the hot inception voltage beyond the air's density
+        (the enamel's permittivity rising with temperature, humidity). [-]
+    film_min : float or None
+        The thinnest enamel film the standard allows, half its minimum
+        increase in diameter; inception is judged there (``None``: the
+        layout's film, from the maximum overall diameter). [m]
+    hot_spot_C : float or None
+        The winding's hot-spot temperature, where the air's density sets the
+        hot inception voltage (``None``: 20 °C). [degC]
     pdiv_Vpk : float or None
         A measured PDIV at 20 °C of touching turns of this wire as built
         (a twisted pair, impregnated like the coil).  It replaces the
@@ -367,9 +390,17 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         v_edge, ends_edge, dv_edge, impulse = edge_stress(layout, nb, c, edge, peak)
         dv = np.maximum(dv, dv_edge)
 
-    film = (layout.overall_diameter - layout.copper_diameter) / 2.0
+    # Inception is judged at the thinnest film the standard allows (its minimum increase); the
+    # layout's spacing stays at the maximum overall diameter.  Hot: Paschen at the air's density
+    # at the hot spot (physics), then a stated margin.
+    film_max = (layout.overall_diameter - layout.copper_diameter) / 2.0
+    film = film_max if film_min is None else min(float(film_min), film_max)
+    hot_C = 20.0 if hot_spot_C is None else max(float(hot_spot_C), 20.0)
+    p_hot = ATMOSPHERE * air_density_ratio(hot_C)
     pdiv = construction_inception(nb.gap, nb.across_tape, film, eps_r, layout.tape, tape_eps_r,
                                   impregnation) if nb.size else np.zeros(0)
+    pdiv_h = construction_inception(nb.gap, nb.across_tape, film, eps_r, layout.tape, tape_eps_r,
+                                    impregnation, pressure=p_hot) if nb.size else np.zeros(0)
     lead_reports, lead_pairs = _lead_report(layout, leads, ends, v, peak)
     if edge is not None:
         edge_reports, edge_pairs = _lead_report(layout, leads, ends_edge, v_edge, peak)
@@ -382,27 +413,38 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                      in zip(lead_lead, _lead_lead_pairs(leads, ends_edge, peak))]
     lead_reports = _with_lead_partners(lead_reports, leads, lead_lead)
     touching = float(construction_inception([0.0], [False], film, eps_r, impregnation=impregnation)[0])
+    touching_h = float(construction_inception([0.0], [False], film, eps_r, impregnation=impregnation,
+                                              pressure=p_hot)[0])
     basis = "no air path" if impregnation == "potted" else "estimated"
     if pdiv_Vpk is not None:
         basis = "measured"
         if impregnation == "potted":
+            # Voids in a potting are sealed: their gas keeps its density hot.
             pdiv = np.full(pdiv.shape, float(pdiv_Vpk))
+            pdiv_h, touching_h = pdiv.copy(), float(pdiv_Vpk)
         else:
-            pdiv = pdiv * (float(pdiv_Vpk) / touching)
+            scale = float(pdiv_Vpk) / touching
+            pdiv, pdiv_h, touching_h = pdiv * scale, pdiv_h * scale, touching_h * scale
         touching = float(pdiv_Vpk)
 
     # Every stressed pair: turn pairs, each lead against the turns it touches, lead against lead.
     volts_all = [dv]
-    pdiv_all = [pdiv]
+    pdiv_all, pdiv_hot_all = [pdiv], [pdiv_h]
+    gap_all, across_all = [nb.gap], [nb.across_tape]
     taped = [nb.across_tape & (tape_rating_V is not None)]
+    lead_sizes = [beside.size for _, beside, _ in lead_pairs] + ([len(lead_lead)] if lead_lead else [])
     for _, beside, ldv in lead_pairs:
         volts_all.append(ldv)
-        pdiv_all.append(np.full(beside.size, touching))
-        taped.append(np.zeros(beside.size, dtype=bool))
     if lead_lead:
         volts_all.append(np.array([x[2] for x in lead_lead]))
-        pdiv_all.append(np.full(len(lead_lead), touching))
-        taped.append(np.zeros(len(lead_lead), dtype=bool))
+    for n in lead_sizes:          # every lead pair touches, enamel to enamel
+        pdiv_all.append(np.full(n, touching))
+        pdiv_hot_all.append(np.full(n, touching_h))
+        gap_all.append(np.zeros(n))
+        across_all.append(np.zeros(n, dtype=bool))
+        taped.append(np.zeros(n, dtype=bool))
+    pdiv_hot_all = np.concatenate(pdiv_hot_all)
+    gap_all, across_all = np.concatenate(gap_all), np.concatenate(across_all)
     # Held by enamel alone: touching turns (no air, no tape between), pairs across an unrated tape
     # (the enamel is relied on) and every lead pair.  A spaced or diagonal pair has air between.
     touching_turns = (nb.gap <= 1e-3 * layout.overall_diameter) & ~nb.across_tape
@@ -441,12 +483,19 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     if enamel_alone.any():
         k_en = int(np.flatnonzero(enamel_alone)[np.argmax(volts_all[enamel_alone])])
         enamel_Vpk, enamel_where = float(volts_all[k_en]), record(k_en)["where"]
-    finite = np.isfinite(pdiv_all)
+    finite = np.isfinite(pdiv_hot_all)
+    pd_hot, pd_max_film, density_factor = math.inf, None, None
     if finite.any():
-        ratio = np.where(finite, volts_all / np.where(finite, pdiv_all, 1.0), -1.0)
+        ratio = np.where(finite, volts_all / np.where(finite, pdiv_hot_all, 1.0), -1.0)
         crit = int(np.argmax(ratio))
         pd_rec = record(crit)
         pd_V, pd_div, pd_where = float(volts_all[crit]), float(pdiv_all[crit]), pd_rec["where"]
+        density_factor = float(pdiv_hot_all[crit] / pdiv_all[crit])
+        pd_hot = float(pdiv_hot_all[crit]) * (1.0 - pdiv_hot_margin)
+        pd_max_film = None if impregnation == "potted" else pd_div * float(construction_inception(
+            [gap_all[crit]], [across_all[crit]], film_max, eps_r, layout.tape, tape_eps_r, impregnation)[0]
+            / construction_inception([gap_all[crit]], [across_all[crit]], film, eps_r, layout.tape,
+                                     tape_eps_r, impregnation)[0])
     else:
         pd_V, pd_div, pd_where = float(worst["voltage_Vpk"]), math.inf, worst["where"]
 
@@ -492,11 +541,16 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                                     enamel_Vpk=enamel_Vpk, layer_Vpk=layer_Vpk, worst_where=worst["where"],
                                     enamel_where=enamel_where, layer_where=layer_where,
                                     tape_rating_V=tape_rating_V, pd_Vpk=pd_V, pdiv_Vpk=pd_div,
-                                    pdiv_hot_factor=pdiv_hot_factor, pd_where=pd_where,
+                                    pdiv_hot_Vpk=pd_hot, hot_text=_hot_text(
+                                        film, film_max, film_min is None, hot_C, density_factor,
+                                        pdiv_hot_margin, basis), pd_where=pd_where,
                                     pdiv_basis=basis, ac=ac or edge is not None, impregnation=impregnation)
     if impulse is not None:
         insulation["reasons"] = list(insulation["reasons"]) + [_edge_reason(impulse)]
     insulation["pdiv_touching_Vpk"] = touching if math.isfinite(touching) else None
+    insulation.update({"pdiv_max_film_Vpk": pd_max_film, "pdiv_film_m": float(film),
+                       "pdiv_hot_spot_C": float(hot_C), "pdiv_density_factor": density_factor,
+                       "pdiv_hot_margin": float(pdiv_hot_margin)})
     insulation["layer_style"] = layout.layer_style
     worst_out = {k: worst[k] for k in ("voltage_Vpk", "where", "strands", "turns", "layer",
                                        "layers", "kind")}
