@@ -376,7 +376,9 @@ class Capacitance(Part):
     self_F: Optional[float] = None
     strand_to_strand_F: Optional[float] = None
     layer_to_layer_F: Optional[float] = None
-    terminal_F: Optional[float] = None
+    terminal_F: Optional[float] = Field(None, description="the winding's terminal capacitance, from its "
+                                        "low-frequency voltage map (not the duty's), leads included [F]")
+    leads_F: Optional[float] = Field(None, description="what the leads lying together add to terminal_F [F]")
     method: str = ""
 
 

@@ -18,6 +18,7 @@ import math
 import numpy as np
 
 from windsheet.physics import capacitance as cap
+from .conductor_capacitance import turn_to_turn_capacitance_per_length
 from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R
 from windsheet.physics.constants import ATMOSPHERE
 
@@ -304,7 +305,8 @@ def _edge_reason(rep):
 def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
            inductance_H=None, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R, tape_rating_V=None,
            derating=DERATING, pdiv_Vpk=None, pdiv_hot_margin=PDIV_HOT_MARGIN, drops=None,
-           leads=(), impregnation="none", edge=None, film_min=None, hot_spot_C=None) -> dict:
+           leads=(), impregnation="none", edge=None, film_min=None, hot_spot_C=None,
+           cap_network=None, cap_drops=None, lead_length=0.0) -> dict:
     """Voltage map, capacitance, self-resonance and insulation verdict for a duty.
 
     Parameters
@@ -338,6 +340,14 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     hot_spot_C : float or None
         The winding's hot-spot temperature, where the air's density sets the
         hot inception voltage (``None``: 20 °C). [degC]
+    cap_network, cap_drops
+        The hookup solved at 0 Hz and its ``(turn_drop, lead_drop)``: the
+        low-frequency voltage map the terminal capacitance is taken from
+        (leads' drops ignored), so that it does not move with the duty.
+        ``None``: the duty's own map.
+    lead_length : float
+        Length of each lead; leads that lie together add a touching pair's
+        capacitance per length over it (Massarini-Kazimierczuk). [m]
     pdiv_Vpk : float or None
         A measured PDIV at 20 °C of touching turns of this wire as built
         (a twisted pair, impregnated like the coil).  It replaces the
@@ -500,9 +510,22 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         pd_V, pd_div, pd_where = float(worst["voltage_Vpk"]), math.inf, worst["where"]
 
     # Capacitance: pairs by the energy method; Medhurst for a single-layer solenoid.
-    pairs_C = cap.energy_method_capacitance(c, v[i] - v[j], 1.0)
+    # The capacitance that sets self-resonance belongs to the winding, not the duty: its voltage
+    # map is the low-frequency one (f -> 0), the leads' resistance left out; the leads that lie
+    # together then add their own capacitance, never take any away.
+    ends_c = ends if cap_network is None else np.asarray(cap_network.end_potential,
+                                                         dtype=complex).reshape(layout.strands, 2)
+    v_c = turn_potentials(layout, ends_c, None if cap_drops is None else cap_drops[0], None)
+    leads_F = 0.0
+    if lead_lead and lead_length > 0:
+        per_m = float(turn_to_turn_capacitance_per_length(layout.copper_diameter, layout.overall_diameter,
+                                                          eps_r))
+        dv_leads = [ends_c[leads[a].strand, leads[a].which] - ends_c[leads[b].strand, leads[b].which]
+                    for a, b, _ in lead_lead]
+        leads_F = cap.energy_method_capacitance(np.full(len(dv_leads), per_m * lead_length), dv_leads, 1.0)
+    pairs_C = cap.energy_method_capacitance(c, v_c[i] - v_c[j], 1.0)
     warnings = []
-    method = ("energy method over neighbour pairs (Massarini-Kazimierczuk between touching "
+    method = ("energy method over neighbour pairs on the winding's low-frequency voltage map (Massarini-Kazimierczuk between touching "
               "turns, two-wire line with air beyond the enamel between spaced ones, flux tubes "
               "through enamel, air and tape in series, or series plates, between layers)")
     self_F = None
@@ -511,9 +534,10 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         diameter = 2.0 * float(np.mean(layout.r))
         length = float(layout.traverse_used)
         self_F = float(cap.medhurst_self_capacitance(diameter, length))
-        terminal_F = cap.single_layer_capacitance(self_F, c, v[i] - v[j], 1.0 / layout.n_turns)
+        terminal_F = cap.single_layer_capacitance(self_F, c, v_c[i] - v_c[j], 1.0 / layout.n_turns)
         method = ("Medhurst's self-capacitance of a single-layer solenoid, plus what the hookup "
-                  "stores between neighbour pairs beyond an even share of V/N each (energy method; "
+                  "stores between neighbour pairs beyond an even share of V/N each (energy method on the "
+                  "low-frequency voltage map; "
                   "Massarini-Kazimierczuk between touching turns, two-wire line between spaced ones)")
         if not cap.medhurst_in_table(length / diameter):
             warnings.append(f"Length/diameter {length / diameter:.2f} is outside Medhurst's table "
@@ -523,6 +547,7 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     strand_F = float(c[other_strand].sum()) if layout.strands > 1 else None
     layers_F = float(sum(layer_C.values())) if layout.layers > 1 else None
 
+    terminal_F = terminal_F + leads_F
     L = network.inductance if inductance_H is None else inductance_H
     srf = cap.self_resonance(L, terminal_F)
     if ac and math.isfinite(srf):
@@ -561,6 +586,7 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         "leads": lead_reports,
         "capacitance": {"self_F": self_F, "strand_to_strand_F": strand_F,
                         "layer_to_layer_F": layers_F, "terminal_F": float(terminal_F),
+                        "leads_F": float(leads_F),
                         "method": method},
         "self_resonance_Hz": None if not math.isfinite(srf) else float(srf),
         "insulation": insulation,
