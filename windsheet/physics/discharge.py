@@ -225,9 +225,10 @@ def inception_voltage(min_air_gap, solid, gaps=1, pressure=ATMOSPHERE):
 
     Notes
     -----
-    Within 6 % (low, i.e. on the safe side) of the same criterion applied to
-    a 2-D finite-difference field solution of two enamelled wires, touching
-    or spaced, 0.1–1 mm copper (computed, tests/test_discharge.py).  The
+    Below the same criterion applied to a 2-D finite-difference field
+    solution of two enamelled wires (the safe side), never above: 1–10 % low
+    touching at the thickest IEC 60317-0-1 films, 1–7 % at the thinnest,
+    0.1–1 mm copper (computed, tests/test_discharge.py).  The
     straight-path series model is the usual hand form; field-solver versions
     of the same method trace the air paths along field lines.
 
