@@ -22,6 +22,7 @@ which only a partial-discharge test of finished parts can find.
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 import numpy as np
 
@@ -196,6 +197,13 @@ def _inception_one(s0, solid, gaps, pressure, n_grid=600):
     return float(f(math.log(s))), s
 
 
+@lru_cache(maxsize=4096)
+def _inception_cached(s0, solid, gaps, pressure):
+    """:func:`_inception_one`'s voltage, remembered: a sizing asks for the same few constructions at
+    20 °C, hot, and at both films, again for every remedy it tries."""
+    return _inception_one(s0, solid, gaps, pressure)[0]
+
+
 def inception_voltage(min_air_gap, solid, gaps=1, pressure=ATMOSPHERE):
     """Partial-discharge inception voltage between two insulated conductors.
 
@@ -259,7 +267,8 @@ def inception_voltage(min_air_gap, solid, gaps=1, pressure=ATMOSPHERE):
                                      np.asarray(solid, dtype=float), np.asarray(gaps, dtype=float))
     flat = np.column_stack([np.round(g0.ravel(), 12), np.round(sol.ravel(), 12), n.ravel()])
     uniq, inverse = _distinct_rows(flat)
-    values = np.array([_inception_one(u[0] / u[2], u[1], u[2], pressure)[0] for u in uniq])
+    values = np.array([_inception_cached(float(u[0] / u[2]), float(u[1]), float(u[2]), float(pressure))
+                       for u in uniq])
     out = values[inverse].reshape(g0.shape)
     return float(out) if out.ndim == 0 else out
 
