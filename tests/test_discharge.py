@@ -9,6 +9,7 @@ import pytest
 from windsheet.physics import discharge as dis
 
 from laplace2d import Grid, disc, ring
+from windsheet.physics.wire_tables import iec_row
 
 ATM = 101325.0
 
@@ -111,6 +112,8 @@ FD_CASES = [  # copper, overall [m], surface gap, tape
     (0.45e-3, 0.50e-3, 50e-6, 0.0),
     (0.10e-3, 0.123e-3, 0.0, 0.0),
     (0.45e-3, 0.50e-3, 0.0, 0.1e-3),
+    (0.10e-3, 0.132e-3, 0.0, 0.0),                 # 0.1 mm grade 3, thickest film: the largest shortfall
+    (0.20e-3, 0.252e-3, 0.0, 0.0),                 # 0.2 mm grade 3, thickest film (issue 29: 9.2 %)
 ]
 
 
@@ -120,8 +123,20 @@ def test_inception_against_a_field_solution(cu, ov, gap, tape):
     model = float(dis.construction_inception([gap + tape], [tape > 0], film, 3.5, tape=tape)[0])
     field = fd_pair_inception(cu, ov, 3.5, gap, tape, h=min(2e-6, film / 6))
     # Independent computation (2-D finite differences, tests/laplace2d.py): the straight-path series
-    # model reads up to 8 % low, the safe side, never high.
-    assert 0.92 * field <= model <= 1.005 * field
+    # model reads low, the safe side, never high: measured 1-10 % over 0.1-1 mm, grades 1-3, at the
+    # thickest film (0.1 mm grade 3: 9.6 %), 1-7 % at the thinnest (README's stated bound).
+    assert 0.90 * field <= model <= 1.005 * field
+
+
+@pytest.mark.parametrize("cu", [0.10e-3, 0.20e-3])
+def test_inception_at_the_thinnest_film_against_a_field_solution(cu):
+    # IEC 60317-0-1 grade 3 at its minimum increase (the film windsheet judges at); the same
+    # finite-difference reference: within 7 % low.
+    ov = cu + iec_row(cu, 3).min_increase
+    film = (ov - cu) / 2
+    model = float(dis.construction_inception([0.0], [False], film, 3.5)[0])
+    field = fd_pair_inception(cu, ov, 3.5, h=min(2e-6, film / 6))
+    assert 0.93 * field <= model <= 1.005 * field
 
 
 # ---- the construction moves it the way it should --------------------------------------

@@ -24,8 +24,22 @@ def test_surface_rise_agrees_with_an_empirical_rule(psi_W_per_cm2):
     area, d = 0.01, 0.05
     power = psi_W_per_cm2 * area * 1e4
     got = heating.surface_rise(power, area, d, 25.0)
-    # An independent, empirical rule of the same heat balance: agreement within 10 %.
-    assert got == pytest.approx(mclyman_rise(power, area), rel=0.10)
+    # An independent, empirical rule of the same heat balance: at 50 mm, within 6 % (README's bound).
+    assert got == pytest.approx(mclyman_rise(power, area), rel=0.06)
+
+
+@pytest.mark.parametrize("d", [0.02, 0.05, 0.1])
+@pytest.mark.parametrize("psi_W_per_cm2", [0.005, 0.01, 0.025, 0.06, 0.1])
+def test_surface_rise_against_the_empirical_rule_over_sizes(d, psi_W_per_cm2):
+    area = 0.01
+    power = psi_W_per_cm2 * area * 1e4
+    ratio = heating.surface_rise(power, area, d, 25.0) / mclyman_rise(power, area)
+    # McLyman's rule has no size in it; convection from a small cylinder is stronger (Holman's
+    # h ~ D^-1/4), so windsheet reads below it on small coils: measured -17 % (20 mm, 0.005 W/cm2)
+    # to +5 % (100 mm, 0.06 W/cm2), the README's stated bound.
+    assert 0.82 <= ratio <= 1.06
+    if d >= 0.05 and psi_W_per_cm2 >= 0.01:
+        assert ratio >= 0.94
 
 
 def test_surface_rise_solves_its_own_balance():

@@ -61,7 +61,7 @@ def test_verdict_prints_voltages_to_three_figures(worst, text):
     out = verdict(worst, pdiv_Vpk=683.0)
     # Common practice: three significant figures, so a few volts do not print as "0 V".
     assert text in out["reasons"][0]
-    assert "within the allowed 1150 V peak" in out["reasons"][0]
+    assert "within the enamel's allowed 1150 V peak" in out["reasons"][0]
 
 
 @pytest.mark.parametrize("U,test_V", [(230.0, 1460.0), (24.0, 1048.0), (400.0, 1800.0)])

@@ -41,7 +41,12 @@ def changed(doc, **changes):
 
 
 def test_two_layer_bifilar_worst_is_nearly_the_whole_voltage_between_layers():
-    p = run(BIFILAR_2L)
+    # Default routes bring both terminal leads out at the start end: they lie together, the whole
+    # applied peak apart (the terminals are A.start and B.finish; circuit theory).
+    lead_pair = run(BIFILAR_2L).worst_adjacent
+    assert lead_pair.kind == "lead-lead" and lead_pair.voltage_Vpk == pytest.approx(100 * 2 ** 0.5, rel=1e-6)
+    # With the starts taken out through the former the leads no longer lie together: the layers' worst.
+    p = run(changed(BIFILAR_2L, **{"winding.leads": {"start": "through-form"}}))
     wa = p.worst_adjacent
     # The nested upper layer's last turn of B lies in the groove over A's first turns: derived, ~V apart.
     assert wa.voltage_Vpk >= 0.9 * 100 * 2 ** 0.5
@@ -64,9 +69,11 @@ def test_spacing_the_strands_raises_the_inception_of_the_pair_at_risk():
                                  "winding.leads": {"joint": "end-flange"}})
     close = run(doc).insulation
     spaced = run(changed(doc, **{"winding.pitch": "2.8 mm", "winding.strand_spacing": "even"})).insulation
-    # Paschen: 0.9 mm of air between A and B instead of touching enamel.
-    assert spaced.pdiv_Vpk > 1.5 * close.pdiv_Vpk
-    assert close.verdict == "fail" and spaced.verdict == "pass"
+    # Spacing parts the turns, but the two starts still leave together at the start end, V/2 apart
+    # (700 V rms: 495 V peak), enamel to enamel: they become the pair at risk and the order still fails.
+    assert close.verdict == "fail" and spaced.verdict == "fail"
+    assert "A.start lead" in spaced.pd_pair.where and "B.start lead" in spaced.pd_pair.where
+    assert spaced.pd_pair.voltage_Vpk == pytest.approx(700 * 2 ** 0.5 / 2, rel=0.01)
     # Spacing the slots alone leaves A and B touching in each slot: the pair at risk is unchanged.
     together = run(changed(doc, **{"winding.pitch": "2.8 mm"})).insulation
     assert together.pdiv_Vpk == pytest.approx(close.pdiv_Vpk, rel=1e-9)
@@ -91,7 +98,11 @@ def test_a_lead_up_the_flange_of_a_multilayer_coil_is_in_the_stress_map():
     start = next(x for x in p.leads if x.lead == "A.start")
     # Derived: the top layer of an even count ends at the start flange, next to the 0 V start lead.
     assert start.worst_Vpk == pytest.approx(100 * 2 ** 0.5, rel=0.02)
-    assert p.worst_adjacent.kind == "lead"
+    assert start.beside_turns > 0 and "A.finish" in start.beside_leads
+    # The finish is laid back over the top layer to the start end: the two leads lie together there,
+    # the whole applied peak apart (circuit theory), and that pair is the worst.
+    assert p.worst_adjacent.kind == "lead-lead"
+    assert p.worst_adjacent.voltage_Vpk == pytest.approx(100 * 2 ** 0.5, rel=1e-6)
 
 
 def test_measured_pdiv_wins():

@@ -93,8 +93,8 @@ def size_report(text: str) -> dict:
     diameter of IEC 60317-0-1 (the message names the nearest sizes).
     """
     from windsheet.order.units import parse_quantity
-    from windsheet.physics.wire_tables import (IEC, NotInTable, Size, iec_row, nema_row, parse_gauge, row_for,
-                                               row_record, swg_table)
+    from windsheet.physics.wire_tables import (IEC, NotInTable, Size, awg_nominal_diameter, iec_row, nema_row,
+                                               parse_gauge, row_for, row_record, swg_table)
 
     size = parse_gauge(text)
     if size is None:
@@ -111,7 +111,7 @@ def size_report(text: str) -> dict:
                 rows.append(nema_row(size.number, g))
             except NotInTable:
                 pass
-    src = {"AWG": "ASTM B258 formula", "SWG": swg_table()[size.number][1] if size.system == "SWG" else "",
+    src = {"AWG": awg_nominal_diameter(size.number)[1] if size.system == "AWG" else "", "SWG": swg_table()[size.number][1] if size.system == "SWG" else "",
            "metric": IEC}[size.system]
     return {"size": size.text, "system": size.system, "diameter_m": size.diameter, "diameter_source": src,
             "rows": [row_record(r) for r in rows]}

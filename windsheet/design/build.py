@@ -297,19 +297,32 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
     drops = stress.winding_drops(layout, duty_net, duty.frequency, ohm_per_m, L, cored,
                                  doc.winding.lead_length, linkage)
     leads = lead_routes(layout, net.joins, net.terminals, _lead_routes(order), order.hookup_name)
+    # The terminal capacitance is the winding's own: taken from the low-frequency (0 Hz) map.
+    ohm_per_m20 = float(dc_resistance(1.0, wire.copper_diameter, conductor=wire.conductor))
+    cap_net = sizing.network_at(order, L, R20, 0.0)
+    cap_drops = stress.winding_drops(layout, cap_net, 0.0, ohm_per_m20, L, cored, 0.0, None)
     stress_args = dict(inductance_H=net.inductance, eps_r=doc.wire.permittivity,
                        tape_rating_V=order.tape_rating, derating=doc.insulation.derating,
-                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_factor=1 - doc.insulation.hot_pdiv_derating,
-                       leads=leads, impregnation=doc.winding.impregnation)
+                       pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_margin=doc.insulation.hot_pdiv_derating,
+                       leads=leads, impregnation=doc.winding.impregnation, lead_length=doc.winding.lead_length,
+                       film_min=None if wire.min_increase is None else wire.min_increase / 2.0,
+                       # Beyond the wire's thermal class the thermal verdict fails the job anyway;
+                       # the air there is taken at the class temperature (a runaway has no hot spot).
+                       hot_spot_C=min(max(temps["hot_spot_C"], duty.operating_temperature or -273.15),
+                                      float(wire.thermal_class)))
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
-                       edge=_edge(order, duty_net, turns), **stress_args)
+                       edge=_edge(order, duty_net, turns), cap_network=cap_net, cap_drops=cap_drops,
+                       **stress_args)
     if order.hookup_name == "separate" and S > 1:
         # Capacitance and resonance belong to one winding on its own; the
         # offset between windings only sets the insulation stress.
         own_net = separate_windings(L, Rhot)
+        own_cap = separate_windings(L, R20)
         own = stress.assess(layout, own_net, duty.voltage, duty.frequency, wire.breakdown,
                             drops=stress.winding_drops(layout, own_net, duty.frequency, ohm_per_m, L,
                                                        cored, doc.winding.lead_length, linkage),
+                            cap_network=own_cap, cap_drops=stress.winding_drops(
+                                layout, own_cap, 0.0, ohm_per_m20, L, cored, 0.0, None),
                             **stress_args)
         st = {**st, "capacitance": {**own["capacitance"],
                                     "strand_to_strand_F": st["capacitance"]["strand_to_strand_F"]},

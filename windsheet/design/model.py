@@ -413,7 +413,9 @@ class LeadRoute(Part):
     route_text: str = ""
     joint: Optional[str] = Field(None, description="the join it carries, like 'A.finish + B.start'")
     beside_turns: int = 0
-    worst_Vpk: float = 0.0
+    beside_leads: list[str] = Field(default_factory=list,
+                                    description="the other leads it lies beside where it leaves the winding")
+    worst_Vpk: float = Field(0.0, description="its worst voltage against a turn or a lead it touches [V peak]")
     where: Optional[str] = None
 
 
@@ -421,7 +423,9 @@ class Capacitance(Part):
     self_F: Optional[float] = None
     strand_to_strand_F: Optional[float] = None
     layer_to_layer_F: Optional[float] = None
-    terminal_F: Optional[float] = None
+    terminal_F: Optional[float] = Field(None, description="the winding's terminal capacitance, from its "
+                                        "low-frequency voltage map (not the duty's), leads included [F]")
+    leads_F: Optional[float] = Field(None, description="what the leads lying together add to terminal_F [F]")
     method: str = ""
 
 
@@ -446,7 +450,7 @@ class Insulation(Part):
     verdict: str = Field("unknown", description="pass, marginal or fail (unknown: not checked)")
     reasons: list[str] = Field(default_factory=list)
     worst_adjacent_Vpk: Optional[float] = None
-    enamel_Vpk: Optional[float] = None
+    enamel_Vpk: Optional[float] = Field(None, description="worst peak across enamel alone: touching conductors and lead pairs, no air or rated tape between [V peak]")
     breakdown_V: Optional[float] = None
     derating: Optional[float] = None
     allowed_Vpk: Optional[float] = None
@@ -462,6 +466,17 @@ class Insulation(Part):
     impregnation: Optional[str] = None
     duty: Optional[str] = Field(None, description="ac or dc")
     pdiv_touching_Vpk: Optional[float] = None
+    pdiv_max_film_Vpk: Optional[float] = Field(None, description="the pd pair's inception at 20 °C with the "
+                                               "thickest film the standard allows, shown beside pdiv_Vpk "
+                                               "(judged at the thinnest) [V peak]")
+    pdiv_film_m: Optional[float] = Field(None, description="enamel film a side the inception is judged at: "
+                                         "half the standard's minimum increase [m]")
+    pdiv_hot_spot_C: Optional[float] = Field(None, description="temperature whose air density sets the hot "
+                                             "inception voltage [degC]")
+    pdiv_density_factor: Optional[float] = Field(None, description="hot over 20 °C inception of the pd pair "
+                                                 "from the air's density alone (Paschen; physics) [-]")
+    pdiv_hot_margin: Optional[float] = Field(None, description="margin taken off beyond the density "
+                                             "(insulation.hot_pdiv_derating) [-]")
     layer_style: Optional[str] = None
     ir_min_ohm: Optional[float] = Field(None, description="least insulation resistance accepted [ohm]")
     remedies: Optional[list[Remedy]] = None

@@ -469,7 +469,8 @@ class Insulation(_M):
     min_resistance: Annotated[float, quantity("resistance")] = 100e6
     #: Measured PDIV (20 °C, peak) of touching turns of this wire as built; by default estimated.
     pdiv: Optional[PeakVoltage] = None
-    hot_pdiv_derating: Fraction = 0.25
+    #: Margin off the hot inception voltage beyond the air's density at the hot spot (computed).
+    hot_pdiv_derating: Fraction = 0.15
 
 
 class Test(_M):

@@ -19,8 +19,14 @@ from .discharge import paschen_minimum
 #: (common practice: a safety factor of 4, memory).
 DERATING = 0.25
 #: PDIV falls 20–30 % at running temperature (memory): air density falls and
-#: the enamel's permittivity rises.  25 % is taken unless the order says.
+#: the enamel's permittivity rises.  A flat factor, used only when no hot
+#: inception voltage is computed (:func:`insulation_verdict` alone).
 PDIV_HOT_FACTOR = 0.75
+#: Margin taken off the hot inception voltage beyond the fall of the air's
+#: density (which is computed, Paschen): the enamel's permittivity rising with
+#: temperature and humidity (memory: polyamide-imide and polyester-imide εr
+#: rise some 10 % from 20 °C to 155 °C).  15 %, unless the order says.
+PDIV_HOT_MARGIN = 0.15
 #: Margin kept below the hot inception voltage on AC duty: IEC 60034-18-41's
 #: safety factor of 1.25 on the PDIV of type I (PD-free) insulation (memory).
 PD_SAFETY_FACTOR = 1.25
@@ -64,7 +70,8 @@ def volts(v) -> str:
 def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=None, layer_Vpk=0.0,
                        tape_rating_V=None, pd_Vpk=None, pdiv_Vpk=math.inf,
                        pdiv_hot_factor=PDIV_HOT_FACTOR, pd_where=None, pdiv_basis="estimated",
-                       ac=True, impregnation="none", safety_factor=PD_SAFETY_FACTOR) -> dict:
+                       ac=True, impregnation="none", safety_factor=PD_SAFETY_FACTOR, worst_where=None,
+                       enamel_where=None, layer_where=None, pdiv_hot_Vpk=None, hot_text=None) -> dict:
     """Judge turn, layer and lead insulation: pass, marginal or fail.
 
     Policy
@@ -92,8 +99,9 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
     derating : float
         Fraction of the breakdown allowed in service. [-]
     enamel_Vpk : float or None
-        Worst peak over the pairs insulated by enamel alone (pairs across a
-        rated tape excluded); ``worst_Vpk`` by default. [V]
+        Worst peak over the pairs insulated by enamel alone: touching
+        conductors, no air and no rated tape between them (a spaced or
+        diagonal pair has air between); ``worst_Vpk`` by default. [V]
     layer_Vpk : float
         Worst peak voltage across the layer tape. [V]
     tape_rating_V : float or None
@@ -104,7 +112,13 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
     pdiv_Vpk : float
         That pair's inception voltage at 20 °C (``inf``: no air path). [V]
     pdiv_hot_factor : float
-        PDIV at running temperature over PDIV at 20 °C. [-]
+        PDIV at running temperature over PDIV at 20 °C, when ``pdiv_hot_Vpk``
+        is not given. [-]
+    pdiv_hot_Vpk : float or None
+        That pair's hot inception voltage, computed (the air's density at the
+        hot spot, and a margin). [V]
+    hot_text : str or None
+        How the hot value was reached, for the reason text.
     pd_where : str or None
         Where that pair is, in words.
     pdiv_basis : str
@@ -116,6 +130,10 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
         ``"none"``, ``"varnish"`` or ``"potted"``.
     safety_factor : float
         Margin kept below the hot inception voltage on AC. [-]
+    worst_where, enamel_where, layer_where : str or None
+        Where the worst pair, the worst pair across enamel alone and the
+        worst pair across the layer tape are, in words.  Each reason states
+        the quantity it judged, where it is, and that quantity's own limit.
 
     Returns
     -------
@@ -140,22 +158,24 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
     allowed = derating * breakdown_V
     enamel = worst_Vpk if enamel_Vpk is None else enamel_Vpk
     pd_v = worst_Vpk if pd_Vpk is None else pd_Vpk
-    pdiv_hot = pdiv_Vpk * pdiv_hot_factor
+    pdiv_hot = pdiv_Vpk * pdiv_hot_factor if pdiv_hot_Vpk is None else float(pdiv_hot_Vpk)
     place = f" ({pd_where})" if pd_where else ""
     basis = {"estimated": "estimated from the construction", "measured": "from the measured PDIV",
              "no air path": "none: no air path"}.get(pdiv_basis, pdiv_basis)
+    at = lambda where: f" ({where})" if where else ""  # noqa: E731
+    limit = f"{volts(allowed)} V peak ({derating:.0%} of the wire's {volts(breakdown_V)} V breakdown)"
     fails, marginals, notes = [], [], []
     if enamel > allowed:
-        fails.append(f"Worst voltage across enamel alone, {volts(enamel)} V peak, is over the allowed "
-                     f"{volts(allowed)} V peak ({derating:.0%} of the wire's {volts(breakdown_V)} V "
-                     "breakdown).")
+        fails.append(f"Worst voltage across enamel alone, {volts(enamel)} V peak{at(enamel_where)}, is over "
+                     f"the enamel's allowed {limit}.")
     if tape_rating_V is not None and layer_Vpk > tape_rating_V:
-        fails.append(f"Layer-to-layer voltage {volts(layer_Vpk)} V peak is over the layer tape's "
-                     f"{volts(tape_rating_V)} V rating.")
+        fails.append(f"Worst voltage across the layer tape, {volts(layer_Vpk)} V peak{at(layer_where)}, is "
+                     f"over the tape's {volts(tape_rating_V)} V rating.")
     if math.isfinite(pdiv_hot) and pd_v > pdiv_hot:
+        how = (f"{volts(pdiv_Vpk)} V at 20 °C, {basis}, less {1 - pdiv_hot_factor:.0%}" if hot_text is None
+               else f"{volts(pdiv_Vpk)} V {hot_text}")
         text = (f"{volts(pd_v)} V peak{place} is over that pair's hot partial-discharge inception "
-                f"voltage {volts(pdiv_hot)} V peak ({volts(pdiv_Vpk)} V at 20 °C, {basis}, less "
-                f"{1 - pdiv_hot_factor:.0%})")
+                f"voltage {volts(pdiv_hot)} V peak ({how})")
         if ac:
             fails.append(text + ": discharges every cycle will eat the enamel over time.")
         else:
@@ -164,7 +184,8 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
     elif ac and math.isfinite(pdiv_hot) and pd_v * safety_factor > pdiv_hot:
         marginals.append(f"{volts(pd_v)} V peak{place} is within the safety factor {safety_factor:g} of "
                          f"that pair's hot partial-discharge inception voltage {volts(pdiv_hot)} V peak "
-                         f"({volts(pdiv_Vpk)} V at 20 °C, {basis}).")
+                         f"({volts(pdiv_Vpk)} V " + (f"at 20 °C, {basis}" if hot_text is None else hot_text)
+                         + ").")
     if impregnation == "potted":
         notes.append("Potted: no air lies between the conductors, so no partial discharge by Paschen's "
                      "law; the enamel's derated breakdown governs, and a void-free potting, which only a "
@@ -178,12 +199,20 @@ def insulation_verdict(worst_Vpk, breakdown_V, *, derating=DERATING, enamel_Vpk=
         pd_text = ("no pair can start partial discharge" if not math.isfinite(pdiv_hot) else
                    f"the pair nearest partial discharge, {volts(pd_v)} V peak{place}, is below "
                    f"{volts(pdiv_hot / safety_factor)} V peak (its hot inception voltage "
-                   f"{volts(pdiv_hot)} V, {basis}, over {safety_factor:g})")
-        reasons = [f"Worst voltage between neighbours {volts(worst_Vpk)} V peak is within the allowed "
-                   f"{volts(allowed)} V peak, and {pd_text}."]
+                   f"{volts(pdiv_hot)} V over {safety_factor:g}; {volts(pdiv_Vpk)} V "
+                   + (f"at 20 °C, {basis}" if hot_text is None else hot_text) + ")")
+        reasons = [f"Worst voltage across enamel alone, {volts(enamel)} V peak{at(enamel_where)}, is within "
+                   f"the enamel's allowed {limit}." if enamel > 0 else
+                   "No pair of conductors is held by enamel alone."]
         if tape_rating_V is not None and layer_Vpk > 0:
-            reasons.append(f"Layer-to-layer voltage {volts(layer_Vpk)} V peak is within the tape's "
-                           f"{volts(tape_rating_V)} V rating.")
+            reasons.append(f"Worst voltage across the layer tape, {volts(layer_Vpk)} V peak{at(layer_where)}, "
+                           f"is within the tape's {volts(tape_rating_V)} V rating.")
+        across_tape = tape_rating_V is not None and worst_Vpk <= layer_Vpk * (1 + 1e-9)
+        if worst_Vpk > enamel * (1 + 1e-9) and not across_tape:
+            reasons.append(f"The worst pair of all, {volts(worst_Vpk)} V peak{at(worst_where)}, has air as "
+                           "well as enamel between its conductors: it is judged by its own partial-discharge "
+                           "inception voltage, not the enamel's breakdown.")
+        reasons.append(pd_text[0].upper() + pd_text[1:] + ".")
     return {
         "verdict": verdict,
         "reasons": reasons + notes,

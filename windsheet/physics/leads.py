@@ -20,6 +20,12 @@ Pure geometry.  Every strand end has a lead.  Its route is an order choice:
 
 A lead crossing a turn touches it; so does a lead lying against a flange
 and the end turn beside it.  Each lead keeps the potential of its strand end.
+Leads that leave the winding at the same place lie together (along the
+flange, in one sleeve, on the header) and touch each other, enamel to
+enamel: every lead laid back to the start end, or rising up the start
+flange, leaves at the start end; a lead lifted out where it ends leaves at
+whichever flange its own turn is beside; leads through the former leave
+together through it (:func:`lead_bundle`).
 Toroids bring every end out at the start-finish gap: their leads lie beside
 no turn other than the gap pairs of :func:`windsheet.physics.layout.neighbour_pairs`.
 """
@@ -72,6 +78,9 @@ class Lead:
         The joint it belongs to, ``"A.finish + B.start"``, if any.
     beside : ndarray of int
         Turn indices it touches.
+    bundle : str
+        Where it leaves the winding, with the other leads that leave there:
+        ``"start"``, ``"finish"`` (the far flange) or ``"former"``.
     """
 
     end: str
@@ -81,6 +90,7 @@ class Lead:
     joint: str | None
     beside: np.ndarray
     at_start_end: bool = False
+    bundle: str = "start"
 
     @property
     def route_text(self) -> str:
@@ -88,6 +98,48 @@ class Lead:
         if self.which == 1 and self.at_start_end and self.route in ROUTE_TEXT_AT_START:
             return ROUTE_TEXT_AT_START[self.route]
         return ROUTE_TEXT.get(self.route, self.route)
+
+
+BUNDLE_TEXT = {"start": "together at the start end", "finish": "together at the finish end",
+               "former": "together out through the former"}
+
+
+def lead_bundle(layout: Layout, strand: int, which: int, route: str) -> str:
+    """Where a lead leaves the winding: the leads that leave at one place lie together.
+
+    Parameters
+    ----------
+    layout : Layout
+        A cylinder or bobbin layout.
+    strand, which : int
+        The strand, and 0 for its start or 1 for its finish.
+    route : str
+        Its route (:data:`START_ROUTES`, :data:`FINISH_ROUTES`, :data:`JOINT_ROUTES`).
+
+    Returns
+    -------
+    bundle : str
+        ``"start"`` (the start flange), ``"finish"`` (the far flange) or ``"former"``.
+
+    References
+    ----------
+    Lead dress of layer windings, common practice: leads brought out at one
+    flange are laid side by side to the terminals.
+
+    Examples
+    --------
+    >>> from windsheet.physics.layout import cylinder_layout
+    >>> lay = cylinder_layout(0.02, 2e-3, 0.45e-3, 0.5e-3, 1, 8)        # 2 layers of 4: ends at the start
+    >>> lead_bundle(lay, 0, 1, "end-flange"), lead_bundle(lay, 0, 0, "through-form")
+    ('start', 'former')
+    """
+    if route == "through-form":
+        return "former"
+    if route != "end-flange":
+        return "start"                     # up, down or laid back to the start flange
+    own = _own_turn(layout, strand, which)
+    zs = layout.z[layout.layer == layout.layer[own]]
+    return "start" if layout.z[own] - zs.min() < zs.max() - layout.z[own] else "finish"
 
 
 def default_routes(layers: int) -> dict:
@@ -244,5 +296,6 @@ def lead_routes(layout: Layout, joins, terminals, routes=None, hookup: str = "")
                 route = chosen["finish"]
             out.append(Lead(end=end, strand=s, which=which, route=route, joint=joint,
                             beside=lead_beside(layout, s, which, route),
-                            at_start_end=which == 1 and layout.layers % 2 == 0))
+                            at_start_end=which == 1 and layout.layers % 2 == 0,
+                            bundle=lead_bundle(layout, s, which, route)))
     return out

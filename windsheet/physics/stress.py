@@ -18,15 +18,19 @@ import math
 import numpy as np
 
 from windsheet.physics import capacitance as cap
+from .conductor_capacitance import turn_to_turn_capacitance_per_length
 from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R
-from .discharge import construction_inception
-from .fast_front import (capacitive_distribution, impulse_alpha, series_capacitance,
-                         uniform_initial_distribution)
+from windsheet.physics.constants import ATMOSPHERE
+
+from .discharge import air_density_ratio, construction_inception
+from .edge_stress import edge_reason, edge_stress, end_turn  # noqa: F401  (end_turn: used by callers)
 from .flux_linkage import cored_turn_flux_linkage, turn_linkage_matrix
-from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTOR, hipot_voltage,
+from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_MARGIN, hipot_voltage,
                          insulation_verdict, volts)
 from .layout import Layout
 from .neighbours import neighbour_pairs
+from .row_capacitance import edge_pair_capacitances
+from .leads import BUNDLE_TEXT
 from .voltage_map import describe_turn, pair_record, pair_voltages, turn_drops, turn_potentials
 
 #: Duty frequency must stay below this fraction of self-resonance (common practice).
@@ -112,6 +116,53 @@ def _lead_report(layout, leads, end_potential, v, peak):
     return out, pairs
 
 
+def _hot_text(film, film_max, film_unknown, hot_C, density_factor, margin, basis):
+    """How the hot inception voltage was reached, physics and margin named apart."""
+    if density_factor is None:
+        return None
+    films = ("at the wire's film (its minimum not tabulated)" if film_unknown or film >= film_max else
+             f"at the standard's minimum film, {film * 1e6:.1f} µm a side")
+    return (f"{basis}, 20 °C {films}; × {density_factor:.2f} for the air's density at the "
+            f"{hot_C:.0f} °C hot spot (Paschen's law, physics); less a {margin:.0%} margin "
+            "(enamel permittivity rising with temperature, humidity)")
+
+
+def _lead_lead_pairs(leads, end_potential, peak):
+    """Every two leads that lie together (one bundle) and are not one joint: ``(a, b, voltage)``."""
+    out = []
+    for a, la in enumerate(leads):
+        for b in range(a + 1, len(leads)):
+            lb = leads[b]
+            if la.bundle != lb.bundle or (la.joint is not None and la.joint == lb.joint):
+                continue
+            dv = abs(end_potential[la.strand, la.which] - end_potential[lb.strand, lb.which]) * peak
+            out.append((a, b, float(dv)))
+    return out
+
+
+def _lead_lead_where(la, lb):
+    return (f"{la.end} lead ({la.route}) against {lb.end} lead ({lb.route}), "
+            f"{BUNDLE_TEXT.get(la.bundle, la.bundle)}")
+
+
+def _lead_lead_record(la, lb, voltage):
+    return {"voltage_Vpk": float(voltage), "i": None, "j": None, "kind": "lead-lead",
+            "strands": [la.end.split(".")[0], lb.end.split(".")[0]], "turns": [None, None],
+            "layer": None, "layers": [None, None], "where": _lead_lead_where(la, lb)}
+
+
+def _with_lead_partners(reports, leads, lead_lead):
+    """Each lead's report with the leads it lies beside, its worst taken over them too."""
+    out = [dict(r, beside_leads=[]) for r in reports]
+    for a, b, dv in lead_lead:
+        for me, other in ((a, b), (b, a)):
+            out[me]["beside_leads"].append(leads[other].end)
+            if dv > out[me]["worst_Vpk"]:
+                out[me]["worst_Vpk"] = dv
+                out[me]["where"] = _lead_lead_where(leads[me], leads[other])
+    return out
+
+
 def _lead_pair_record(layout, lead, t, voltage, where):
     sid = lead.end.split(".")[0]
     return {"voltage_Vpk": float(voltage), "i": None, "j": int(t), "kind": "lead",
@@ -119,142 +170,11 @@ def _lead_pair_record(layout, lead, t, voltage, where):
             "layer": int(layout.layer[t]) + 1, "layers": [None, int(layout.layer[t]) + 1], "where": where}
 
 
-def end_turn(layout: Layout, strand: int, which: int) -> int:
-    """Index of a strand's first (``which`` 0) or last (1) turn.
-
-    Parameters
-    ----------
-    layout : Layout
-        The winding.
-    strand : int
-        Strand number, 0 = A. [-]
-    which : int
-        0 for the start turn, 1 for the finish turn. [-]
-
-    Returns
-    -------
-    t : int
-        Index of that turn into the layout arrays. [-]
-
-    References
-    ----------
-    Winding order of :func:`windsheet.physics.layout.cylinder_layout`: each
-    slot holds strands A, B, … side by side, so in a bifilar winding slot
-    ``k`` is turns ``2k`` (A) and ``2k + 1`` (B).
-
-    Examples
-    --------
-    >>> from windsheet.physics.layout import cylinder_layout
-    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 2, 5, layers=1)   # bifilar, 5 slots
-    >>> [end_turn(lay, s, w) for s in (0, 1) for w in (0, 1)]             # 2·0, 2·4, 2·0 + 1, 2·4 + 1
-    [0, 8, 1, 9]
-    """
-    sel = np.flatnonzero(layout.strand == strand)
-    return int(sel[np.argmin(layout.index[sel])] if which == 0 else sel[np.argmax(layout.index[sel])])
-
-
-def edge_stress(layout: Layout, nb, c, edge, peak):
-    """Every turn's potential under a fast edge, and the pair voltages it gives.
-
-    Parameters
-    ----------
-    layout : Layout
-        The winding.
-    nb : windsheet.physics.layout.Neighbours
-        Its neighbour pairs.
-    c : ndarray
-        Each pair's capacitance. [F]
-    edge : dict
-        ``held`` {(strand, end 0/1): potential per volt of the edge},
-        ``ties`` [((strand, end), (strand, end))] joined ends,
-        ``ground_F`` [F] from the whole winding to ground (spread evenly over
-        the turns), ``ground_given`` (bool), ``rise_time_s`` [s],
-        ``series_turns`` (turns between the terminals, for the even share).
-    peak : float
-        Height of the edge. [V]
-
-    Returns
-    -------
-    v : ndarray
-        Each turn's potential per volt of the edge. [-]
-    ends : ndarray, shape (strands, 2)
-        Each strand end's potential per volt. [-]
-    dv : ndarray
-        Voltage across each neighbour pair under the edge. [V]
-    report : dict
-        ``alpha``, ``series_capacitance_F``, ``ground_capacitance_F``,
-        ``first_turn_Vpk``, ``first_turn_uniform_Vpk`` (the even share
-        V/N), ``first_turn_uniform_winding_Vpk`` (the closed form at this α, single
-        layers only),
-        ``worst_pair_Vpk``, ``worst_pair_where``, ``edge_Vpk``, ``rise_time_s``.
-
-    References
-    ----------
-    :mod:`windsheet.physics.fast_front`.
-
-    Examples
-    --------
-    >>> from windsheet.physics.layout import cylinder_layout
-    >>> from windsheet.physics.neighbours import neighbour_pairs
-    >>> lay = cylinder_layout(0.02, 0.1, 0.45e-3, 0.5e-3, 1, 50, layers=1)
-    >>> nb = neighbour_pairs(lay)
-    >>> c = cap.pair_capacitances(lay, pairs=nb)[3]
-    >>> e = {"held": {(0, 0): 1.0, (0, 1): 0.0}, "ties": [], "ground_F": 10e-12, "ground_given": False,
-    ...      "rise_time_s": 1e-7}
-    >>> v, ends, dv, rep = edge_stress(lay, nb, c, e, 100.0)
-    >>> rep["first_turn_Vpk"] > 5 * rep["first_turn_uniform_Vpk"]
-    True
-    """
-    n = layout.n_turns
-    held = {end_turn(layout, s, w): float(val) for (s, w), val in edge["held"].items()}
-    ties = [(end_turn(layout, *a), end_turn(layout, *b)) for a, b in edge["ties"]]
-    cg = float(edge["ground_F"]) / n
-    v, _ = capacitive_distribution(n, nb.i, nb.j, c, cg, held, ties)
-    line = [t for t, val in held.items() if val == max(held.values())]
-    earth = [t for t, val in held.items() if val != max(held.values())]
-    cs = series_capacitance(n, nb.i, nb.j, c, line, earth, ties) if earth else 0.0
-    alpha = impulse_alpha(edge["ground_F"], cs) if cs > 0 else None
-    dv = np.abs(v[nb.i] - v[nb.j]) * peak
-    ends = np.array([[v[end_turn(layout, s, 0)], v[end_turn(layout, s, 1)]] for s in range(layout.strands)])
-    # The first turn: the line-end turn against the next turn of its own strand.
-    t0 = line[0]
-    s0 = int(layout.strand[t0])
-    k0 = int(layout.index[t0])
-    same = np.flatnonzero(layout.strand == s0)
-    nxt = same[np.argmin(np.abs(layout.index[same] - (k0 + 1 if k0 == 0 else k0 - 1)))]
-    first = float(abs(v[t0] - v[nxt]) * peak)
-    turns_between = max(1, int(edge.get("series_turns", n)))
-    share = peak / turns_between
-    closed = None
-    # The closed form is a turn-by-turn ladder's: a check for a single layer only.
-    if alpha is not None and math.isfinite(alpha) and layout.layers == 1:
-        closed = float(peak * (1.0 - uniform_initial_distribution(1.0 / turns_between, alpha)))
-    k = int(np.argmax(dv)) if dv.size else None
-    where = pair_record(layout, int(nb.i[k]), int(nb.j[k]), str(nb.kind[k]), dv[k])["where"] if k is not None else None
-    report = {"alpha": alpha, "series_capacitance_F": cs, "ground_capacitance_F": float(edge["ground_F"]),
-              "ground_capacitance_given": bool(edge["ground_given"]), "rise_time_s": edge.get("rise_time_s"),
-              "edge_Vpk": float(peak), "first_turn_Vpk": first, "first_turn_uniform_Vpk": float(share),
-              "first_turn_uniform_winding_Vpk": closed,
-              "worst_pair_Vpk": float(dv[k]) if k is not None else 0.0, "worst_pair_where": where,
-              "method": "initial capacitive distribution: neighbour-pair capacitances and the ground "
-                        "capacitance spread evenly over the turns (inductance carries no current yet)"}
-    return v, ends, dv, report
-
-
-def _edge_reason(rep):
-    alpha = "" if rep["alpha"] is None else f", α = {rep['alpha']:.3g}"
-    given = "given" if rep["ground_capacitance_given"] else "assumed, not given in the order"
-    return (f"Under the fast edge ({volts(rep['edge_Vpk'])} V peak, initial capacitive distribution{alpha}, "
-            f"ground capacitance {rep['ground_capacitance_F'] * 1e12:.3g} pF {given}) the first turn takes "
-            f"{volts(rep['first_turn_Vpk'])} V peak against an even share of "
-            f"{volts(rep['first_turn_uniform_Vpk'])} V, and the worst pair {volts(rep['worst_pair_Vpk'])} V peak "
-            f"({rep['worst_pair_where']}); each pair is judged at the larger of this and its steady voltage.")
-
-
 def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
            inductance_H=None, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R, tape_rating_V=None,
-           derating=DERATING, pdiv_Vpk=None, pdiv_hot_factor=PDIV_HOT_FACTOR, drops=None,
-           leads=(), impregnation="none", edge=None) -> dict:
+           derating=DERATING, pdiv_Vpk=None, pdiv_hot_margin=PDIV_HOT_MARGIN, drops=None,
+           leads=(), impregnation="none", edge=None, film_min=None, hot_spot_C=None,
+           cap_network=None, cap_drops=None, lead_length=0.0) -> dict:
     """Voltage map, capacitance, self-resonance and insulation verdict for a duty.
 
     Parameters
@@ -276,8 +196,26 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         Relative permittivity of enamel and layer tape. [-]
     tape_rating_V : float or None
         Rated voltage of the layer tape. [V]
-    derating, pdiv_hot_factor
+    derating
         As :func:`windsheet.physics.insulation.insulation_verdict`.
+    pdiv_hot_margin : float
+        Margin taken off the hot inception voltage beyond the air's density
+        (the enamel's permittivity rising with temperature, humidity). [-]
+    film_min : float or None
+        The thinnest enamel film the standard allows, half its minimum
+        increase in diameter; inception is judged there (``None``: the
+        layout's film, from the maximum overall diameter). [m]
+    hot_spot_C : float or None
+        The winding's hot-spot temperature, where the air's density sets the
+        hot inception voltage (``None``: 20 °C). [degC]
+    cap_network, cap_drops
+        The hookup solved at 0 Hz and its ``(turn_drop, lead_drop)``: the
+        low-frequency voltage map the terminal capacitance is taken from
+        (leads' drops ignored), so that it does not move with the duty.
+        ``None``: the duty's own map.
+    lead_length : float
+        Length of each lead; leads that lie together add a touching pair's
+        capacitance per length over it (Massarini-Kazimierczuk). [m]
     pdiv_Vpk : float or None
         A measured PDIV at 20 °C of touching turns of this wire as built
         (a twisted pair, impregnated like the coil).  It replaces the
@@ -327,35 +265,72 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     i, j, kind, c, layer_C = cap.pair_capacitances(layout, eps_r, tape_eps_r, nb)
     impulse = None
     if edge is not None:
-        v_edge, ends_edge, dv_edge, impulse = edge_stress(layout, nb, c, edge, peak)
+        # The ladder's rungs are partial capacitances: a spaced turn among its neighbours in a row.
+        v_edge, ends_edge, dv_edge, impulse = edge_stress(layout, nb, edge_pair_capacitances(layout, nb, c, eps_r),
+                                                          edge, peak)
         dv = np.maximum(dv, dv_edge)
 
-    film = (layout.overall_diameter - layout.copper_diameter) / 2.0
+    # Inception is judged at the thinnest film the standard allows (its minimum increase); the
+    # layout's spacing stays at the maximum overall diameter.  Hot: Paschen at the air's density
+    # at the hot spot (physics), then a stated margin.
+    film_max = (layout.overall_diameter - layout.copper_diameter) / 2.0
+    film = film_max if film_min is None else min(float(film_min), film_max)
+    hot_C = 20.0 if hot_spot_C is None else max(float(hot_spot_C), 20.0)
+    p_hot = ATMOSPHERE * air_density_ratio(hot_C)
     pdiv = construction_inception(nb.gap, nb.across_tape, film, eps_r, layout.tape, tape_eps_r,
                                   impregnation) if nb.size else np.zeros(0)
+    pdiv_h = construction_inception(nb.gap, nb.across_tape, film, eps_r, layout.tape, tape_eps_r,
+                                    impregnation, pressure=p_hot) if nb.size else np.zeros(0)
     lead_reports, lead_pairs = _lead_report(layout, leads, ends, v, peak)
     if edge is not None:
         edge_reports, edge_pairs = _lead_report(layout, leads, ends_edge, v_edge, peak)
         lead_reports = [e if e["worst_Vpk"] > q["worst_Vpk"] else q for q, e in zip(lead_reports, edge_reports)]
         lead_pairs = [(k, b, np.maximum(q, e)) for (k, b, q), (_, _, e) in zip(lead_pairs, edge_pairs)]
+    # Leads that leave at one place lie together: each pair of them at its own voltage.
+    lead_lead = _lead_lead_pairs(leads, ends, peak)
+    if edge is not None:
+        lead_lead = [(a, b, max(q, e)) for (a, b, q), (_, _, e)
+                     in zip(lead_lead, _lead_lead_pairs(leads, ends_edge, peak))]
+    lead_reports = _with_lead_partners(lead_reports, leads, lead_lead)
     touching = float(construction_inception([0.0], [False], film, eps_r, impregnation=impregnation)[0])
+    touching_h = float(construction_inception([0.0], [False], film, eps_r, impregnation=impregnation,
+                                              pressure=p_hot)[0])
     basis = "no air path" if impregnation == "potted" else "estimated"
     if pdiv_Vpk is not None:
         basis = "measured"
         if impregnation == "potted":
+            # Voids in a potting are sealed: their gas keeps its density hot.
             pdiv = np.full(pdiv.shape, float(pdiv_Vpk))
+            pdiv_h, touching_h = pdiv.copy(), float(pdiv_Vpk)
         else:
-            pdiv = pdiv * (float(pdiv_Vpk) / touching)
+            scale = float(pdiv_Vpk) / touching
+            pdiv, pdiv_h, touching_h = pdiv * scale, pdiv_h * scale, touching_h * scale
         touching = float(pdiv_Vpk)
 
-    # Every stressed pair: turn pairs, then each lead against the turns it touches.
+    # Every stressed pair: turn pairs, each lead against the turns it touches, lead against lead.
     volts_all = [dv]
-    pdiv_all = [pdiv]
+    pdiv_all, pdiv_hot_all = [pdiv], [pdiv_h]
+    gap_all, across_all = [nb.gap], [nb.across_tape]
     taped = [nb.across_tape & (tape_rating_V is not None)]
+    lead_sizes = [beside.size for _, beside, _ in lead_pairs] + ([len(lead_lead)] if lead_lead else [])
     for _, beside, ldv in lead_pairs:
         volts_all.append(ldv)
-        pdiv_all.append(np.full(beside.size, touching))
-        taped.append(np.zeros(beside.size, dtype=bool))
+    if lead_lead:
+        volts_all.append(np.array([x[2] for x in lead_lead]))
+    for n in lead_sizes:          # every lead pair touches, enamel to enamel
+        pdiv_all.append(np.full(n, touching))
+        pdiv_hot_all.append(np.full(n, touching_h))
+        gap_all.append(np.zeros(n))
+        across_all.append(np.zeros(n, dtype=bool))
+        taped.append(np.zeros(n, dtype=bool))
+    pdiv_hot_all = np.concatenate(pdiv_hot_all)
+    gap_all, across_all = np.concatenate(gap_all), np.concatenate(across_all)
+    # Held by enamel alone: touching turns (no air, no tape between), pairs across an unrated tape
+    # (the enamel is relied on) and every lead pair.  A spaced or diagonal pair has air between.
+    touching_turns = (nb.gap <= 1e-3 * layout.overall_diameter) & ~nb.across_tape
+    enamel_alone = [touching_turns | (nb.across_tape & (tape_rating_V is None))]
+    enamel_alone += [np.ones(x.size, dtype=bool) for x in volts_all[1:]]
+    enamel_alone = np.concatenate(enamel_alone)
     volts_all = np.concatenate(volts_all) if volts_all else np.zeros(0)
     pdiv_all = np.concatenate(pdiv_all) if pdiv_all else np.zeros(0)
     taped = np.concatenate(taped) if taped else np.zeros(0, dtype=bool)
@@ -372,7 +347,8 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                          f"layer {int(layout.layer[t]) + 1}")
                 return _lead_pair_record(layout, lead, t, ldv[k], where)
             k -= beside.size
-        raise IndexError(k)
+        a, b, lv = lead_lead[k]
+        return _lead_lead_record(leads[a], leads[b], lv)
 
     if volts_all.size:
         worst = record(int(np.argmax(volts_all)))
@@ -381,20 +357,45 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                  "layers": None, "kind": None}
     layer_sel = nb.kind == "layer"
     layer_Vpk = float(dv[layer_sel].max()) if layer_sel.any() else 0.0
-    enamel_Vpk = float(volts_all[~taped].max()) if (~taped).any() else 0.0
-    finite = np.isfinite(pdiv_all)
+    layer_where = (record(int(np.flatnonzero(layer_sel)[np.argmax(dv[layer_sel])]))["where"]
+                   if layer_sel.any() else None)
+    enamel_Vpk, enamel_where = 0.0, None
+    if enamel_alone.any():
+        k_en = int(np.flatnonzero(enamel_alone)[np.argmax(volts_all[enamel_alone])])
+        enamel_Vpk, enamel_where = float(volts_all[k_en]), record(k_en)["where"]
+    finite = np.isfinite(pdiv_hot_all)
+    pd_hot, pd_max_film, density_factor = math.inf, None, None
     if finite.any():
-        ratio = np.where(finite, volts_all / np.where(finite, pdiv_all, 1.0), -1.0)
+        ratio = np.where(finite, volts_all / np.where(finite, pdiv_hot_all, 1.0), -1.0)
         crit = int(np.argmax(ratio))
         pd_rec = record(crit)
         pd_V, pd_div, pd_where = float(volts_all[crit]), float(pdiv_all[crit]), pd_rec["where"]
+        density_factor = float(pdiv_hot_all[crit] / pdiv_all[crit])
+        pd_hot = float(pdiv_hot_all[crit]) * (1.0 - pdiv_hot_margin)
+        pd_max_film = None if impregnation == "potted" else pd_div * float(construction_inception(
+            [gap_all[crit]], [across_all[crit]], film_max, eps_r, layout.tape, tape_eps_r, impregnation)[0]
+            / construction_inception([gap_all[crit]], [across_all[crit]], film, eps_r, layout.tape,
+                                     tape_eps_r, impregnation)[0])
     else:
         pd_V, pd_div, pd_where = float(worst["voltage_Vpk"]), math.inf, worst["where"]
 
     # Capacitance: pairs by the energy method; Medhurst for a single-layer solenoid.
-    pairs_C = cap.energy_method_capacitance(c, v[i] - v[j], 1.0)
+    # The capacitance that sets self-resonance belongs to the winding, not the duty: its voltage
+    # map is the low-frequency one (f -> 0), the leads' resistance left out; the leads that lie
+    # together then add their own capacitance, never take any away.
+    ends_c = ends if cap_network is None else np.asarray(cap_network.end_potential,
+                                                         dtype=complex).reshape(layout.strands, 2)
+    v_c = turn_potentials(layout, ends_c, None if cap_drops is None else cap_drops[0], None)
+    leads_F = 0.0
+    if lead_lead and lead_length > 0:
+        per_m = float(turn_to_turn_capacitance_per_length(layout.copper_diameter, layout.overall_diameter,
+                                                          eps_r))
+        dv_leads = [ends_c[leads[a].strand, leads[a].which] - ends_c[leads[b].strand, leads[b].which]
+                    for a, b, _ in lead_lead]
+        leads_F = cap.energy_method_capacitance(np.full(len(dv_leads), per_m * lead_length), dv_leads, 1.0)
+    pairs_C = cap.energy_method_capacitance(c, v_c[i] - v_c[j], 1.0)
     warnings = []
-    method = ("energy method over neighbour pairs (Massarini-Kazimierczuk between touching "
+    method = ("energy method over neighbour pairs on the winding's low-frequency voltage map (Massarini-Kazimierczuk between touching "
               "turns, two-wire line with air beyond the enamel between spaced ones, flux tubes "
               "through enamel, air and tape in series, or series plates, between layers)")
     self_F = None
@@ -403,9 +404,10 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         diameter = 2.0 * float(np.mean(layout.r))
         length = float(layout.traverse_used)
         self_F = float(cap.medhurst_self_capacitance(diameter, length))
-        terminal_F = cap.single_layer_capacitance(self_F, c, v[i] - v[j], 1.0 / layout.n_turns)
+        terminal_F = cap.single_layer_capacitance(self_F, c, v_c[i] - v_c[j], 1.0 / layout.n_turns)
         method = ("Medhurst's self-capacitance of a single-layer solenoid, plus what the hookup "
-                  "stores between neighbour pairs beyond an even share of V/N each (energy method; "
+                  "stores between neighbour pairs beyond an even share of V/N each (energy method on the "
+                  "low-frequency voltage map; "
                   "Massarini-Kazimierczuk between touching turns, two-wire line between spaced ones)")
         if not cap.medhurst_in_table(length / diameter):
             warnings.append(f"Length/diameter {length / diameter:.2f} is outside Medhurst's table "
@@ -415,6 +417,7 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     strand_F = float(c[other_strand].sum()) if layout.strands > 1 else None
     layers_F = float(sum(layer_C.values())) if layout.layers > 1 else None
 
+    terminal_F = terminal_F + leads_F
     L = network.inductance if inductance_H is None else inductance_H
     srf = cap.self_resonance(L, terminal_F)
     if ac and math.isfinite(srf):
@@ -430,13 +433,19 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                         "not checked against the tape (the enamel alone is relied on).")
 
     insulation = insulation_verdict(worst["voltage_Vpk"], wire_breakdown_V, derating=derating,
-                                    enamel_Vpk=enamel_Vpk, layer_Vpk=layer_Vpk,
+                                    enamel_Vpk=enamel_Vpk, layer_Vpk=layer_Vpk, worst_where=worst["where"],
+                                    enamel_where=enamel_where, layer_where=layer_where,
                                     tape_rating_V=tape_rating_V, pd_Vpk=pd_V, pdiv_Vpk=pd_div,
-                                    pdiv_hot_factor=pdiv_hot_factor, pd_where=pd_where,
+                                    pdiv_hot_Vpk=pd_hot, hot_text=_hot_text(
+                                        film, film_max, film_min is None, hot_C, density_factor,
+                                        pdiv_hot_margin, basis), pd_where=pd_where,
                                     pdiv_basis=basis, ac=ac or edge is not None, impregnation=impregnation)
     if impulse is not None:
-        insulation["reasons"] = list(insulation["reasons"]) + [_edge_reason(impulse)]
+        insulation["reasons"] = list(insulation["reasons"]) + [edge_reason(impulse)]
     insulation["pdiv_touching_Vpk"] = touching if math.isfinite(touching) else None
+    insulation.update({"pdiv_max_film_Vpk": pd_max_film, "pdiv_film_m": float(film),
+                       "pdiv_hot_spot_C": float(hot_C), "pdiv_density_factor": density_factor,
+                       "pdiv_hot_margin": float(pdiv_hot_margin)})
     insulation["layer_style"] = layout.layer_style
     worst_out = {k: worst[k] for k in ("voltage_Vpk", "where", "strands", "turns", "layer",
                                        "layers", "kind")}
@@ -447,6 +456,7 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         "leads": lead_reports,
         "capacitance": {"self_F": self_F, "strand_to_strand_F": strand_F,
                         "layer_to_layer_F": layers_F, "terminal_F": float(terminal_F),
+                        "leads_F": float(leads_F),
                         "method": method},
         "self_resonance_Hz": None if not math.isfinite(srf) else float(srf),
         "insulation": insulation,

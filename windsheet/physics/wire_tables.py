@@ -242,6 +242,44 @@ def awg_diameter(gauge: int) -> float:
     return 0.127e-3 * 92.0 ** ((36 - gauge) / 39.0)
 
 
+def awg_nominal_diameter(gauge: int) -> tuple[float, str]:
+    """The nominal bare diameter of an AWG size as the standards tabulate it, and its source.
+
+    ASTM B258 and NEMA MW 1000 print each size's diameter in mils rounded to
+    0.1 mil, and their resistance tables are computed from those rounded
+    diameters; the formula of :func:`awg_diameter` is only how the sizes are
+    defined.  One diameter serves the table's rows, the resistance and the sizing.
+
+    Parameters
+    ----------
+    gauge : int
+        American Wire Gauge number (0000 is -3). [-]
+
+    Returns
+    -------
+    d : float
+        Bare conductor diameter. [m]
+    source : str
+        Where it comes from: the stored NEMA MW 1000 row (6-40 AWG), else the
+        ASTM B258 formula rounded to 0.1 mil.
+
+    References
+    ----------
+    .. [1] ASTM B258, nominal diameters of AWG sizes (formula; 0.1 mil
+       rounding of the printed table from memory, matched by the stored NEMA
+       MW 1000 catalogue page for 6-40 AWG, tests/test_wire.py).
+
+    Examples
+    --------
+    >>> round(awg_nominal_diameter(40)[0] / 25.4e-6, 1)    # 3.1 mil, not the formula's 3.145
+    3.1
+    """
+    bare = nema_table()["bare"]
+    if gauge in bare:
+        return bare[gauge][0], f"{NEMA} table (ASTM B258 nominal, 0.1 mil)"
+    return round(awg_diameter(gauge) / _MIL, 1) * _MIL, "ASTM B258 formula rounded to 0.1 mil"
+
+
 def swg_diameter(gauge: int) -> float:
     """Nominal diameter of an Imperial Standard Wire Gauge size.
 
@@ -375,12 +413,13 @@ def next_larger_row(d: float, grade: int) -> EnamelRow:
     >>> round(row.min_increase * 1e3, 3), row.breakdown, row.rule
     (0.021, 2300.0, 'next larger IEC 60317-0-1 row, 0.400 mm')
     """
-    key = (_um(d), grade)
-    same = key in iec_table() and abs(iec_table()[key].nominal - d) <= 0.5e-6
-    if same and abs(iec_table()[key].nominal - d) < 1e-12:
-        return iec_table()[key]
-    # A gauge within half a micrometre of a nominal diameter is that size; otherwise the next larger R20 row.
-    up = [iec_table()[key].nominal] if same else [x for x in iec_nominals(("R20",)) if x > d]
+    # A gauge within half a micrometre of a nominal diameter is that size (42 AWG, 63.5 um, is the
+    # 0.063 mm row: the nearer, thinner film and lower breakdown); otherwise the next larger R20 row.
+    near = [x for x in iec_nominals() if abs(x - d) <= 0.5e-6 + 1e-12]
+    same = bool(near)
+    if same and abs(near[0] - d) < 1e-12 and (_um(d), grade) in iec_table():
+        return iec_table()[(_um(d), grade)]
+    up = near[:1] if same else [x for x in iec_nominals(("R20",)) if x > d]
     if not up:
         raise NotInTable(f"{_mm(d)} is larger than the largest {IEC} row here "
                          f"({_mm(iec_nominals()[-1])})")
@@ -493,7 +532,7 @@ def parse_gauge(text: str) -> Size | None:
         n = _awg_number(m.group(1))
         if not -3 <= n <= 46:
             raise NotInTable(f"AWG sizes run from 4/0 to 46; got {text.strip()!r}")
-        return Size("AWG", n, awg_diameter(n), f"{m.group(1)} AWG")
+        return Size("AWG", n, awg_nominal_diameter(n)[0], f"{m.group(1)} AWG")
     m = _SWG.match(text)
     if m:
         n = int(m.group(1))

@@ -187,17 +187,23 @@ def insulation_rows(ins) -> list[tuple[str, str]]:
             rows.append((label, fmt(getattr(ins, key))))
 
     add("Worst adjacent voltage", "worst_adjacent_Vpk", lambda v: volt(v) + " peak")
+    add("Worst across enamel alone (touching)", "enamel_Vpk", lambda v: volt(v) + " peak")
     add("Enamel breakdown (minimum, grade)", "breakdown_V", volt)
     add("Derating applied", "derating", lambda v: f"{float(v):g}")
-    add("Allowed between adjacent turns", "allowed_Vpk", lambda v: volt(v) + " peak")
+    add("Allowed across enamel alone", "allowed_Vpk", lambda v: volt(v) + " peak")
     add("Margin (allowed ÷ worst)", "margin", lambda v: f"{float(v):.2f}")
     add("Paschen minimum, air", "paschen_min_Vpk", lambda v: volt(v) + " peak")
     basis = {"estimated": "estimated", "measured": "measured"}.get(ins.pdiv_basis, "")
     if ins.pd_pair and ins.pd_pair.where:
         rows.append(("Pair nearest partial discharge", f"{ins.pd_pair.where}, {volt(ins.pd_pair.voltage_Vpk)} peak"))
-    add(f"Its partial-discharge inception, 20 °C ({basis})" if basis else
-        "Partial-discharge inception, 20 °C", "pdiv_Vpk", lambda v: volt(v) + " peak")
+    add(f"Its partial-discharge inception, 20 °C, thinnest film ({basis})" if basis else
+        "Partial-discharge inception, 20 °C, thinnest film", "pdiv_Vpk", lambda v: volt(v) + " peak")
+    add("Its inception, 20 °C, at the thickest film", "pdiv_max_film_Vpk", lambda v: volt(v) + " peak")
     add("Its partial-discharge inception, hot", "pdiv_hot_Vpk", lambda v: volt(v) + " peak")
+    if ins.pdiv_density_factor is not None and ins.pdiv_hot_spot_C is not None:
+        rows.append(("Hot: air density (physics), margin",
+                     f"× {ins.pdiv_density_factor:.2f} at {ins.pdiv_hot_spot_C:.0f} °C, "
+                     f"less {ins.pdiv_hot_margin or 0:.0%}"))
     add("Worst layer-to-layer voltage", "layer_Vpk", lambda v: volt(v) + " peak")
     add("Layer tape rating", "tape_rating_V", volt)
     return rows
