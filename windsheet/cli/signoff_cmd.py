@@ -11,7 +11,7 @@ import typer
 
 from windsheet.common.errors import InputError
 
-from .common import eng, guarded, say_repairs, to_json
+from .common import eng, guarded, internal_fault, say_repairs, to_json
 
 
 def register(app: typer.Typer) -> None:
@@ -125,6 +125,9 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
         except InputError as exc:
             refuse(f, exc)
             continue
+        except Exception as exc:  # a bug: name it and go on to the summary
+            refuse(f, InputError("", internal_fault(exc)))
+            continue
         by_job.setdefault(o.doc.job.number, []).append((f, o))
     if out is not None:
         out.mkdir(parents=True, exist_ok=True)
@@ -145,6 +148,10 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
                 result = _sign(reg, o, readings, who, dry_run=dry_run, sheet_to=target, html=html, paper=paper)
             except InputError as exc:
                 refuse(f, exc)
+                step()
+                continue
+            except Exception as exc:  # a bug must not cost the rest of the batch its summary
+                refuse(f, InputError("", internal_fault(exc)))
                 step()
                 continue
             for v, key in (("pass", "units_passed"), ("fail", "units_failed"), ("incomplete", "units_incomplete")):

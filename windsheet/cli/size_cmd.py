@@ -8,7 +8,7 @@ import typer
 
 from windsheet.common.errors import InputError
 
-from .common import count, eng, guarded, to_json
+from .common import count, eng, guarded, internal_fault, to_json
 
 
 def register(app: typer.Typer) -> None:
@@ -131,6 +131,11 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
                 # Named by its file; the batch carries on.
                 msg = str(exc)
                 typer.echo(f"windsheet: {msg if msg.startswith(f) else f'{f}: {msg}'}", err=True)
+                refused.append(f)
+                step()
+                continue
+            except Exception as exc:  # a bug must not cost the rest of the batch its summary
+                typer.echo(f"windsheet: {f}: {internal_fault(exc)}", err=True)
                 refused.append(f)
                 step()
                 continue

@@ -51,6 +51,10 @@ def _traveller_worker(args):
         return _traveller_job(*args), None
     except InputError as exc:
         return None, str(exc)
+    except Exception as exc:  # a bug must not cost the rest of the batch its summary
+        from .common import internal_fault
+
+        return None, internal_fault(exc)
 
 
 @guarded

@@ -469,6 +469,12 @@ def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
         where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
         problem = exc.problem or exc.context or "not valid YAML"
         raise InputError(label, f"not valid YAML{where}: {problem}") from None
+    except yaml.reader.ReaderError as exc:
+        before = text[: exc.position]
+        where = f" at line {before.count(chr(10)) + 1}, column {len(before) - before.rfind(chr(10))}"
+        char = f"U+{exc.character:04X}" if isinstance(exc.character, int) else repr(exc.character)
+        raise InputError(label, f"not valid YAML{where}: control character {char} is not allowed; "
+                                "expected plain text") from None
     except yaml.YAMLError as exc:
         raise InputError(label, f"not valid YAML: {exc}") from None
     except RecursionError:

@@ -23,6 +23,7 @@ from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, b
 from .fields import (Angle, Flag, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
                            PeakVoltage, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
                            quantity, strand_keys)
+from .limits import JOB_UNITS
 from .units import SINE_CREST, parse_quantity, read_quantity
 
 #: Orders are small; anything larger is not an order. [bytes]
@@ -59,7 +60,7 @@ class Job(_M):
     number: Ident
     part: Text
     customer: Text = ""
-    quantity: Annotated[int, Field(ge=1, le=1000, strict=True)] = 1
+    quantity: Annotated[int, Field(ge=1, le=JOB_UNITS, strict=True)] = 1
     revision: Ident = "A"
     issued_by: Text = ""
     issue_date: Optional[_dt.date] = None

@@ -1,0 +1,183 @@
+"""Hardening, round three: legal or near-legal input that crashed, and the refusals it gets now.
+
+Every case is the reproduction of a probe's finding: it must give one line on
+stderr naming the field (exit 2), or a correct result, never a traceback.
+"""
+
+from __future__ import annotations
+
+import copy
+
+import pytest
+import yaml
+from typer.testing import CliRunner
+
+from windsheet.cli.app import app
+
+from conftest import SAMPLES
+
+runner = CliRunner()
+SINGLE = SAMPLES / "hl-0410-single.yaml"
+BIFILAR = SAMPLES / "hl-0412-bifilar-aiding.yaml"
+MEASURED = SAMPLES / "HL-0412.measured.yaml"
+
+
+def run(*args):
+    return runner.invoke(app, [str(a) for a in args])
+
+
+def one_line(res, code=2):
+    assert res.exit_code == code, res.output
+    assert res.exception is None or isinstance(res.exception, SystemExit), repr(res.exception)
+    lines = res.stderr.splitlines()
+    assert len(lines) == 1 and lines[0].startswith("windsheet: "), res.stderr
+    return lines[0]
+
+
+def order_text(base=SINGLE, **sections):
+    doc = yaml.safe_load(base.read_text())
+    for k, v in sections.items():
+        doc[k] = {**doc.get(k, {}), **v} if isinstance(v, dict) else v
+    return yaml.safe_dump(doc, sort_keys=False, allow_unicode=True)
+
+
+@pytest.fixture
+def issued(tmp_path):
+    reg = tmp_path / "reg.db"
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.html", "--register", reg).exit_code == 0
+    return reg
+
+
+# ------------------------------------------------------------------ ambient at absolute zero
+@pytest.mark.parametrize("ambient", ["0 K", "-273.15 degC", "-101 degC", "-150 degF"])
+def test_an_ambient_colder_than_the_models_is_refused_at_the_field(tmp_path, ambient):
+    f = tmp_path / "o.yaml"
+    f.write_text(order_text(duty={"ambient": ambient}))
+    line = one_line(run("size", f))
+    assert line.startswith("windsheet: duty.ambient: expected a temperature from -100 degC"), line
+    assert repr(ambient) in line
+
+
+def test_the_coldest_ambient_read_still_sizes_with_a_positive_resistance(tmp_path):
+    from windsheet.order.units import TEMPERATURE_FLOOR_DEGC
+
+    # IEC 60028: copper's 0.00393 /K at 20 degC puts zero resistance at 20 - 1/0.00393 = -234.5 degC;
+    # the floor must sit well above it, where the linear rule still holds.
+    assert TEMPERATURE_FLOOR_DEGC > 20 - 1 / 0.00393 + 100
+    f = tmp_path / "o.yaml"
+    f.write_text(order_text(duty={"ambient": "-100 degC"}))
+    res = run("size", f, "--json")
+    assert res.exit_code == 0, res.output
+    import json
+
+    p = json.loads(res.stdout)
+    # R(T) = R20 (1 + 0.00393 (T - 20)), IEC 60028, at the hot spot the heat balance gives.
+    r20 = p["terminal"]["resistance_ohm"]
+    assert 0 < p["terminal"]["resistance_hot_ohm"] < r20
+
+
+def test_a_batch_with_a_cold_order_keeps_its_summary(tmp_path):
+    cold = tmp_path / "cold.yaml"
+    cold.write_text(order_text(duty={"ambient": "0 K"}))
+    res = run("size", cold, SINGLE)
+    assert res.exit_code == 1
+    assert res.stderr.splitlines()[-1] == "windsheet: sized 1 of 2 orders; 1 refused (%s)" % cold
+    assert "Traceback" not in res.output
+
+
+def test_a_bug_in_one_order_of_a_batch_does_not_cost_the_summary(tmp_path, monkeypatch):
+    import windsheet.design.build as build
+
+    real = build.build_design
+
+    def flaky(order, *a, **k):
+        if order.doc.job.number == "HL-0410":
+            raise ValueError("cannot convert float NaN to integer")
+        return real(order, *a, **k)
+
+    monkeypatch.setattr(build, "build_design", flaky)
+    res = run("size", SINGLE, BIFILAR)
+    assert res.exit_code == 1
+    err = res.stderr.splitlines()
+    assert err[0] == (f"windsheet: {SINGLE}: internal error, not a fault of this file (ValueError: cannot "
+                      "convert float NaN to integer); please report it")
+    assert err[-1] == f"windsheet: sized 1 of 2 orders; 1 refused ({SINGLE})"
+    assert "== " + str(BIFILAR) in res.stdout
+
+
+# ------------------------------------------------------------------ readings CSV
+def test_a_csv_cell_over_the_csv_limit_is_one_line(tmp_path, issued):
+    f = tmp_path / "big.csv"
+    f.write_text("serial,strand.A.resistance [ohm]\nHL-0412-01,\"" + "x" * 140_000 + "\"\n")
+    line = one_line(run("signoff", BIFILAR, f, "--register", issued, "--dry-run"))
+    assert line == f"windsheet: {f}: line 2: a cell is longer than 131072 characters; expected one row per unit"
+
+
+def test_an_unbalanced_quote_in_a_csv_is_one_line(tmp_path, issued):
+    f = tmp_path / "quote.csv"
+    f.write_text('serial,strand.A.resistance [ohm]\nHL-0412-01,"0.87\nHL-0412-02,0.86\n')
+    line = one_line(run("signoff", BIFILAR, f, "--register", issued, "--dry-run"))
+    assert line == f"windsheet: {f}: line 3: a quote is not closed; expected one row per unit"
+
+
+def test_more_csv_rows_than_a_job_has_units_are_counted_before_reading(tmp_path, issued):
+    f = tmp_path / "many.csv"
+    f.write_text("serial,strand.A.resistance [ohm]\n" + "".join(f"HL-0412-{i:04d},0.87\n" for i in range(5000)))
+    line = one_line(run("signoff", BIFILAR, f, "--register", issued, "--dry-run"))
+    assert "5000 rows is more than a job's units (at most 1000)" in line
+
+
+# ------------------------------------------------------------------ a strand of 0 ohm
+def test_a_strand_reading_zero_ohm_fails_its_line_without_a_crash(tmp_path, issued):
+    doc = yaml.safe_load(MEASURED.read_text())
+    doc["units"][0]["strands"]["B"]["resistance"] = "0 ohm"
+    f = tmp_path / "short.yaml"
+    f.write_text(yaml.safe_dump(doc, sort_keys=False))
+    res = run("signoff", BIFILAR, f, "--register", issued, "--dry-run", "--json")
+    assert res.exit_code == 1, res.output
+    import json
+
+    unit = json.loads(res.stdout)["units"][0]
+    assert unit["verdict"] == "fail"
+    line = next(x for x in unit["lines"] if x["key"] == "strand.B.resistance")
+    assert line["measured"] == 0 and line["result"] == "fail"
+    # No balance is computed against a shorted strand (a ratio to zero is no basis).
+    assert not any(x["key"] == "balance.A.resistance" for x in unit["lines"])
+
+
+# ------------------------------------------------------------------ control characters
+def test_a_raw_control_character_is_a_one_line_refusal(tmp_path):
+    f = tmp_path / "ctl.yaml"
+    f.write_bytes(order_text().replace("Pickup loop", "Pickup\x7floop").encode())
+    line = one_line(run("size", f))
+    assert line.startswith(f"windsheet: {f}: not valid YAML at line ")
+    assert "control character U+007F is not allowed" in line
+
+
+def test_an_escaped_control_character_in_a_text_field_is_refused_there(tmp_path):
+    f = tmp_path / "ctl.yaml"
+    f.write_text(SINGLE.read_text().replace('part: "Pickup loop', 'part: "Pickup\\x7f loop'))
+    line = one_line(run("size", f))
+    assert line == ("windsheet: job.part: contains the control character U+007F; "
+                    "expected plain text on one line")
+
+
+def test_refusals_quote_at_most_a_bounded_length(tmp_path, issued):
+    f = tmp_path / "h.csv"
+    f.write_text("serial," + "x" * 700 + " [uH]\nHL-0412-01,1\n")
+    line = one_line(run("signoff", BIFILAR, f, "--register", issued, "--dry-run"))
+    # The probe saw the whole 708-character header echoed; now the header is named, not copied.
+    assert len(line) < 200 + len(str(f)) and line.count("x" * 61) == 0 and "unknown column 'xxx" in line
+    k = tmp_path / "k.yaml"
+    k.write_text(SINGLE.read_text() + "k" * 300 + ": 1\n")
+    line = one_line(run("size", k))
+    assert len(line) < 150 and "is not a known field" in line
+
+
+def test_every_refusal_is_one_line_of_bounded_length():
+    from windsheet.common.errors import MAX_MESSAGE_CHARS, MAX_PATH_CHARS, InputError
+
+    err = InputError("a\nb" * 100, "line one\nline two\r\x7f" + "y" * 5000)
+    assert "\n" not in str(err) and "\r" not in str(err) and "\x7f" not in str(err)
+    assert len(err.path) == MAX_PATH_CHARS and len(err.message) == MAX_MESSAGE_CHARS
+    assert err.message.startswith("line one\\nline two\\r\\x7f") and err.message.endswith("…")
