@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import errno
 import io
 import os
 import stat
@@ -75,6 +76,9 @@ def _refuse_write(label: str, exc: BaseException) -> None:
     """An OS fault while writing ``label`` as one line; anything else goes on up."""
     if isinstance(exc, PermissionError):
         raise InputError(label, "cannot write: permission denied") from None
+    if isinstance(exc, OSError) and exc.errno in (errno.ENOSPC, errno.EDQUOT):
+        raise InputError(label, "disk full: no space left to write it (or over the disk quota); "
+                                "nothing was written — free space on that disk and run it again") from None
     if isinstance(exc, OSError):
         raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
 
@@ -98,7 +102,8 @@ def stage_file(path, data: bytes) -> tuple[Path, str]:
     except PermissionError:
         raise InputError(label, f"cannot write: no write permission in folder {str(folder)!r}") from None
     except OSError as exc:
-        raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+        _refuse_write(label, exc)
+        raise
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

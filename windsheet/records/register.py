@@ -17,6 +17,8 @@ from __future__ import annotations
 import datetime as _dt
 import json
 import os
+import errno
+import shutil
 import sqlite3
 import tempfile
 from contextlib import contextmanager
@@ -140,7 +142,8 @@ def _check_contents(conn: sqlite3.Connection, label: str) -> int:
     except (sqlite3.DatabaseError, UnicodeError) as exc:
         if _is_locked(exc):
             raise _locked_error(label) from None
-        raise InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})") from None
+        raise (_disk_fault(label, exc)
+               or InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})")) from None
     if ok != "ok":
         first = (str(ok).splitlines() or ["?"])[0][:160]
         raise InputError(label, f"register is damaged (integrity check: {first}); restore it from a backup")
@@ -166,6 +169,34 @@ def _is_locked(exc: Exception) -> bool:
 def _locked_error(label: str) -> InputError:
     return InputError(label, "register is locked by another writer; waited, then gave up — "
                              "try again when the other sign-off has finished")
+
+
+#: Less free space than this on the register's disk makes an I/O fault a full disk. [bytes]
+_NEARLY_FULL_BYTES = 1 << 20
+
+
+def _disk_fault(label: str, exc: BaseException) -> Optional[InputError]:
+    """A full disk or a failing one, said as such (never as a damaged register), or None.
+
+    SQLite says "database or disk is full" when a write is refused, but "disk I/O
+    error" when it cannot even make its shared-memory file; the free space tells
+    the two apart.
+    """
+    text = str(exc).lower()
+    full = "disk is full" in text or getattr(exc, "errno", None) == errno.ENOSPC
+    if not full and "disk i/o error" not in text:
+        return None
+    if not full:
+        try:
+            folder = Path(label).parent if str(Path(label).parent) else Path(".")
+            full = shutil.disk_usage(folder).free < _NEARLY_FULL_BYTES
+        except OSError:
+            pass
+    if full:
+        return InputError(label, "disk full: no space left to write the register (or its -wal and -shm files "
+                                 "beside it); nothing was recorded — free space on that disk and run it again")
+    return InputError(label, "disk I/O error reading or writing the register (a fault of the disk or file "
+                             "system, not of the register's content); nothing was recorded")
 
 
 # --- Creating -------------------------------------------------------------------------
@@ -235,7 +266,8 @@ def _reads(method):
         except sqlite3.OperationalError as exc:
             if _is_locked(exc):
                 raise _locked_error(self.label) from None
-            raise InputError(self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+            raise (_disk_fault(self.label, exc) or
+                   InputError(self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup")) from None
         except (sqlite3.DatabaseError, ValueError, TypeError, AttributeError, KeyError, UnicodeError) as exc:
             raise InputError(self.label, f"register is damaged ({type(exc).__name__}: {_one_line(exc)}); "
                                          "restore it from a backup") from None
@@ -279,19 +311,32 @@ class Register:
         except sqlite3.OperationalError as exc:
             if _is_locked(exc):
                 raise _locked_error(self.label) from None
-            raise InputError(self.label, f"cannot write the register: {exc}") from None
+            raise _disk_fault(self.label, exc) or InputError(self.label, f"cannot write the register: {exc}") from None
         try:
             yield self.conn
+        except sqlite3.OperationalError as exc:
+            self._rollback()
+            fault = _disk_fault(self.label, exc)
+            if fault is None:
+                raise
+            raise fault from None
         except BaseException:
-            self.conn.execute("ROLLBACK")
+            self._rollback()
             raise
         try:
             self.conn.execute("COMMIT")
         except sqlite3.OperationalError as exc:
-            self.conn.execute("ROLLBACK")
+            self._rollback()
             if _is_locked(exc):
                 raise _locked_error(self.label) from None
-            raise InputError(self.label, f"cannot write the register: {exc}") from None
+            raise _disk_fault(self.label, exc) or InputError(self.label, f"cannot write the register: {exc}") from None
+
+    def _rollback(self) -> None:
+        # SQLite may have rolled back already (a full disk does that); nothing is half-written either way.
+        try:
+            self.conn.execute("ROLLBACK")
+        except sqlite3.OperationalError:
+            pass
 
     # -- issue -------------------------------------------------------------------------
 
@@ -584,7 +629,9 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
     try:
         conn.execute(f"PRAGMA busy_timeout = {int(timeout * 1000)}")
         version = _check_contents(conn, label)
-        # Content checked before anything is written, the migration included.
+        # Content checked before anything is written, the migration included: what the
+        # listing reads (so a register it calls damaged is never written to) and the JSON.
+        schema.check_text(conn, label)
         schema.check_json(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
@@ -599,10 +646,11 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
             raise _locked_error(label) from None
         if "readonly" in str(exc).lower():
             raise _read_only_error(label) from None
-        raise InputError(label, f"cannot open the register: {exc}") from None
+        raise _disk_fault(label, exc) or InputError(label, f"cannot open the register: {exc}") from None
     except (sqlite3.DatabaseError, UnicodeError) as exc:
         conn.close()
-        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+        raise (_disk_fault(label, exc)
+               or InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup")) from None
     except BaseException:
         conn.close()
         raise

@@ -129,6 +129,43 @@ def check_json(conn: sqlite3.Connection, label: str) -> None:
                                     f"in {col}; restore it from a backup")
 
 
+#: The text columns the register's listing and the bench's job list read, by table: a writer checks
+#: them before it writes, so a register the listing refuses as damaged is never written to.
+LISTED_TEXT = {
+    "jobs": ("number", "part", "customer", "first_issued_at"),
+    "issues": ("job", "revision", "order_sha256", "units_json", "issued_by", "issued_at", "design_state"),
+    "signoffs": ("job", "revision", "inspector", "verdict", "signed_at"),
+    "unit_signoffs": ("job", "serial", "verdict", "unit_verdict", "inspector", "signed_at"),
+}
+
+
+def check_text(conn: sqlite3.Connection, label: str) -> None:
+    """Refuse a register whose listed text columns hold bytes that are not UTF-8 (one line).
+
+    Only rows with a character outside printable ASCII are read into Python (a
+    ``GLOB`` in SQLite finds them), so a register of plain text is checked in
+    one scan without decoding anything.
+    """
+    for table, wanted in LISTED_TEXT.items():
+        cols = [c for c in wanted if c in columns(conn, table)]
+        if not cols:
+            continue
+        odd = " OR ".join(f"{c} GLOB '*[^ -~]*'" for c in cols)
+        old_factory = conn.text_factory
+        conn.text_factory = bytes
+        try:
+            for row in conn.execute(f"SELECT rowid, {', '.join(cols)} FROM {table} WHERE {odd}"):
+                for col, value in zip(cols, row[1:]):
+                    if isinstance(value, bytes):
+                        try:
+                            value.decode("utf-8")
+                        except UnicodeDecodeError:
+                            raise InputError(label, f"register is damaged: {table}.{col} of row {row[0]} is not "
+                                                    "valid UTF-8 text; restore it from a backup") from None
+        finally:
+            conn.text_factory = old_factory
+
+
 def migrate(conn: sqlite3.Connection, version: int, now: str) -> int:
     """Bring a register up to :data:`SCHEMA_VERSION` in one transaction; returns the new version."""
     if version >= SCHEMA_VERSION:
