@@ -231,11 +231,22 @@ class OddNumeral:
 
 
 class _Refused(Exception):
-    """A YAML feature a shop file never needs, with where it is."""
+    """A YAML feature a shop file never needs, with where it is (and the field, when known)."""
 
-    def __init__(self, problem: str, mark):
+    def __init__(self, problem: str, mark, path: str = ""):
         super().__init__(problem)
-        self.problem, self.mark = problem, mark
+        self.problem, self.mark, self.path = problem, mark, path
+
+
+#: The explicit tags a shop file may carry: the plain scalars, which say only how to read the text.
+#: Any other (``!!set``, ``!!omap``, ``!!binary``, ``!!python/...``, a local ``!tag``) changes what
+#: the value is behind the text's back: a set's order follows the hash seed, for one.
+_PLAIN_SCALAR_TAGS = frozenset({None, "!"} | {f"tag:yaml.org,2002:{t}" for t in ("str", "int", "float", "bool",
+                                                                                 "null")})
+
+
+def _tag_name(tag: str) -> str:
+    return "!!" + tag[len("tag:yaml.org,2002:"):] if tag.startswith("tag:yaml.org,2002:") else tag
 
 
 @lru_cache(maxsize=None)
@@ -251,9 +262,17 @@ def _yaml_loader_class(max_depth: int):
         """
 
         _depth = 0
+        _path: list = []
 
         def compose_node(self, parent, index):
             event = self.peek_event()
+            if getattr(event, "tag", None) not in _PLAIN_SCALAR_TAGS:
+                is_scalar = isinstance(event, yaml.ScalarEvent)
+                where = self._path + ([index.value] if isinstance(index, yaml.ScalarNode)
+                                      else [index] if isinstance(index, int) else [])
+                raise _Refused(f"the YAML tag {_tag_name(event.tag)[:40]} is not accepted; write the plain "
+                               + ("value" if is_scalar else "list or mapping") + " without a tag",
+                               event.start_mark, join_path(*where))
             if isinstance(event, yaml.AliasEvent):
                 raise _Refused(f"anchors and aliases (*{event.anchor}) are not accepted; write the value out in full",
                                event.start_mark)
@@ -261,12 +280,17 @@ def _yaml_loader_class(max_depth: int):
                 raise _Refused(f"anchors and aliases (&{event.anchor}) are not accepted; write the value out in full",
                                event.start_mark)
             self._depth += 1
+            # The path of the node being composed, so a refusal names its field.
+            self._path = self._path + ([index.value] if isinstance(index, yaml.ScalarNode)
+                                       else [index] if isinstance(index, int) else [])
             try:
                 if self._depth > max_depth:
                     raise _Refused(f"nested deeper than {max_depth} levels", event.start_mark)
                 return super().compose_node(parent, index)
             finally:
                 self._depth -= 1
+                if isinstance(index, (yaml.ScalarNode, int)) and not isinstance(index, bool):
+                    self._path = self._path[:-1]
 
         def construct_mapping(self, node, deep=False):
             seen = set()
@@ -467,6 +491,9 @@ def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
     try:
         doc = yaml.load(text, Loader=_yaml_loader_class(max_depth))  # noqa: S506 - SafeLoader subclass
     except _Refused as exc:
+        if exc.path:
+            at = f" (line {exc.mark.line + 1}, column {exc.mark.column + 1})" if exc.mark else ""
+            raise InputError(exc.path, f"{exc.problem}{at}") from None
         where = f"line {exc.mark.line + 1}, column {exc.mark.column + 1}: " if exc.mark else ""
         raise InputError(label, f"{where}{exc.problem}") from None
     except yaml.MarkedYAMLError as exc:
