@@ -181,3 +181,90 @@ def test_every_refusal_is_one_line_of_bounded_length():
     assert "\n" not in str(err) and "\r" not in str(err) and "\x7f" not in str(err)
     assert len(err.path) == MAX_PATH_CHARS and len(err.message) == MAX_MESSAGE_CHARS
     assert err.message.startswith("line one\\nline two\\r\\x7f") and err.message.endswith("…")
+
+
+# ------------------------------------------------------------------ smaller ones (item 11)
+def test_resistance_without_an_ambient_is_incomplete_not_bad_input(tmp_path, issued):
+    f = tmp_path / "noamb.yaml"
+    f.write_text("".join(ln for ln in MEASURED.read_text().splitlines(True) if "ambient" not in ln))
+    res = run("signoff", BIFILAR, f, "--register", issued, "--dry-run", "--json")
+    # README, exit statuses: 3 = none fails but some are incomplete.
+    assert res.exit_code == 3, res.output
+    import json
+
+    unit = json.loads(res.stdout)["units"][0]
+    assert unit["verdict"] == "incomplete"
+    assert {"strand.A.resistance", "terminal.resistance", "ambient"} <= set(unit["missing"])
+    assert any("not judged: no ambient temperature" in d["finding"] for d in unit["diagnosis"])
+    # Not one resistance line judged on an uncorrected value.
+    assert not [x for x in unit["lines"] if x["key"].endswith(".resistance") and x["key"].startswith("strand")]
+
+
+def test_a_file_of_one_unit_says_how_many_are_not_signed(tmp_path, issued):
+    doc = yaml.safe_load(MEASURED.read_text())
+    doc["units"] = doc["units"][:1]
+    f = tmp_path / "one.yaml"
+    f.write_text(yaml.safe_dump(doc, sort_keys=False))
+    res = run("signoff", BIFILAR, f, "--register", issued, "--dry-run")
+    assert res.exit_code == 0, res.output
+    assert res.stdout.splitlines()[-2] == ("Verdict: PASS for the 1 unit(s) read; 3 of 4 units not signed: "
+                                           "HL-0412-02, HL-0412-03, HL-0412-04")
+
+
+def test_between_windings_on_joined_strands_is_refused(tmp_path):
+    f = tmp_path / "o.yaml"
+    f.write_text(order_text(BIFILAR, duty={"between_windings": "100 V"}))
+    line = one_line(run("size", f))
+    assert line.startswith("windsheet: duty.between_windings: applies to separate windings only; this order's "
+                           "strands are joined (series-aiding)")
+
+
+@pytest.mark.parametrize("field, value", [("inductance", "0 %"), ("resistance", "0.05 %"),
+                                          ("strand_balance", "0 %")])
+def test_a_tolerance_narrower_than_a_meter_is_refused(tmp_path, field, value):
+    f = tmp_path / "o.yaml"
+    f.write_text(order_text(BIFILAR, tolerances={field: value}))
+    line = one_line(run("size", f))
+    assert line.startswith(f"windsheet: tolerances.{field}: expected a tolerance of at least 0.1 %"), line
+
+
+def test_the_narrowest_tolerance_still_sizes(tmp_path):
+    f = tmp_path / "o.yaml"
+    f.write_text(order_text(BIFILAR, tolerances={"inductance": "0.1 %"}))
+    res = run("size", f, "--json")
+    assert res.exit_code == 0, res.output
+    import json
+
+    acc = json.loads(res.stdout)["terminal"]["accept"]
+    assert acc["inductance_max_H"] / acc["inductance_min_H"] == pytest.approx(1.001 / 0.999, rel=1e-9)
+
+
+def test_a_one_turn_winding_says_why_it_has_no_capacitance(tmp_path):
+    toroid = SAMPLES / "hl-0421-toroid-choke.yaml"
+    f = tmp_path / "o.yaml"
+    f.write_text(order_text(toroid, winding={"turns": 1}))
+    res = run("size", f, "--json")
+    assert res.exit_code == 0, res.output
+    import json
+
+    t = json.loads(res.stdout)["terminal"]
+    assert t["self_resonance_Hz"] is None and not t["capacitance_F"]
+    assert t["capacitance_note"].startswith("one turn per winding: no turn lies beside another")
+    text = run("size", f).stdout
+    assert "C and self-resonance not predicted: one turn per winding" in text
+    # The sample's 12 turns have a capacitance and a resonance, and no note.
+    full = json.loads(run("size", toroid, "--json").stdout)["terminal"]
+    assert full["capacitance_F"] > 0 and full["self_resonance_Hz"] > 0 and full["capacitance_note"] == ""
+
+
+def test_a_read_only_target_is_not_replaced(tmp_path):
+    out = tmp_path / "t.html"
+    out.write_text("kept")
+    out.chmod(0o444)
+    reg = tmp_path / "reg.db"
+    line = one_line(run("traveller", SINGLE, "-o", out, "--register", reg))
+    assert line == (f"windsheet: {out}: cannot write: the file is read-only (mode 444); "
+                    "make it writable or remove it, or write to another name")
+    assert out.read_text() == "kept" and oct(out.stat().st_mode & 0o777) == "0o444"
+    # Nothing recorded either: the sheet and its record stand or fall together.
+    assert not reg.exists() or "HL-0410" not in run("register", "--register", reg).stdout

@@ -57,7 +57,10 @@ def summary_lines(p) -> list[str]:
     if t.accept.inductance_basis == "target":
         row("", f"L accept band is the ordered target ± tolerance; prediction "
             f"{t.accept.prediction_offset * 100:+.2f} % from target")
-    row("", f"C {eng(t.capacitance_F, 'F')}, self-resonance {eng(t.self_resonance_Hz, 'Hz')}")
+    if t.capacitance_note:
+        row("", f"C and self-resonance not predicted: {t.capacitance_note}")
+    else:
+        row("", f"C {eng(t.capacitance_F, 'F')}, self-resonance {eng(t.self_resonance_Hz, 'Hz')}")
     if t.resistance_ac_ohm is not None and p.ac_resistance and p.duty.frequency_Hz:
         row("", f"R {eng(t.resistance_ac_ohm, 'Ω')} at {eng(p.duty.frequency_Hz, 'Hz')} "
             f"(AC/DC {p.ac_resistance.ratio:.3f}), loss {eng(t.loss_W, 'W')} at the duty current")

@@ -21,7 +21,7 @@ class InputError(Exception):
 
 
 #: What a refusal may quote: a whole CSV header or a hostile key is cut to this. [characters]
-MAX_PATH_CHARS = 120
+MAX_PATH_CHARS = 300
 MAX_MESSAGE_CHARS = 1000
 
 _CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f\u2028\u2029]")

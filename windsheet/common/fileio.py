@@ -83,6 +83,18 @@ def _refuse_write(label: str, exc: BaseException) -> None:
         raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
 
 
+def _refuse_read_only_target(target: Path, label: str) -> None:
+    """A file someone made read-only is not replaced (the rename would, keeping its mode): refuse, as
+    the shell refuses ``>`` into it.  Judged by its mode bits, so the file's owner and root are held too."""
+    try:
+        mode = target.stat().st_mode
+    except OSError:
+        return
+    if stat.S_ISREG(mode) and (not mode & 0o222 or not os.access(target, os.W_OK)):
+        raise InputError(label, f"cannot write: the file is read-only (mode {stat.S_IMODE(mode):o}); "
+                                "make it writable or remove it, or write to another name")
+
+
 def stage_file(path, data: bytes) -> tuple[Path, str]:
     """Write ``data`` to a temporary file beside ``path`` (flushed, fsynced, permissions set).
 
@@ -96,6 +108,7 @@ def stage_file(path, data: bytes) -> tuple[Path, str]:
         raise InputError(label, f"cannot write: folder {str(folder)!r} does not exist")
     if target.is_dir():
         raise InputError(label, "cannot write: this is a folder, expected a file name")
+    _refuse_read_only_target(target, label)
     clean_stale_temps(folder, target.name)
     try:
         fd, tmp_name = tempfile.mkstemp(prefix=_temp_prefix(target.name), suffix=".tmp", dir=folder)
