@@ -38,32 +38,53 @@ def _temp_prefix(name: str) -> str:
     return f".{name}.{host}-{os.getpid()}."
 
 
-def clean_stale_temps(folder, name: str) -> list[Path]:
-    """Remove temporary files a crashed run of this host left beside ``folder/name``.
+#: A temporary file of windsheet's own: ``.NAME.HOST-PID.RANDOM.tmp`` (see :func:`_temp_prefix`).
+_TEMP_NAME = re.compile(r"^\.(?P<name>.+)\.(?P<host>[A-Za-z0-9_-]{1,40})-(?P<pid>\d{1,10})\.[A-Za-z0-9_]{1,16}\.tmp$")
+#: A temporary file this old is stale whoever made it (a crashed run of another host). [s]
+STALE_TEMP_AGE_S = 24 * 3600.0
+#: A crashed run of this host is not cleaned up sooner than this, whatever its PID says. [s]
+FRESH_TEMP_AGE_S = 10.0
 
-    A temporary file is ``.NAME.HOST-PID.XXXX.tmp``; it is stale when HOST is
-    this host and process PID no longer runs.  Files of live processes and of
-    other hosts are left alone.  Returns what was removed.
+
+def clean_stale_temps(folder, name: str | None = None, *, now: float | None = None) -> list[Path]:
+    """Remove temporary files crashed runs of windsheet left in ``folder``.
+
+    Only windsheet's own pattern, ``.NAME.HOST-PID.XXXX.tmp``, is touched, and
+    only when it is stale: made on this host by a process that no longer runs
+    (and older than a few seconds), or older than a day whoever made it.
+    ``name`` limits the clean-up to the temporary files of one target.
+    Files of live processes are left alone.  Returns what was removed.
     """
+    import time
+
     folder = Path(folder)
-    mine = _temp_prefix(name)
-    host_prefix = mine[: mine.rindex("-") + 1]
+    now = time.time() if now is None else now
+    mine = _temp_prefix(name or "x")
+    host = mine[len(f".{name or 'x'}."): mine.rindex("-")]
     removed = []
     try:
-        names = [q for q in folder.iterdir() if q.name.startswith(host_prefix) and q.name.endswith(".tmp")]
+        candidates = [(q, m) for q in folder.iterdir() if (m := _TEMP_NAME.match(q.name))
+                      and (name is None or m.group("name") == name)]
     except OSError:
         return removed
-    for q in names:
-        pid_text = q.name[len(host_prefix):].split(".", 1)[0]
-        if not pid_text.isdigit():
-            continue
+    for q, m in candidates:
         try:
-            os.kill(int(pid_text), 0)
-            continue  # still running
-        except ProcessLookupError:
-            pass
+            st = q.lstat()
         except OSError:
-            continue  # running as someone else
+            continue
+        if not stat.S_ISREG(st.st_mode):
+            continue
+        age = now - st.st_mtime
+        if age < STALE_TEMP_AGE_S:
+            if m.group("host") != host or age < FRESH_TEMP_AGE_S and name is None:
+                continue
+            try:
+                os.kill(int(m.group("pid")), 0)
+                continue  # still running
+            except ProcessLookupError:
+                pass
+            except (OSError, OverflowError):
+                continue  # running as someone else
         try:
             q.unlink()
             removed.append(q)
@@ -109,7 +130,9 @@ def stage_file(path, data: bytes) -> tuple[Path, str]:
     if target.is_dir():
         raise InputError(label, "cannot write: this is a folder, expected a file name")
     _refuse_read_only_target(target, label)
+    # Crashed runs' temporary files for this target at once, and any other stale one of ours here.
     clean_stale_temps(folder, target.name)
+    clean_stale_temps(folder)
     try:
         fd, tmp_name = tempfile.mkstemp(prefix=_temp_prefix(target.name), suffix=".tmp", dir=folder)
     except PermissionError:
