@@ -268,3 +268,80 @@ def test_a_read_only_target_is_not_replaced(tmp_path):
     assert out.read_text() == "kept" and oct(out.stat().st_mode & 0o777) == "0o444"
     # Nothing recorded either: the sheet and its record stand or fall together.
     assert not reg.exists() or "HL-0410" not in run("register", "--register", reg).stdout
+
+
+# ------------------------------------------------------------------ property: the new classes of input
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+ROUND3 = settings(max_examples=60, deadline=None, derandomize=True,
+                  suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
+TAGS = st.sampled_from(["!!set", "!!omap", "!!binary", "!!timestamp", "!!map", "!!seq", "!!pairs", "!local",
+                        "!!python/tuple", "!!str", "!!int", "!!float", "!!bool", "!!null", "!"])
+CONTROL = st.sampled_from(["\x7f", "\x1b[2J", "\x00", "\x85", "\u2028", "\r", "\t", "\x08"])
+COLD = st.builds(lambda n, u: f"{n} {u}", st.floats(-500, 100, allow_nan=False).map(lambda x: round(x, 2)),
+                 st.sampled_from(["degC", "K", "degF"]))
+TINY = st.builds(lambda n: f"{n} %", st.sampled_from([0, 0.0, 0.01, 0.0999, 0.1, 0.5, -0.1]))
+
+
+@st.composite
+def round3_orders(draw):
+    """A sample order with one of the new hazards: a tag on a leaf, a control character in a text
+    field, an ambient or hot-spot temperature down to below absolute zero, a tolerance near zero."""
+    doc = yaml.safe_load(SINGLE.read_text())
+    kind = draw(st.sampled_from(["tag", "control", "cold", "tolerance"]))
+    if kind == "cold":
+        doc["duty"][draw(st.sampled_from(["ambient", "operating_temperature"]))] = draw(COLD)
+    elif kind == "tolerance":
+        doc["tolerances"][draw(st.sampled_from(["inductance", "resistance", "strand_balance"]))] = draw(TINY)
+    elif kind == "control":
+        field = draw(st.sampled_from(["part", "customer", "issued_by"]))
+        doc["job"][field] = "Pickup" + draw(CONTROL) + "loop"
+    text = yaml.safe_dump(doc, sort_keys=False, allow_unicode=True)
+    if kind == "tag":
+        key = draw(st.sampled_from(["revision: A", "hookup: single", "quantity: 2", "kind: cylinder"]))
+        k, v = key.split(": ")
+        text = text.replace(key, f"{k}: {draw(TAGS)} {v}", 1)
+    return text
+
+
+@ROUND3
+@given(text=round3_orders())
+def test_round3_orders_size_or_are_refused_in_one_line(tmp_path_factory, text):
+    f = tmp_path_factory.mktemp("o") / "o.yaml"
+    f.write_text(text, encoding="utf-8")
+    res = run("size", f, "--json")
+    assert res.exception is None or isinstance(res.exception, SystemExit), (text, repr(res.exception))
+    if res.exit_code in (0, 1):
+        import json
+
+        p = json.loads(res.stdout)
+        # What sized is what the rules allow: no sub-floor temperature, no band under 0.1 %.
+        assert p["duty"]["ambient_C"] >= -100
+        assert p["tolerances"]["inductance"] >= 0.001 and p["tolerances"]["resistance"] >= 0.001
+        assert all(ord(c) >= 32 and not 127 <= ord(c) < 160 for c in p["job"]["part"] + p["job"]["customer"])
+    else:
+        assert res.exit_code == 2
+        lines = res.stderr.splitlines()
+        assert len(lines) == 1 and lines[0].startswith("windsheet: ") and "Traceback" not in res.stderr
+        assert len(lines[0]) < 400
+
+
+CELLS = st.one_of(st.text(max_size=30), st.sampled_from(['"', '"open', 'a"b', '""', "-1", "=1+2", "\x7f"]),
+                  st.builds(lambda n: "x" * n, st.sampled_from([10, 140_000])))
+
+
+@ROUND3
+@given(cells=st.lists(CELLS, min_size=1, max_size=4), rows=st.integers(1, 3))
+def test_round3_readings_csv_loads_or_is_refused_in_one_line(tmp_path_factory, cells, rows):
+    from windsheet.common.errors import InputError
+    from windsheet.qc.readings_form import measured_from_csv
+
+    header = "serial,terminal.inductance [uH],terminal.resistance [ohm],notes,ambient [degC]"
+    body = "".join(f"HL-0412-0{r + 1}," + ",".join(cells) + "\n" for r in range(rows))
+    try:
+        m = measured_from_csv(header + "\n" + body, "r.csv")
+    except InputError as exc:
+        assert "\n" not in str(exc) and len(str(exc)) < 600
+        return
+    assert 1 <= len(m.units) <= rows

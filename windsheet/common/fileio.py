@@ -309,6 +309,13 @@ def _yaml_loader_class(max_depth: int):
                 raise _Refused(f"the YAML tag {_tag_name(event.tag)[:40]} is not accepted; write the plain "
                                + ("value" if is_scalar else "list or mapping") + " without a tag",
                                event.start_mark, join_path(*where))
+            if (isinstance(event, yaml.ScalarEvent) and event.tag not in (None, "!", "tag:yaml.org,2002:str")
+                    and self.resolve(yaml.ScalarNode, event.value, (True, False)) != event.tag):
+                # !!float on 'A' (or !!int on '1.5'): the tag promises what the text is not.
+                where = self._path + ([index.value] if isinstance(index, yaml.ScalarNode)
+                                      else [index] if isinstance(index, int) else [])
+                raise _Refused(f"the YAML tag {_tag_name(event.tag)} does not fit {event.value[:40]!r}; "
+                               "write the plain value without a tag", event.start_mark, join_path(*where))
             if isinstance(event, yaml.AliasEvent):
                 raise _Refused(f"anchors and aliases (*{event.anchor}) are not accepted; write the value out in full",
                                event.start_mark)
