@@ -147,3 +147,49 @@ def test_report_works_on_a_read_only_register_and_leaves_it_as_it_was(tmp_path):
 
     assert json.loads(res.stdout)["units"] > 0
     assert reg.read_bytes() == before and sorted(p.name for p in folder.iterdir()) == names
+
+
+# ------------------------------------------------------------------ the check proportional to the work
+def test_readers_check_what_they_read_and_register_check_checks_everything(tmp_path):
+    reg = _damaged(tmp_path, "update issues set predictions_json = '{broken' where id = 1")
+    # The listing reads no prediction (the design state is a column): it lists.
+    listing = run("register", "--register", reg)
+    assert listing.exit_code == 0 and "HL-0412" in listing.stdout
+    # The job's history reads that record: refused at its row, one line.
+    history = run("register", "HL-0412", "--register", reg)
+    assert history.exit_code == 2 and "register is damaged" in history.stderr
+    assert len(history.stderr.splitlines()) == 1
+    # The whole check finds it, naming the row; a writer refuses before writing.
+    check = run("register", "--check", "--register", reg)
+    assert check.exit_code == 2
+    assert check.stderr == (f"windsheet: {reg}: register is damaged: issues row 1 holds no valid JSON object "
+                            "in predictions_json; restore it from a backup\n")
+    before = reg.read_bytes()
+    assert run("register", "--issue", SINGLE, "--register", reg).exit_code == 2
+    assert reg.read_bytes() == before
+
+
+def test_register_check_on_a_whole_register_counts_what_it_checked(tmp_path):
+    reg = tmp_path / "reg.db"
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.html", "--register", reg).exit_code == 0
+    assert run("signoff", BIFILAR, MEASURED, "--register", reg).exit_code == 0
+    before = reg.read_bytes()
+    res = run("register", "--check", "--register", reg, "--json")
+    assert res.exit_code == 0, res.output
+    import json
+
+    # One job, one issue, one sign-off of the sample's four units (samples/HL-0412.measured.yaml).
+    assert {k: v for k, v in json.loads(res.stdout).items() if k != "register"} == {
+        "schema_version": 2, "jobs": 1, "issues": 1, "signoffs": 1, "unit_signoffs": 4}
+    assert reg.read_bytes() == before
+
+
+def test_a_scribbled_page_is_found_by_register_check(tmp_path):
+    reg = tmp_path / "reg.db"
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.html", "--register", reg).exit_code == 0
+    data = bytearray(reg.read_bytes())
+    page = int.from_bytes(data[16:18], "big")
+    data[page * 2 + 8: page * 3] = b"\xa5" * (page - 8)  # scribble over page 3
+    reg.write_bytes(bytes(data))
+    res = run("register", "--check", "--register", reg)
+    assert res.exit_code == 2 and "register is damaged" in res.stderr and "Traceback" not in res.output
