@@ -408,3 +408,37 @@ def test_a_field_not_in_the_jobs_form_is_refused_and_not_saved(client, reg_path,
     assert saved == 0
     # The job's own fields are still taken.
     assert save(client, 0, "before_joint.A-B.series_aiding", "398.6 uH").status_code == 200
+
+
+def test_the_job_list_is_paged_and_filtered_as_the_register_is(tmp_path):
+    from conftest import design_for_job
+    from windsheet.bench.service import JOBS_PER_PAGE
+
+    path = tmp_path / "many.db"
+    n = JOBS_PER_PAGE + 30
+    with open_register(path) as reg:
+        for k in range(n):
+            number = f"HL-{k:04d}"
+            d = design_for_job(number, units=[f"{number}-01"], customer="Fenwick" if k % 3 == 0 else "Marlow")
+            reg.record_issue(d, "order", f"{k:064x}")
+            if k % 10 == 0:
+                reg.record_signoff({"job": number, "revision": "A", "verdict": "pass",
+                                    "units": [{"serial": f"{number}-01", "verdict": "pass", "lines": []}]},
+                                   f"{k:064x}", "QC")
+    c = TestClient(create_app(path))
+    first = c.get("/").text
+    # Newest issue first, one page of them, and the way to the next.
+    shown = re.findall(r'href="/job/(HL-\d{4})"', first)
+    assert shown == [f"HL-{k:04d}" for k in range(n - 1, n - 1 - JOBS_PER_PAGE, -1)]
+    assert f"{n} jobs · page 1 of 2" in first and 'rel="next" href="/?page=2"' in first
+    second = re.findall(r'href="/job/(HL-\d{4})"', c.get("/?page=2").text)
+    assert second == [f"HL-{k:04d}" for k in range(n - 1 - JOBS_PER_PAGE, -1, -1)]
+    # The same filters as 'windsheet register --state --customer'.
+    cli = CliRunner().invoke(cli_app, ["register", "--register", str(path), "--state", "passed",
+                                       "--customer", "fenwick", "--json"])
+    want = [j["number"] for j in json.loads(cli.stdout)]
+    assert want == [f"HL-{k:04d}" for k in range(n - 1, -1, -1) if k % 30 == 0]
+    page = c.get("/?state=passed&customer=FENWICK").text
+    assert re.findall(r'href="/job/(HL-\d{4})"', page) == want and f"{len(want)} jobs" in page
+    bad = c.get("/?state=bogus")
+    assert bad.status_code == 400 and "state: expected one of issued, passed, failed, incomplete" in bad.text

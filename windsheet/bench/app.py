@@ -160,8 +160,23 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
     # -- pages ---------------------------------------------------------------------
 
     async def job_list(request: Request):
-        jobs = await with_register(service.jobs)
-        return render("bench_jobs.html.j2", request, jobs=jobs)
+        q = request.query_params
+        filters = {k: (q.get(k) or "").strip()[:80] or None for k in ("state", "customer", "since")}
+        page = max(1, _int(q.get("page") or "1"))
+        try:
+            jobs, total = await with_register(service.jobs, page, filters["state"], filters["customer"],
+                                              filters["since"])
+        except InputError as exc:  # the listing's refusal names its option; here it is the form's field
+            raise InputError(exc.path.lstrip("-"), exc.message) from None
+        pages = max(1, -(-total // service.JOBS_PER_PAGE))
+        from urllib.parse import urlencode
+
+        def page_url(n):
+            return "/?" + urlencode({**{k: v for k, v in filters.items() if v}, "page": n})
+        return render("bench_jobs.html.j2", request, jobs=jobs, total=total, page=page, pages=pages,
+                      filters=filters, states=("issued", "passed", "failed", "incomplete"),
+                      prev_url=page_url(page - 1) if page > 1 else None,
+                      next_url=page_url(page + 1) if page < pages else None)
 
     def _job_context(reg, number, messages=(), signed=None):
         state, prediction = service.issued(reg, number)

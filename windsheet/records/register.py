@@ -17,8 +17,6 @@ from __future__ import annotations
 import datetime as _dt
 import json
 import os
-import errno
-import shutil
 import sqlite3
 import tempfile
 from contextlib import contextmanager
@@ -29,18 +27,17 @@ from windsheet.common.errors import InputError
 from windsheet.records import register_schema as schema
 from windsheet.common.fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
+from .register_checks import (APPLICATION, APPLICATION_ID, _check_contents, _check_header, _check_writable,  # noqa: F401
+                              _disk_fault, _is_locked, _locked_error, _one_line, _read_header, _read_only_error,
+                              _reads)
+from .register_states import JobStates
 from .sheet_ledger import finish_pending, record_pending
 from windsheet.design.state_rules import recorded_state
 from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
 
 DEFAULT_FILE = "windsheet-register.db"
 ENV_VAR = "WINDSHEET_REGISTER"
-APPLICATION = "windsheet-register"
-#: PRAGMA application_id, "WSHR" in ASCII: marks the file in its own header.
-APPLICATION_ID = 0x57534852
 DEFAULT_TIMEOUT_S = 10.0
-
-_SQLITE_MAGIC = b"SQLite format 3\x00"
 
 _SCHEMA = """
 CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
@@ -109,101 +106,6 @@ def _dumps(obj) -> str:
         raise InputError("register", f"cannot record a value that is not finite: {exc}") from None
 
 
-# --- Recognising a register -----------------------------------------------------------
-
-def _read_header(path: Path, label: str) -> bytes:
-    try:
-        with open(path, "rb") as fh:
-            return fh.read(100)
-    except PermissionError:
-        raise InputError(label, "cannot read the register: permission denied") from None
-    except IsADirectoryError:
-        raise InputError(label, "is a folder, not a register file") from None
-    except OSError as exc:
-        raise InputError(label, f"cannot read the register: {exc.strerror or exc}") from None
-
-
-def _check_header(header: bytes, label: str) -> None:
-    if len(header) < 100 or not header.startswith(_SQLITE_MAGIC):
-        raise InputError(label, "is not a windsheet register (not an SQLite database); "
-                                "refusing to touch it — give another path with --register")
-    app_id = int.from_bytes(header[68:72], "big")
-    if app_id != APPLICATION_ID:
-        raise InputError(label, "is an SQLite database but not a windsheet register; "
-                                "refusing to touch it — give another path with --register")
-
-
-def _check_contents(conn: sqlite3.Connection, label: str, whole_file: bool = True) -> int:
-    """Check a register's header tables, version and structure; returns its schema version.
-
-    ``whole_file`` adds SQLite's ``quick_check`` of every page (a read of the whole
-    file): made before anything is written, and by ``windsheet register --check``.
-    A reader leaves it out and meets any damage in the rows it reads, refused there.
-    """
-    try:
-        ok = conn.execute("PRAGMA quick_check").fetchone()[0] if whole_file else "ok"
-        row = conn.execute("SELECT value FROM meta WHERE key = 'application'").fetchone()
-        version = conn.execute("PRAGMA user_version").fetchone()[0]
-    except (sqlite3.DatabaseError, UnicodeError) as exc:
-        if _is_locked(exc):
-            raise _locked_error(label) from None
-        raise (_disk_fault(label, exc)
-               or InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})")) from None
-    if ok != "ok":
-        first = (str(ok).splitlines() or ["?"])[0][:160]
-        raise InputError(label, f"register is damaged (integrity check: {first}); restore it from a backup")
-    if row is None or row[0] != APPLICATION:
-        raise InputError(label, "is not a windsheet register (no application marker)")
-    if version > SCHEMA_VERSION:
-        raise InputError(label, f"register has schema version {version}, newer than this windsheet "
-                                f"understands ({SCHEMA_VERSION}); upgrade windsheet")
-    if version < 1:
-        raise InputError(label, "register has no schema version; it is damaged")
-    try:
-        schema.check_structure(conn, version, label)
-    except (sqlite3.DatabaseError, UnicodeError) as exc:
-        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
-    return version
-
-
-def _is_locked(exc: Exception) -> bool:
-    text = str(exc).lower()
-    return "locked" in text or "busy" in text
-
-
-def _locked_error(label: str) -> InputError:
-    return InputError(label, "register is locked by another writer; waited, then gave up — "
-                             "try again when the other sign-off has finished")
-
-
-#: Less free space than this on the register's disk makes an I/O fault a full disk. [bytes]
-_NEARLY_FULL_BYTES = 1 << 20
-
-
-def _disk_fault(label: str, exc: BaseException) -> Optional[InputError]:
-    """A full disk or a failing one, said as such (never as a damaged register), or None.
-
-    SQLite says "database or disk is full" when a write is refused, but "disk I/O
-    error" when it cannot even make its shared-memory file; the free space tells
-    the two apart.
-    """
-    text = str(exc).lower()
-    full = "disk is full" in text or getattr(exc, "errno", None) == errno.ENOSPC
-    if not full and "disk i/o error" not in text:
-        return None
-    if not full:
-        try:
-            folder = Path(label).parent if str(Path(label).parent) else Path(".")
-            full = shutil.disk_usage(folder).free < _NEARLY_FULL_BYTES
-        except OSError:
-            pass
-    if full:
-        return InputError(label, "disk full: no space left to write the register (or its -wal and -shm files "
-                                 "beside it); nothing was recorded — free space on that disk and run it again")
-    return InputError(label, "disk I/O error reading or writing the register (a fault of the disk or file "
-                             "system, not of the register's content); nothing was recorded")
-
-
 # --- Creating -------------------------------------------------------------------------
 
 def _create(path: Path, label: str) -> None:
@@ -258,34 +160,7 @@ def _create(path: Path, label: str) -> None:
 
 # --- The register ---------------------------------------------------------------------
 
-def _reads(method):
-    """A read of the register: damage found while reading is one line, never a traceback."""
-    import functools
-
-    @functools.wraps(method)
-    def wrapper(self, *args, **kwargs):
-        try:
-            return method(self, *args, **kwargs)
-        except InputError:
-            raise
-        except sqlite3.OperationalError as exc:
-            if _is_locked(exc):
-                raise _locked_error(self.label) from None
-            raise (_disk_fault(self.label, exc) or
-                   InputError(self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup")) from None
-        except (sqlite3.DatabaseError, ValueError, TypeError, AttributeError, KeyError, UnicodeError) as exc:
-            raise InputError(self.label, f"register is damaged ({type(exc).__name__}: {_one_line(exc)}); "
-                                         "restore it from a backup") from None
-    return wrapper
-
-
-def _one_line(exc) -> str:
-    if isinstance(exc, UnicodeDecodeError):
-        return "text that is not UTF-8"
-    return (str(exc).splitlines() or [""])[0][:160]
-
-
-class Register:
+class Register(JobStates):
     """An open job register; use :func:`open_register`."""
 
     #: Schema version of the open file (a read-only old register stays at its own).
@@ -484,68 +359,6 @@ class Register:
 
     # -- reading -----------------------------------------------------------------------
 
-    def _states(self, number: Optional[str] = None) -> list[dict]:
-        """Each job's state at its latest issued revision (one job, or all, newest issue first).
-
-        Two queries whatever the register's size: the latest issue of each job,
-        then every unit sign-off of those revisions, read in order so the last
-        verdict of each serial stands.
-        """
-        v2 = self.version >= 2
-        design = "i.design_state" if v2 else "NULL"
-        where = "WHERE i.job = ?" if number is not None else ""
-        args = (number,) if number is not None else ()
-        latest = self.conn.execute(
-            "SELECT i.job, i.id, i.revision, i.order_sha256, i.units_json, i.issued_at, i.issued_by, "
-            f"{design}, j.part, j.customer "
-            "FROM issues i JOIN jobs j ON j.number = i.job "
-            f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where} "
-            "ORDER BY i.id DESC", args).fetchall()
-        verdict = "u.unit_verdict" if v2 else "json_extract(u.measurements_json, '$.verdict')"
-        units: dict = {}
-        for job, serial, v, col in self.conn.execute(
-                f"SELECT s.job, u.serial, {verdict}, u.verdict FROM unit_signoffs u "
-                "JOIN signoffs s ON s.id = u.signoff_id "
-                "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.job = s.job "
-                "JOIN issues i ON i.id = l.id AND i.revision = s.revision "
-                + ("WHERE s.job = ? " if number is not None else "") + "ORDER BY u.id", args):
-            units.setdefault(job, {})[serial] = v or col
-        out = []
-        for job, iid, rev, sha, units_json, at, by, dstate, part, customer in latest:
-            serials = json.loads(units_json)
-            if not isinstance(serials, list):
-                raise ValueError(f"issue {iid}: units_json is not a list")
-            got = units.get(job, {})
-            passed = sorted(s for s, v in got.items() if v == "pass")
-            failed = sorted(s for s, v in got.items() if v == "fail")
-            incomplete = sorted(s for s, v in got.items() if v == "incomplete")
-            everyone = set(serials) or set(got)
-            state = ("failed" if failed else "incomplete" if incomplete
-                     else "passed" if got and everyone <= set(passed) else "issued")
-            if dstate is None:  # a version-1 register read as it is
-                dstate = recorded_state(self.issued_record(iid))["state"]
-            out.append({"number": job, "revision": rev, "order_sha256": sha, "issued_at": at,
-                        "issued_by": by, "state": state, "units": serials, "part": part, "customer": customer,
-                        "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
-                        "units_not_signed": [s for s in serials if s not in got],
-                        "design_status": {"state": dstate}, "issue_id": iid})
-        return out
-
-    @_reads
-    def job_state(self, number: str) -> dict:
-        """State of a job at its latest issued revision: issued, passed, failed or incomplete."""
-        found = self._states(number)
-        if not found:
-            raise InputError("job", f"job {number} is not in register {self.label}")
-        st = found[0]
-        st["design_status"] = recorded_state(self.issued_record(st["issue_id"]))
-        return st
-
-    @_reads
-    def list_jobs(self) -> list[dict]:
-        """Every job with its state, newest issue first."""
-        return self._states()
-
     @_reads
     def job_history(self, number: str) -> dict:
         """Every issue and sign-off of a job, oldest first."""
@@ -667,18 +480,6 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         reg.close()
         raise
     return reg
-
-
-def _read_only_error(label: str) -> InputError:
-    return InputError(label, "register is read-only here (no write permission on the file or its folder); "
-                             "nothing was recorded — list it with 'windsheet register', or ask for write access")
-
-
-def _check_writable(p: Path, label: str) -> None:
-    """Refuse to open a register for writing that cannot be written (file, or its folder for the WAL files)."""
-    folder = p.parent if str(p.parent) else Path(".")
-    if not os.access(p, os.W_OK) or not os.access(folder, os.W_OK | os.X_OK):
-        raise _read_only_error(label)
 
 
 def _sqlite_uri(p: Path, immutable: bool) -> str:
