@@ -193,3 +193,29 @@ def test_a_scribbled_page_is_found_by_register_check(tmp_path):
     reg.write_bytes(bytes(data))
     res = run("register", "--check", "--register", reg)
     assert res.exit_code == 2 and "register is damaged" in res.stderr and "Traceback" not in res.output
+
+
+def test_the_listing_reads_the_covering_index_and_lists_the_same(tmp_path):
+    from conftest import design_for_job
+    from windsheet.records import register_schema as schema
+    from windsheet.records.register import open_register, open_register_readonly
+
+    reg = tmp_path / "reg.db"
+    with open_register(reg) as r:
+        for k in range(30):
+            r.record_issue(design_for_job(f"HL-{k:04d}", units=[f"HL-{k:04d}-01"],
+                                          customer="Fenwick" if k % 2 else "Marlow"), "order", f"{k:064x}")
+        assert schema.has_listing_index(r.conn)
+        plans = []
+        r.conn.set_trace_callback(plans.append)
+        jobs = r.list_jobs()
+        r.conn.set_trace_callback(None)
+        plan = [row[3] for row in r.conn.execute("EXPLAIN QUERY PLAN " + next(q for q in plans if "units_json" in q))]
+        # Every issue column the listing reads comes from the index: no issue record is read.
+        assert any("COVERING INDEX issues_listing" in p for p in plan), plan
+        page, total = r.list_jobs_page(2, 10, customer="fenwick", since="2026-01-01")
+        r.conn.execute("DROP INDEX issues_listing")
+    with open_register_readonly(reg) as r:
+        assert r.list_jobs() == jobs
+        assert r.list_jobs_page(2, 10, customer="fenwick", since="2026-01-01") == (page, total)
+    assert total == 15 and [j["number"] for j in page] == [f"HL-{k:04d}" for k in (9, 7, 5, 3, 1)]

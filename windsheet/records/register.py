@@ -458,6 +458,7 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         conn.execute("PRAGMA foreign_keys = ON")
         version = schema.migrate(conn, version, _now())
         ensure_table(conn)  # registers made before lots were recorded gain the table
+        schema.ensure_listing_index(conn, version)
     except sqlite3.OperationalError as exc:
         conn.close()
         if _is_locked(exc):

@@ -129,6 +129,32 @@ def check_json(conn: sqlite3.Connection, label: str) -> None:
                                     f"in {col}; restore it from a backup")
 
 
+#: A covering index of what the listing reads of each issue: the listing, a page of the bench's job
+#: list and the writers' text check read it instead of the issue records, whose JSON (tens of kB)
+#: comes before these columns. Not a schema change: a register without it is read as before.
+LISTING_INDEX = "issues_listing"
+LISTING_INDEX_SQL = (f"CREATE INDEX IF NOT EXISTS {LISTING_INDEX} ON issues(job, id, revision, order_sha256, "
+                     "issued_at, issued_by, design_state, units_json)")
+
+
+def has_listing_index(conn: sqlite3.Connection) -> bool:
+    return conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'index' AND name = ?",
+                        (LISTING_INDEX,)).fetchone() is not None
+
+
+def ensure_listing_index(conn: sqlite3.Connection, version: int) -> None:
+    """Add the listing's covering index to a version-2 register that lacks it (one pass, once)."""
+    if version < 2 or has_listing_index(conn):
+        return
+    conn.execute("BEGIN IMMEDIATE")
+    try:
+        conn.execute(LISTING_INDEX_SQL)
+        conn.execute("COMMIT")
+    except BaseException:
+        conn.execute("ROLLBACK")
+        raise
+
+
 #: The text columns the register's listing and the bench's job list read, by table: a writer checks
 #: them before it writes, so a register the listing refuses as damaged is never written to.
 LISTED_TEXT = {
@@ -151,10 +177,12 @@ def check_text(conn: sqlite3.Connection, label: str) -> None:
         if not cols:
             continue
         odd = " OR ".join(f"{c} GLOB '*[^ -~]*'" for c in cols)
+        # The issues' listed columns all sit in the listing's covering index: read it, not the records.
+        indexed = f" INDEXED BY {LISTING_INDEX}" if table == "issues" and has_listing_index(conn) else ""
         old_factory = conn.text_factory
         conn.text_factory = bytes
         try:
-            for row in conn.execute(f"SELECT rowid, {', '.join(cols)} FROM {table} WHERE {odd}"):
+            for row in conn.execute(f"SELECT rowid, {', '.join(cols)} FROM {table}{indexed} WHERE {odd}"):
                 for col, value in zip(cols, row[1:]):
                     if isinstance(value, bytes):
                         try:

@@ -11,6 +11,7 @@ from typing import Optional
 
 from windsheet.common.errors import InputError
 from windsheet.design.state_rules import recorded_state
+from windsheet.records import register_schema as schema
 from .register_checks import _reads
 
 
@@ -31,6 +32,25 @@ class JobStates:
             args.append(since)
         return ("WHERE " + " AND ".join(clauses)) if clauses else "", tuple(args)
 
+    def _listing_index(self) -> bool:
+        if getattr(self, "_has_listing_index", None) is None:
+            self._has_listing_index = self.version >= 2 and schema.has_listing_index(self.conn)
+        return self._has_listing_index
+
+    def _page_source(self, customer=None, since=None) -> tuple[str, tuple]:
+        """``FROM … WHERE …`` of the latest issue of each job matching the filters, as ``l.id``.
+
+        Without a date the issues' own rows are not read at all (the latest ids come from
+        the index on ``(job, id)``, the customer from the jobs table): a page, and the count
+        of all, cost the same whatever size the issue records are.
+        """
+        latest = "(SELECT job, MAX(id) AS id FROM issues GROUP BY job) l JOIN jobs j ON j.number = l.job"
+        if since:
+            latest += (f" JOIN issues i INDEXED BY {schema.LISTING_INDEX} ON i.job = l.job AND i.id = l.id"
+                       if self._listing_index() else " JOIN issues i ON i.id = l.id")
+        where, args = self._latest_where(None, customer, since)
+        return f"FROM {latest} {where}", args
+
     def _states(self, number: Optional[str] = None, *, customer: Optional[str] = None,
                 since: Optional[str] = None, limit: Optional[int] = None, offset: int = 0) -> list[dict]:
         """Each job's state at its latest issued revision (one job, or all, newest issue first).
@@ -46,17 +66,21 @@ class JobStates:
         if limit is not None:
             # The page's issue ids first, from the index and the jobs table (no record is read
             # but the page's own), then the page's rows.
+            source, page_args = self._page_source(customer, since)
             ids = [r[0] for r in self.conn.execute(
-                "SELECT i.id FROM issues i JOIN jobs j ON j.number = i.job "
-                f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where} "
-                f"ORDER BY i.id DESC LIMIT {int(limit)} OFFSET {int(offset)}", args)]
+                f"SELECT l.id {source} ORDER BY l.id DESC LIMIT {int(limit)} OFFSET {int(offset)}", page_args)]
             where, args = f"WHERE i.id IN ({', '.join('?' * len(ids)) or 'NULL'})", tuple(ids)
+        if self._listing_index():
+            # Every column read here is in the covering index: no issue record is read.
+            join = (f"(SELECT job, MAX(id) AS id FROM issues GROUP BY job) l "
+                    f"JOIN issues i INDEXED BY {schema.LISTING_INDEX} ON i.job = l.job AND i.id = l.id "
+                    "JOIN jobs j ON j.number = l.job")
+        else:
+            join = ("issues i JOIN jobs j ON j.number = i.job "
+                    "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id")
         latest = self.conn.execute(
             "SELECT i.job, i.id, i.revision, i.order_sha256, i.units_json, i.issued_at, i.issued_by, "
-            f"{design}, j.part, j.customer "
-            "FROM issues i JOIN jobs j ON j.number = i.job "
-            f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where} "
-            "ORDER BY i.id DESC", args).fetchall()
+            f"{design}, j.part, j.customer FROM {join} {where} ORDER BY i.id DESC", args).fetchall()
         verdict = "u.unit_verdict" if v2 else "json_extract(u.measurements_json, '$.verdict')"
         if number is not None:
             only, only_args = "WHERE s.job = ? ", (number,)
@@ -135,11 +159,8 @@ class JobStates:
             chosen = select(self._states(since=since), state, customer)
             return chosen[(page - 1) * per_page: page * per_page], len(chosen)
         if state is None:
-            where, args = self._latest_where(None, customer, since)
-            total = self.conn.execute(
-                "SELECT count(*) FROM issues i JOIN jobs j ON j.number = i.job "
-                f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where}",
-                args).fetchone()[0]
+            source, args = self._page_source(customer, since)
+            total = self.conn.execute(f"SELECT count(*) {source}", args).fetchone()[0]
             return self._states(customer=customer, since=since, limit=per_page,
                                 offset=(page - 1) * per_page), total
         chosen = select(self._states(customer=customer, since=since), state)
