@@ -107,9 +107,11 @@ class JobStates:
             if not isinstance(serials, list):
                 raise ValueError(f"issue {iid}: units_json is not a list")
             got = units.get(job, {})
-            passed = sorted(s for s, v in got.items() if v == "pass")
-            failed = sorted(s for s, v in got.items() if v == "fail")
-            incomplete = sorted(s for s, v in got.items() if v == "incomplete")
+            by = {"pass": [], "fail": [], "incomplete": []}  # one pass over the unit verdicts
+            for serial, v in got.items():
+                if v in by:
+                    by[v].append(serial)
+            passed, failed, incomplete = sorted(by["pass"]), sorted(by["fail"]), sorted(by["incomplete"])
             everyone = set(serials) or set(got)
             state = ("failed" if failed else "incomplete" if incomplete
                      else "passed" if got and everyone <= set(passed) else "issued")
