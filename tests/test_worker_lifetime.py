@@ -70,8 +70,7 @@ def test_a_killed_traveller_leaves_no_pdf_worker(tmp_path, after_s):
         out = proc.stdout.read()
         assert isinstance(out, bytes)
     finally:
-        for w in _children(proc.pid):
-            os.kill(w, signal.SIGKILL)
+        _reap(proc, locals().get("workers", []))
         proc.stdout.close()
         proc.stderr.close()
 
@@ -135,3 +134,34 @@ def test_a_temp_file_of_another_host_goes_only_when_a_day_old(tmp_path):
     old = time.time() - STALE_TEMP_AGE_S - 60
     os.utime(other, (old, old))
     assert clean_stale_temps(tmp_path) == [other] and not other.exists()
+
+
+@pytest.mark.skipif(not LINUX or (os.cpu_count() or 1) < 2, reason="the batch forks its workers on 2+ cores")
+def test_a_killed_batch_leaves_no_worker_process(tmp_path):
+    orders = sorted(p for p in SAMPLES.glob("hl-*.yaml"))
+    env = {**os.environ, "WINDSHEET_REGISTER": str(tmp_path / "reg.db")}
+    proc = subprocess.Popen([sys.executable, "-m", "windsheet.cli", "traveller", *map(str, orders),
+                             "-o", str(tmp_path / "out"), "--html", "--jobs", "2"],
+                            stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=env, cwd=tmp_path)
+    try:
+        assert _wait(lambda: len(_children(proc.pid)) >= 2, 20), "the batch's workers were never started"
+        workers = _children(proc.pid)
+        os.kill(proc.pid, signal.SIGKILL)
+        proc.wait(timeout=10)
+        assert _wait(lambda: not any(_alive(w) for w in workers), 5), [w for w in workers if _alive(w)]
+    finally:
+        _reap(proc, locals().get("workers", []))
+
+
+def _reap(proc, workers):
+    """Leave nothing running whatever the test found: the workers it saw (orphans by now) too."""
+    for w in set(workers) | set(_children(proc.pid)):
+        try:
+            ours = b"windsheet" in Path(f"/proc/{w}/cmdline").read_bytes()
+        except OSError:
+            continue
+        if ours and _alive(w):
+            try:
+                os.kill(w, signal.SIGKILL)
+            except OSError:
+                pass

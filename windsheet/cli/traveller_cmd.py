@@ -157,8 +157,10 @@ def _in_parallel(fn, work: list, jobs: int = 0):
         yield from map(fn, work)
         return
     from concurrent.futures import ProcessPoolExecutor
+    from windsheet.sheets.pdf_worker import die_with_parent
 
-    with ProcessPoolExecutor(max_workers=n) as pool:
+    # Each worker ends with this command, however it ends (a killed batch left them running).
+    with ProcessPoolExecutor(max_workers=n, initializer=die_with_parent, initargs=(os.getpid(),)) as pool:
         yield from pool.map(fn, work)
 
 

@@ -18,8 +18,9 @@ import os
 WATCHDOG_PERIOD_S = 0.5
 
 
-def _die_with_parent(parent_pid: int) -> None:
-    """Make this (forked) worker end when the command that forked it ends, however it ends.
+def die_with_parent(parent_pid: int) -> None:
+    """Make this (forked) worker end when the command that forked it ends, however it ends
+    (the PDF worker, and the batch's worker processes as their initializer).
 
     On Linux the kernel sends SIGKILL at the parent's death (``prctl(PR_SET_PDEATHSIG)``);
     elsewhere, and as a second guard, a daemon thread watches the parent's PID.  A parent
@@ -72,7 +73,7 @@ def _serve(conn, parent_end=None, parent_pid: int | None = None) -> None:
         # never see end-of-file when the parent dies.
         parent_end.close()
     if parent_pid is not None:
-        _die_with_parent(parent_pid)
+        die_with_parent(parent_pid)
         _detach_from_caller()
     try:
         from .sheet_pdf import _weasyprint, render_pdf
