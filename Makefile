@@ -5,7 +5,7 @@ BIN     := $(VENV)/bin
 STAMP   := $(VENV)/.installed
 OUT     ?= out
 
-.PHONY: demo test bench clean syslibs
+.PHONY: demo test test-long bench clean syslibs
 
 $(STAMP): pyproject.toml
 	$(MAKE) syslibs
@@ -38,6 +38,11 @@ demo: $(STAMP)
 
 test: $(STAMP)
 	$(BIN)/python -m pytest
+
+# The nightly run: every paper and unit pairing of the page-fault test, and ten times the
+# property tests' examples (tests/conftest.py's "long" hypothesis profile).
+test-long: $(STAMP)
+	WINDSHEET_LONG=1 $(BIN)/python -m pytest
 
 bench: $(STAMP)
 	$(BIN)/python benchmarks/run.py $(ONLY)

@@ -14,8 +14,23 @@ def _register_in_tmp(tmp_path, monkeypatch):
     yield
 
 
-def sample_orders():
+def _orders():
     return sorted(p for p in SAMPLES.glob("*.yaml") if not p.name.endswith(".measured.yaml"))
+
+
+def _is_transformer(path) -> bool:
+    # A transformer order lists its windings at the top level.
+    return any(line.startswith("windings:") for line in path.read_text().splitlines())
+
+
+def sample_orders():
+    """The sample coil orders."""
+    return [p for p in _orders() if not _is_transformer(p)]
+
+
+def transformer_orders():
+    """The sample transformer orders."""
+    return [p for p in _orders() if _is_transformer(p)]
 
 
 def redesign(design, **changes):
@@ -56,3 +71,12 @@ def design_for_job(number, revision="A", units=(), order_hash=None, **job):
     base = sample_design()
     new_job = base.job.model_copy(update={"number": number, "revision": revision, "units": list(units), **job})
     return base.model_copy(update={"job": new_job, "order_hash": order_hash})
+
+
+#: ``make test-long`` (WINDSHEET_LONG=1) runs ten times the property tests' examples.
+LONG = bool(os.environ.get("WINDSHEET_LONG"))
+
+
+def examples(n: int) -> int:
+    """A property test's example count: ``n`` on every change, ten times that in the nightly run."""
+    return n * 10 if LONG else n

@@ -43,6 +43,7 @@ def test_signoff_sheet_into_missing_folder_records_nothing(tmp_path):
 
 
 def test_demo_renders_travellers_and_signoff_sheets(tmp_path):
+    # The one demo render of the suite (it sizes and prints every sample): every check on it is here.
     out = tmp_path / "demo"
     res = runner.invoke(app, ["demo", "--out", str(out)])
     assert res.exit_code == 0, res.output
@@ -51,7 +52,7 @@ def test_demo_renders_travellers_and_signoff_sheets(tmp_path):
         assert (out / f"{o.stem}.pdf").read_bytes().startswith(b"%PDF")
         assert (out / f"{o.stem}.html").read_text().lstrip().lower().startswith("<!doctype html")
     assert (out / "HL-0412-signoff.pdf").exists() and (out / "HL-0412-reversed-signoff.html").exists()
-    assert str(out) in res.stdout
+    assert str(out.resolve()) in res.stdout
 
 
 def test_refused_issue_leaves_the_old_sheet_and_no_new_one(tmp_path):

@@ -142,19 +142,28 @@ def _issued_register(tmp_path):
 
 
 def test_signoff_batch_pairs_readings_with_their_job_and_fails_on_the_reversed_unit(tmp_path):
-    # The samples folder holds every order and both HL-0412 readings files; the
-    # reversed-strand file's unit -02 reads the leakage only (2.71 uH against ~400 uH).
+    # The samples folder holds every order, both HL-0412 readings files and the HL-0431
+    # transformer's; the reversed-strand file's unit -02 reads the leakage only (2.71 uH
+    # against ~400 uH); the transformer's -02 is two turns short and -03 has no hipot reading.
     reg = _issued_register(tmp_path)
+    res = _cli("signoff", SAMPLES, "--register", reg, "--json")
+    # A readings file whose job has no issued traveller is refused by name and the batch goes on.
+    assert res.returncode == 1, res.stderr
+    assert res.stderr.decode().splitlines()[-1] == (
+        "windsheet: signed off 2 of 3 readings files — units 7 pass, 1 fail, 0 incomplete; "
+        f"1 refused ({SAMPLES / 'HL-0431.measured.yaml'})")
+    assert runner.invoke(app, ["register", "--register", str(reg), "--issue",
+                               str(SAMPLES / "hl-0431-isolation-transformer.yaml")]).exit_code == 0
     res = _cli("signoff", SAMPLES, "--register", reg, "--json")
     assert res.returncode == 1, res.stderr
     rows = [json.loads(line) for line in res.stdout.decode().splitlines()]
     by_file = {Path(r["file"]).name: r for r in rows}
-    assert set(by_file) == {"HL-0412.measured.yaml", "HL-0412-reversed.measured.yaml"}
+    assert set(by_file) == {"HL-0412.measured.yaml", "HL-0412-reversed.measured.yaml", "HL-0431.measured.yaml"}
     assert (by_file["HL-0412.measured.yaml"]["units_passed"], by_file["HL-0412.measured.yaml"]["units_failed"]) == (4, 0)
     assert (by_file["HL-0412-reversed.measured.yaml"]["units_passed"],
             by_file["HL-0412-reversed.measured.yaml"]["units_failed"]) == (3, 1)
     assert res.stderr.decode().splitlines()[-1] == (
-        "windsheet: signed off 2 of 2 readings files — units 7 pass, 1 fail, 0 incomplete")
+        "windsheet: signed off 3 of 3 readings files — units 8 pass, 2 fail, 1 incomplete")
 
 
 def test_signoff_batch_names_readings_without_an_order_and_goes_on(tmp_path):

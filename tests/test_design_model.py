@@ -215,7 +215,7 @@ def test_a_version_1_record_keeps_its_recorded_lines_and_forced_status():
 def _expected_counts(name):
     """Ends, leads brought out and sleeves per unit, counted from the order text itself."""
     order = yaml.safe_load(_order_text(name))
-    strands = int(order["winding"]["strands"])
+    strands = int(order["winding"].get("strands", 1))   # one strand unless the order says
     hookup = order["hookup"]
     joins = {"single": 0, "series-aiding": strands - 1, "series-opposing": 1, "parallel": 2, "separate": 0}
     if isinstance(hookup, dict):
@@ -278,7 +278,7 @@ def test_bill_of_materials_counts_the_designs_sleeving(name):
     job = bill["jobs"][0]
     assert job["sleeving"]["pieces"] == want["quantity"] * d.connections.sleeving_pieces_per_unit
     assert job["quantity"] == want["quantity"] == d.quantity
-    assert job["wire"]["strands"] == len(d.strands)
+    assert [w["strands"] for w in job["wires"]] == [len(d.strands)]
 
 
 @pytest.mark.parametrize("name", CASES)

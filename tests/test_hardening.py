@@ -7,6 +7,7 @@ with exit status 2 and one line on stderr naming the field at fault.
 
 from __future__ import annotations
 
+from conftest import examples
 import copy
 import json
 import math
@@ -29,9 +30,11 @@ from conftest import SAMPLES, sample_orders
 runner = CliRunner()
 
 SAMPLE_DOCS = [yaml.safe_load(p.read_text()) for p in sample_orders()]
-MEASURED_DOCS = [yaml.safe_load(p.read_text()) for p in sorted(SAMPLES.glob("*.measured.yaml"))]
+# The coils' readings (a transformer's are read winding by winding: tests/test_transformer_signoff.py).
+MEASURED_DOCS = [d for d in (yaml.safe_load(p.read_text()) for p in sorted(SAMPLES.glob("*.measured.yaml")))
+                 if not any("windings" in u for u in d["units"])]
 SECTIONS = {"job", "form", "wire", "winding", "hookup", "duty", "tolerances", "insulation", "test", "terminations"}
-PROPERTY = settings(max_examples=200, deadline=None, derandomize=True,
+PROPERTY = settings(max_examples=examples(200), deadline=None, derandomize=True,
                     suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 
 
@@ -50,7 +53,8 @@ SCALARS = st.one_of(st.none(), st.booleans(), NUMBERS, TEXT, QUANTITIES, st.date
                     st.sampled_from(["auto", "yes", "single", "parallel", "A.start", "B.finish", "~", "null"]))
 VALUES = st.recursive(SCALARS, lambda inner: st.lists(inner, max_size=3)
                       | st.dictionaries(st.text(max_size=12), inner, max_size=3), max_leaves=6)
-_QTY = re.compile(r"^\s*([-+0-9.eE]+)\s*(\S.*)$")
+# A number (with a digit: "E/I" or "end" is text) followed by its unit.
+_QTY = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(\S.*)$")
 ENDS = st.builds(lambda s, w: f"{s}.{w}", st.sampled_from("ABCDEab"),
                  st.sampled_from(["start", "finish", "middle", "START", ""]))
 

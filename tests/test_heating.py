@@ -130,9 +130,114 @@ def test_thermal_fail_is_not_issued_unless_forced():
 
 
 def test_voltage_driven_coil_draws_less_as_it_warms():
-    doc = _multilayer(voltage="6 V dc")
-    doc["duty"].pop("current", None)
+    doc = _multilayer(voltage="6 V dc", current="voltage-driven")
     doc["duty"].pop("operating_temperature", None)
     p = build_design(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
     # Ohm's law at the balance's own temperature: P = V²/R_hot, self-consistent.
     assert p.thermal.loss_W == pytest.approx(6.0 ** 2 / p.terminal.resistance_hot_ohm, rel=1e-3)
+
+
+# --- the duty's current: given, from a pulse train, or not known -----------------------------
+
+PULSE = """\
+job: {number: HL-0960, part: "Pulse coil", quantity: 1}
+form: {kind: cylinder, diameter: 30 mm, traverse: 60 mm}
+wire: {size: 0.20 mm, grade: 3}
+winding: {turns: 300, layers: 2}
+hookup: single
+duty: {voltage: 600 V peak, waveform: pulse, rise_time: 200 ns%s}
+"""
+
+
+def _pulse(extra=""):
+    return build_design(parse_order((PULSE % extra).encode(), "o.yaml"), remedies=False)
+
+
+def test_a_pulse_without_its_repetition_gives_no_current_and_no_temperature():
+    from windsheet.cli.size_cmd import summary_lines
+    from windsheet.sheets.render import render_pdf, render_traveller_html
+    import io
+    import re
+    import pypdf
+
+    p = _pulse()
+    th = p.thermal
+    assert p.duty.current_basis is None and p.strands[0].current_A is None and p.energy is None
+    assert th.verdict == "unknown" and th.hot_spot_C is None and th.surface_C is None
+    assert "duty.repetition_rate" in th.missing and "duty.pulse_width" in th.missing
+    text = "\n".join(summary_lines(p))
+    assert "NOT JUDGED" in text and "°C (class" not in text and "Current " not in text
+    pdf = render_pdf(render_traveller_html(p, forced=True))
+    sheet = " ".join(pg.extract_text() for pg in pypdf.PdfReader(io.BytesIO(pdf)).pages)
+    # The waveform as given, and no current or temperature the order did not give.
+    flat = re.sub(r"\s+", " ", sheet)
+    assert "Waveform pulse" in flat and "Voltage 600 V peak" in flat and "Rise time 200 ns" in flat
+    assert "V d.c." not in flat and "Frequency d.c." not in flat
+    assert "not given (none assumed)" in sheet
+    assert not re.search(r"\d\s*mA|\d\s*A rms", flat)
+    assert not re.search(r"(surface|hot spot)[^.]{0,40}\d+(\.\d)?\s*°C", flat, re.I)
+
+
+def test_pulse_heating_from_width_and_rate_is_the_rl_transient():
+    import math
+
+    p = _pulse(", repetition_rate: 100 Hz, pulse_width: 20 us")
+    d, t = p.duty, p.terminal
+    assert d.current_basis == "pulse width and repetition rate"
+    # Series RL step response and its free decay (standard circuit theory), summed here by the
+    # trapezoid rule over a fine grid, independently of the closed form the engine uses.
+    R = p.terminal.resistance_hot_ohm
+    L = t.inductance_H
+    tau, w = L / R, 20e-6
+    n = 20000
+    dt = (w + 12 * tau) / n
+    act = 0.0
+    i_prev = 0.0
+    for k in range(1, n + 1):
+        tt = k * dt
+        i = 600 / R * (1 - math.exp(-tt / tau)) if tt <= w else 600 / R * (1 - math.exp(-w / tau)) * math.exp(-(tt - w) / tau)
+        act += (i * i + i_prev * i_prev) / 2 * dt
+        i_prev = i
+    assert d.current_A == pytest.approx(math.sqrt(100 * act), rel=2e-3)
+    assert p.thermal.hot_spot_C is not None and p.thermal.verdict in ("pass", "marginal", "fail")
+
+
+def test_pulse_energy_route_and_its_refusals():
+    from windsheet.common.errors import InputError
+
+    p = _pulse(", repetition_rate: 50 Hz, pulse_energy: 20 mJ")
+    # Every pulse leaves its energy in the copper: the loss is energy × rate.
+    assert p.thermal.loss_W == pytest.approx(0.020 * 50, rel=1e-9)
+    for extra, field in ((", repetition_rate: 1 kHz, pulse_width: 2 ms", "duty.pulse_width"),
+                         (", repetition_rate: 1 kHz, pulse_width: 2 us, pulse_energy: 1 mJ", "duty.pulse_energy"),
+                         (", current: voltage-driven", "duty.current")):
+        with pytest.raises(InputError) as err:
+            _pulse(extra)
+        assert err.value.path == field
+    with pytest.raises(InputError) as err:
+        build_design(parse_order(yaml.safe_dump(_multilayer(repetition_rate="10 Hz")).encode(), "o.yaml"))
+    assert err.value.path == "duty.repetition_rate"
+
+
+def test_a_sine_duty_without_a_current_is_not_heated():
+    doc = _multilayer(voltage="24 V rms", frequency="50 Hz")
+    doc["duty"].pop("current")
+    doc["duty"].pop("operating_temperature")
+    p = build_design(parse_order(yaml.safe_dump(doc).encode(), "o.yaml"), remedies=False)
+    assert p.thermal.verdict == "unknown" and "duty.current" in p.thermal.missing
+    assert p.duty.operating_temperature_basis == "ambient" and p.duty.operating_temperature_C == p.duty.ambient_C
+
+
+def test_runaway_is_reported_as_runaway_never_as_a_temperature():
+    from windsheet.cli.size_cmd import summary_lines
+    from windsheet.sheets.render import render_traveller_html
+
+    p = build_design(parse_order(yaml.safe_dump(_multilayer(current="30 A")).encode(), "o.yaml"), remedies=False)
+    th = p.thermal
+    assert th.converged is False and th.verdict == "fail"
+    assert th.hot_spot_C is None and th.surface_C is None and p.cautions.surface_C is None
+    assert "no steady temperature below 1000 °C" in th.reason
+    text = "\n".join(summary_lines(p))
+    assert "RUNAWAY" in text
+    html = render_traveller_html(p, forced=True)
+    assert "RUNAWAY" in html and "no steady temperature below 1000" in html

@@ -1,5 +1,6 @@
 """Checks of windsheet.physics.inductance against published values and independent evaluations."""
 
+from conftest import examples
 import dataclasses
 import math
 
@@ -358,7 +359,7 @@ def test_fast_sum_refuses_coinciding_turns():
         strand_matrix(moved)
 
 
-@settings(max_examples=30, deadline=None)
+@settings(max_examples=examples(30), deadline=None)
 @given(strands=st.integers(1, 4), turns=st.integers(1, 90), layers=st.integers(1, 9),
        pitch_factor=st.floats(1.0, 3.0), tape=st.sampled_from([0.0, 1e-5, 7.3e-5]))
 def test_fast_sum_equals_double_sum_property(strands, turns, layers, pitch_factor, tape):

@@ -57,13 +57,14 @@ def test_tape_and_sleeving_follow_the_winding(predictions):
     multilayer = next(j for j in bill["jobs"] if j["job"] == "HL-0418")
     p = next(p for p in predictions if p.job.number == "HL-0418")
     L, q = p.layers, p.job.quantity
-    assert multilayer["tape"]["wraps"] == q * (L - 1)
+    (tape,) = multilayer["tapes"]
+    assert tape["wraps"] == q * (L - 1)
     # Each wrap is π × (form diameter + 2 × its height) plus 10 % overlap; heights k·build/L.
     d, b = p.form.diameter_m, p.fit.build_m
     want = q * sum(math.pi * (d + 2 * k * b / L) * 1.1 for k in range(1, L))
-    assert multilayer["tape"]["length_m"] == pytest.approx(want, rel=1e-12)
+    assert tape["length_m"] == pytest.approx(want, rel=1e-12)
     single = next(j for j in bill["jobs"] if j["job"] == "HL-0410")
-    assert single["tape"] is None
+    assert single["tapes"] == []
     # Sleeving: terminals + joints per unit (common practice), each a lead length.
     bif = next(j for j in bill["jobs"] if j["job"] == "HL-0412")
     assert bif["sleeving"]["pieces"] == 4 * 3
@@ -93,7 +94,7 @@ def test_cli_writes_csv_json_and_pdf(tmp_path, predictions):
     want = sum(p.job.quantity * s.wire_length_with_scrap_m for p in predictions for s in p.strands)
     assert total_m == pytest.approx(want, abs=5e-3)
     doc = json.loads((tmp_path / "bom.json").read_text())
-    assert doc["schema"] == "windsheet.materials/1" and len(doc["jobs"]) == 4
+    assert doc["schema"] == "windsheet.materials/2" and len(doc["jobs"]) == 4
     text = "".join(pg.extract_text() for pg in pypdf.PdfReader(tmp_path / "bom.pdf").pages)
     assert "To pull from stores" in text and "HL-0418" in text
     assert bill_csv(bill_of_materials(predictions)) == (tmp_path / "bom.csv").read_text()

@@ -1,5 +1,6 @@
 """The cell-list neighbour search against scipy's k-d tree (an independent implementation)."""
 
+from conftest import examples
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -73,14 +74,14 @@ def test_edge_cases_match_the_kd_tree(x, y):
 points = st.lists(st.tuples(st.floats(-50, 50), st.floats(-50, 50)), min_size=0, max_size=120)
 
 
-@settings(max_examples=60, deadline=None)
+@settings(max_examples=examples(60), deadline=None)
 @given(points, st.floats(0.05, 30))
 def test_random_points_match_the_kd_tree(pts, reach):
     xy = np.array(pts, dtype=float).reshape(-1, 2)
     assert cell_pairs(xy[:, 0], xy[:, 1], reach) == kd_tree_pairs(xy[:, 0], xy[:, 1], reach)
 
 
-@settings(max_examples=25, deadline=None)
+@settings(max_examples=examples(25), deadline=None)
 @given(st.integers(1, 4), st.integers(5, 120), st.integers(1, 6),
        st.sampled_from(["nested", "stacked"]), st.sampled_from([0.0, 30e-6, 0.3e-3]))
 def test_random_cylinders_match_the_kd_tree(strands, turns, layers, style, tape):

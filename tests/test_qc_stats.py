@@ -84,3 +84,12 @@ def test_chart_prints_limits_rules_and_sigma_readably():
     sizes = [float(s) for s in re.findall(r"font-size:\s*([0-9.]+)px", svg)]
     sizes += [float(s) for s in re.findall(r"font:\s*(?:\w+\s+)*?([0-9.]+)px", svg)]
     assert sizes and min(sizes) >= 7.0
+
+
+def test_the_unit_axis_has_whole_numbers_only():
+    # Three units: a default axis would tick 0.5, 1.0, 1.5 ...; units are counted, never halved.
+    chart = line_chart([{"ratio": r, "job": "J", "serial": str(i)} for i, r in enumerate((1.0, 1.2, 1.4))])
+    svg = control_chart_svg(chart, "three units")
+    ticks = re.findall(r"<text[^>]*>\s*([-−0-9.]+)\s*</text>", svg)
+    assert {"1", "2", "3"} <= set(ticks)
+    assert not any(t.endswith(".5") for t in ticks)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from conftest import examples
 import json
 import os
 import sqlite3
@@ -183,7 +184,7 @@ def test_text_that_is_not_utf8_is_damage(tmp_path):
     assert len(res.stderr.splitlines()) == 1
 
 
-@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=examples(25), deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(offsets=st.lists(st.integers(100, 40_000), min_size=1, max_size=6), byte=st.integers(0, 255))
 def test_random_damage_is_refused_or_read_never_a_traceback(tmp_path_factory, offsets, byte):
     tmp = tmp_path_factory.mktemp("damage")

@@ -1,6 +1,7 @@
 """The QC report on a sample register of simulated sign-offs (invented data, demo only)."""
 
 import json
+import re
 import sqlite3
 
 import numpy as np
@@ -48,7 +49,8 @@ def test_report_states_the_bias_per_family(sample_register):
     # The chart's limits, from the same stored values with numpy (Montgomery's individuals chart).
     lim = line["chart"]["limits"]
     assert lim["ucl"] == pytest.approx(x.mean() + 3 * np.abs(np.diff(x)).mean() / 1.128, rel=1e-12)
-    want = f"inductance at terminals reads {(x.mean() - 1) * 100:+.1f} % ± {x.std(ddof=1) * 100:.1f} % over 32 units"
+    want = (f"inductance at terminals reads {(x.mean() - 1) * 100:+.1f} % ± {x.std(ddof=1) * 100:.1f} % "
+            "over 32 units that passed")
     assert any(s.startswith("bifilar series-aiding on glass-epoxy tube") and s.endswith(want)
                for s in rep["statements"])
     # The simulated bias (+2.1 %, spread 0.8 %) is recovered within its standard error, about 0.15 %.
@@ -88,3 +90,39 @@ def test_report_on_an_empty_register_is_refused(tmp_path):
     open_register(tmp_path / "empty.db").close()
     r = runner.invoke(app, ["report", "--register", str(tmp_path / "empty.db")])
     assert r.exit_code == 2 and "no unit is signed off" in r.output
+
+
+def test_a_miswired_unit_is_marked_and_moves_neither_the_bias_nor_the_limits(tmp_path):
+    # HL-0412's reversed-strand readings: unit -02 reads the leakage only and fails; the other three pass.
+    from conftest import SAMPLES
+    from windsheet.sheets.control_chart import control_chart_svg
+
+    reg = tmp_path / "r.db"
+    order = SAMPLES / "hl-0412-bifilar-aiding.yaml"
+    assert runner.invoke(app, ["register", "--issue", str(order), "--register", str(reg)]).exit_code == 0
+    res = runner.invoke(app, ["signoff", str(order), str(SAMPLES / "HL-0412-reversed.measured.yaml"),
+                              "--register", str(reg)])
+    assert res.exit_code == 1, res.output
+    rep = json.loads(runner.invoke(app, ["report", "--register", str(reg), "--json"]).output)
+    fam = rep["families"][0]
+    assert [(u["serial"], u["verdict"]) for u in fam["apart"]] == [("HL-0412-02", "fail")]
+    # Independent of the report: the ratios straight from the register's table, the failed unit left out.
+    with sqlite3.connect(reg) as c:
+        rows = c.execute("SELECT serial, measurements_json FROM unit_signoffs ORDER BY id").fetchall()
+    ratio = {serial: next(ln["measured"] / ln["predicted"] for ln in json.loads(m)["lines"]
+                          if ln["key"] == "terminal.inductance") for serial, m in rows}
+    good = np.array([r for serial, r in ratio.items() if serial != "HL-0412-02"])
+    line = next(ln for ln in fam["lines"] if ln["key"] == "terminal.inductance")
+    assert line["bias"]["n"] == 3
+    assert line["bias"]["bias"] == pytest.approx(good.mean() - 1, rel=1e-12)
+    assert line["chart"]["limits"]["ucl"] == pytest.approx(good.mean() + 3 * np.abs(np.diff(good)).mean() / 1.128,
+                                                          rel=1e-12)
+    # The leakage-only unit is some 99 % low: inside the bias it would have dragged it to about -25 %.
+    assert ratio["HL-0412-02"] < 0.05 and abs(line["bias"]["bias"]) < 0.05
+    assert line["statement"].endswith("over 3 units that passed (1 failed or incomplete, listed apart)")
+    assert line["chart"]["excluded"] == [1]
+    svg = control_chart_svg(line["chart"], "a title long enough to wrap " * 6)
+    assert "failed or incomplete (not in the limits)" in svg and "MR-bar" in svg and "MR̄" not in svg
+    # The title wraps onto a second line rather than running off the chart.
+    lines = re.findall(r"<text[^>]*>([^<]*long enough[^<]*)</text>", svg)
+    assert len(lines) >= 2 and " ".join(lines).split() == ("a title long enough to wrap " * 6).split()

@@ -1,5 +1,6 @@
 """Sign-off: bench formulas, the measured-values loader, evaluation and diagnosis."""
 
+from conftest import examples
 import copy
 import json
 import math
@@ -409,7 +410,7 @@ _doc = st.recursive(_scalar, lambda kids: st.one_of(
     max_leaves=25)
 
 
-@settings(max_examples=300, suppress_health_check=[HealthCheck.too_slow], deadline=None)
+@settings(max_examples=examples(300), suppress_health_check=[HealthCheck.too_slow], deadline=None)
 @given(_doc)
 def test_any_document_loads_or_is_refused_cleanly(doc):
     try:
@@ -423,7 +424,7 @@ def test_any_document_loads_or_is_refused_cleanly(doc):
         assert exc.path and exc.message
 
 
-@settings(max_examples=150, deadline=None)
+@settings(max_examples=examples(150), deadline=None)
 @given(st.sampled_from(["terminals", "strand"]),
        st.floats(min_value=1e-9, max_value=1.0), st.floats(min_value=1e-4, max_value=1e4))
 def test_any_positive_readings_evaluate_to_json(where, L, R):

@@ -26,7 +26,8 @@ except SystemExit as e:
 else:
     code = 0
 watched = ["numpy", "pydantic", "scipy", "scipy.spatial", "scipy.constants", "scipy.special", "yaml",
-           "typer._adapters", "windsheet.order.document", "windsheet.qc.measured", "windsheet.qc.signoff"]
+           "typer._adapters", "windsheet.order.document", "windsheet.qc.measured", "windsheet.qc.signoff",
+           "windsheet.order.transformer", "windsheet.design.transformer_model"]
 print(json.dumps({"code": code, "loaded": [m for m in watched if m in sys.modules]}), file=sys.stderr)
 """
 
@@ -67,3 +68,11 @@ def test_size_does_not_load_scipy():
     # numpy, pydantic and yaml do the work; scipy is a test reference only.
     assert {"numpy", "pydantic", "yaml"} <= loaded
     assert not any(m.startswith("scipy") for m in loaded), loaded
+    # A coil order never builds the transformer's models.
+    assert not loaded & {"windsheet.order.transformer", "windsheet.design.transformer_model"}, loaded
+
+
+def test_a_transformer_order_loads_its_own_models():
+    code, loaded, out = run("size", ROOT / "samples" / "hl-0431-isolation-transformer.yaml")
+    assert code in (0, None) and "HL-0431" in out
+    assert {"windsheet.order.transformer", "windsheet.design.transformer_model"} <= loaded

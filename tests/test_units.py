@@ -6,6 +6,7 @@ so each spelling's factor is checked against pint's default registry.
 
 from __future__ import annotations
 
+from conftest import examples
 import math
 
 import numpy as np
@@ -22,11 +23,12 @@ from windsheet.order.units import DIMENSIONS, parse_percent, parse_quantity, rea
 REG = pint.UnitRegistry()
 UNITS, FOLDED, FOREIGN = table()
 SI_OF_KIND = {"length": "m", "inductance": "H", "capacitance": "F", "voltage": "V", "current": "A",
-              "frequency": "Hz", "resistance": "ohm", "time": "s", "mass": "kg", "angle": "rad"}
+              "frequency": "Hz", "resistance": "ohm", "time": "s", "mass": "kg", "angle": "rad",
+              "energy": "J", "flux_density": "T"}
 FIELD_OF_KIND = {"length": "length", "inductance": "inductance", "capacitance": "capacitance",
                  "voltage": "voltage", "current": "current", "frequency": "frequency",
                  "resistance": "resistance", "time": "time", "mass": "mass", "angle": "angle",
-                 "temperature": "temperature"}
+                 "temperature": "temperature", "energy": "energy", "flux_density": "flux_density"}
 
 
 # Where the trade and pint read a spelling differently, windsheet keeps the trade's meaning:
@@ -228,7 +230,7 @@ ALPHABET = st.sampled_from(list("0123456789.eE+-*/^() %") + ["mm", "uH", "V", "H
                                                               "degC", "kHz", "Ω", "µ", "°", "C", "**", "9"])
 
 
-@settings(max_examples=300, deadline=None, derandomize=True)
+@settings(max_examples=examples(300), deadline=None, derandomize=True)
 @given(parts=st.lists(ALPHABET, max_size=12), field=st.sampled_from(sorted(DIMENSIONS)))
 def test_any_text_reads_or_is_refused_in_one_line(parts, field):
     text = "".join(parts)

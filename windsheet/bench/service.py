@@ -43,8 +43,15 @@ def jobs(reg, page: int = 1, state=None, customer=None, since=None) -> tuple[lis
 
 def issued(reg, number: str):
     """A job's state at its latest issue, and the design recorded at that issue."""
+    from windsheet.design.dispatch import is_transformer_design
+
     state = reg.job_state(number)
     issue_id, prediction = reg.find_issue(number, state["revision"], state["order_sha256"])
+    if is_transformer_design(prediction):
+        # The page's fields are a coil's (strands, terminals); a transformer is read winding by winding.
+        raise InputError("job", f"{number} is a transformer: write its readings form with "
+                                "'windsheet readings-form' and sign it off with 'windsheet signoff'; "
+                                "this page takes coils")
     state = dict(state, issue_id=issue_id)
     return state, prediction
 

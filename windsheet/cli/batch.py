@@ -139,12 +139,13 @@ def read_stdin(max_bytes: int, what: str = "order") -> bytes:
 
 
 def load_order_arg(arg: str):
-    """The order a command-line argument names (``-``: standard input)."""
-    from windsheet.order.document import MAX_ORDER_BYTES, load_order, parse_order
+    """The order a command-line argument names (``-``: standard input): a coil's or a transformer's."""
+    from windsheet.order.document import MAX_ORDER_BYTES
+    from windsheet.order.reader import load_any_order, parse_any_order
 
     if arg == STDIN:
-        return parse_order(read_stdin(MAX_ORDER_BYTES), "standard input")
-    return load_order(arg)
+        return parse_any_order(read_stdin(MAX_ORDER_BYTES), "standard input")
+    return load_any_order(arg)
 
 
 def output_format(out, fmt: str | None, html: bool = False, allowed=("pdf", "html", "json")) -> str:

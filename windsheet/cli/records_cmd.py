@@ -27,8 +27,8 @@ def materials_cmd(orders: list[Path] = typer.Argument(..., help="Orders (YAML fi
                   paper: str = typer.Option("a4", "--paper", help="Paper size of the PDF: a4 or letter.")):
     """Bill of materials for a set of orders: per job and in total (wire, tape, sleeving, forms, labels)."""
     from windsheet.records.materials import bill_csv, bill_json_ready, bill_of_materials, bill_rows, load_reels
-    from windsheet.order.document import load_order
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
+    from windsheet.order.reader import load_any_order
     from windsheet.sheets.render import order_files
 
     kinds = {".csv", ".json", ".pdf"}
@@ -42,7 +42,7 @@ def materials_cmd(orders: list[Path] = typer.Argument(..., help="Orders (YAML fi
     numbers = {}
     predictions = []
     for f in files:
-        p = build_design(load_order(f), remedies=False)
+        p = size_any(load_any_order(f), remedies=False)
         number = p.job.number
         if number in numbers:
             raise InputError(str(f), f"job {number} is also in {numbers[number]}; give each job once")

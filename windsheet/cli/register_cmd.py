@@ -56,14 +56,16 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
     from windsheet.records.register import open_register_readonly, resolve_register_path
 
     if issue is not None:
-        from windsheet.order.document import load_order
-        from windsheet.design.build import build_design
+        from windsheet.order.reader import load_any_order
+        from windsheet.design.dispatch import size_any
         from windsheet.design.qc_plan import issued_state
         from windsheet.records.register import open_register
-        from windsheet.sheets.render import check_issuable
+        from .traveller_cmd import _sheet_functions
 
-        o = load_order(issue)
-        p = build_design(o)
+        # A coil or a transformer order, as the traveller takes it.
+        o = load_any_order(issue)
+        p = size_any(o)
+        check_issuable, _ = _sheet_functions(p)
         check_issuable(p, force)
         p = p.with_state(issued_state(p.state, force))
         with open_register(register, create=True) as reg:

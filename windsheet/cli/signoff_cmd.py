@@ -66,13 +66,13 @@ def signoff(paths: list[str] = typer.Argument(..., help="The order (YAML) and it
 def _signoff_single(order, measured, as_json, register, inspector, out, html, fmt, paper, dry_run) -> int:
     from .batch import output_format
     from windsheet.qc.readings_file import load_measured
-    from windsheet.order.document import load_order
+    from windsheet.order.reader import load_any_order
     from windsheet.records.register import open_register, open_register_readonly
     from windsheet.qc.signoff import exit_status
     from windsheet.qc.signoff import summary_lines as signoff_lines
 
     html = output_format(out, fmt, html, allowed=("pdf", "html")) == "html"
-    o = load_order(order)
+    o = load_any_order(order)
     readings = load_measured(measured)
     who = _inspector(inspector, readings)
     if dry_run and out is not None:
@@ -101,7 +101,7 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
     from .batch import output_format, progress
     from windsheet.order.limits import check_sheet_units
     from windsheet.qc.readings_file import load_measured
-    from windsheet.order.document import load_order
+    from windsheet.order.reader import load_any_order
     from windsheet.records.register import open_register, open_register_readonly
     from windsheet.qc.signoff import summary_lines as signoff_lines
 
@@ -121,7 +121,7 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
     by_job: dict = {}
     for f in orders:
         try:
-            o = load_order(f)
+            o = load_any_order(f)
         except InputError as exc:
             refuse(f, exc)
             continue
@@ -207,11 +207,9 @@ def _base_name(path: str) -> str:
 def _sign(reg, order, readings, who: str, *, dry_run: bool = False, sheet_to: Optional[Path] = None,
           html: bool = False, paper: str = "a4") -> dict:
     """Evaluate one readings file against its issued traveller; record it (and its sheet) unless a dry run."""
-    from windsheet.qc.signoff import evaluate_signoff
-
     job = order.doc.job
     _, issued = reg.find_issue(job.number, job.revision, order.sha256)
-    result = evaluate_signoff(issued, readings, inspector=who, resize=_resizer(order))
+    result = _evaluate(issued, order, readings, who)
     if dry_run:
         return result
     units = [u.model_dump(mode="json") for u in readings.units]
@@ -227,6 +225,25 @@ def _sign(reg, order, readings, who: str, *, dry_run: bool = False, sheet_to: Op
     with recorded_sheet(reg, "signoff", sheet_to, _signoff_sheet(issued, result, html, paper, chart)) as sheet:
         reg.record_signoff(result, order.sha256, who, measured_units=units, sheet=sheet)
     return result
+
+
+def _evaluate(design, order, readings, who) -> dict:
+    """The sign-off of a coil's or a transformer's readings against its design."""
+    from windsheet.design.dispatch import is_transformer_design
+    from windsheet.qc.transformer_readings import TransformerReadings
+
+    if is_transformer_design(design) != isinstance(readings, TransformerReadings):
+        kind = "a transformer" if is_transformer_design(design) else "a coil"
+        raise InputError("units", f"job {design.job.number} is {kind}; its readings are "
+                         + ("read winding by winding (units[].windings)" if kind == "a transformer"
+                            else "read strand by strand (units[].strands), not by windings"))
+    if isinstance(readings, TransformerReadings):
+        from windsheet.qc.transformer_signoff import evaluate_transformer_signoff
+
+        return evaluate_transformer_signoff(design, readings, inspector=who)
+    from windsheet.qc.signoff import evaluate_signoff
+
+    return evaluate_signoff(design, readings, inspector=who, resize=_resizer(order))
 
 
 def _resizer(order):
@@ -250,17 +267,22 @@ def readings_form_cmd(order: Path = typer.Argument(..., help="The order, a YAML 
                                                   "when the name does not end in .csv.")):
     """Write a measured-values file for the order: its serial numbers, every required QC line empty."""
     from windsheet.common.fileio import atomic_write_text
-    from windsheet.order.document import load_order
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import is_transformer_design, size_any
+    from windsheet.order.reader import load_any_order
     from windsheet.qc.readings_form import csv_form, yaml_form
 
-    p = build_design(load_order(order))
+    p = size_any(load_any_order(order))
     if out.exists():
         raise InputError(str(out), "already exists; a filled-in form is a record, not overwritten — "
                                    "choose another name")
     if not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
     csv_out = as_csv or out.suffix.lower() == ".csv"
+    if is_transformer_design(p):
+        if csv_out:
+            raise InputError(str(out), "a transformer's readings form is YAML (winding by winding); "
+                                       "name it .yaml")
+        from windsheet.qc.transformer_form import transformer_yaml_form as yaml_form
     atomic_write_text(out, csv_form(p) if csv_out else yaml_form(p))
     typer.echo(f"{p.job.number} rev {p.job.revision}: readings form for "
                f"{len(p.job.units)} units, {len(p.qc_required)} lines each: {out}", err=True)

@@ -51,9 +51,15 @@ def summary_lines(p) -> list[str]:
             f"{s.mass_kg * 1e3:.1f} g")
     t = p.terminal
     own = "each winding: " if p.hookup.name == "separate" and len(p.strands) > 1 else ""
+    d = p.duty
+    hot = {"given": "", "heat balance": " (heat balance)",
+           "ambient": " (ambient: nothing heats it)" if d.current_basis is None else " (ambient: no steady temperature)"}
     row("Terminals", own + f"L {eng(t.inductance_H, 'H')} (accept {eng(t.accept.inductance_min_H, 'H')} … "
         f"{eng(t.accept.inductance_max_H, 'H')}), R {eng(t.resistance_ohm, 'Ω')} at 20 °C, "
-        f"{eng(t.resistance_hot_ohm, 'Ω')} at {p.duty.operating_temperature_C:.0f} °C")
+        f"{eng(t.resistance_hot_ohm, 'Ω')} at {d.operating_temperature_C:.0f} °C"
+        + hot.get(d.operating_temperature_basis or "given", ""))
+    if d.current_basis and d.current_basis != "given":
+        row("Current", f"{eng(d.current_A, 'A')} rms, from the {d.current_basis}")
     if t.accept.inductance_basis == "target":
         row("", f"L accept band is the ordered target ± tolerance; prediction "
             f"{t.accept.prediction_offset * 100:+.2f} % from target")
@@ -61,17 +67,20 @@ def summary_lines(p) -> list[str]:
         row("", f"C and self-resonance not predicted: {t.capacitance_note}")
     else:
         row("", f"C {eng(t.capacitance_F, 'F')}, self-resonance {eng(t.self_resonance_Hz, 'Hz')}")
-    if t.resistance_ac_ohm is not None and p.ac_resistance and p.duty.frequency_Hz:
+    if t.resistance_ac_ohm is not None and t.loss_W is not None and p.ac_resistance and p.duty.frequency_Hz:
         row("", f"R {eng(t.resistance_ac_ohm, 'Ω')} at {eng(p.duty.frequency_Hz, 'Hz')} "
             f"(AC/DC {p.ac_resistance.ratio:.3f}), loss {eng(t.loss_W, 'W')} at the duty current")
     if p.current_sheet_inductance_H:
         row("Cross-check", f"current sheet (Nagaoka) {eng(p.current_sheet_inductance_H, 'H')}, with Rosa's "
             f"correction {eng(p.current_sheet_rosa_corrected_H, 'H')} (strand A)")
     th = p.thermal
-    if th:
+    if th and th.hot_spot_C is not None:
         row("Heating", f"{th.verdict.upper()} — surface +{th.surface_rise_K:.1f} K, hot spot "
             f"{th.hot_spot_C:.0f} °C (class {th.thermal_class_C or '—'}), "
             f"{th.current_density_A_per_mm2:.2f} A/mm²")
+    elif th:
+        # No temperature to give: a runaway, or nothing to heat the winding with.
+        row("Heating", ("RUNAWAY — " if th.converged is False else "NOT JUDGED — ") + th.reason)
     imp = p.impulse
     if imp:
         row("Fast edge", f"first turn {eng(imp.first_turn_Vpk, 'V')} peak (even share "
@@ -121,15 +130,15 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
         raise typer.Exit(2) from None
     if len(files) == 1:
         p = _size_one(files[0])
-        typer.echo(to_json(p.as_json()) if as_json else "\n".join(summary_lines(p)))
+        typer.echo(to_json(p.as_json()) if as_json else "\n".join(describe(p)))
         raise typer.Exit(1 if _insulation_fails(p) else 0)
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
 
     refused, failing = [], []
     with progress(len(files), "sizing") as step:
         for f in files:
             try:
-                p = build_design(load_order_arg(f))
+                p = size_any(load_order_arg(f))
             except InputError as exc:
                 # Named by its file; the batch carries on.
                 msg = str(exc)
@@ -147,7 +156,7 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
             if as_json:
                 typer.echo(json.dumps({"file": f, **p.as_json()}, ensure_ascii=False, allow_nan=False, default=str))
             else:
-                typer.echo(f"== {f}\n" + "\n".join(summary_lines(p)) + "\n")
+                typer.echo(f"== {f}\n" + "\n".join(describe(p)) + "\n")
             step()
     sized = len(files) - len(refused)
     tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
@@ -159,10 +168,26 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
 @guarded
 def _size_one(arg: str):
     from .batch import load_order_arg
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
 
-    return build_design(load_order_arg(arg))
+    return size_any(load_order_arg(arg))
+
+
+def describe(p) -> list[str]:
+    """The summary of a coil's design, or of a transformer's."""
+    from windsheet.design.dispatch import is_transformer_design
+
+    if is_transformer_design(p):
+        from .transformer_summary import transformer_summary_lines
+
+        return transformer_summary_lines(p)
+    return summary_lines(p)
 
 
 def _insulation_fails(p) -> bool:
+    from windsheet.design.dispatch import is_transformer_design
+
+    if is_transformer_design(p):
+        return (any(b.verdict == "fail" for b in p.barriers)
+                or any(w.insulation_verdict == "fail" for w in p.windings))
     return p.insulation.verdict == "fail"

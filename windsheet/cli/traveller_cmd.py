@@ -25,12 +25,13 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | Non
     ``pdf`` renders the HTML to PDF bytes (default :func:`render_pdf`, in process).
     """
     from .batch import load_order_arg
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
     from windsheet.design.qc_plan import issued_state
-    from windsheet.sheets.render import check_issuable, render_pdf, render_traveller_html
+    from windsheet.sheets.render import render_pdf
 
     o = load_order_arg(arg)
-    p = build_design(o)
+    p = size_any(o)
+    check_issuable, render_traveller_html = _sheet_functions(p)
     check_issuable(p, force)
     if fmt != "json":
         from windsheet.order.limits import check_sheet_units
@@ -44,6 +45,19 @@ def _traveller_job(arg: str, paper: str, fmt: str, force: bool, units: str | Non
         page = render_traveller_html(p, paper=paper, forced=forced, units=units)
         data = page.encode("utf-8") if fmt == "html" else (pdf or render_pdf)(page)
     return p, o.source.decode("utf-8", "replace"), o.sha256, forced, data
+
+
+def _sheet_functions(design):
+    """The issuable check and the traveller renderer for a coil or a transformer."""
+    from windsheet.design.dispatch import is_transformer_design
+
+    if is_transformer_design(design):
+        from windsheet.sheets.transformer_render import check_transformer_issuable, render_transformer_html
+
+        return check_transformer_issuable, render_transformer_html
+    from windsheet.sheets.render import check_issuable, render_traveller_html
+
+    return check_issuable, render_traveller_html
 
 
 def _traveller_worker(args):
@@ -66,8 +80,9 @@ def traveller_cmd(orders: list[str] = typer.Argument(..., help="Orders (YAML fil
                   fmt: Optional[str] = typer.Option(None, "--format", help="pdf, html or json (the prediction); "
                                                     "default: from the output file's extension, else pdf."),
                   paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter."),
-                  units: Optional[str] = typer.Option(None, "--units", help="imperial (inches beside "
-                                                      "millimetres) or metric; default as the order is written."),
+                  units: Optional[str] = typer.Option(None, "--units", help="metric (mm, °C), imperial "
+                                                      "(inches, °F) or both (inches and °F first, mm and °C "
+                                                      "beside); default as the order is written."),
                   force: bool = typer.Option(False, "--force", help="Issue even when the insulation check "
                                              "fails; the sheet then says FORCED."),
                   jobs: int = typer.Option(0, "--jobs", min=0, help="Worker processes for several orders "
@@ -170,22 +185,21 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
                                                     "(default: the project's samples/).")):
     """Render every sample order's traveller, and the sample measurements' sign-off sheets, to PDF and HTML (nothing is recorded)."""
     from windsheet.common.fileio import atomic_write_bytes
-    from windsheet.order.document import load_order
-    from windsheet.design.build import build_design
+    from windsheet.design.dispatch import size_any
+    from windsheet.order.reader import load_any_order
     from windsheet.qc.readings_file import load_measured
-    from windsheet.sheets.render import order_files, render_pdf, render_traveller_html
-    from windsheet.qc.signoff import evaluate_signoff
-    from .signoff_cmd import _resizer, _signoff_sheet
+    from windsheet.sheets.render import order_files, render_pdf
+    from .signoff_cmd import _evaluate, _signoff_sheet
 
     folder = samples or Path(__file__).resolve().parents[2] / "samples"
     files = order_files(folder)
     out.mkdir(parents=True, exist_ok=True)
     predictions = {}
     for f in files:
-        o = load_order(f)
-        p = build_design(o)
+        o = load_any_order(f)
+        p = size_any(o)
         predictions[p.job.number] = (p, o)
-        page = render_traveller_html(p)
+        page = _sheet_functions(p)[1](p)
         atomic_write_bytes(out / f"{f.stem}.html", page.encode("utf-8"))
         atomic_write_bytes(out / f"{f.stem}.pdf", render_pdf(page))
     typer.echo(f"{len(files)} travellers (PDF and HTML) written to {out.resolve()}")
@@ -195,7 +209,7 @@ def demo_cmd(out: Path = typer.Option(Path("out"), "--out", help="Folder for the
         if readings.job not in predictions:
             continue
         p, o = predictions[readings.job]
-        result = evaluate_signoff(p, readings, inspector=readings.inspector, resize=_resizer(o))
+        result = _evaluate(p, o, readings, readings.inspector)
         stem = m.name[: -len(".measured.yaml")] + "-signoff"
         atomic_write_bytes(out / f"{stem}.html", _signoff_sheet(p, result, True, "a4"))
         atomic_write_bytes(out / f"{stem}.pdf", _signoff_sheet(p, result, False, "a4"))

@@ -18,7 +18,6 @@ from windsheet.physics import layout as lay
 from windsheet.design import sizing
 from windsheet.physics import stress
 from windsheet.common.errors import InputError
-from windsheet.physics.ac_resistance import winding_ac_ratio
 from windsheet.physics.fast_front import DEFAULT_GROUND_CAPACITANCE_F
 from windsheet.physics.flux_linkage import strand_sums, turn_linkage_matrix
 from windsheet.physics import heating
@@ -30,6 +29,7 @@ from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
 from windsheet.order.wire_choice import resolve_wire
 from .bench_tests import bench_tests
 from .derived import complete
+from .duty_heating import DutyCurrent, ac_ratio, thermal_section, winding_heat
 from .model import SCHEMA, Design, DesignCore
 from .target_turns import solve_turns
 from windsheet.physics.wire import copper_mass, dc_resistance
@@ -75,69 +75,6 @@ def _refuse_above_self_resonance(duty, srf):
 def _lead_routes(order: Order):
     r = order.doc.winding.leads
     return {k: v for k, v in (("start", r.start), ("finish", r.finish), ("joint", r.joint)) if v}
-
-
-def _outer_surface(order: Order, layout):
-    """The winding's outer surface, which sheds its heat [m²], and its characteristic length [m]."""
-    f = order.doc.form
-    b = float(layout.build_height)
-    if isinstance(f, ToroidForm):
-        od, hole, h = f.outer_diameter + 2 * b, max(f.inner_diameter - 2 * b, 0.0), f.height + 2 * b
-        return math.pi * (od + hole) * h + math.pi / 2 * (od ** 2 - hole ** 2), od
-    # The outer layer's turn, out to its surface, along the traverse; the winding's ends lie
-    # against flanges or the form and are not counted (errs hot).
-    perimeter = float(np.max(layout.turn_length)) + math.pi * layout.overall_diameter
-    return perimeter * float(layout.traverse_used), perimeter / math.pi
-
-
-def _resistivity(wire, temperature_C):
-    d = wire.copper_diameter
-    return float(dc_resistance(1.0, d, temperature_C, conductor=wire.conductor)) * math.pi * d * d / 4
-
-
-def _ac_ratio(order: Order, wire, layout, temperature_C):
-    return winding_ac_ratio(order.doc.duty.frequency, wire.copper_diameter, _resistivity(wire, temperature_C),
-                            layout.layers, layout.pitch / layout.strands)
-
-
-def _heat(order: Order, wire, layout, length, L):
-    """Temperatures of the winding on its duty (:mod:`windsheet.physics.heating`), loss rising with them.
-
-    The strand currents are found again at each temperature: a winding driven by a voltage
-    without a stated current draws less as it warms.
-    """
-    duty = order.doc.duty
-
-    def loss_at(t):
-        r = dc_resistance(length, wire.copper_diameter, t, conductor=wire.conductor)
-        i = _strand_currents(duty, sizing.network_at(order, L, r, duty.frequency))
-        return float(np.sum(i ** 2 * r)) * _ac_ratio(order, wire, layout, t)["ratio"]
-
-    area, size = _outer_surface(order, layout)
-    temps = heating.winding_temperatures(loss_at, area, size, float(layout.build_height), order.doc.duty.ambient)
-    return {**temps, "surface_area_m2": area, "characteristic_length_m": size}
-
-
-def _thermal(temps, wire, strand_i, order_t):
-    """The thermal report: temperatures, the class verdict, current density."""
-    verdict, reason = heating.thermal_verdict(temps["hot_spot_C"], wire.thermal_class,
-                                              converged=temps["converged"])
-    j = [float(heating.current_density(i, wire.copper_diameter)) for i in strand_i]
-    lo, hi = heating.CURRENT_DENSITY_RANGE_A_PER_MM2
-    return {**temps, "method": heating.METHOD, "emissivity": heating.EMISSIVITY,
-            "winding_conductivity_W_per_mK": heating.WINDING_CONDUCTIVITY,
-            "thermal_class_C": wire.thermal_class, "verdict": verdict, "reason": reason,
-            "operating_temperature_given_C": order_t,
-            "current_density_A_per_mm2": max(j) if j else 0.0,
-            "current_density_range_A_per_mm2": [lo, hi],
-            "current_density_basis": "common practice for naturally cooled small windings (memory)"}
-
-
-def _strand_currents(duty, duty_net):
-    """rms current in each strand at duty: the order's, or the voltage over the impedance. [A]"""
-    z = abs(complex(duty_net.resistance, 2 * math.pi * duty.frequency * duty_net.inductance))
-    i = duty.current if duty.current > 0 else (duty.voltage / z if z > 0 else 0.0)
-    return np.abs(duty_net.strand_current) * i
 
 
 def _end(name: str):
@@ -213,7 +150,28 @@ def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
             "potential_max_Vpk": float(np.max(potential)) if potential is not None and len(potential) else None}
 
 
-def _ring(layout, most=90):
+def _outer_wrap(wrap):
+    if wrap is None:
+        return None
+    ov = wrap.overlap
+    return {"material": wrap.material, "thickness_m": wrap.thickness, "wraps": wrap.wraps,
+            "overlap_m": ov.length if ov else None, "overlap_fraction": ov.fraction if ov else None}
+
+
+def _sector_angles(sectors, most):
+    """Per layer, each winding's turn angles in its own sector (degrees from the start mark)."""
+    per_layer = {}
+    for s, (a0, one) in enumerate(sectors):
+        deg = np.degrees(one.theta)
+        for lay_i in range(one.layers):
+            sel = np.flatnonzero(one.layer == lay_i)
+            sel = sel[np.argsort(one.index[sel])]
+            pick = sel if sel.size <= most else sel[np.linspace(0, sel.size - 1, most).round().astype(int)]
+            per_layer.setdefault(lay_i, {})[STRAND_IDS[s]] = [round(float(a0 + a), 2) for a in deg[pick]]
+    return per_layer
+
+
+def _ring(layout, sectors=None, most=90):
     """A toroid's turns round the ring, for the top view: each layer's turn angles.
 
     Angles are degrees from the start in the winding direction, one list per
@@ -241,6 +199,23 @@ def _ring(layout, most=90):
                        "radius_m": rho, "build_m": layout.ring_radius - rho + layout.overall_diameter / 2,
                        "from_deg": float(deg[sel].min()), "to_deg": float(deg[sel].max()),
                        "angles_deg": per_strand})
+    if sectors:
+        # Each winding in its own sector: its turns' angles, and the bare angle left between sectors.
+        by_layer = _sector_angles(sectors, most)
+        for row in layers:
+            angles = by_layer.get(row["layer"] - 1, {})
+            row["angles_deg"] = angles
+            flat = [a for v in angles.values() for a in v]
+            if flat:
+                row["from_deg"], row["to_deg"] = min(flat), max(flat)
+        spans = [{"strand": STRAND_IDS[s], "from_deg": float(a0),
+                  "to_deg": float(a0 + math.degrees(one.theta.max()) + wire_deg / 2)}
+                 for s, (a0, one) in enumerate(sectors)]
+        gaps = [(spans[(k + 1) % len(spans)]["from_deg"] + (360.0 if k + 1 == len(spans) else 0.0))
+                - spans[k]["to_deg"] for k in range(len(spans))]
+        return {"spread": "sectors", "ring_radius_m": layout.ring_radius, "wire_diameter_m": layout.overall_diameter,
+                "span_deg": spans[-1]["to_deg"] - spans[0]["from_deg"], "gap_deg": float(min(gaps)),
+                "sectors": spans, "layers": layers}
     return {"spread": layout.spread, "ring_radius_m": layout.ring_radius,
             "wire_diameter_m": layout.overall_diameter,
             "span_deg": float(deg.max() - deg.min() + wire_deg),
@@ -264,6 +239,14 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         turns = doc.winding.turns
     layout = sizing.layout_at(order, wire, turns)
     warnings.extend(layout.notes)
+    sectors = None
+    if doc.winding.arrangement.kind == "sectors":
+        sectors = sizing.sector_layouts(order, wire, turns)
+        warnings = [w for w in warnings if w not in layout.notes] + [
+            f"each winding spread evenly over its own sector, {math.degrees(doc.form.gap):.0f}° left free "
+            "between sectors (common practice)"]
+        warnings.append("windings in sectors: the insulation check takes them side by side in every turn, "
+                        "the worst case; in their sectors they meet only across the gaps between sectors")
     S = layout.strands
     linkage = None
     if doc.duty.frequency > 0 and sizing.core_al(order) is None:
@@ -275,21 +258,26 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         L = sizing.inductance_matrix(order, wire, layout)
     length = sizing.strand_lengths(order, layout)
     duty = doc.duty
-    t_op = duty.operating_temperature if duty.operating_temperature is not None else duty.ambient
     R20 = dc_resistance(length, wire.copper_diameter, conductor=wire.conductor)
-    Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
     net = sizing.network_at(order, L, R20, doc.test.frequency)
-    duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
-    temps = _heat(order, wire, layout, length, L)
-    if duty.operating_temperature is None:
+    current = DutyCurrent(order, wire, length, L, net.inductance)
+    temps = winding_heat(order, wire, layout, length, L, current)
+    steady = temps is not None and temps["converged"]
+    if duty.operating_temperature is not None:
+        t_op, t_basis = duty.operating_temperature, "given"
+        if steady and duty.operating_temperature < temps["mean_C"] - 0.5:
+            warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
+                            f"{temps['mean_C']:.0f} °C the winding is computed to run at "
+                            f"(hot spot {temps['hot_spot_C']:.0f} °C): hot resistance and losses may read low.")
+    elif steady:
         # The order gives no running temperature: the heat balance's mean winding temperature is used.
-        t_op = temps["mean_C"]
-        Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
-        duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
-    elif duty.operating_temperature < temps["mean_C"] - 0.5:
-        warnings.append(f"duty.operating_temperature {duty.operating_temperature:.0f} °C is below the "
-                        f"{temps['mean_C']:.0f} °C the winding is computed to run at "
-                        f"(hot spot {temps['hot_spot_C']:.0f} °C): hot resistance and losses may read low.")
+        t_op, t_basis = temps["mean_C"], "heat balance"
+    else:
+        # Nothing heats the winding (no current), or it has no steady temperature: the resistance
+        # at the ambient is the one stated, and the sheet says why.
+        t_op, t_basis = duty.ambient, "ambient"
+    Rhot = dc_resistance(length, wire.copper_diameter, t_op, conductor=wire.conductor)
+    duty_net = sizing.network_at(order, L, Rhot, duty.frequency)
     tol = doc.tolerances
     diag = np.sqrt(np.diag(L))
     coupling = L / np.outer(diag, diag)
@@ -301,16 +289,15 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         current_sheet = float(cf.current_sheet_inductance(r0, turns * layout.pitch, turns))
         rosa = float(cf.rosa_corrected_inductance(r0, layout.pitch, wire.copper_diameter, turns))
 
-    # Terminal current at duty: the order's current, or the voltage over the impedance.
-    w = 2 * math.pi * duty.frequency
-    z_duty = abs(complex(duty_net.resistance, w * duty_net.inductance))
-    i_term = duty.current if duty.current > 0 else (duty.voltage / z_duty if z_duty > 0 else 0.0)
-    strand_i = np.abs(duty_net.strand_current) * i_term
-    ac = {**_ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
+    # Terminal current at duty: only what the order gives (or its pulse train), never assumed.
+    i_term = current.terminal(t_op)
+    has_current = i_term is not None
+    strand_i = np.abs(duty_net.strand_current) * (i_term or 0.0)
+    ac = {**ac_ratio(order, wire, layout, t_op), "frequency_Hz": duty.frequency, "temperature_C": t_op}
     Rac = Rhot * ac["ratio"]
     ac_terminal = sizing.network_at(order, L, Rac, duty.frequency).resistance if ac["ratio"] != 1.0 else duty_net.resistance
     strand_loss = strand_i ** 2 * Rac
-    thermal = _thermal(temps, wire, strand_i, duty.operating_temperature)
+    thermal = thermal_section(temps, wire, strand_i, duty.operating_temperature, current.missing)
     if thermal["verdict"] in ("fail", "marginal"):
         warnings.append(thermal["reason"])
 
@@ -361,17 +348,19 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "resistance_20C_ohm": float(R20[s]),
             "resistance_hot_ohm": float(Rhot[s]),
             "resistance_ac_ohm": float(Rac[s]),
-            "loss_W": float(strand_loss[s]),
-            "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter)),
+            "loss_W": float(strand_loss[s]) if has_current else None,
+            "current_density_A_per_mm2": float(heating.current_density(strand_i[s], wire.copper_diameter))
+            if has_current else None,
             "inductance_H": float(L[s, s]),
-            "current_A": float(strand_i[s]),
+            "current_A": float(strand_i[s]) if has_current else None,
             "resistance_ac_test_ohm": bench["strand_resistance_ac_ohm"][s],
             "q_test": bench["strand_q"][s],
         })
     f = doc.form
     job = doc.job
-    energy = 0.5 * net.inductance * i_term ** 2
-    elv = 120.0 if duty.frequency == 0 else 50.0
+    energy = 0.5 * net.inductance * i_term ** 2 if has_current else None
+    # A pulse is not ripple-free d.c.: its peak is held to the stricter a.c. figure.
+    elv = 120.0 if duty.frequency == 0 and duty.waveform != "pulse" else 50.0
     highest_V = max(duty.voltage, duty.between_windings or 0.0)
     out = {
         "schema": SCHEMA,
@@ -389,7 +378,12 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                  "mean_turn_length_m": getattr(f, "mean_turn_length", None),
                  "al_H": sizing.core_al(order), "permeability": getattr(f, "permeability", None),
                  "gap_deg": math.degrees(f.gap) if isinstance(f, ToroidForm) else None,
-                 "core_gap_m": getattr(f, "gap", None) if isinstance(f, BobbinForm) else None,
+                 "core_gap_m": f.gap.thickness if isinstance(f, BobbinForm) and f.gap is not None else None,
+                 "core_gap_material": f.gap.material if isinstance(f, BobbinForm) and f.gap is not None else None,
+                 "core_assembly": f.assembly if isinstance(f, BobbinForm) else None,
+                 "margin_tape_thickness_m": order.margin_thickness if order.margin else None,
+                 "pin_header": {"end": f.pin_header.end, "pitch_m": f.pin_header.pitch, "pins": f.pin_header.pins}
+                 if getattr(f, "pin_header", None) else None,
                  "margin_tape_m": order.margin or None,
                  "margin_tape_material": order.margin_material if order.margin else None,
                  "conductive": f.conductive if f.conductive is not None else not isinstance(f, CylinderForm)},
@@ -406,15 +400,20 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                     "layer_tape_rating_V": order.tape_rating,
                     "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
                     "close_wound": doc.winding.pitch is None, "target": target,
-                    "direction": doc.winding.direction, "spread": layout.spread or None},
-        "ring": _ring(layout),
+                    "direction": doc.winding.direction, "spread": layout.spread or None,
+                    "outer_wrap": _outer_wrap(doc.winding.outer_wrap),
+                    "arrangement": doc.winding.arrangement.kind if isinstance(f, ToroidForm) and S > 1 else None},
+        "ring": _ring(layout, sectors),
         "sheet_units": "imperial" if getattr(order, "imperial", False) else "metric",
         "hookup": {"name": order.hookup_name, "joins": net.joins, "terminals": net.terminals,
                    "description": HOOKUP_TEXT[order.hookup_name]},
         "terminations": [dict(t) for t in order.pins],
         "duty": {"voltage_V": duty.voltage, "voltage_form": duty.voltage_form, "waveform": duty.waveform,
-                 "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term,
-                 "current_given": duty.current > 0, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
+                 "between_windings_V": duty.between_windings, "frequency_Hz": duty.frequency, "current_A": i_term or 0.0,
+                 "current_given": duty.current > 0, "current_basis": current.basis,
+                 "voltage_peak_V": duty.voltage_peak, "rise_time_s": duty.rise_time,
+                 "repetition_rate_Hz": duty.repetition_rate, "pulse_width_s": duty.pulse_width,
+                 "pulse_energy_J": duty.pulse_energy, "operating_temperature_basis": t_basis, "ambient_C": duty.ambient, "operating_temperature_C": t_op},
         "test": {"frequency_Hz": doc.test.frequency, "ring_capacitor_F": doc.test.ring_capacitor},
         "tolerances": {"inductance": tol.inductance, "resistance": tol.resistance,
                        "strand_balance": tol.strand_balance},
@@ -433,7 +432,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "inductance_H": net.inductance, "resistance_ohm": net.resistance,
             "resistance_hot_ohm": duty_net.resistance,
             "resistance_ac_ohm": float(ac_terminal),
-            "loss_W": float(np.sum(strand_loss)),
+            "loss_W": float(np.sum(strand_loss)) if has_current else None,
             "capacitance_F": st["capacitance"]["terminal_F"],
             "self_resonance_Hz": st["self_resonance_Hz"],
             "capacitance_note": _capacitance_note(st["capacitance"]["terminal_F"], st["self_resonance_Hz"],
@@ -456,10 +455,12 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "capacitance": st["capacitance"],
         "insulation": {**st["insulation"], "ir_min_ohm": doc.insulation.min_resistance},
         "hipot": {**st["hipot"], "voltage_V": hipot_voltage(highest_V)},
-        "energy": {"magnetic_J": energy},
+        "energy": {"magnetic_J": energy} if has_current else None,
         "cautions": {"above_elv": highest_V > elv, "highest_V": highest_V, "elv_limit_V": elv, "hipot": True,
-                     "stored_energy_J": energy, "surface_C": thermal["surface_C"],
-                     "hot_surface": thermal["surface_C"] >= heating.HOT_SURFACE_C,
+                     "stored_energy_J": energy, "surface_C": thermal.get("surface_C"),
+                     # A run-away winding has no steady surface temperature, and is hot all the same.
+                     "hot_surface": thermal["converged"] is False
+                     or (thermal.get("surface_C") or 0.0) >= heating.HOT_SURFACE_C,
                      "hot_surface_limit_C": heating.HOT_SURFACE_C},
         "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
                                         worst=st.get("worst_pair") or (None, None)),

@@ -50,7 +50,7 @@ def lead_route_text(lead: dict, pin_of: dict) -> str:
     return lead.get("route_text") or lead.get("route") or ""
 
 
-def connections(hookup: dict, strand_ids, terminations=(), leads=()) -> Connections:
+def connections(hookup: dict, strand_ids, terminations=(), leads=(), terminal_Vpk=None) -> Connections:
     """Every strand end's terminal, joint, pin and lead route; the terminals, joints and sleeving.
 
     Parameters
@@ -62,7 +62,12 @@ def connections(hookup: dict, strand_ids, terminations=(), leads=()) -> Connecti
     terminations : sequence of dict
         The order's pins: ``{"pin", "ends", "node"}`` each.
     leads : sequence of dict
-        The routed leads: ``{"lead", "route", "route_text", "joint", …}`` each.
+        The routed leads: ``{"lead", "route", "route_text", "joint", "beside_turns", "worst_Vpk", …}`` each.
+        A lead that lies against turns is sleeved when it is laid, before they go on over it or it
+        over them (common practice); the same piece runs on to its terminal or over its joint.
+    terminal_Vpk : float, optional
+        The highest voltage between the leads brought out [V peak]: with the leads' own, the
+        least the sleeving must hold off.
 
     Returns
     -------
@@ -89,9 +94,12 @@ def connections(hookup: dict, strand_ids, terminations=(), leads=()) -> Connecti
         for which in ("start", "finish"):
             end = f"{sid}.{which}"
             lead = route_of.get(end)
+            crosses = int(lead.get("beside_turns") or 0) if lead else 0
             ends.append(StrandEnd(name=end, strand=sid, terminal=label_of.get(end), joint=joint_of.get(end),
                                   pin=pin_of.get(end), route=lead.get("route") if lead else None,
-                                  route_text=lead_route_text(lead, pin_of) if lead else None))
+                                  route_text=lead_route_text(lead, pin_of) if lead else None,
+                                  crosses_turns=crosses, lead_Vpk=float(lead.get("worst_Vpk") or 0.0) if crosses else None,
+                                  sleeve_when_laid=crosses > 0))
     joints = [Joint(ends=j, pins=sorted({pin_of[e] for e in j if e in pin_of})) for j in joins]
     by_node: dict = {}
     for t in terminations:
@@ -100,5 +108,7 @@ def connections(hookup: dict, strand_ids, terminations=(), leads=()) -> Connecti
     links = [PinLink(pins=[str(t["pin"]) for t in ts], ends=[e for t in ts for e in t["ends"]])
              for ts in by_node.values() if len(ts) > 1]
     terminals = [TerminalLead(label=label_of[e], end=e, pin=pin_of.get(e)) for e in out_ends]
+    held = [e.lead_Vpk for e in ends if e.lead_Vpk is not None] + ([terminal_Vpk] if terminal_Vpk else [])
     return Connections(ends=ends, terminals=terminals, joints=joints, linked_pins=links,
+                       sleeving_rating_Vpk=max(held) if held else None,
                        wire_ends_per_unit=2 * len(ids), sleeving_pieces_per_unit=len(terminals) + len(joints))

@@ -9,9 +9,11 @@ from __future__ import annotations
 
 from typing import Optional
 
+import math
+
 from .connections import connections
 from .family import family_of
-from .model import Design, DesignCore, DesignState
+from .model import Design, DesignCore, DesignState, LayerRow
 from .qc_plan import design_state, qc_plan
 
 
@@ -19,10 +21,56 @@ def complete(core: DesignCore, required: Optional[list[str]] = None,
              state: Optional[DesignState] = None) -> Design:
     """``core`` with its connections, QC plan (``required``: keep an issue's recorded list) and state."""
     conn = connections(core.hookup.model_dump(), [s.id for s in core.strands],
-                       [t.model_dump() for t in core.terminations], [lead.model_dump() for lead in core.leads])
+                       [t.model_dump() for t in core.terminations], [lead.model_dump() for lead in core.leads],
+                       terminal_Vpk=terminal_peak(core))
     plan = qc_plan(core, required)
     key, label = family_of(core.model_dump(include={"form", "wire", "winding", "strands", "hookup"}))
     return Design.model_validate({**dict(core), "connections": conn, "qc_plan": plan,
+                                  "layer_plan": layer_plan(core),
                                   "qc_required": plan.required,
                                   "state": state or design_state(core.insulation, core.thermal),
                                   "family": {"key": key, "label": label}})
+
+
+def terminal_peak(core: DesignCore) -> float | None:
+    """The highest voltage between leads brought out: the duty's, or between windings, as a peak. [V]"""
+    d = core.duty
+    if d is None:
+        return None
+    crest = math.sqrt(2.0) if d.frequency_Hz and d.waveform != "pulse" else 1.0
+    own = d.voltage_peak_V if d.voltage_peak_V is not None else d.voltage_V * crest
+    return max(own, (d.between_windings_V or 0.0) * crest)
+
+
+def layer_plan(core: DesignCore) -> list[LayerRow]:
+    """Each layer as the operator winds it: turns, where it starts, the counter at its end, what goes over it.
+
+    The counter counts turns per strand from the start of the winding (all strands go
+    on together, one counter turn each).  Margin tape is built up with each layer: the
+    wraps of its thickness that make up one layer's height, the wire and any layer tape.
+
+    """
+    w = core.winding
+    if w is None or not w.turns_in_layer:
+        return []
+    toroid = (core.form.kind or "") == "toroid"
+    n = len(w.turns_in_layer)
+    tape = w.layer_tape_m > 0 and n > 1
+    margin_t = core.form.margin_tape_thickness_m if core.form.margin_tape_m else None
+    wraps = None
+    if margin_t and core.wire is not None:
+        # The margins stand beside the layers' ends, where turns stack: a wire and a tape per layer.
+        wraps = max(1, math.ceil((core.wire.overall_diameter_m + (w.layer_tape_m if tape else 0.0)) / margin_t - 1e-9))
+    rows, count = [], 0
+    for k, turns in enumerate(w.turns_in_layer):
+        start = count
+        count += int(turns)
+        if toroid:
+            from_end = "start-mark" if k % 2 == 0 else "end of the layer below"
+        else:
+            from_end = "start-end" if k % 2 == 0 else "finish-end"
+        last = k == n - 1
+        after = ("outer-wrap" if w.outer_wrap is not None else None) if last else ("layer-tape" if tape else None)
+        rows.append(LayerRow(layer=k + 1, turns=int(turns), from_end=from_end, counter_start=start,
+                             counter_end=count, tape_after=after, margin_wraps=wraps))
+    return rows

@@ -79,6 +79,10 @@ def read_design(data: dict) -> Design:
     """A recorded design of any version: today's is validated as it is, an earlier one converted."""
     if isinstance(data, dict) and data.get("schema") == SCHEMA:
         return Design.model_validate(data)
+    if isinstance(data, dict) and data.get("schema") == "windsheet.transformer/1":
+        from .transformer_model import TransformerDesign
+
+        return TransformerDesign.model_validate(data)
     if isinstance(data, dict) and data.get("schema") in (None, SCHEMA_V1):
         return design_from_v1(data)
     raise ValueError(f"not a windsheet prediction (schema {data.get('schema') if isinstance(data, dict) else None!r})")

@@ -50,6 +50,14 @@ class Job(Part):
     notes: str = ""
 
 
+class PinHeader(Part):
+    """A row of pins at one end of the form: pin 1 first, the rest ``pitch_m`` apart."""
+
+    end: str = Field(description="start-end or finish-end")
+    pitch_m: float
+    pins: int
+
+
 class Form(Part):
     kind: str = "cylinder"
     material: Optional[str] = None
@@ -69,6 +77,10 @@ class Form(Part):
     margin_tape_material: Optional[str] = None
     conductive: Optional[bool] = Field(None, description="the core or former conducts (cores do unless the "
                                        "order says not): insulation to it is a required reading")
+    margin_tape_thickness_m: Optional[float] = Field(None, description="one wrap of the margin tape [m]")
+    core_gap_material: Optional[str] = Field(None, description="the spacer that sets the core gap")
+    core_assembly: Optional[str] = Field(None, description="interleaved, butt-gapped or ground-centre-leg")
+    pin_header: Optional[PinHeader] = None
 
 
 class WireSpec(Part):
@@ -84,6 +96,16 @@ class WireSpec(Part):
     min_overall_diameter_m: Optional[float] = None
     breakdown_test: Optional[str] = None
     sources: list[str] = Field(default_factory=list)
+
+
+class OuterWrap(Part):
+    """The cover over the finished winding."""
+
+    material: str
+    thickness_m: Optional[float] = None
+    wraps: int
+    overlap_m: Optional[float] = Field(None, description="past the seam, round a cylinder or bobbin [m]")
+    overlap_fraction: Optional[float] = Field(None, description="of the tape's width, through a toroid's hole")
 
 
 class TargetSearch(Part):
@@ -115,6 +137,8 @@ class Winding(Part):
     target: Optional[TargetSearch] = None
     direction: str = "clockwise"
     spread: Optional[str] = None
+    outer_wrap: Optional[OuterWrap] = None
+    arrangement: Optional[str] = Field(None, description="several windings on a toroid: together or sectors")
 
 
 class RingLayer(Part):
@@ -128,10 +152,19 @@ class RingLayer(Part):
     angles_deg: dict[str, list[float]] = Field(description="turn angles per strand, from the start [deg]")
 
 
+class RingSector(Part):
+    """One winding's own sector of the ring (arrangement: sectors)."""
+
+    strand: str
+    from_deg: float
+    to_deg: float
+
+
 class Ring(Part):
     """A toroid's turns round the ring, for its top view."""
 
     spread: Optional[str] = None
+    sectors: list[RingSector] = Field(default_factory=list, description="each winding's sector, when in sectors")
     ring_radius_m: float
     wire_diameter_m: float
     span_deg: float
@@ -158,10 +191,21 @@ class Duty(Part):
     waveform: Optional[str] = None
     between_windings_V: Optional[float] = None
     frequency_Hz: float = 0.0
-    current_A: float = Field(0.0, description="terminal current on the duty, rms or d.c. [A]")
+    current_A: float = Field(0.0, description="terminal current on the duty, rms or d.c. [A]; 0 when "
+                                               "current_basis is null (none given, none assumed)")
     current_given: bool = True
+    current_basis: Optional[str] = Field(None, description="where current_A comes from: given, pulse width and "
+                                         "repetition rate, pulse energy and repetition rate; null: not known")
+    voltage_peak_V: Optional[float] = Field(None, description="peak of the duty voltage [V]")
+    rise_time_s: Optional[float] = Field(None, description="the edge's rise time as ordered [s]")
+    repetition_rate_Hz: Optional[float] = Field(None, description="pulse duty: pulses per second [Hz]")
+    pulse_width_s: Optional[float] = Field(None, description="pulse duty: each pulse's width [s]")
+    pulse_energy_J: Optional[float] = Field(None, description="pulse duty: energy each pulse leaves in the "
+                                            "winding [J]")
     ambient_C: float = 25.0
     operating_temperature_C: Optional[float] = None
+    operating_temperature_basis: Optional[str] = Field(None, description="given, heat balance, or ambient "
+                                                       "(no current, or no steady temperature)")
 
 
 class TestSetup(Part):
@@ -342,12 +386,15 @@ class AcResistance(Part):
 
 
 class Thermal(Part):
-    loss_W: float
-    surface_rise_K: float
-    surface_C: float
-    hot_spot_C: float
-    mean_C: float
-    converged: bool = Field(description="false: thermal runaway")
+    """The heat balance on the duty; temperatures null when not computed (no current) or run away."""
+
+    loss_W: Optional[float] = None
+    surface_rise_K: Optional[float] = None
+    surface_C: Optional[float] = None
+    hot_spot_C: Optional[float] = None
+    mean_C: Optional[float] = None
+    converged: Optional[bool] = Field(description="false: thermal runaway; null: not computed")
+    missing: Optional[str] = Field(None, description="what the order must give for the heating to be computed")
     surface_area_m2: Optional[float] = None
     characteristic_length_m: Optional[float] = None
     method: str = ""
@@ -357,7 +404,7 @@ class Thermal(Part):
     verdict: str = Field(description="pass, marginal, fail or unknown")
     reason: str = ""
     operating_temperature_given_C: Optional[float] = None
-    current_density_A_per_mm2: float = 0.0
+    current_density_A_per_mm2: Optional[float] = None
     current_density_range_A_per_mm2: list[float] = Field(default_factory=list)
     current_density_basis: Optional[str] = None
 
@@ -478,6 +525,10 @@ class StrandEnd(Part):
     pin: Optional[str] = None
     route: Optional[str] = None
     route_text: Optional[str] = Field(None, description="how its lead is laid, in words")
+    crosses_turns: int = Field(0, description="turns its lead lies against on its route")
+    lead_Vpk: Optional[float] = Field(None, description="the most its lead holds off against those turns [V peak]")
+    sleeve_when_laid: bool = Field(False, description="its sleeving goes on when the lead is laid, "
+                                   "before the turns it crosses")
 
 
 class TerminalLead(Part):
@@ -508,6 +559,9 @@ class Connections(Part):
     joints: list[Joint]
     linked_pins: list[PinLink] = Field(default_factory=list)
     wire_ends_per_unit: int = Field(description="two per strand, each with its lead length")
+    sleeving_rating_Vpk: Optional[float] = Field(None, description="least voltage the sleeving must hold off: "
+                                                 "the highest of any lead against the turns it crosses and the "
+                                                 "terminal voltage [V peak]")
     sleeving_pieces_per_unit: int = Field(description="one over each terminal lead and one over each joint")
 
 
@@ -530,6 +584,20 @@ class QcLine(Part):
     note: str = ""
     test_voltage_V: Optional[float] = Field(None, description="hipot: the test voltage [V]")
     duration_s: Optional[float] = Field(None, description="hipot: how long it is held [s]")
+
+
+class LayerRow(Part):
+    """One layer as the operator winds it: a row of the layer table."""
+
+    layer: int
+    turns: int = Field(description="turns per strand in this layer")
+    from_end: str = Field(description="where the layer starts: start-end or finish-end (a toroid: start-mark, "
+                          "or the end of the layer below)")
+    counter_start: int = Field(description="the turn counter at the layer's first turn, counted per strand from "
+                               "the start of the winding")
+    counter_end: int = Field(description="the turn counter at the layer's last turn")
+    tape_after: Optional[str] = Field(None, description="what goes over it: layer-tape, outer-wrap, or null")
+    margin_wraps: Optional[int] = Field(None, description="margin-tape wraps at each end built up with this layer")
 
 
 class QcPlan(Part):
@@ -609,6 +677,7 @@ class Design(DesignCore):
     """A sized coil order: every figure the outputs print, in SI units, and the facts derived from them."""
 
     connections: Connections
+    layer_plan: list[LayerRow] = Field(default_factory=list, description="each layer as wound: the layer table")
     qc_plan: QcPlan
     qc_required: list[str] = Field(description="keys of the QC lines every unit must be read for")
     state: DesignState

@@ -11,21 +11,29 @@ import json
 from importlib import resources
 
 SCHEMA_FILE = "prediction.schema.json"
+#: The documents ``windsheet schema`` prints, and the committed file of each.
+SCHEMA_FILES = {"prediction": SCHEMA_FILE, "transformer": "transformer.schema.json"}
 
 
-def prediction_schema() -> dict:
-    """The JSON Schema (draft 2020-12) of :class:`windsheet.design.model.Design`, from the model."""
-    from .model import SCHEMA, Design
+def prediction_schema(document: str = "prediction") -> dict:
+    """The JSON Schema (draft 2020-12) of a coil's :class:`windsheet.design.model.Design`
+    (``prediction``) or of a :class:`windsheet.design.transformer_model.TransformerDesign`
+    (``transformer``), from the model."""
+    if document == "transformer":
+        from .transformer_model import TRANSFORMER_SCHEMA as name
+        from .transformer_model import TransformerDesign as model
+    else:
+        from .model import SCHEMA as name
+        from .model import Design as model
+    schema = model.model_json_schema(by_alias=True, mode="serialization")
+    return {"$schema": "https://json-schema.org/draft/2020-12/schema", "$id": f"urn:{name}", **schema}
 
-    schema = Design.model_json_schema(by_alias=True, mode="serialization")
-    return {"$schema": "https://json-schema.org/draft/2020-12/schema", "$id": f"urn:{SCHEMA}", **schema}
 
-
-def schema_text() -> str:
+def schema_text(document: str = "prediction") -> str:
     """The schema as the committed file holds it: indented, keys in the model's order, one final newline."""
-    return json.dumps(prediction_schema(), indent=2, ensure_ascii=False) + "\n"
+    return json.dumps(prediction_schema(document), indent=2, ensure_ascii=False) + "\n"
 
 
-def committed_schema_text() -> str:
+def committed_schema_text(document: str = "prediction") -> str:
     """The schema file shipped with the package."""
-    return resources.files("windsheet.design").joinpath(SCHEMA_FILE).read_text(encoding="utf-8")
+    return resources.files("windsheet.design").joinpath(SCHEMA_FILES[document]).read_text(encoding="utf-8")

@@ -76,6 +76,44 @@ def place_turns(order: Order, wire, turns: int):
                          f"does not fit: {exc}") from None
 
 
+def sector_spans(order: Order) -> list[tuple[float, float]]:
+    """Each winding's sector of the ring, ``(from_deg, to_deg)`` from the start mark, a form.gap after each.
+
+    The order's sector angles, or the ring less one gap per winding shared evenly.
+    """
+    f, w = order.doc.form, order.doc.winding
+    gap = math.degrees(f.gap)
+    sizes = ([math.degrees(a) for a in w.arrangement.sectors] if w.arrangement.sectors
+             else [(360.0 - w.strands * gap) / w.strands] * w.strands)
+    spans, at = [], 0.0
+    for size in sizes:
+        spans.append((at, at + size))
+        at += size + gap
+    return spans
+
+
+def sector_layouts(order: Order, wire, turns: int) -> list:
+    """One single-winding layout per sector (arrangement: sectors), each turned to its sector's start.
+
+    It checks that each winding fits its own sector and gives its turns' angles for
+    the top view; the stress check keeps the windings side by side, the worst case.
+    """
+    f, w = order.doc.form, order.doc.winding
+    layers = None if w.layers == "auto" else w.layers
+    out = []
+    for s, (a0, a1) in enumerate(sector_spans(order)):
+        try:
+            one = lay.toroid_layout(f.inner_diameter, f.outer_diameter, f.height, wire.copper_diameter,
+                                    wire.overall_diameter, 1, turns, layers=layers, pitch=w.pitch / w.strands
+                                    if w.pitch else None, tape=order.tape, layer_style=w.layer_style,
+                                    spread=a1 - a0)
+        except lay.WindingDoesNotFit as exc:
+            raise InputError("winding.arrangement", f"winding {'ABCD'[s]} does not fit its {a1 - a0:.0f}° "
+                             f"sector: {exc}") from None
+        out.append((a0, one))
+    return out
+
+
 def winding_width(order: Order) -> tuple[float, str]:
     """The traverse left for turns once margin tape and the start offset are off, and its name. [m]"""
     f, start = order.doc.form, order.doc.winding.start

@@ -20,8 +20,8 @@ from windsheet.common.errors import InputError, field_name, join_path
 from windsheet.common.fileio import parse_yaml_bytes, read_limited
 from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                       pin_assignment)
-from .fields import (Angle, Flag, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
-                           PeakVoltage, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
+from .fields import (Angle, Energy, Flag, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
+                           PeakVoltage, PulseWidth, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
                            quantity, strand_keys)
 from .limits import JOB_UNITS
 from .units import SINE_CREST, parse_quantity, read_quantity
@@ -71,7 +71,36 @@ class Job(_M):
 class MarginTape(_M):
     """Tape laid at each end of the traverse, built up to the winding's height, for creepage."""
     width: Length
+    #: Of one wrap; with it the traveller gives the wraps each layer takes.
+    thickness: Optional[Length] = None
     material: Text = "margin tape"
+
+
+_HEADER_ENDS = {"start-end": "start-end", "start": "start-end", "finish-end": "finish-end", "finish": "finish-end"}
+
+
+def _header_end(v):
+    if lowered(v) not in _HEADER_ENDS:
+        raise ValueError("expected start-end or finish-end")
+    return _HEADER_ENDS[lowered(v)]
+
+
+class PinHeader(_M):
+    """A row of pins on the form, at one end: pin 1 first, the others ``pitch`` apart."""
+    end: Annotated[Literal["start-end", "finish-end"], BeforeValidator(_header_end)] = "start-end"
+    pitch: Length
+    pins: Annotated[int, Field(ge=1, le=40, strict=True)]
+
+
+class CoreGap(_M):
+    """The core's gap as assembled, and the spacer that sets it."""
+    thickness: Length0
+    material: Optional[Text] = None
+
+
+def _core_gap(v):
+    """``gap: 0.3 mm`` or ``{thickness: 0.3 mm, material: polyester film}``."""
+    return v if isinstance(v, (dict, CoreGap)) else {"thickness": v}
 
 
 class CylinderForm(_M):
@@ -82,8 +111,10 @@ class CylinderForm(_M):
     material: Text = "non-magnetic former"
     #: The former conducts (a metal tube, carbon-filled plastic): insulation to it is then tested.
     conductive: Optional[Flag] = None
-    #: Width at each end of the traverse (or ``{width, material}``).
+    #: Width at each end of the traverse (or ``{width, thickness, material}``).
     margin_tape: Optional[Union[Length, MarginTape]] = None
+    #: Pins need a header to stand in: a plain tube has none.
+    pin_header: Optional[PinHeader] = None
 
 
 class ToroidForm(_M):
@@ -97,6 +128,8 @@ class ToroidForm(_M):
     material: Text = "toroidal core"
     #: A core conducts unless the order says not (a plastic ring former: ``conductive: false``).
     conductive: Optional[Flag] = None
+    #: A toroid's pins are on a header or base it is mounted on.
+    pin_header: Optional[PinHeader] = None
 
 
 class BobbinForm(_M):
@@ -108,9 +141,15 @@ class BobbinForm(_M):
     mean_turn_length: Optional[Length] = None
     material: Text = "bobbin on core"
     conductive: Optional[Flag] = None
-    #: The core's gap as assembled (from the core's data; ``al`` is the AL at this gap); 0 = ungapped.
-    gap: Optional[Length0] = None
+    #: The core's gap as assembled (from the core's data; ``al`` is the AL at this gap); 0 = ungapped;
+    #: or ``{thickness, material}`` naming the spacer.
+    gap: Optional[Annotated[CoreGap, BeforeValidator(_core_gap)]] = None
+    #: How the core goes together: E/I laminations interleaved (no gap), E/I butt-gapped with a
+    #: spacer in the joint, or core halves with the gap ground in the centre leg.
+    assembly: Optional[choice("interleaved", "butt-gapped", "ground-centre-leg")] = None
     margin_tape: Optional[Union[Length, MarginTape]] = None
+    #: The bobbin's own pin row, drawn when given (a bobbin's pins are otherwise as its data sheet).
+    pin_header: Optional[PinHeader] = None
 
 
 def _form_kind(v):
@@ -215,6 +254,49 @@ def _start(v):
     return v
 
 
+class Overlap(_M):
+    length: Optional[Length] = None
+    fraction: Optional[Fraction] = None
+
+
+def _overlap(v):
+    """A length past the seam (``10 mm``), or a share of the tape's width (``50 %``)."""
+    if isinstance(v, (dict, Overlap)):
+        return v
+    return {"fraction": v} if isinstance(v, str) and v.strip().endswith("%") else {"length": v}
+
+
+class OuterWrap(_M):
+    """The cover over the finished winding: tape, how many wraps, and the overlap at the seam."""
+    material: Text = "polyester tape"
+    thickness: Optional[Length] = None
+    wraps: Annotated[int, Field(ge=1, le=20, strict=True)] = 2
+    #: Past the seam (a length), or of the tape's width when wound through a toroid's hole (``50 %``).
+    overlap: Optional[Annotated[Overlap, BeforeValidator(_overlap)]] = None
+
+
+def _outer_wrap(v):
+    if isinstance(v, str) and lowered(v) == "none":
+        return None
+    return v
+
+
+def _arrangement(v):
+    """``together``, ``sectors`` (even), or ``{sectors: [120 deg, 120 deg, 120 deg]}``."""
+    if isinstance(v, str) and lowered(v) in ("together", "sectors"):
+        return {"kind": lowered(v)}
+    if isinstance(v, dict) and set(map(str, v)) == {"sectors"}:
+        return {"kind": "sectors", "sectors": v["sectors"]}
+    if isinstance(v, (dict, Arrangement)):
+        return v
+    raise ValueError("expected together, sectors, or {sectors: [120 deg, 120 deg, ...]} (one angle per winding)")
+
+
+class Arrangement(_M):
+    kind: Literal["together", "sectors"] = "together"
+    sectors: Optional[list[Angle]] = None
+
+
 class Winding(_M):
     # Strict: YAML reads "yes" as true, and true must not count as 1 turn.
     strands: Annotated[int, Field(ge=1, le=4, strict=True)] = 1
@@ -238,6 +320,10 @@ class Winding(_M):
     direction: Annotated[Literal["clockwise", "anticlockwise"], BeforeValidator(_direction)] = "clockwise"
     # Cylinders and bobbins: where the first turn goes (default: hard against the start end).
     start: Annotated[WindingStart, BeforeValidator(_start)] = WindingStart()
+    #: The cover over the winding; ``none`` for none (a potted part, say).
+    outer_wrap: Annotated[Optional[OuterWrap], BeforeValidator(_outer_wrap)] = OuterWrap()
+    #: Several windings on a toroid: side by side in every turn, or each in its own sector.
+    arrangement: Annotated[Arrangement, BeforeValidator(_arrangement)] = Arrangement()
 
 
 class Duty(_M):
@@ -264,11 +350,33 @@ class Duty(_M):
     #: Capacitance from the whole winding to ground, core or shield, for a fast edge's
     #: distribution; by default windsheet.physics.fast_front.DEFAULT_GROUND_CAPACITANCE_F (10 pF), stated.
     ground_capacitance: Optional[Annotated[float, quantity("capacitance")]] = None
+    #: A pulse duty's repetition: pulses per second, and each pulse's width or the energy it leaves
+    #: in the winding; the heating is computed from them (no current is assumed).
+    #: ``current: voltage-driven`` says the winding sits across the duty voltage, so its current is
+    #: the voltage over its impedance (a relay or solenoid coil); otherwise no current is assumed.
+    voltage_driven: bool = False
+    repetition_rate: Optional[Frequency] = None
+    pulse_width: Optional[PulseWidth] = None
+    pulse_energy: Optional[Energy] = None
 
     @model_validator(mode="before")
     @classmethod
     def _amplitudes(cls, data):
         return duty_amplitudes(data) if isinstance(data, dict) else data
+
+    @model_validator(mode="after")
+    def _pulse_train(self):
+        given = [k for k in ("repetition_rate", "pulse_width", "pulse_energy") if getattr(self, k) is not None]
+        if given and self.waveform != "pulse":
+            raise InputError(f"duty.{given[0]}", "belongs to a pulse duty (waveform: pulse)")
+        if self.pulse_width is not None and self.pulse_energy is not None:
+            raise InputError("duty.pulse_energy", "give the pulse's width or its energy, not both: "
+                             "the heating is computed from one of them")
+        if self.pulse_width is not None and self.repetition_rate is not None \
+                and self.pulse_width * self.repetition_rate >= 1.0:
+            raise InputError("duty.pulse_width", "is as long as the repetition period or longer: "
+                             "the pulses would overlap")
+        return self
 
     @property
     def voltage_peak(self) -> float:
@@ -333,7 +441,14 @@ def duty_amplitudes(data: dict) -> dict:
         data[key] = reading.value * factor
         if key == "voltage":
             data["voltage_form"] = form
-    if data.get("current") is not None:
+    if "voltage_driven" in data:
+        raise InputError("duty.voltage_driven", "is not a field: write current: voltage-driven")
+    if isinstance(data.get("current"), str) and lowered(data["current"]) in ("voltage-driven", "voltage driven"):
+        if waveform == "pulse":
+            raise InputError("duty.current", "a pulse across an inductance has no steady current: give the "
+                             "pulse's repetition_rate and pulse_width (or pulse_energy), or its rms current")
+        data["current"], data["voltage_driven"] = 0.0, True
+    if data.get("current") is not None and not data.get("voltage_driven"):
         amps = read_quantity(data["current"], "current", "duty.current", allow_zero=True)
         if amps.qualifier not in _CURRENT_FORMS[waveform]:
             raise InputError("duty.current", f"a {waveform} duty's current is its "
@@ -416,6 +531,8 @@ class Order:
         m = getattr(f, "margin_tape", None)
         self.margin, self.margin_material = ((m.width, m.material) if isinstance(m, MarginTape)
                                              else (m or 0.0, "margin tape"))
+        self.margin_thickness = m.thickness if isinstance(m, MarginTape) else None
+        _check_construction(doc, self.pins, self.hookup_name)
         if isinstance(f, ToroidForm) and "start" in w.model_fields_set:
             raise InputError("winding.start", "applies to a cylinder or bobbin; a toroid starts at the mark "
                              "on its top face and leaves form.gap free")
@@ -441,6 +558,59 @@ class Order:
     @property
     def strand_ids(self) -> list[str]:
         return list(STRAND_IDS[: self.doc.winding.strands])
+
+
+def _check_construction(doc: OrderDoc, pins, hookup_name: str) -> None:
+    """Pins, the core's assembly, a toroid's arrangement and the cover: what the shop can build."""
+    f, w = doc.form, doc.winding
+    header = getattr(f, "pin_header", None)
+    if pins and header is None and not isinstance(f, BobbinForm):
+        raise InputError("terminations", f"a plain {f.kind} has no pins to terminate on: give form.pin_header "
+                         "(end, pitch, pins) for the header the pins stand in, or leave the leads free")
+    if header is not None:
+        for t in pins:
+            name = str(t["pin"])
+            if not (name.isdigit() and 1 <= int(name) <= header.pins):
+                raise InputError(f"terminations.{t['ends'][0]}", f"pin {name} is not on the header: "
+                                 f"form.pin_header has pins 1 to {header.pins}")
+    if isinstance(f, BobbinForm) and f.assembly is not None:
+        gap = f.gap.thickness if f.gap is not None else None
+        if f.assembly == "interleaved" and gap:
+            raise InputError("form.assembly", "an interleaved E/I stack has no gap: give assembly: butt-gapped "
+                             "for a spacer in the joint, or gap: 0")
+        if f.assembly != "interleaved" and not gap:
+            raise InputError("form.gap", f"a {f.assembly} core needs its gap, like 0.3 mm")
+        if f.assembly == "ground-centre-leg" and f.gap.material:
+            raise InputError("form.gap.material", "a gap ground in the centre leg has no spacer")
+    arr = w.arrangement
+    if arr.kind == "sectors":
+        if not isinstance(f, ToroidForm):
+            raise InputError("winding.arrangement", "sectors are for windings on a toroid")
+        if w.strands < 2:
+            raise InputError("winding.arrangement", "sectors share the ring between several windings; "
+                             "one winding is wound together")
+        if hookup_name != "separate":
+            raise InputError("winding.arrangement", "each sector is a winding of its own: hookup: separate")
+        if arr.sectors is not None:
+            if len(arr.sectors) != w.strands:
+                raise InputError("winding.arrangement.sectors", f"give one angle per winding ({w.strands})")
+            if sum(arr.sectors) + w.strands * f.gap > 2 * math.pi + 1e-9:
+                raise InputError("winding.arrangement.sectors", "the sectors and a form.gap between each pair "
+                                 "take more than the whole ring (360 deg)")
+    elif arr.sectors is not None:
+        raise InputError("winding.arrangement.sectors", "sectors are given with arrangement sectors")
+    wrap = w.outer_wrap
+    if wrap is not None and wrap.overlap is not None:
+        toroid = isinstance(f, ToroidForm)
+        if toroid and wrap.overlap.length is not None:
+            raise InputError("winding.outer_wrap.overlap", "tape through a toroid's hole overlaps by a share of "
+                             "its width, like 50 %")
+        if not toroid and wrap.overlap.fraction is not None:
+            raise InputError("winding.outer_wrap.overlap", "a wrap round a cylinder or bobbin overlaps its seam "
+                             "by a length, like 10 mm")
+        if wrap.overlap.fraction is not None and not 0 < wrap.overlap.fraction < 1:
+            raise InputError("winding.outer_wrap.overlap", "expected a share of the tape's width above 0 % and "
+                             "below 100 %")
 
 
 #: The narrowest tolerance band read: a bench LCR meter's or milliohm meter's basic accuracy is

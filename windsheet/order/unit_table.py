@@ -28,10 +28,12 @@ _SI = {
     "H": ("inductance", 1.0, ("henry", "henries", "henrys")),
     "F": ("capacitance", 1.0, ("farad", "farads")),
     "V": ("voltage", 1.0, ("volt", "volts")),
+    "T": ("flux_density", 1.0, ("tesla", "teslas")),
     "A": ("current", 1.0, ("ampere", "amperes", "amp", "amps")),
     "Hz": ("frequency", 1.0, ("hertz",)),
     "ohm": ("resistance", 1.0, ("ohm", "ohms")),
     "s": ("time", 1.0, ("second", "seconds")),
+    "J": ("energy", 1.0, ("joule", "joules")),
     "g": ("mass", 1e-3, ("gram", "grams")),
 }
 # Units outside SI's prefixed symbols: spelling -> (kind, factor, offset, canonical).
@@ -69,7 +71,7 @@ _OTHER_ACCEPTED = {
 }
 # Units the order language does not take, listed so that a case is never
 # "forgiven" into a unit when the writer may have meant one of these.
-_FOREIGN = {"S": "siemens", "C": "coulomb", "T": "tesla", "W": "watt", "J": "joule", "N": "newton",
+_FOREIGN = {"S": "siemens", "C": "coulomb", "W": "watt", "N": "newton",
             "Pa": "pascal", "Wb": "weber", "L": "litre", "l": "litre", "t": "tonne", "G": "gauss",
             "mol": "mole", "cd": "candela", "lm": "lumen", "lx": "lux", "Bq": "becquerel",
             "Gy": "gray", "Sv": "sievert", "bar": "bar", "eV": "electronvolt", "VA": "volt-ampere",

@@ -43,10 +43,13 @@ DIMENSIONS = {
     "resistance": ("resistance", "ohm", "1.5 ohm"),
     "time": ("time", "s", "60 s"),
     "rise_time": ("time", "s", "100 ns"),
+    "pulse_width": ("time", "s", "10 us"),
+    "energy": ("energy", "J", "50 mJ"),
     "temperature": ("temperature", "degC", "25 degC"),
     "inductance_factor": ("inductance", "H", "2.2 uH"),
     "mass": ("mass", "kg", "12 g"),
     "angle": ("angle", "rad", "30 deg"),
+    "flux_density": ("flux_density", "T", "1.2 T"),
 }
 
 # Plausible magnitudes for a coil-shop document (SI, outside zero).  Far wider
@@ -67,8 +70,11 @@ SANE_RANGE = {
     "resistance": (1e-9, 1e18),
     "time": (1e-6, 1e7),
     "rise_time": (1e-12, 1.0),
+    "pulse_width": (1e-12, 10.0),
+    "energy": (1e-12, 1e7),
     "temperature": (-273.15, 1000.0),
     "mass": (1e-9, 1e4),
+    "flux_density": (1e-6, 1e2),
 }
 
 _QUALIFIERS = {"rms": "rms", "ac": "rms", "a.c.": "rms", "peak": "peak", "pk": "peak",

@@ -36,6 +36,16 @@ START_ROUTES = ("start-flange", "through-form")
 FINISH_ROUTES = ("over-top-layer", "end-flange", "down-start-flange")
 JOINT_ROUTES = ("back-over-winding", "end-flange")
 
+#: Where a finish already lies at the start end (an even number of layers ends there), nothing is
+#: laid back: these words replace the route's own.
+ROUTE_TEXT_AT_START = {
+    "over-top-layer": "brought straight out at the start end, where the top layer ends (an even layer count "
+                      "ends there: nothing to lay back)",
+    "end-flange": "lifted straight out where it ends, at the start flange, clear of the turns",
+    "down-start-flange": "down the start flange to the former, from the start end where the top layer ends",
+    "back-over-winding": "joint made at the start end, where the top layer ends (nothing to lay back)",
+}
+
 ROUTE_TEXT = {
     "start-flange": "up the start flange",
     "through-form": "out through the former",
@@ -70,6 +80,14 @@ class Lead:
     route: str
     joint: str | None
     beside: np.ndarray
+    at_start_end: bool = False
+
+    @property
+    def route_text(self) -> str:
+        """The route in words, saying where a finish really leaves the winding."""
+        if self.which == 1 and self.at_start_end and self.route in ROUTE_TEXT_AT_START:
+            return ROUTE_TEXT_AT_START[self.route]
+        return ROUTE_TEXT.get(self.route, self.route)
 
 
 def default_routes(layers: int) -> dict:
@@ -225,5 +243,6 @@ def lead_routes(layout: Layout, joins, terminals, routes=None, hookup: str = "")
             else:
                 route = chosen["finish"]
             out.append(Lead(end=end, strand=s, which=which, route=route, joint=joint,
-                            beside=lead_beside(layout, s, which, route)))
+                            beside=lead_beside(layout, s, which, route),
+                            at_start_end=which == 1 and layout.layers % 2 == 0))
     return out

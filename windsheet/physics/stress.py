@@ -27,7 +27,6 @@ from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_FACTO
                          insulation_verdict, volts)
 from .layout import Layout
 from .neighbours import neighbour_pairs
-from .leads import ROUTE_TEXT
 from .voltage_map import describe_turn, pair_record, pair_voltages, turn_drops, turn_potentials
 
 #: Duty frequency must stay below this fraction of self-resonance (common practice).
@@ -99,7 +98,7 @@ def _lead_report(layout, leads, end_potential, v, peak):
     out, pairs = [], []
     for k, lead in enumerate(leads):
         v_lead = end_potential[lead.strand, lead.which]
-        rec = {"lead": lead.end, "route": lead.route, "route_text": ROUTE_TEXT.get(lead.route, lead.route),
+        rec = {"lead": lead.end, "route": lead.route, "route_text": lead.route_text,
                "joint": lead.joint, "beside_turns": int(lead.beside.size), "worst_Vpk": 0.0, "where": None}
         if lead.beside.size:
             dv = np.abs(v_lead - v[lead.beside]) * peak

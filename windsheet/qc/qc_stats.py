@@ -7,9 +7,16 @@ same strand count and hookup) can be charted together.  The family's mean
 r − 1 is the shop's own bias, the figure a planner uses to correct the next
 order.
 
+Only units that **passed** sign-off enter the bias, the centre line and the
+limits: a miswired or failed unit measures the wiring fault, not the shop's
+process, and one such unit would otherwise move the mean and widen the limits
+(the usual practice of setting limits from an in-control period, Montgomery
+sec. 6.4, Phase I; from memory).  Failed and incomplete units are still
+charted, marked, and listed apart.
+
 The control chart is the individuals (X) chart: centre line the mean, limits
 ±3σ with σ estimated from the average moving range of successive points,
-σ̂ = MR̄ / d2, d2 = 1.128 for ranges of two (Montgomery, *Introduction to
+σ̂ = MR-bar / d2, d2 = 1.128 for ranges of two (Montgomery, *Introduction to
 Statistical Quality Control*, ch. 6; NIST/SEMATECH e-Handbook of Statistical
 Methods, §6.3.2).  Signals are flagged by two run rules:
 
@@ -37,7 +44,8 @@ D2_N2 = 1.128
 RUN_LENGTH = 7
 RULE_BEYOND = "Rule 1: one point beyond 3σ (Western Electric)"
 RULE_RUN = f"Rule 2: {RUN_LENGTH} in a row on one side of the centre (AIAG)"
-SIGMA_NOTE = "σ = MR̄ / d2, d2 = 1.128 (individuals chart; Montgomery; NIST/SEMATECH e-Handbook §6.3.2)"
+SIGMA_NOTE = ("σ = MR-bar / d2, d2 = 1.128, from the units that passed (individuals chart; Montgomery; "
+              "NIST/SEMATECH e-Handbook §6.3.2)")
 
 
 
@@ -143,28 +151,47 @@ def bias(x) -> dict:
     return {"bias": float(x.mean() - 1.0) if n else None, "sd": float(x.std(ddof=1)) if n > 1 else None, "n": n}
 
 
-def bias_text(label: str, item: str, b: dict) -> str:
+def bias_text(label: str, item: str, b: dict, apart: int = 0) -> str:
     """The sentence the report prints, e.g. ``bifilar … : inductance reads +2.1 % ± 0.8 % over 37 units``.
 
     Examples
     --------
     >>> bias_text("bifilar on 50 mm glass-epoxy", "terminal inductance", {"bias": 0.021, "sd": 0.008, "n": 37})
-    'bifilar on 50 mm glass-epoxy: terminal inductance reads +2.1 % ± 0.8 % over 37 units'
+    'bifilar on 50 mm glass-epoxy: terminal inductance reads +2.1 % ± 0.8 % over 37 units that passed'
+    >>> bias_text("bifilar", "terminal inductance", {"bias": None, "sd": None, "n": 0}, apart=2)
+    'bifilar: terminal inductance: no unit has passed yet (2 failed or incomplete, listed apart)'
     """
+    tail = f" ({apart} failed or incomplete, listed apart)" if apart else ""
+    if b.get("bias") is None:
+        return f"{label}: {item}: no unit has passed yet{tail}"
     spread = f" ± {b['sd'] * 100:.1f} %" if b.get("sd") is not None else ""
-    return f"{label}: {item} reads {b['bias'] * 100:+.1f} %{spread} over {b['n']} unit{'s' if b['n'] != 1 else ''}"
+    return (f"{label}: {item} reads {b['bias'] * 100:+.1f} %{spread} over {b['n']} unit{'s' if b['n'] != 1 else ''}"
+            f" that passed{tail}")
 
 
 def line_chart(points: list[dict]) -> dict:
     """Everything a control chart of one line shows, from its points in time order.
 
-    ``points`` are dicts with ``ratio``, ``job``, ``serial`` (and ``signed_at``).
+    ``points`` are dicts with ``ratio``, ``job``, ``serial`` (and ``signed_at``,
+    and ``passed``: False for a unit that failed or is incomplete).  The limits
+    and the run rules use the units that passed; ``excluded`` holds the indices
+    of the others, which are drawn and marked but move nothing.
+
+    Examples
+    --------
+    >>> c = line_chart([{"ratio": r, "passed": r < 1.5} for r in (1.0, 1.02, 3.0, 0.99)])
+    >>> c["excluded"], round(c["limits"]["centre"], 4), c["limits"]["n"]
+    ([2], 1.0033, 3)
     """
-    x = [p["ratio"] for p in points]
+    used = [i for i, p in enumerate(points) if p.get("passed", True)]
+    x = [points[i]["ratio"] for i in used]
     lim = individuals_limits(x)
     signals = run_rule_signals(x, lim["centre"], lim["sigma"]) if x else []
+    for sig in signals:
+        sig["points"] = [used[j] for j in sig["points"]]
     return {"points": points, "limits": lim, "signals": signals, "sigma_estimate": SIGMA_NOTE,
-            "rules": [RULE_BEYOND, RULE_RUN]}
+            "rules": [RULE_BEYOND, RULE_RUN],
+            "excluded": [i for i, p in enumerate(points) if not p.get("passed", True)]}
 
 
 def family_statistics(units: list[dict]) -> list[dict]:
@@ -174,15 +201,18 @@ def family_statistics(units: list[dict]) -> list[dict]:
     ----------
     units : list of dict
         Signed-off units in time order, each ``job``, ``serial``, ``signed_at``,
-        ``family`` (key, label) and ``lines`` (the sign-off's evaluated lines).
+        ``family`` (key, label), ``lines`` (the sign-off's evaluated lines) and
+        ``verdict`` (only ``pass`` units enter the statistics; a unit without
+        one counts as passed).
 
     Returns
     -------
     families : list of dict
-        ``key``, ``label``, ``jobs`` and ``lines``: per QC line ``key``, ``item``,
-        ``bias`` (:func:`bias`), ``statement`` (:func:`bias_text`), ``per_job``
-        (each job's ``n``, ``mean`` and ``sd`` of the ratio) and ``chart``
-        (:func:`line_chart`).
+        ``key``, ``label``, ``jobs``, ``apart`` (the units that did not pass:
+        ``job``, ``serial``, ``verdict``) and ``lines``: per QC line ``key``,
+        ``item``, ``bias`` (:func:`bias`, over passed units), ``statement``
+        (:func:`bias_text`), ``per_job`` (each job's ``n``, ``mean`` and ``sd``
+        of the passed units' ratio) and ``chart`` (:func:`line_chart`).
     """
     # One grouped pass: each unit's ratios go straight to their family, line and job, so the work is
     # the units' lines once over (scanning a line's points for every job was quadratic in jobs).
@@ -191,20 +221,25 @@ def family_statistics(units: list[dict]) -> list[dict]:
         key, label = u["family"]
         fam = fams.get(key)
         if fam is None:
-            fam = fams[key] = {"key": key, "label": label, "jobs": {}, "lines": {}}
+            fam = fams[key] = {"key": key, "label": label, "jobs": {}, "lines": {}, "apart": []}
         fam["jobs"].setdefault(u["job"], None)
+        passed = (u.get("verdict") or "pass") == "pass"
+        if not passed:
+            fam["apart"].append({"job": u["job"], "serial": u["serial"], "verdict": u.get("verdict")})
         for lkey, (item, r) in line_ratios(u["lines"]).items():
             line = fam["lines"].get(lkey)
             if line is None:
                 line = fam["lines"][lkey] = {"key": lkey, "item": item, "points": [], "by_job": {}}
             line["points"].append({"ratio": r, "job": u["job"], "serial": u["serial"],
-                                   "signed_at": u.get("signed_at")})
-            line["by_job"].setdefault(u["job"], []).append(r)
+                                   "signed_at": u.get("signed_at"), "passed": passed})
+            if passed:
+                line["by_job"].setdefault(u["job"], []).append(r)
     out = []
     for fam in fams.values():
         lines = []
         for line in fam["lines"].values():
-            x = [p["ratio"] for p in line["points"]]
+            x = [p["ratio"] for p in line["points"] if p["passed"]]
+            apart = len(line["points"]) - len(x)
             b = bias(x)
             per_job = []
             for job in fam["jobs"]:
@@ -213,7 +248,8 @@ def family_statistics(units: list[dict]) -> list[dict]:
                     jb = bias(xs)
                     per_job.append({"job": job, "n": jb["n"], "mean": float(np.mean(xs)), "sd": jb["sd"]})
             lines.append({"key": line["key"], "item": line["item"], "bias": b,
-                          "statement": bias_text(fam["label"], line["item"].lower(), b),
+                          "statement": bias_text(fam["label"], line["item"].lower(), b, apart),
                           "per_job": per_job, "chart": line_chart(line["points"])})
-        out.append({"key": fam["key"], "label": fam["label"], "jobs": list(fam["jobs"]), "lines": lines})
+        out.append({"key": fam["key"], "label": fam["label"], "jobs": list(fam["jobs"]), "apart": fam["apart"],
+                    "lines": lines})
     return out

@@ -7,11 +7,15 @@ from windsheet.common.fileio import MAX_YAML_BYTES, read_limited, read_yaml_file
 
 from .measured import MeasuredFile, measured_from_dict
 from .readings_form import measured_from_csv
+from .transformer_readings import TransformerReadings, is_transformer_readings, transformer_readings
 
 
-def load_measured(path) -> MeasuredFile:
+def load_measured(path) -> MeasuredFile | TransformerReadings:
     """Read a measured-values file: YAML (size, depth and alias limits apply), or CSV
-    (``.csv``: one row per unit, one column per QC line, see readings_form.py)."""
+    (``.csv``: one row per unit, one column per QC line, see readings_form.py).
+
+    A YAML file whose units are read winding by winding is a transformer's
+    (:class:`~windsheet.qc.transformer_readings.TransformerReadings`)."""
     if str(path).lower().endswith(".csv"):
         raw = read_limited(path, MAX_YAML_BYTES)
         if len(raw) > MAX_YAML_BYTES:
@@ -23,6 +27,8 @@ def load_measured(path) -> MeasuredFile:
         return measured_from_csv(text, str(path))
     data = read_yaml_file(path)
     try:
+        if is_transformer_readings(data):
+            return transformer_readings(data)
         return measured_from_dict(data)
     except InputError:
         raise

@@ -1,6 +1,8 @@
 """Bill of materials across jobs: what to pull from stores for a set of orders.
 
-Reads designs only (:class:`windsheet.design.model.Design`); nothing here computes
+Reads designs only (a coil's :class:`windsheet.design.model.Design` or a
+transformer's :class:`windsheet.design.transformer_model.TransformerDesign`: one
+wire per winding, layer tape per section, barrier tape); nothing here computes
 physics or counts what the design holds (its sleeving pieces, its quantity).
 Wire is grouped by standard, size, grade, conductor and thermal class; each
 group's length and mass are the jobs' ``wire_length_with_scrap_m`` and
@@ -54,6 +56,70 @@ def job_wire(p) -> dict:
             "mass_kg": qty * mass_unit}
 
 
+def _transformer_wires(p) -> list[dict]:
+    qty = p.quantity
+    out = []
+    for w in p.windings:
+        out.append({"group": wire_group(w.wire), "label": w.wire.label, "strands": w.strands, "winding": w.name,
+                    "quantity": qty, "length_per_unit_m": float(w.wire_length_with_scrap_m),
+                    "length_m": qty * float(w.wire_length_with_scrap_m), "mass_kg": qty * float(w.mass_kg)})
+    return out
+
+
+def _transformer_tapes(p, overlap: float) -> list[dict]:
+    """Layer tape within each section and the barrier tape between windings, one wrap at its height."""
+    qty = p.quantity
+    base = _base_perimeter(p.form)
+    out = []
+    for b in p.build:
+        if b.kind == "section":
+            s = p.sections[b.section]
+            t = job_tape(s, overlap)
+            if t is not None and base is not None:
+                # The section sits on the build below it: its wraps are that much longer.
+                t["length_m"] += qty * (s.layers - 1) * 2 * math.pi * b.build_below_m * (1 + overlap)
+            if t is not None:
+                out.append({**t, "where": f"layers of {b.label}"})
+        elif b.kind == "barrier":
+            bar = next((x for x in p.barriers if b.label.endswith(f"{x.between[0]}–{x.between[1]}")), None)
+            if bar is None or not bar.tape_wraps:
+                continue
+            wraps = qty * bar.tape_wraps
+            length = None if base is None else sum(
+                (base + 2 * math.pi * (b.build_below_m + k * bar.tape_thickness_m)) * (1 + overlap)
+                for k in range(bar.tape_wraps)) * qty
+            rated = f", rated {bar.tape_rating_V / 1e3:g} kV" if bar.tape_rating_V else ""
+            out.append({"spec": f"{bar.tape_material or 'insulating tape'}, {bar.tape_thickness_m * 1e6:.0f} µm "
+                                f"thick{rated}", "where": f"barrier {bar.between[0]}–{bar.between[1]}",
+                        "wraps": wraps, "length_m": length, "quantity": qty})
+    return out
+
+
+def job_wires(p) -> list[dict]:
+    """Every wire a job draws: a coil's one, a transformer's one per winding (see :func:`job_wire`)."""
+    return _transformer_wires(p) if hasattr(p, "windings") else [job_wire(p)]
+
+
+def job_tapes(p, overlap: float = TAPE_OVERLAP) -> list[dict]:
+    """Every tape a job lays: a coil's layer tape, a transformer's layer and barrier tape."""
+    if hasattr(p, "windings"):
+        return _transformer_tapes(p, overlap)
+    t = job_tape(p, overlap)
+    return [t] if t is not None else []
+
+
+def job_margin_tape(p) -> list[dict]:
+    """Margin tape: two strips per wound section (one at each end of its traverse), built to its height."""
+    sections = p.sections if hasattr(p, "windings") else [p]
+    out = []
+    for s in sections:
+        f = s.form
+        if f.margin_tape_m and f.kind != "toroid":
+            out.append({"spec": f"{f.margin_tape_material or 'margin tape'}, {f.margin_tape_m * 1e3:g} mm wide",
+                        "strips": 2 * p.quantity, "quantity": p.quantity})
+    return _sum_by_spec(out, ("strips",))
+
+
 def _base_perimeter(form) -> Optional[float]:
     if form.kind == "toroid":
         return None  # tape round a toroid's section spirals the whole ring: not estimated
@@ -90,12 +156,18 @@ def job_sleeving(p) -> dict:
     """Sleeving: the design's pieces per unit (one over each terminal lead and each joint), each a lead length
     (common practice)."""
     qty = p.quantity
-    od = float(p.wire.overall_diameter_m)
     pieces = p.connections.sleeving_pieces_per_unit
-    lead = float(p.winding.lead_length_m or 0.0)
-    # A joint holds two wires side by side: the bore must take both.
-    bore = 2 * od if p.connections.joints else od
-    cls = p.wire.thermal_class_C
+    if hasattr(p, "windings"):
+        # One size for the job: the bore of the thickest wire, the longest lead.
+        od = max(float(s.wire.overall_diameter_m) for s in p.sections)
+        lead = max(float(s.winding.lead_length_m or 0.0) for s in p.sections)
+        bore, cls = od, min(w.wire.thermal_class_C or 0 for w in p.windings) or None
+    else:
+        od = float(p.wire.overall_diameter_m)
+        lead = float(p.winding.lead_length_m or 0.0)
+        # A joint holds two wires side by side: the bore must take both.
+        bore = 2 * od if p.connections.joints else od
+        cls = p.wire.thermal_class_C
     return {"spec": f"sleeving, bore at least {bore * 1e3:.2f} mm" + (f", class {cls} °C" if cls else ""),
             "pieces": qty * pieces, "pieces_per_unit": pieces, "length_m": qty * pieces * lead, "quantity": qty}
 
@@ -194,8 +266,9 @@ def bill_of_materials(predictions: list[dict], reels: Optional[list[dict]] = Non
     Returns
     -------
     bill : dict
-        ``jobs`` (each: ``job``, ``part``, ``quantity``, ``wire``, ``tape``,
-        ``sleeving``, ``form``, ``labels``) and ``total`` (wire by group,
+        ``jobs`` (each: ``job``, ``part``, ``quantity``, ``wires`` (one per
+        winding of a transformer), ``tapes``, ``margin_tape``, ``sleeving``,
+        ``form``, ``labels``) and ``total`` (wire by group,
         tape and sleeving by specification, forms by specification, labels),
         lengths in metres and masses in kilograms.
 
@@ -203,16 +276,19 @@ def bill_of_materials(predictions: list[dict], reels: Optional[list[dict]] = Non
     jobs, wires = [], []
     for p in predictions:
         job = p.job
-        wire = {**job_wire(p), "job": job.number}
-        _add_reels(wire, reels)
-        wires.append(wire)
+        job_wire_rows = [{**w, "job": job.number} for w in job_wires(p)]
+        for w in job_wire_rows:
+            _add_reels(w, reels)
+        wires += job_wire_rows
         jobs.append({"job": job.number, "part": job.part, "customer": job.customer,
-                     "revision": job.revision, "quantity": p.quantity, "wire": wire,
-                     "tape": job_tape(p, tape_overlap), "sleeving": job_sleeving(p), "form": job_form(p),
+                     "revision": job.revision, "quantity": p.quantity, "wires": job_wire_rows,
+                     "tapes": job_tapes(p, tape_overlap), "margin_tape": job_margin_tape(p),
+                     "sleeving": job_sleeving(p), "form": job_form(p),
                      "labels": job_labels(p)})
-    return {"schema": "windsheet.materials/1", "jobs": jobs,
+    return {"schema": "windsheet.materials/2", "jobs": jobs,
             "total": {"wire": _wire_total(wires, reels),
-                      "tape": _sum_by_spec([j["tape"] for j in jobs if j["tape"]], ("wraps", "length_m")),
+                      "tape": _sum_by_spec([t for j in jobs for t in j["tapes"]], ("wraps", "length_m")),
+                      "margin_tape": _sum_by_spec([m for j in jobs for m in j["margin_tape"]], ("strips",)),
                       "sleeving": _sum_by_spec([j["sleeving"] for j in jobs], ("pieces", "length_m")),
                       "forms": _sum_by_spec([j["form"] for j in jobs], ("count",)),
                       "labels": sum(j["labels"]["count"] for j in jobs)},
@@ -261,11 +337,15 @@ def bill_rows(bill: dict) -> list[dict]:
 
     for j in bill["jobs"]:
         scope = j["job"]
-        wire_rows(scope, j["wire"])
-        if j["tape"]:
-            add(scope, "tape", j["tape"]["spec"], j["tape"]["wraps"], "wraps")
-            if j["tape"]["length_m"] is not None:
-                add(scope, "tape", j["tape"]["spec"], round(j["tape"]["length_m"], 3), "m")
+        for w in j["wires"]:
+            wire_rows(scope, w)
+        for tp in j["tapes"]:
+            item = tp["spec"] + (f" ({tp['where']})" if tp.get("where") else "")
+            add(scope, "tape", item, tp["wraps"], "wraps")
+            if tp["length_m"] is not None:
+                add(scope, "tape", item, round(tp["length_m"], 3), "m")
+        for m in j["margin_tape"]:
+            add(scope, "margin tape", m["spec"], m["strips"], "strips")
         add(scope, "sleeving", j["sleeving"]["spec"], j["sleeving"]["pieces"], "pieces")
         add(scope, "sleeving", j["sleeving"]["spec"], round(j["sleeving"]["length_m"], 3), "m")
         add(scope, "form", j["form"]["spec"], j["form"]["count"], "pcs")
@@ -277,6 +357,8 @@ def bill_rows(bill: dict) -> list[dict]:
         add("TOTAL", "tape", tp["spec"], tp["wraps"], "wraps")
         if tp["length_m"] is not None:
             add("TOTAL", "tape", tp["spec"], round(tp["length_m"], 3), "m")
+    for m in t["margin_tape"]:
+        add("TOTAL", "margin tape", m["spec"], m["strips"], "strips")
     for s in t["sleeving"]:
         add("TOTAL", "sleeving", s["spec"], s["pieces"], "pieces")
         add("TOTAL", "sleeving", s["spec"], round(s["length_m"], 3), "m")
@@ -300,5 +382,5 @@ def bill_json_ready(bill: dict) -> dict:
     def fix(w):
         s, size, g, c, tc = w["group"]
         return {**w, "group": {"standard": s, "size_m": size, "grade": g, "conductor": c, "thermal_class_C": tc}}
-    jobs = [{**j, "wire": fix(j["wire"])} for j in bill["jobs"]]
+    jobs = [{**j, "wires": [fix(w) for w in j["wires"]]} for j in bill["jobs"]]
     return {**bill, "jobs": jobs, "total": {**bill["total"], "wire": [fix(w) for w in bill["total"]["wire"]]}}

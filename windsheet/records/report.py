@@ -16,7 +16,9 @@ import json
 #: The QC lines charted and stated by default; the report's tables list every line.
 CHART_LINES = ("terminal.inductance", "terminal.resistance")
 
-BIAS_NOTE = ("Bias is the mean of measured / predicted − 1 over the family's units; ± is the units' "
+BIAS_NOTE = ("Bias is the mean of measured / predicted − 1 over the family's units that passed sign-off (a "
+             "failed or miswired unit measures its fault, not the process: it is charted, marked, and listed "
+             "apart); ± is the units' "
              "sample standard deviation (n − 1), not an uncertainty of the mean. Resistance is compared "
              "at 20 °C. A planner may correct the next order of the family by it; a family of few units, "
              "or a chart with signals, is not yet a stable basis.")
@@ -32,9 +34,10 @@ def register_units(conn) -> list[dict]:
         if issue_id not in fam_by_issue:
             fam_by_issue[issue_id] = recorded_family(conn, issue_id)
         latest.pop((job, serial), None)  # a re-test supersedes, and takes its own place in time
+        m = json.loads(mjson) or {}
         latest[(job, serial)] = {"job": job, "serial": serial, "signed_at": at,
-                                 "family": fam_by_issue[issue_id],
-                                 "lines": (json.loads(mjson) or {}).get("lines") or []}
+                                 "family": fam_by_issue[issue_id], "verdict": m.get("verdict") or "pass",
+                                 "lines": m.get("lines") or []}
     return list(latest.values())
 
 
@@ -60,8 +63,8 @@ def build_report(units: list[dict], chart_lines=CHART_LINES) -> dict:
             "units": len(units), "chart_lines": list(chart_lines), "statements": statements,
             "bias_note": BIAS_NOTE, "families": families,
             "notes": ["Each point is one unit's latest sign-off, in the order signed off.",
-                      "Control limits are ±3σ of an individuals chart; σ from the average moving range "
-                      "(MR̄ / 1.128). Limits from fewer than some 20 units are provisional (Montgomery "
+                      "Control limits are ±3σ of an individuals chart over the units that passed; σ from "
+                      "the average moving range (MR-bar / 1.128). Limits from fewer than some 20 units are provisional (Montgomery "
                       "recommends 20–25 subgroups before limits are fixed; from memory).",
                       "These statistics describe the shop's own records; they are not a calibration."]}
 
@@ -85,7 +88,8 @@ def family_chart(reg, design, result: dict, line_key: str = "terminal.inductance
              if u["family"][0] == fam[0] and not (u["job"] == result.get("job")
                                                    and u["serial"] in {x["serial"] for x in result["units"]})]
     units += [{"job": result.get("job"), "serial": u["serial"], "signed_at": None, "family": fam,
-               "lines": u.get("lines") or []} for u in result.get("units") or []]
+               "verdict": u.get("verdict") or "pass", "lines": u.get("lines") or []}
+              for u in result.get("units") or []]
     for f in family_statistics(units):
         for line in f["lines"]:
             if line["key"] == line_key and line["chart"]["limits"]["n"] >= 2:

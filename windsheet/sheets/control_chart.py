@@ -19,7 +19,12 @@ def _pct(r):
 
 
 def control_chart_svg(chart: dict, title: str, ylabel: str = "measured / predicted − 1 [%]") -> str:
-    """The chart as SVG text: points, centre line, ±3σ limits and every run-rule signal named.
+    """The chart as SVG text: points, centre line, the shaded ±3σ band and every run-rule signal named.
+
+    The look is windsheet's own: the band between the limits shaded, the limits
+    named in the legend (not at the plot's edge), each signal marked with the
+    number of the rule it breaks, failed units drawn as crosses that move
+    nothing, whole-number unit ticks and a title that wraps rather than clips.
 
     Parameters
     ----------
@@ -39,38 +44,54 @@ def control_chart_svg(chart: dict, title: str, ylabel: str = "measured / predict
     from matplotlib.backends.backend_svg import FigureCanvasSVG
     from matplotlib.figure import Figure
 
+    import textwrap
+
+    from matplotlib.ticker import MaxNLocator
+
     pts = chart["points"]
     lim = chart["limits"]
     y = [_pct(p["ratio"]) for p in pts]
     x = list(range(1, len(y) + 1))
+    excluded = set(chart.get("excluded") or [])
+    kept = [i for i in range(len(y)) if i not in excluded]
     with matplotlib.rc_context({"svg.fonttype": "none", "svg.hashsalt": "windsheet", "font.size": FONT_PT,
                                 "font.family": "DejaVu Sans"}):
         fig = Figure(figsize=FIGSIZE_IN)
         FigureCanvasSVG(fig)
-        ax = fig.add_axes((0.09, 0.42, 0.72, 0.50))
-        ax.plot(x, y, marker="o", markersize=3.5, linewidth=0.9, color="black", label="units, in sign-off order")
+        ax = fig.add_axes((0.09, 0.40, 0.88, 0.46))
         ax.set_xlim(0.5, max(len(y), 2) + 0.5)
-        for value, name, style in ((lim.get("ucl"), "UCL", "--"), (lim.get("centre"), "CL", "-"),
-                                   (lim.get("lcl"), "LCL", "--")):
-            if value is None:
-                continue
-            ax.axhline(_pct(value), linestyle=style, linewidth=0.9, color="#555555")
-            ax.annotate(f"{name} {_pct(value):+.2f} %", xy=(1.0, _pct(value)), xycoords=("axes fraction", "data"),
-                        xytext=(4, 0), textcoords="offset points", va="center", fontsize=FONT_PT)
-        markers = ("s", "D", "^")
-        for k, sig in enumerate(chart.get("signals") or []):
-            ax.plot([x[i] for i in sig["points"]], [y[i] for i in sig["points"]], linestyle="none",
-                    marker=markers[k % 3], markersize=8, markerfacecolor="none", markeredgecolor="#b00000",
-                    markeredgewidth=1.3, label=sig["rule"])
-        ax.set_title(title, fontsize=FONT_PT + 1, loc="left")
+        # The band between the limits is shaded; each limit is named in the legend with its value.
+        if lim.get("ucl") is not None:
+            ax.axhspan(_pct(lim["lcl"]), _pct(lim["ucl"]), color="#e8eef5", zorder=0,
+                       label=f"±3σ band: UCL {_pct(lim['ucl']):+.2f} %, LCL {_pct(lim['lcl']):+.2f} %")
+            for value in (lim["ucl"], lim["lcl"]):
+                ax.axhline(_pct(value), linestyle=(0, (4, 2)), linewidth=0.8, color="#4a6f94", zorder=1)
+        if lim.get("centre") is not None:
+            ax.axhline(_pct(lim["centre"]), linestyle="-", linewidth=1.0, color="#4a6f94", zorder=1,
+                       label=f"CL {_pct(lim['centre']):+.2f} % (mean of the units that passed)")
+        ax.plot([x[i] for i in kept], [y[i] for i in kept], marker="o", markersize=3.2, linewidth=0.8,
+                color="black", zorder=3, label="units that passed, in sign-off order")
+        if excluded:
+            ax.plot([x[i] for i in sorted(excluded)], [y[i] for i in sorted(excluded)], linestyle="none",
+                    marker="x", markersize=6, markeredgewidth=1.4, color="#7a1f1f", zorder=3,
+                    label="failed or incomplete (not in the limits)")
+        # Each signal is marked by the number of the rule it breaks, written beside the point.
+        for sig in chart.get("signals") or []:
+            number = sig["rule"].split(":")[0].replace("Rule ", "")
+            for i in sig["points"]:
+                ax.annotate(number, xy=(x[i], y[i]), xytext=(0, 6), textcoords="offset points", ha="center",
+                            fontsize=FONT_PT, fontweight="bold", color="#7a1f1f", zorder=4)
+        ax.xaxis.set_major_locator(MaxNLocator(integer=True))
+        ax.set_title("\n".join(textwrap.wrap(title, 95)), fontsize=FONT_PT + 1, loc="left")
         ax.set_ylabel(ylabel)
         ax.set_xlabel("unit")
-        ax.grid(True, linewidth=0.3, color="#cccccc")
+        ax.grid(True, axis="y", linewidth=0.3, color="#cccccc")
         ax.legend(loc="upper left", bbox_to_anchor=(-0.02, -0.2), fontsize=FONT_PT - 1, frameon=False, ncol=2)
         found = "; ".join(f"{s['rule']} at unit {', '.join(str(i + 1) for i in s['points'])}"
                           for s in chart.get("signals") or []) or "none"
         fig.text(0.09, 0.02, f"Limits ±3σ, {chart['sigma_estimate']}. Rules checked: "
-                 f"{'; '.join(chart['rules'])}. Signals: {found}.", fontsize=FONT_PT - 1.5, wrap=True)
+                 f"{'; '.join(chart['rules'])}. Signals (numbered by rule on the chart): {found}.",
+                 fontsize=FONT_PT - 1.5, wrap=True)
         buf = io.StringIO()
         fig.savefig(buf, format="svg", metadata={"Date": None})
     return buf.getvalue()

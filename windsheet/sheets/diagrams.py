@@ -313,13 +313,19 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
     cell = 22.0 if vmax else 20.0
     gap_w = 26.0
     tape_h = 6.0 if tape else 0.0
-    runs = [_with_gaps(layer) for layer in layers]
-    width_cells = max([_run_width(r, cell, gap_w) for r in runs] + [cell * 4])
+    worst = {k for k, layer in enumerate(layers) if any(it.get("worst") for it in layer)} if vmax else set()
+    shown = shown_layers(len(layers), worst)
+    band_h = 30.0
+    bands = sum(1 for a, b in zip(shown, shown[1:]) if b > a + 1)
+    runs = {k: _with_gaps(layers[k]) for k in shown}
+    width_cells = max([_run_width(r, cell, gap_w) for r in runs.values()] + [cell * 4])
     # Room on the left for margin tape clear of the layer labels and arrows.
-    margin_l, margin_r = (76.0 if (placement or {}).get("margin_m") else 64.0), 96.0
-    width = margin_l + width_cells + margin_r
-    base_y = 30.0 + len(layers) * (cell + tape_h) + 14.0
-    height = base_y + (70.0 if vmax else 34.0)
+    margin_l, margin_r = (76.0 if (placement or {}).get("margin_m") else 64.0), 136.0
+    # The shading's key (five boxes) and the layer labels need their room whatever the winding's width.
+    width = max(margin_l + width_cells + margin_r, margin_l + 5 * 52 + 12 if vmax else 0.0)
+    build = len(shown) * (cell + tape_h) + bands * band_h
+    base_y = 30.0 + build + 14.0
+    height = base_y + (82.0 if vmax else 34.0)
     label = "Winding cross-section" + (" (toroid, inside wall)" if kind == "toroid" else "")
     root = _svg_root(width, height, label)
 
@@ -329,12 +335,35 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
         data_surface=surface)
     _text(root, margin_l, base_y + 24, surface, font_size="9.5")
 
-    for lay, run in enumerate(runs):
-        y = base_y - tape_h * lay - cell * lay - cell / 2 - 2.0
+    y_top = base_y
+    prev = None
+    for lay in shown:
+        if prev is not None and lay > prev + 1:
+            # The layers not drawn: a band that says how many, so the count stays true.
+            y_band = y_top - band_h / 2
+            g = _el(root, "g", data_elided_layers=f"{prev + 2}-{lay}")
+            for dy in (-9.0, 8.0):
+                _line(g, margin_l - 6, y_band + dy, margin_l + width_cells + 6, y_band + dy, stroke="#000",
+                      stroke_width="0.8", stroke_dasharray="6 3")
+            _text(g, margin_l + width_cells / 2, y_band + 3.5,
+                  f"layers {prev + 2}–{lay}: {lay - prev - 1} more layers, wound as those drawn",
+                  text_anchor="middle", font_size="9", font_style="italic")
+            y_top -= band_h
+        elif prev is not None and tape:
+            ty = y_top - tape_h / 2
+            _el(root, "rect", x=f"{margin_l - 4:.1f}", y=f"{ty - (tape_h - 2) / 2:.1f}",
+                width=f"{width_cells + 8:.1f}", height=f"{tape_h - 2:.1f}", fill="#ffffff",
+                stroke="#000", stroke_width="1", stroke_dasharray="4 2",
+                data_tape=f"{prev + 1}/{lay + 1}")
+            y_top -= tape_h
+        y = y_top - cell / 2 - 2.0
+        y_top -= cell
+        prev = lay
+        run = runs[lay]
         g = _el(root, "g", data_layer=str(lay + 1))
         _text(g, 6, y + 4, f"L{lay + 1}", font_weight="bold")
         direction = "→" if lay % 2 == 0 else "←"
-        _text(g, 30, y + 4, direction)
+        _text(g, 34, y + 4, direction)
         x = margin_l
         for item in run:
             if item is None:
@@ -345,12 +374,12 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
             if vmax:
                 # Shaded by potential; the strand letter sits in a white disc so it reads on any grey.
                 frac = float(item.get("potential_Vpk") or 0.0) / vmax
-                worst = bool(item.get("worst"))
+                worst_turn = bool(item.get("worst"))
                 _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r=f"{cell / 2 - 1:.1f}",
-                    fill=potential_grey(frac), stroke="#000", stroke_width="3.2" if worst else "1.0",
+                    fill=potential_grey(frac), stroke="#000", stroke_width="3.2" if worst_turn else "1.0",
                     data_slot=str(item["slot"]), data_strand=s,
                     data_potential=f"{float(item.get('potential_Vpk') or 0.0):.4g}",
-                    data_worst="1" if worst else None)
+                    data_worst="1" if worst_turn else None)
                 _el(g, "circle", cx=f"{x + cell / 2:.1f}", cy=f"{y:.1f}", r="5.6", fill="#fff",
                     stroke="none")
                 _strand_mark(root, g, x + cell / 2, y, s)
@@ -369,19 +398,33 @@ def cross_section_svg(cross_section: dict, kind: str = "cylinder", shade: bool =
             _text(g, x + dx, y + 4, f"{n} of {full} turns, partial" if partial else f"{n} turns",
                   font_size="9", font_weight="bold" if partial else None,
                   data_partial="1" if partial else None)
-        if tape and lay < len(runs) - 1:
-            ty = y - cell / 2 - tape_h / 2
-            _el(root, "rect", x=f"{margin_l - 4:.1f}", y=f"{ty - (tape_h - 2) / 2:.1f}",
-                width=f"{width_cells + 8:.1f}", height=f"{tape_h - 2:.1f}", fill="#ffffff",
-                stroke="#000", stroke_width="1", stroke_dasharray="4 2",
-                data_tape=f"{lay + 1}/{lay + 2}")
+    layers_h = base_y - y_top
     _text(root, margin_l + width_cells, 14, "start end at left", text_anchor="end",
           font_size="9.5")
-    _placement_marks(root, placement or {}, margin_l, width_cells, base_y,
-                     len(layers) * (cell + tape_h))
+    _placement_marks(root, placement or {}, margin_l, width_cells, base_y, layers_h)
     if vmax:
         _potential_scale(root, margin_l, base_y + 34, vmax)
     return _to_string(root)
+
+
+#: Above this many layers the section is a cut-away: the first layers and the last, the count between.
+CUTAWAY_LAYERS = 8
+
+
+def shown_layers(n: int, keep=()) -> list[int]:
+    """Layers (0-based) a cross-section draws: all up to :data:`CUTAWAY_LAYERS`, else the first three,
+    the last two and any in ``keep`` (the worst pair's), the rest stated as a count.
+
+    Examples
+    --------
+    >>> shown_layers(5)
+    [0, 1, 2, 3, 4]
+    >>> shown_layers(29, keep={14})
+    [0, 1, 2, 14, 27, 28]
+    """
+    if n <= CUTAWAY_LAYERS:
+        return list(range(n))
+    return sorted({0, 1, 2, n - 2, n - 1} | {k for k in keep if 0 <= k < n})
 
 
 def _placement_marks(root, place, x0, width, base_y, build):
@@ -407,14 +450,17 @@ def _placement_marks(root, place, x0, width, base_y, build):
 
 
 def _potential_scale(root, x0, y0, vmax, steps=5):
-    """The key to the shading: five greys from 0 V to the highest potential, each labelled."""
+    """The key to the shading: five greys from 0 V to the highest potential, each labelled, the words below."""
+    from windsheet.common.fmt import eng
+
     g = _el(root, "g", data_scale="potential")
     for k in range(steps):
         f = k / (steps - 1)
-        _el(g, "rect", x=f"{x0 + k * 44:.1f}", y=f"{y0:.1f}", width="40", height="10",
+        _el(g, "rect", x=f"{x0 + k * 52:.1f}", y=f"{y0:.1f}", width="48", height="10",
             fill=potential_grey(f), stroke="#000", stroke_width="0.8")
-        _text(g, x0 + k * 44 + 20, y0 + 22, f"{f * vmax:.3g} V", text_anchor="middle", font_size="9")
-    _text(g, x0 + steps * 44 + 4, y0 + 9, "peak, against the 0 V end; thick ring = worst pair", font_size="9")
+        _text(g, x0 + k * 52 + 24, y0 + 21, eng(f * vmax, "V", sig=3, trim=True, sep=" "), text_anchor="middle",
+              font_size="9")
+    _text(g, x0, y0 + 33, "peak, against the 0 V end; thick ring = worst pair", font_size="9")
 
 
 def _with_gaps(layer_slots):

@@ -34,7 +34,15 @@ def _q(value, unit):
         return f"{value:,.2f} m"
     if unit == "kg":
         return f"{value * 1e3:,.1f} g" if value < 1 else f"{value:,.3f} kg"
-    return f"{value:,} {unit}"
+    return f"{value:,} {_singular(unit) if value == 1 else unit}"
+
+
+#: A count of one is written in the singular on the printed bill ("1 reel"); the CSV keeps its unit words.
+_SINGULAR = {"reels": "reel", "pieces": "piece", "wraps": "wrap", "labels": "label"}
+
+
+def _singular(unit: str) -> str:
+    return _SINGULAR.get(unit, unit)
 
 
 def materials_html(bill: dict, paper: str = "a4") -> str:
@@ -48,7 +56,9 @@ def materials_html(bill: dict, paper: str = "a4") -> str:
     job_tables = []
     for j in bill["jobs"]:
         job_tables.append({"caption": f"{j['job']} rev {j.get('revision') or '—'} — {j.get('part') or ''}, "
-                                      f"{j['quantity']} unit(s), {j['wire']['strands']} strand(s)",
+                                      f"{j['quantity']} unit(s), "
+                                      + ", ".join(f"{w['winding'] + ' ' if w.get('winding') else ''}{w['strands']} "
+                                                  "strand(s)" for w in j["wires"]),
                            "head": ["Category", "Item", "Quantity"], "num": (2,),
                            "rows": [[r["category"], r["item"], _q(r["quantity"], r["unit"])]
                                     for r in rows if r["scope"] == j["job"]]})
@@ -66,17 +76,22 @@ def report_html(report: dict, charts: dict, paper: str = "a4") -> str:
                  "paras": [{"text": s, "cls": "statement"} for s in report["statements"]]
                  + [{"text": report["bias_note"]}]}]
     for k, fam in enumerate(report["families"], start=2):
-        table = {"head": ["QC line", "Units", "Bias (mean − 1)", "SD of units", "Per job (n: mean − 1)"],
+        table = {"head": ["QC line", "Units passed", "Bias (mean − 1)", "SD of units", "Per job (n: mean − 1)"],
                  "num": (1, 2, 3), "rows": []}
         for line in fam["lines"]:
             b = line["bias"]
             per_job = "; ".join(f"{pj['job']} ({pj['n']}: {(pj['mean'] - 1) * 100:+.1f} %)" for pj in line["per_job"])
-            table["rows"].append([line["item"], b["n"], f"{b['bias'] * 100:+.2f} %",
+            table["rows"].append([line["item"], b["n"], f"{b['bias'] * 100:+.2f} %" if b["bias"] is not None else "—",
                                   f"{b['sd'] * 100:.2f} %" if b["sd"] is not None else "—", per_job])
         figures = [{"key": f"{fam['key']}::{lk}", "alt": f"control chart {lk}", "src": svg_data_url(svg)}
                    for (fk, lk), svg in charts.items() if fk == fam["key"]]
+        paras = [{"text": f"Jobs: {', '.join(fam['jobs'])}."}]
+        if fam.get("apart"):
+            # Listed apart, and marked on the charts: they move neither the bias nor the limits.
+            paras.append({"text": "Not in the statistics (failed or incomplete at sign-off): " + "; ".join(
+                f"{u['job']} {u['serial']} ({u['verdict']})" for u in fam["apart"]) + "."})
         sections.append({"id": f"family-{k - 1}", "heading": f"{k} {fam['label']}",
-                         "paras": [{"text": f"Jobs: {', '.join(fam['jobs'])}."}], "tables": [table],
+                         "paras": paras, "tables": [table],
                          "figures": figures})
     subtitle = f"{report['units']} unit(s) signed off, {len(report['families'])} family(ies)"
     return records_html("QC report", subtitle, "QC report", sections, report.get("notes") or (), paper,

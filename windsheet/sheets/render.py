@@ -37,18 +37,18 @@ def check_issuable(design, force: bool = False) -> None:
                          "or issue with --force")
 
 
-#: The CLI's ``--units`` words.
-UNIT_SYSTEMS = ("imperial", "metric")
+#: The CLI's ``--units`` words: metric; imperial (inches and °F only); both (inches and °F first, mm and °C beside).
+UNIT_SYSTEMS = ("imperial", "metric", "both")
 
 
-def _imperial(design, units: str | None) -> bool:
-    """Inches beside millimetres: as the order was written, unless ``--units`` says otherwise."""
+def _units(design, units: str | None) -> str:
+    """The sheet's unit system: as the order was written, unless ``--units`` says otherwise."""
     if units is None:
-        return design.sheet_units == "imperial"
+        return "imperial" if design.sheet_units == "imperial" else "metric"
     key = str(units).strip().lower()
     if key not in UNIT_SYSTEMS:
-        raise InputError("--units", f"expected imperial or metric, got {units!r}")
-    return key == "imperial"
+        raise InputError("--units", f"expected imperial, metric or both, got {units!r}")
+    return key
 
 
 def render_traveller_html(prediction, paper: str = "a4", forced: bool = False,
@@ -63,13 +63,14 @@ def render_traveller_html(prediction, paper: str = "a4", forced: bool = False,
     forced : bool
         The sheet was issued with ``--force`` over a failing insulation check;
         printed prominently on the first page.
-    units : {None, "imperial", "metric"}
-        Lengths in millimetres, with inches beside them for ``imperial``;
-        by default as the order was written (``design.sheet_units``).
+    units : {None, "metric", "imperial", "both"}
+        Millimetres and °C; inches and °F (``imperial``); or inches and °F
+        first with millimetres and °C beside them (``both``); by default as
+        the order was written (``design.sheet_units``).
     """
     from windsheet.common.fmt import IMPERIAL
 
-    token = IMPERIAL.set(_imperial(prediction, units))
+    token = IMPERIAL.set(_units(prediction, units))
     try:
         env = environment(templates_dir)
         ctx = traveller_context(prediction, forced=forced)
@@ -115,7 +116,7 @@ def render_signoff_html(prediction, signoff_result: dict, paper: str = "a4",
     """
     from windsheet.common.fmt import IMPERIAL
 
-    token = IMPERIAL.set(_imperial(prediction, units))
+    token = IMPERIAL.set(_units(prediction, units))
     try:
         return _signoff_html(prediction, signoff_result, paper, templates_dir, qc_chart_svg)
     finally:

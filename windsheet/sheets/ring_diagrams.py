@@ -44,7 +44,8 @@ def ring_top_view_svg(ring: dict, form: dict, direction: str = "clockwise") -> s
     clockwise = direction != "anticlockwise"
     od, idia = float(form.get("outer_diameter_m") or 1), float(form.get("inner_diameter_m") or 0.5)
     cx = cy = _SIZE / 2
-    scale = (_SIZE / 2 - 34) / (od / 2)
+    # Room round the ring for the start, finish and sector labels, outside every turn's tick.
+    scale = (_SIZE / 2 - 56) / (od / 2)
     r_out, r_in = od / 2 * scale, idia / 2 * scale
     root = _svg_root(_SIZE, _SIZE, "Toroid seen from the top face")
     _el(root, "circle", cx=f"{cx}", cy=f"{cy}", r=f"{r_out:.1f}", fill="#e6e6e6", stroke="#000",
@@ -57,8 +58,13 @@ def ring_top_view_svg(ring: dict, form: dict, direction: str = "clockwise") -> s
         span = float(ring.get("span_deg") or 0)
         _el(root, "path", d=_arc(cx, cy, r_out + 7, 0, span, clockwise), fill="none", stroke="#000",
             stroke_width="2.4", data_mark="sector")
-        x, y = _polar(cx, cy, r_out + 18, span / 2, clockwise)
-        _text(root, x, y + 4, f"sector {span:.0f}°", text_anchor="middle", font_size="9.5")
+        _label(root, cx, cy, r_out + 16, span / 2, f"sector {span:.0f}°", clockwise)
+    for sec in ring.get("sectors") or []:
+        # Each winding's own sector: an arc outside the ring, named by its strand.
+        a0, a1 = float(sec["from_deg"]), float(sec["to_deg"])
+        _el(root, "path", d=_arc(cx, cy, r_out + 7, a0, a1, clockwise), fill="none", stroke="#000",
+            stroke_width="2.4", data_mark="sector", data_strand=sec["strand"])
+        _label(root, cx, cy, r_out + 14, (a0 + a1) / 2, sec["strand"], clockwise, bold=True, size=11.0)
     for layer in layers:
         rho = float(layer.get("radius_m") or 0) * scale
         for sid, angles in (layer.get("angles_deg") or {}).items():
@@ -73,23 +79,24 @@ def ring_top_view_svg(ring: dict, form: dict, direction: str = "clockwise") -> s
                 _el(g, "circle", cx=f"{xd:.1f}", cy=f"{yd:.1f}", r=f"{dot_r:.1f}",
                     fill=STRAND_FILLS.get(sid, "#fff"), stroke="#000", stroke_width="0.7")
     if layers:
-        first, last = _ends(layers)
-        for what, a in (("start", first), ("finish", last)):
-            x, y = _polar(cx, cy, r_out + 4, a, clockwise)
-            xt, yt = _polar(cx, cy, r_out + 20, a, clockwise)
+        sectors = ring.get("sectors") or []
+        ends = ([("start", float(sec["from_deg"])) for sec in sectors[:1]] if sectors else
+                list(zip(("start", "finish"), _ends(layers))))
+        for what, a in ends:
+            x, y = _polar(cx, cy, r_out + 2, a, clockwise)
+            xt, yt = _polar(cx, cy, r_out + 12, a, clockwise)
             _el(root, "line", x1=f"{x:.1f}", y1=f"{y:.1f}", x2=f"{xt:.1f}", y2=f"{yt:.1f}",
                 stroke="#000", stroke_width="1.6", data_mark=what)
-            _text(root, xt, yt - 3 if what == "start" else yt + 11, what.upper(),
-                  text_anchor="middle", font_weight="bold", font_size="9.5")
+            if not sectors:
+                _label(root, cx, cy, r_out + 15, a, what.upper(), clockwise, bold=True)
         gap = float(ring.get("gap_deg") or 0)
-        if gap > 0:
-            # The gap runs from the last turn on round to the start (360°).
+        if gap > 0 and not sectors:
+            # The gap runs from the last turn on round to the start (360°); its label sits outside the ring.
             top = max(float(layer["to_deg"]) for layer in layers)
             _el(root, "path", d=_arc(cx, cy, (r_in + r_out) / 2, top + 2, 358, clockwise), fill="none",
                 stroke="#000", stroke_width="1", stroke_dasharray="4 3", data_mark="gap")
-            x, y = _polar(cx, cy, (r_in + r_out) / 2, (top + 360) / 2, clockwise)
-            _text(root, x, y + 4, f"gap {gap:.0f}°", text_anchor="middle", font_size="9",
-                  font_weight="bold")
+            # Named in the middle of the hole, where no turn or mark is drawn.
+            _text(root, cx, cy + 4, f"gap {gap:.0f}°", text_anchor="middle", font_size="9", font_weight="bold")
         x0, y0 = _polar(cx, cy, r_in - 10, 8, clockwise)
         x1, y1 = _polar(cx, cy, r_in - 10, 40, clockwise)
         _el(root, "path", d=_arc(cx, cy, r_in - 10, 8, 40, clockwise), fill="none", stroke="#000",
@@ -97,6 +104,24 @@ def ring_top_view_svg(ring: dict, form: dict, direction: str = "clockwise") -> s
         _arrow_head(root, x1, y1, x0, y0)
     _text(root, 6, _SIZE - 6, f"seen from the top face; winding {direction}", font_size="9")
     return _to_string(root)
+
+
+def _label(root, cx, cy, radius, deg, text, clockwise, bold=False, inward=False, size=9.0):
+    """A label at ``deg`` just beyond ``radius`` (inside it with ``inward``), set off the ring on its own side.
+
+    Anchored by where it falls (right of the ring: from its start; left: to its end; top or bottom:
+    centred), so it runs away from the ring and no turn's tick crosses it.
+    """
+    x, y = _polar(cx, cy, radius, deg, clockwise)
+    dx, dy = x - cx, y - cy
+    if inward:
+        dx, dy = -dx, -dy
+    anchor = "middle" if abs(dx) < 0.35 * radius else ("start" if dx > 0 else "end")
+    baseline = y + (size * 0.75 if dy > 0.35 * radius else 0.0 if dy < -0.35 * radius else size * 0.35)
+    if inward:
+        baseline = y + size * 0.35
+    return _text(root, x, baseline, text, text_anchor=anchor, font_size=f"{size:g}",
+                 font_weight="bold" if bold else None)
 
 
 def _ends(layers):

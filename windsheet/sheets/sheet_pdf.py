@@ -65,9 +65,18 @@ def band(lo, hi, fmt) -> str:
     return f"{fmt(lo)} – {fmt(hi)}"
 
 
+def thermal_class(c) -> str:
+    """A thermal class (IEC 60085 names classes by their °C): ``155 °C``, or ``class 155 (311 °F)``."""
+    if not c:
+        return "—"
+    from windsheet.common.fmt import system
+
+    return celsius(c) if system() == "metric" else f"class {int(c)} ({celsius(c)})"
+
+
 FILTERS = {
     "eng": eng, "distance": length, "mass": mass, "percent": percent, "celsius": celsius,
-    "henry": henry, "ohm": ohm, "farad": farad, "hertz": hertz, "volt": volt, "joule": joule,
+    "thermal_class": thermal_class, "henry": henry, "ohm": ohm, "farad": farad, "hertz": hertz, "volt": volt, "joule": joule,
 }
 
 

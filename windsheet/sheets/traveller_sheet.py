@@ -10,10 +10,10 @@ from __future__ import annotations
 from markupsafe import Markup
 
 from .diagrams import cross_section_svg, wiring_svg
-from windsheet.common.fmt import NBSP, OHM, celsius, eng, length, mass, percent
-from .sheet_pdf import band, farad, header_part, henry, hertz, joule, ohm, volt
-from .wiring_words import form_rows, lead_notes, pin_rows, pins_of_ends, terminal_names
-from .procedure import procedure_steps
+from windsheet.common.fmt import NBSP, OHM, celsius, eng, kelvin, length, mass, percent
+from .sheet_pdf import band, farad, header_part, henry, hertz, joule, ohm, thermal_class, volt
+from .wiring_words import form_rows, pin_rows, pins_of_ends, terminal_names, termination_rows
+from .procedure import procedure_blocks, procedure_steps
 
 #: Section headings in job-flow order; the tests look for each in the PDF text.
 SECTIONS = (
@@ -63,8 +63,11 @@ def traveller_context(p, forced: bool = False) -> dict:
         "terminal_heading": terminal_heading(p),
         "joints": p.connections.joints,
         "joins_text": [" + ".join(j.ends) for j in p.connections.joints],
-        "wiring_svg": Markup(wiring_svg(p.hookup.model_dump(), ids, labels, lead_notes(p), pins_of_ends(p),
-                                        terminals=[end for _, end in terminal_names(p)])),
+        # Lead routes are in the termination table, where they wrap; the drawing holds the circuit only.
+        "wiring_svg": natural_size(wiring_svg(p.hookup.model_dump(), ids, labels, None, pins_of_ends(p),
+                                              terminals=[end for _, end in terminal_names(p)])),
+        "pin_header_svg": _pin_header(p),
+        "termination_rows": termination_rows(p),
         "pin_rows": pin_rows(p),
         "cross_section_svg": svg_image(cross_section_svg(cs, kind, placement=placement)),
         "section_wide": _widest_layer(cs) > 14,
@@ -72,8 +75,11 @@ def traveller_context(p, forced: bool = False) -> dict:
         "voltage_svg": svg_image(cross_section_svg(cs, kind, shade=True)) if cs.get("potential_max_Vpk") else None,
         "form_rows": form_rows(p.form),
         "duty_rows": duty_rows(p.duty),
+        "layer_counts": layer_counts(p.winding.turns_in_layer),
+        "hot_resistance_label": hot_resistance_label(p),
         "picks": pick_list(p),
         "steps": procedure_steps(p),
+        "procedure": procedure_blocks(p),
         "cautions": cautions(p),
         "deferral": DEFERRAL,
         "qc_items": qc_items(p),
@@ -83,6 +89,19 @@ def traveller_context(p, forced: bool = False) -> dict:
         "thermal": p.thermal,
         "impulse_rows": impulse_rows(p.impulse),
     }
+
+
+def layer_counts(turns_in_layer) -> str:
+    """Turns per layer, runs of equal layers written once: ``66 (layers 1–28), 48 (layer 29)``."""
+    runs = []
+    for k, t in enumerate(turns_in_layer, start=1):
+        if runs and runs[-1][0] == t:
+            runs[-1][2] = k
+        else:
+            runs.append([t, k, k])
+    if len(runs) == len(turns_in_layer) and len(runs) <= 6:
+        return ", ".join(str(t) for t in turns_in_layer)
+    return ", ".join(f"{t} (layer{'s' if a != b else ''} {a}{f'–{b}' if a != b else ''})" for t, a, b in runs)
 
 
 def terminal_heading(p) -> str:
@@ -109,19 +128,52 @@ def is_dc(duty) -> bool:
 
 
 def duty_rows(duty) -> list[tuple[str, str]]:
+    """The duty as the order gave it: its waveform, and a pulse's rise time and repetition."""
     dc = is_dc(duty)
-    rows = [("Voltage", eng(duty.voltage_V, "V", trim=True) + (" d.c." if dc else " rms")
-             + (" per winding" if duty.between_windings_V is not None else ""))]
+    pulse = duty.waveform == "pulse"
+    form = " peak" if pulse else (" d.c." if dc else " rms")
+    volts = duty.voltage_peak_V if pulse and duty.voltage_peak_V is not None else duty.voltage_V
+    rows = [("Waveform", {"pulse": "pulse", "dc": "d.c."}.get(duty.waveform or "", "sine" if not dc else "d.c.")),
+            ("Voltage", eng(volts, "V", trim=True) + form + (" per winding" if duty.between_windings_V is not None else ""))]
     if duty.between_windings_V is not None:
-        rows.append(("Between windings", eng(duty.between_windings_V, "V", trim=True)
-                     + (" d.c." if dc else " rms")))
-    rows += [
-            ("Frequency", "d.c." if dc else eng(duty.frequency_Hz, "Hz", trim=True)),
-            ("Current", eng(duty.current_A, "A", trim=True) + ("" if dc else " rms")),
-            ("Ambient", celsius(duty.ambient_C))]
-    if duty.operating_temperature_C is not None:
+        rows.append(("Between windings", eng(duty.between_windings_V, "V", trim=True) + (" d.c." if dc else " rms")))
+    if pulse:
+        rows.append(("Rise time", eng(duty.rise_time_s, "s", sig=3, trim=True) if duty.rise_time_s else "—"))
+        rows.append(("Repetition", eng(duty.repetition_rate_Hz, "Hz", sig=3, trim=True) + " (pulses per second)"
+                     if duty.repetition_rate_Hz else "not given"))
+        if duty.pulse_width_s:
+            rows.append(("Pulse width", eng(duty.pulse_width_s, "s", sig=3, trim=True)))
+        if duty.pulse_energy_J:
+            rows.append(("Energy per pulse (left in the winding)", eng(duty.pulse_energy_J, "J", sig=3, trim=True)))
+        if duty.frequency_Hz:
+            rows.append(("Frequency", eng(duty.frequency_Hz, "Hz", trim=True)))
+    else:
+        rows.append(("Frequency", "d.c." if dc else eng(duty.frequency_Hz, "Hz", trim=True)))
+    rows.append(("Current", current_words(duty)))
+    rows.append(("Ambient", celsius(duty.ambient_C)))
+    if duty.operating_temperature_C is not None and duty.operating_temperature_basis in (None, "given"):
         rows.append(("Operating temperature", celsius(duty.operating_temperature_C)))
     return rows
+
+
+def current_words(duty) -> str:
+    """The duty current as known: given, computed from the pulse train, or not known (never assumed)."""
+    basis = getattr(duty, "current_basis", "given" if duty.current_given else None)
+    if basis is None:
+        return "not given (none assumed)"
+    amps = eng(duty.current_A, "A", sig=3, trim=True) + ("" if is_dc(duty) and duty.waveform != "pulse" else " rms")
+    return amps if basis == "given" else f"{amps}, from the {basis}"
+
+
+def hot_resistance_label(p) -> str:
+    """The hot resistance row's label: at which temperature, and why that one."""
+    d = p.duty
+    at = celsius(d.operating_temperature_C)
+    why = {"given": "operating temperature", "heat balance": "running temperature (heat balance)",
+           "ambient": "ambient: nothing heats the winding" if d.current_basis is None
+           else "ambient: no steady running temperature"}.get(d.operating_temperature_basis or "given",
+                                                             "operating temperature")
+    return f"DC resistance at {at} ({why})"
 
 
 def insulation_rows(ins) -> list[tuple[str, str]]:
@@ -152,23 +204,37 @@ def insulation_rows(ins) -> list[tuple[str, str]]:
 
 
 def duty_physics_rows(p) -> list[tuple[str, str]]:
-    """AC resistance, loss, temperatures and current density on the duty, as the design gives them."""
+    """AC resistance, loss, temperatures and current density on the duty, as the design gives them.
+
+    No temperature is printed that the design does not hold: without a current
+    the rows say what is missing; a runaway is a runaway, not a temperature.
+    """
     t, ac, th = p.terminal, p.ac_resistance, p.thermal
     rows = []
     if t.resistance_ac_ohm is not None and ac:
         f = ac.frequency_Hz
-        rows.append((f"Resistance at the duty frequency ({hertz(f)}), hot" if f else "Resistance on the d.c. duty, hot",
+        rows.append((f"Resistance at the duty frequency ({hertz(f)}), at {celsius(ac.temperature_C)}" if f else
+                     f"Resistance on the pulse duty, at {celsius(ac.temperature_C)} (d.c. value)"
+                     if p.duty.waveform == "pulse" else f"Resistance on the d.c. duty, at {celsius(ac.temperature_C)}",
                      f"{ohm(t.resistance_ac_ohm)} (AC/DC {float(ac.ratio):.3f}; {ac.model})"))
     if t.loss_W is not None:
         rows.append(("Copper loss at the duty current", eng(t.loss_W, "W", sig=3)))
-    if th:
+    if not th:
+        return rows
+    if th.hot_spot_C is not None:
         rows.append(("Temperature rise of the surface (still air)",
-                     f"{float(th.surface_rise_K):.1f} K, surface {celsius(th.surface_C)}"))
+                     f"{kelvin(th.surface_rise_K)}, surface {celsius(th.surface_C)}"))
         rows.append(("Hot spot (estimate) / mean winding", f"{celsius(th.hot_spot_C)} / {celsius(th.mean_C)}"))
         rows.append(("Thermal check", f"{th.verdict.upper()}: {th.reason}"))
+    elif th.converged is False:
+        rows.append(("Thermal check", f"FAIL — RUNAWAY: {th.reason}"))
+    else:
+        rows.append(("Thermal check", f"NOT JUDGED: {th.reason}"))
+    if th.current_density_A_per_mm2 is not None:
         lo, hi = th.current_density_range_A_per_mm2 or (None, None)
         rows.append(("Current density", f"{float(th.current_density_A_per_mm2):.2f} A/mm²"
                      + (f" (common practice {lo:g}–{hi:g} A/mm² for natural cooling)" if lo else "")))
+    if th.hot_spot_C is not None or th.converged is False:
         rows.append(("Heat method", th.method))
     return rows
 
@@ -214,7 +280,7 @@ def pick_list(p) -> list[dict]:
                       "qty": "2 strips per unit (one at each end of the traverse)"})
     picks.append({"item": "Sleeving",
                   "spec": "over every joint and lead, rated for the duty and thermal class "
-                          f"{(wire.thermal_class_C or '—')} °C",
+                          f"{thermal_class(wire.thermal_class_C)}",
                   "qty": f"{conn.sleeving_pieces_per_unit} piece(s) per unit: {len(conn.joints)} joint(s) + "
                          f"{len(conn.terminals)} lead(s)"})
     if w.lead_length_m:
@@ -243,7 +309,7 @@ def cautions(p) -> list[dict]:
         limit = cau.elv_limit_V or (ELV_DC_V if is_dc(duty) else ELV_AC_V)
         out.append({"level": "warning", "title": "Above extra-low voltage",
                     "text": f"The highest working voltage, {eng(v, 'V', trim=True)}"
-                            f"{' d.c.' if is_dc(duty) else ' rms'}, "
+                            f"{' peak (pulse)' if duty.waveform == 'pulse' else ' d.c.' if is_dc(duty) else ' rms'}, "
                             f"exceeds the extra-low-voltage limit of {eng(limit, 'V', trim=True)} "
                             f"(IEC 61140: 50 V a.c. rms, 120 V ripple-free d.c.). Treat the "
                             "finished coil and its leads as hazardous live when energised."})
@@ -263,7 +329,12 @@ def cautions(p) -> list[dict]:
     elif energy is not None:
         out.append({"level": "note", "title": "Stored magnetic energy",
                     "text": f"{joule(energy)} at the duty current (½LI²)."})
-    if cau.hot_surface:
+    if cau.hot_surface and cau.surface_C is None:
+        out.append({"level": "warning", "title": "Hot surface",
+                    "text": "On its duty the winding runs away thermally: no steady temperature below "
+                            "1000 °C in still air. It will burn on contact and can destroy itself: the duty "
+                            "must change before the coil is energised."})
+    elif cau.hot_surface:
         out.append({"level": "warning", "title": "Hot surface",
                     "text": f"On its duty the winding's surface is computed to reach about "
                             f"{celsius(cau.surface_C)} (in still air): it burns on contact. Let it "
@@ -316,6 +387,24 @@ def unit_tables(units: list[str]) -> list[list[str]]:
     return [units[i:i + UNITS_PER_QC_TABLE] for i in range(0, len(units), UNITS_PER_QC_TABLE)]
 
 
+
+
+def natural_size(svg: str) -> Markup:
+    """An inline drawing no larger than drawn (one unit a CSS pixel), so its text stays the size it was set."""
+    import re
+
+    width = re.search(r'width="([0-9.]+)"', svg)
+    return Markup(svg.replace("<svg ", f'<svg style="max-width:{width.group(1)}px" ', 1) if width else svg)
+
+
+def _pin_header(p):
+    """The pin header drawing, when the order gives one."""
+    if p.form.pin_header is None:
+        return None
+    from .pin_diagrams import pin_header_svg
+
+    term = {t.end: t.label for t in p.connections.terminals}
+    return svg_image(pin_header_svg(p.form.pin_header.model_dump(), [t.model_dump() for t in p.terminations], term))
 
 
 def _ring_svgs(p):

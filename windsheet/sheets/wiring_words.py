@@ -70,3 +70,50 @@ def form_rows(form) -> list[tuple[str, str]]:
     if form.margin_tape_m:
         rows.append(("Margin tape", f"{length(form.margin_tape_m)} at each end"))
     return rows
+
+
+def termination_rows(p) -> list[dict]:
+    """Every strand end: where it goes (terminal, joint, pin), how its lead is laid and when it is sleeved.
+
+    A toroid's ends leave the core where their strand starts or finishes (the top view's angles).
+    """
+    from .sheet_pdf import volt
+
+    joints = p.connections.joints
+    marks = {s.id: s.identification or "—" for s in p.strands}
+    leave = _toroid_exits(p)
+    rows = []
+    for e in p.connections.ends:
+        if e.terminal:
+            to = e.terminal
+        elif e.joint is not None:
+            others = [x for x in joints[e.joint].ends if x != e.name]
+            to = "joint with " + " + ".join(others)
+        else:
+            to = "—"
+        if e.sleeve_when_laid:
+            sleeve = f"when laid (crosses {e.crosses_turns} turns, up to {volt(e.lead_Vpk)} peak)"
+        elif e.terminal:
+            sleeve = "at termination"
+        elif e.joint is not None:
+            sleeve = "over the joint"
+        else:
+            sleeve = "—"
+        rows.append({"end": e.name, "marking": marks.get(e.strand, "—"), "to": to, "pin": e.pin or "—",
+                     "lead": e.route_text or leave.get(e.name) or "—", "sleeve": sleeve})
+    return rows
+
+
+def _toroid_exits(p) -> dict:
+    """Where each strand's ends leave a toroid, in degrees from the start mark (from the top view's data)."""
+    ring = p.ring
+    if ring is None or not ring.layers:
+        return {}
+    out = {}
+    first, last = ring.layers[0].angles_deg, ring.layers[-1].angles_deg
+    for sid in p.strand_ids:
+        if first.get(sid):
+            out[f"{sid}.start"] = f"leaves the core at {first[sid][0]:.0f}° from the start mark"
+        if last.get(sid):
+            out[f"{sid}.finish"] = f"leaves the core at {last[sid][-1]:.0f}° from the start mark"
+    return out
