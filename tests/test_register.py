@@ -14,7 +14,7 @@ import pytest
 from typer.testing import CliRunner
 
 from conftest import design_for_job
-from windsheet.common import fileio
+from windsheet.common import fileio, yaml_reading
 from windsheet.common.errors import InputError
 from windsheet.records.register import (APPLICATION_ID, SCHEMA_VERSION, DEFAULT_FILE, ENV_VAR, open_register,
                                 resolve_register_path)
@@ -127,7 +127,7 @@ def test_hostile_yaml_is_refused(tmp_path, raw, words):
     path = tmp_path / "bad.measured.yaml"
     path.write_bytes(raw)
     with pytest.raises(InputError) as exc:
-        fileio.read_yaml_file(path)
+        yaml_reading.read_yaml_file(path)
     # A refusal names the file, or the field when it has one (a tag on 'a').
     assert words in exc.value.message and exc.value.path == ("a" if words == "YAML tag" else str(path))
 
@@ -136,7 +136,7 @@ def test_multi_megabyte_yaml_is_refused(tmp_path):
     path = tmp_path / "big.yaml"
     path.write_bytes(b"# " + b"x" * 3_000_000 + b"\n")
     with pytest.raises(InputError) as exc:
-        fileio.read_yaml_file(path)
+        yaml_reading.read_yaml_file(path)
     assert "larger than" in exc.value.message
 
 

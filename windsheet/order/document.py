@@ -17,7 +17,8 @@ from typing import Annotated, Any, Literal, Optional, Union
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Field, Tag, ValidationError, model_validator
 
 from windsheet.common.errors import InputError, field_name, join_path
-from windsheet.common.fileio import parse_yaml_bytes, read_limited
+from windsheet.common.fileio import read_limited
+from windsheet.common.yaml_reading import parse_yaml_bytes
 from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                       pin_assignment)
 from .fields import (Angle, Energy, Flag, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
