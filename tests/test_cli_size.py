@@ -115,7 +115,7 @@ def test_bad_orders_exit_2_with_one_line(tmp_path, changes, path, words):
     ("job: [unclosed\n", "not valid YAML"),
     ("- just\n- a list\n", "mapping"),
     ("a: &x [1, 2]\nb: *x\n", "aliases"),
-    ("job: !!python/object/apply:os.system ['echo hi']\n", "not valid YAML"),
+    ("job: !!python/object/apply:os.system ['echo hi']\n", "job: the YAML tag !!python/object/apply"),
 ])
 def test_malformed_yaml(tmp_path, text, words):
     f = tmp_path / "bad.yaml"

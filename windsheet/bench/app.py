@@ -16,6 +16,7 @@ import functools
 import datetime as _dt
 import hmac
 import io
+import re
 import secrets
 from concurrent.futures import ThreadPoolExecutor
 from urllib.parse import urlsplit
@@ -31,7 +32,7 @@ from starlette.routing import Route
 from windsheet.common.errors import InputError
 from windsheet.bench import service
 from .page import cell_texts, job_view, preview_unit, signoff_document, unit_summary
-from .readings import JOB_FIELDS, is_unit_field, qc_rows, readings_csv_rows
+from .readings import JOB_FIELDS, form_fields, is_unit_field, qc_rows, readings_csv_rows
 
 MAX_BODY_BYTES = 64 * 1024
 TOKEN_COOKIE = "ws_bench_token"
@@ -111,6 +112,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
     from windsheet.sheets.render import TEMPLATES_DIR, environment
 
     env = environment()
+    env.filters["job_key"] = job_key
     register_path = str(register_path)
 
     def render(name: str, request: Request, status: int = 200, inspector=None, **ctx) -> HTMLResponse:
@@ -158,8 +160,23 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
     # -- pages ---------------------------------------------------------------------
 
     async def job_list(request: Request):
-        jobs = await with_register(service.jobs)
-        return render("bench_jobs.html.j2", request, jobs=jobs)
+        q = request.query_params
+        filters = {k: (q.get(k) or "").strip()[:80] or None for k in ("state", "customer", "since")}
+        page = max(1, _int(q.get("page") or "1"))
+        try:
+            jobs, total = await with_register(service.jobs, page, filters["state"], filters["customer"],
+                                              filters["since"])
+        except InputError as exc:  # the listing's refusal names its option; here it is the form's field
+            raise InputError(exc.path.lstrip("-"), exc.message) from None
+        pages = max(1, -(-total // service.JOBS_PER_PAGE))
+        from urllib.parse import urlencode
+
+        def page_url(n):
+            return "/?" + urlencode({**{k: v for k, v in filters.items() if v}, "page": n})
+        return render("bench_jobs.html.j2", request, jobs=jobs, total=total, page=page, pages=pages,
+                      filters=filters, states=("issued", "passed", "failed", "incomplete"),
+                      prev_url=page_url(page - 1) if page > 1 else None,
+                      next_url=page_url(page + 1) if page < pages else None)
 
     def _job_context(reg, number, messages=(), signed=None):
         state, prediction = service.issued(reg, number)
@@ -171,7 +188,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
                 "last": last, "signed": signed}
 
     async def job_page(request: Request):
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         ctx = await with_register(_job_context, number)
         return render("bench_job.html.j2", request, **ctx)
 
@@ -185,7 +202,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
                 continue
             _, where, field = name.split(":", 2) if name.count(":") >= 2 else ("", "", "")
             serial = _serial_at(serials, where)
-            if serial is None or not _field_ok(serial, field):
+            if serial is None or not _field_ok(serial, field, prediction):
                 messages.append(f"unknown field {name[:60]!r} ignored")
                 continue
             old = drafts.get((serial, field), {"value": "", "version": 0})
@@ -200,7 +217,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
 
     async def job_post(request: Request):
         form = await check_post(request)
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         who = str(form.get("inspector") or "").strip()[:200] or None
         if form.get("action") == "signoff":
             ctx = await with_register(_save_then_signoff, number, form, who)
@@ -236,7 +253,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
     async def field_post(request: Request):
         """Save one field and return the verdicts of its unit (the script's as-you-type path)."""
         form = await check_post(request)
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         where, field = str(form.get("unit") or ""), str(form.get("field") or "")
         value, seen = str(form.get("value") or ""), _int(form.get("version"))
         who = str(form.get("inspector") or "").strip()[:200] or None
@@ -247,8 +264,8 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         state, prediction = service.issued(reg, number)
         serials = list(state["units"])
         serial = _serial_at(serials, where)
-        if serial is None or not _field_ok(serial, field):
-            raise HTTPException(400, "unknown unit or field")
+        if serial is None or not _field_ok(serial, field, prediction):
+            raise HTTPException(400, "unknown unit or field: this job's form has no such field")
         out = {"stale": False, "message": ""}
         try:
             out["version"] = service.save_draft(reg, number, state["revision"], serial, field, value,
@@ -281,7 +298,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         return prediction, last
 
     async def signoff_pdf(request: Request):
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         prediction, last = await with_register(_pdf, number)
         # Rendered outside the register's thread: saves go on meanwhile.
         data = await run_in_threadpool(service.signoff_sheet_pdf, prediction, last)
@@ -308,13 +325,13 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         return _csv_text(rows)
 
     async def readings_csv(request: Request):
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         who = (request.query_params.get("inspector") or "").strip()[:200] or _inspector(request)
         text = await with_register(_csv, number, who)
         return _attachment(text, "text/csv; charset=utf-8", number, "-readings.csv")
 
     async def drafts_csv(request: Request):
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         text = await with_register(_drafts_csv, number)
         return _attachment(text, "text/csv; charset=utf-8", number, "-entries.csv")
 
@@ -322,7 +339,7 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
         return yaml.safe_dump(_document(reg, number, who), sort_keys=False, allow_unicode=True)
 
     async def measured_yaml(request: Request):
-        number = request.path_params["number"]
+        number = job_number(request.path_params["number"])
         who = (request.query_params.get("inspector") or "").strip()[:200] or _inspector(request)
         text = await with_register(_yaml, number, who)
         return _attachment(text, "application/yaml; charset=utf-8", number, ".measured.yaml")
@@ -387,6 +404,31 @@ def _keep_inspector(resp: Response, who) -> Response:
     return resp
 
 
+_KEY_SAFE = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789._-")
+
+
+def job_key(number: str) -> str:
+    """A job number as one path segment of the bench's addresses: ``HL/0410`` is ``HL~2F0410``.
+
+    A ``/`` (allowed in a job number) cannot stand in a path segment even as ``%2F``,
+    which the server decodes before routing; every character but letters, digits and
+    ``. _ -`` is written ``~XX`` (its UTF-8 bytes in hex), and ``~`` is never in a job number.
+
+    >>> job_key("HL/0410"), job_number(job_key("HL/0410")), job_key("HL-0412")
+    ('HL~2F0410', 'HL/0410', 'HL-0412')
+    """
+    return "".join(c if c in _KEY_SAFE else "".join(f"~{b:02X}" for b in c.encode()) for c in str(number))
+
+
+def job_number(key: str) -> str:
+    """The job number a :func:`job_key` stands for (a malformed key gives a number no job has)."""
+    try:
+        return re.sub(rb"(?:~[0-9A-F]{2})+", lambda m: bytes.fromhex(m.group().replace(b"~", b"").decode()),
+                      key.encode()).decode("utf-8")
+    except (UnicodeError, ValueError):
+        return key
+
+
 def _serial_at(serials: list, where: str):
     if where == "job":
         return ""
@@ -395,8 +437,11 @@ def _serial_at(serials: list, where: str):
     return None
 
 
-def _field_ok(serial: str, field: str) -> bool:
-    return field in JOB_FIELDS if serial == "" else is_unit_field(field)
+def _field_ok(serial: str, field: str, prediction) -> bool:
+    """A job-wide field, or a unit field of this job's own form (its strands, pairs and lines)."""
+    if serial == "":
+        return field in JOB_FIELDS
+    return is_unit_field(field) and field in form_fields(prediction)
 
 
 def _int(value) -> int:
@@ -423,8 +468,10 @@ def _csv_text(rows) -> str:
 
 
 def _cell(text: str) -> str:
-    # A spreadsheet would run a cell starting with = + @ as a formula.
-    return "'" + text if text[:1] in ("=", "+", "@", "\t", "\r") else text
+    # A spreadsheet runs a cell starting with = + - @ as a formula, also after a tab, a carriage
+    # return or leading spaces (OWASP, CSV injection); a quote mark makes it text.
+    first = text.lstrip(" \t\r\n")[:1]
+    return "'" + text if first in ("=", "+", "-", "@") or text[:1] in ("\t", "\r", "\n") else text
 
 
 def _unit_words(message: str, doc: dict) -> str:

@@ -36,6 +36,12 @@ def is_unit_field(field: str) -> bool:
     return bool(_FIELD.match(field))
 
 
+def form_fields(prediction) -> frozenset:
+    """Every unit field this job's form offers: a field for a strand, pair or line the job
+    does not have (``strands.Z.inductance``, ``before_joint.B-A.*``) is not among them."""
+    return frozenset(f for row in qc_rows(prediction, set()) for f, _ in row["fields"])
+
+
 def qc_rows(prediction, required: set) -> list[dict]:
     """The QC record's rows, each with the unit fields it takes, and the plan's optional lines.
 

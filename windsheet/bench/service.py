@@ -28,11 +28,17 @@ def open_bench_register(path):
     return reg
 
 
-def jobs(reg) -> list[dict]:
-    """Every job with its state and the design state of its latest issue (one query, no design read)."""
+#: Jobs on one page of the bench's job list.
+JOBS_PER_PAGE = 100
+
+
+def jobs(reg, page: int = 1, state=None, customer=None, since=None) -> tuple[list[dict], int]:
+    """One page of the jobs (filtered as ``windsheet register`` filters), each with its state and
+    the design state of its latest issue, and how many jobs match: a few queries per page, none per job."""
     from windsheet.design.state_rules import status_words
 
-    return [dict(j, design=status_words(j.get("design_status") or {}) or "ok") for j in reg.list_jobs()]
+    found, total = reg.list_jobs_page(page, JOBS_PER_PAGE, state=state, customer=customer, since=since)
+    return [dict(j, design=status_words(j.get("design_status") or {}) or "ok") for j in found], total
 
 
 def issued(reg, number: str):

@@ -70,7 +70,8 @@ READINGS_SUFFIXES = (".measured.yaml", ".measured.yml", ".csv")
 
 
 def _yaml_top(path: str):
-    from windsheet.common.fileio import MAX_YAML_BYTES, parse_yaml_bytes, read_limited
+    from windsheet.common.fileio import read_limited
+    from windsheet.common.yaml_reading import MAX_YAML_BYTES, parse_yaml_bytes
 
     try:
         return parse_yaml_bytes(read_limited(path, MAX_YAML_BYTES), path)

@@ -23,6 +23,13 @@ def guarded(fn):
     return wrapper
 
 
+def internal_fault(exc: Exception) -> str:
+    """An unexpected fault in one file of a batch, in one line: a bug to report, but the
+    batch goes on to its other files and its summary line."""
+    text = " ".join(str(exc).split())[:160]
+    return f"internal error, not a fault of this file ({type(exc).__name__}: {text}); please report it"
+
+
 def eng(value, unit: str, digits: int = 4) -> str:
     """A number with an SI prefix for the terminal: ``eng(6.12e-5, 'H') == '61.20 µH'``."""
     return fmt.eng(value, unit, sig=digits, sep=" ")

@@ -79,13 +79,14 @@ def report_cmd(out: Optional[Path] = typer.Option(None, "-o", "--out", help="Wri
                                                       "$WINDSHEET_REGISTER, else ./windsheet-register.db)."),
                paper: str = typer.Option("a4", "--paper", help="Paper size: a4 or letter.")):
     """QC report from the register: the shop's bias per family, control charts with run rules."""
-    from windsheet.records.register import open_register
+    from windsheet.records.register import open_register_readonly
     from windsheet.records.report import report_from_register
     from windsheet.sheets.control_chart import report_charts
 
     if out is not None and not (out.parent if str(out.parent) else Path(".")).is_dir():
         raise InputError(str(out), f"cannot write: folder {str(out.parent)!r} does not exist")
-    with open_register(register, create=False) as reg:
+    # The report only reads: a read-only register (file or folder) is reported on, and left as it was.
+    with open_register_readonly(register) as reg:
         rep = report_from_register(reg)
     if not rep["units"]:
         raise InputError(str(rep["register"]), "no unit is signed off in this register yet; nothing to report")

@@ -1,4 +1,4 @@
-"""``windsheet register``: the job listing, one job's history, --issue and --lot."""
+"""``windsheet register``: the job listing, one job's history, --issue, --lot and --check."""
 
 from __future__ import annotations
 
@@ -32,6 +32,9 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
                  since: Optional[str] = typer.Option(None, "--since", help="Only jobs issued on or after this "
                                                      "date (YYYY-MM-DD)."),
                  as_csv: bool = typer.Option(False, "--csv", help="Print the listing as CSV."),
+                 check: bool = typer.Option(False, "--check", help="Check the whole register, read-only: every "
+                                            "page, the text and the JSON of every record (other commands check "
+                                            "what they read)."),
                  as_json: bool = typer.Option(False, "--json", help="Print as JSON."),
                  lot: Optional[str] = typer.Option(None, "--lot", help="List every unit recorded with this "
                                                    "wire reel or lot, core lot or instrument id (exact match).")):
@@ -39,6 +42,17 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
     status), or one job's history; --issue records an order as issued; --lot lists the units of a reel or lot."""
     if lot is not None:
         return _lot_search(register, lot, as_json)
+    if check:
+        from windsheet.records.register import check_register
+
+        done = check_register(register)
+        if as_json:
+            typer.echo(to_json(done))
+        else:
+            typer.echo(f"{done['register']}: no damage found — {done['jobs']} job(s), {done['issues']} issue(s), "
+                       f"{done['signoffs']} sign-off(s), {done['unit_signoffs']} unit record(s) checked "
+                       "(every page, the listed text, every record's JSON)")
+        return
     from windsheet.records.register import open_register_readonly, resolve_register_path
 
     if issue is not None:

@@ -11,7 +11,7 @@ import typer
 
 from windsheet.common.errors import InputError
 
-from .common import eng, guarded, say_repairs, to_json
+from .common import eng, guarded, internal_fault, say_repairs, to_json
 
 
 def register(app: typer.Typer) -> None:
@@ -125,10 +125,13 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
         except InputError as exc:
             refuse(f, exc)
             continue
+        except Exception as exc:  # a bug: name it and go on to the summary
+            refuse(f, InputError("", internal_fault(exc)))
+            continue
         by_job.setdefault(o.doc.job.number, []).append((f, o))
     if out is not None:
         out.mkdir(parents=True, exist_ok=True)
-    tally = {"pass": 0, "fail": 0, "incomplete": 0}
+    tally = {"pass": 0, "fail": 0, "incomplete": 0, "not signed": 0}
     opened = open_register_readonly(register) if dry_run else open_register(register, create=False)
     with opened as reg, progress(len(readings_files), "signing off") as step:
         if not dry_run:
@@ -147,8 +150,13 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
                 refuse(f, exc)
                 step()
                 continue
+            except Exception as exc:  # a bug must not cost the rest of the batch its summary
+                refuse(f, InputError("", internal_fault(exc)))
+                step()
+                continue
             for v, key in (("pass", "units_passed"), ("fail", "units_failed"), ("incomplete", "units_incomplete")):
                 tally[v] += result[key]
+            tally["not signed"] += len(result["units_not_signed"])
             if as_json:
                 typer.echo(json.dumps({"file": f, **result}, ensure_ascii=False, allow_nan=False, default=str))
             else:
@@ -158,7 +166,9 @@ def _signoff_batch(orders, readings_files, as_json, register, inspector, out, ht
     tail = f"; {len(refused)} refused ({', '.join(refused)})" if refused else ""
     dry = " (dry run: nothing recorded)" if dry_run else ""
     typer.echo(f"windsheet: signed off {done} of {len(readings_files)} readings files — units "
-               f"{tally['pass']} pass, {tally['fail']} fail, {tally['incomplete']} incomplete{tail}{dry}", err=True)
+               f"{tally['pass']} pass, {tally['fail']} fail, {tally['incomplete']} incomplete"
+               + (f", {tally['not signed']} of their jobs' units not signed" if tally["not signed"] else "")
+               + f"{tail}{dry}", err=True)
     if refused or tally["fail"]:
         return 1
     return 3 if tally["incomplete"] else 0

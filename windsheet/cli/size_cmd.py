@@ -8,7 +8,7 @@ import typer
 
 from windsheet.common.errors import InputError
 
-from .common import count, eng, guarded, to_json
+from .common import count, eng, guarded, internal_fault, to_json
 
 
 def register(app: typer.Typer) -> None:
@@ -63,7 +63,10 @@ def summary_lines(p) -> list[str]:
     if t.accept.inductance_basis == "target":
         row("", f"L accept band is the ordered target ± tolerance; prediction "
             f"{t.accept.prediction_offset * 100:+.2f} % from target")
-    row("", f"C {eng(t.capacitance_F, 'F')}, self-resonance {eng(t.self_resonance_Hz, 'Hz')}")
+    if t.capacitance_note:
+        row("", f"C and self-resonance not predicted: {t.capacitance_note}")
+    else:
+        row("", f"C {eng(t.capacitance_F, 'F')}, self-resonance {eng(t.self_resonance_Hz, 'Hz')}")
     if t.resistance_ac_ohm is not None and t.loss_W is not None and p.ac_resistance and p.duty.frequency_Hz:
         row("", f"R {eng(t.resistance_ac_ohm, 'Ω')} at {eng(p.duty.frequency_Hz, 'Hz')} "
             f"(AC/DC {p.ac_resistance.ratio:.3f}), loss {eng(t.loss_W, 'W')} at the duty current")
@@ -140,6 +143,11 @@ def size(orders: list[str] = typer.Argument(..., help="Order files (YAML), folde
                 # Named by its file; the batch carries on.
                 msg = str(exc)
                 typer.echo(f"windsheet: {msg if msg.startswith(f) else f'{f}: {msg}'}", err=True)
+                refused.append(f)
+                step()
+                continue
+            except Exception as exc:  # a bug must not cost the rest of the batch its summary
+                typer.echo(f"windsheet: {f}: {internal_fault(exc)}", err=True)
                 refused.append(f)
                 step()
                 continue

@@ -65,6 +65,10 @@ def _traveller_worker(args):
         return _traveller_job(*args), None
     except InputError as exc:
         return None, str(exc)
+    except Exception as exc:  # a bug must not cost the rest of the batch its summary
+        from .common import internal_fault
+
+        return None, internal_fault(exc)
 
 
 @guarded
@@ -168,8 +172,10 @@ def _in_parallel(fn, work: list, jobs: int = 0):
         yield from map(fn, work)
         return
     from concurrent.futures import ProcessPoolExecutor
+    from windsheet.sheets.pdf_worker import die_with_parent
 
-    with ProcessPoolExecutor(max_workers=n) as pool:
+    # Each worker ends with this command, however it ends (a killed batch left them running).
+    with ProcessPoolExecutor(max_workers=n, initializer=die_with_parent, initargs=(os.getpid(),)) as pool:
         yield from pool.map(fn, work)
 
 

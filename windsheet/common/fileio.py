@@ -1,18 +1,19 @@
-"""Atomic output files: a reader sees the old file or the new one, never half of one."""
+"""Atomic output files (a reader sees the old file or the new one, never half of one), their
+temporary files, and bounded reads of regular files only, CSV included; YAML is read in yaml_reading.py."""
 
 from __future__ import annotations
 
 import csv
+import errno
 import io
 import os
 import stat
 import tempfile
 import re
 from contextlib import contextmanager
-from functools import lru_cache
 from pathlib import Path
 
-from .errors import InputError, join_path
+from .errors import InputError
 
 
 def _fsync_dir(folder: Path) -> None:
@@ -37,32 +38,53 @@ def _temp_prefix(name: str) -> str:
     return f".{name}.{host}-{os.getpid()}."
 
 
-def clean_stale_temps(folder, name: str) -> list[Path]:
-    """Remove temporary files a crashed run of this host left beside ``folder/name``.
+#: A temporary file of windsheet's own: ``.NAME.HOST-PID.RANDOM.tmp`` (see :func:`_temp_prefix`).
+_TEMP_NAME = re.compile(r"^\.(?P<name>.+)\.(?P<host>[A-Za-z0-9_-]{1,40})-(?P<pid>\d{1,10})\.[A-Za-z0-9_]{1,16}\.tmp$")
+#: A temporary file this old is stale whoever made it (a crashed run of another host). [s]
+STALE_TEMP_AGE_S = 24 * 3600.0
+#: A crashed run of this host is not cleaned up sooner than this, whatever its PID says. [s]
+FRESH_TEMP_AGE_S = 10.0
 
-    A temporary file is ``.NAME.HOST-PID.XXXX.tmp``; it is stale when HOST is
-    this host and process PID no longer runs.  Files of live processes and of
-    other hosts are left alone.  Returns what was removed.
+
+def clean_stale_temps(folder, name: str | None = None, *, now: float | None = None) -> list[Path]:
+    """Remove temporary files crashed runs of windsheet left in ``folder``.
+
+    Only windsheet's own pattern, ``.NAME.HOST-PID.XXXX.tmp``, is touched, and
+    only when it is stale: made on this host by a process that no longer runs
+    (and older than a few seconds), or older than a day whoever made it.
+    ``name`` limits the clean-up to the temporary files of one target.
+    Files of live processes are left alone.  Returns what was removed.
     """
+    import time
+
     folder = Path(folder)
-    mine = _temp_prefix(name)
-    host_prefix = mine[: mine.rindex("-") + 1]
+    now = time.time() if now is None else now
+    mine = _temp_prefix(name or "x")
+    host = mine[len(f".{name or 'x'}."): mine.rindex("-")]
     removed = []
     try:
-        names = [q for q in folder.iterdir() if q.name.startswith(host_prefix) and q.name.endswith(".tmp")]
+        candidates = [(q, m) for q in folder.iterdir() if (m := _TEMP_NAME.match(q.name))
+                      and (name is None or m.group("name") == name)]
     except OSError:
         return removed
-    for q in names:
-        pid_text = q.name[len(host_prefix):].split(".", 1)[0]
-        if not pid_text.isdigit():
-            continue
+    for q, m in candidates:
         try:
-            os.kill(int(pid_text), 0)
-            continue  # still running
-        except ProcessLookupError:
-            pass
+            st = q.lstat()
         except OSError:
-            continue  # running as someone else
+            continue
+        if not stat.S_ISREG(st.st_mode):
+            continue
+        age = now - st.st_mtime
+        if age < STALE_TEMP_AGE_S:
+            if m.group("host") != host or age < FRESH_TEMP_AGE_S and name is None:
+                continue
+            try:
+                os.kill(int(m.group("pid")), 0)
+                continue  # still running
+            except ProcessLookupError:
+                pass
+            except (OSError, OverflowError):
+                continue  # running as someone else
         try:
             q.unlink()
             removed.append(q)
@@ -75,8 +97,23 @@ def _refuse_write(label: str, exc: BaseException) -> None:
     """An OS fault while writing ``label`` as one line; anything else goes on up."""
     if isinstance(exc, PermissionError):
         raise InputError(label, "cannot write: permission denied") from None
+    if isinstance(exc, OSError) and exc.errno in (errno.ENOSPC, errno.EDQUOT):
+        raise InputError(label, "disk full: no space left to write it (or over the disk quota); "
+                                "nothing was written — free space on that disk and run it again") from None
     if isinstance(exc, OSError):
         raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+
+
+def _refuse_read_only_target(target: Path, label: str) -> None:
+    """A file someone made read-only is not replaced (the rename would, keeping its mode): refuse, as
+    the shell refuses ``>`` into it.  Judged by its mode bits, so the file's owner and root are held too."""
+    try:
+        mode = target.stat().st_mode
+    except OSError:
+        return
+    if stat.S_ISREG(mode) and (not mode & 0o222 or not os.access(target, os.W_OK)):
+        raise InputError(label, f"cannot write: the file is read-only (mode {stat.S_IMODE(mode):o}); "
+                                "make it writable or remove it, or write to another name")
 
 
 def stage_file(path, data: bytes) -> tuple[Path, str]:
@@ -92,13 +129,17 @@ def stage_file(path, data: bytes) -> tuple[Path, str]:
         raise InputError(label, f"cannot write: folder {str(folder)!r} does not exist")
     if target.is_dir():
         raise InputError(label, "cannot write: this is a folder, expected a file name")
+    _refuse_read_only_target(target, label)
+    # Crashed runs' temporary files for this target at once, and any other stale one of ours here.
     clean_stale_temps(folder, target.name)
+    clean_stale_temps(folder)
     try:
         fd, tmp_name = tempfile.mkstemp(prefix=_temp_prefix(target.name), suffix=".tmp", dir=folder)
     except PermissionError:
         raise InputError(label, f"cannot write: no write permission in folder {str(folder)!r}") from None
     except OSError as exc:
-        raise InputError(label, f"cannot write: {exc.strerror or exc}") from None
+        _refuse_write(label, exc)
+        raise
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
@@ -174,153 +215,6 @@ def atomic_write_bytes(path, data: bytes) -> Path:
 def atomic_write_text(path, text: str, encoding: str = "utf-8") -> Path:
     """Write ``text`` atomically; see :func:`atomic_write_bytes`."""
     return atomic_write_bytes(path, text.encode(encoding))
-
-
-# --- Reading YAML safely -------------------------------------------------------------
-
-MAX_YAML_BYTES = 1_000_000
-MAX_YAML_DEPTH = 32
-
-
-# A count as a shop writes it: decimal digits, no leading zero.  YAML 1.1 also
-# reads 060 as octal 48, 0x3C and 0b111100 as 60, 6_0 as 60 and 1:30 as 90.
-_DECIMAL = re.compile(r"[-+]?(?:0|[1-9][0-9]*)")
-
-
-class OddNumeral:
-    """A number YAML 1.1 would read other than as a shop means it (``060``, ``0x3C``,
-    ``6_0``, ``1:30``); kept as its text so the loader can refuse it at its path."""
-
-    __slots__ = ("text",)
-
-    def __init__(self, text: str):
-        self.text = text
-
-    def __hash__(self):
-        return hash(("OddNumeral", self.text))
-
-    def __eq__(self, other):
-        return isinstance(other, OddNumeral) and other.text == self.text
-
-    def __repr__(self):
-        return self.text
-
-    def reason(self) -> str:
-        t = self.text.strip()
-        body = t.lstrip("+-")
-        if ":" in t:
-            return (f"{t} would be read as a base-60 number; write the decimal value, "
-                    f"or quote it ('{t}') if it is text")
-        if body[:2].lower() in ("0x", "0b"):
-            base = "hexadecimal" if body[1] in "xX" else "binary"
-            try:
-                decimal = f" ({int(t.replace('_', ''), 0)})"
-            except ValueError:
-                decimal = ""
-            return f"{t} is a {base} number; write counts in decimal{decimal}"
-        if "_" in t:
-            return f"{t}: digit separators (_) are not read; write {t.replace('_', '')}"
-        plain = body.lstrip("0") or "0"
-        return (f"{t} has a leading zero, which YAML reads as an octal number; write {plain} for a count, "
-                f"or quote it ('{t}') if it is text")
-
-
-class _Refused(Exception):
-    """A YAML feature a shop file never needs, with where it is."""
-
-    def __init__(self, problem: str, mark):
-        super().__init__(problem)
-        self.problem, self.mark = problem, mark
-
-
-@lru_cache(maxsize=None)
-def _yaml_loader_class(max_depth: int):
-    import yaml
-
-    class LimitedSafeLoader(yaml.SafeLoader):
-        """Safe loader that also refuses anchors, aliases, merge keys, deep
-        nesting, repeated keys and numbers a shop does not write that way.
-
-        Anchors and aliases are refused outright: shop files never need them
-        and they are how an "alias bomb" grows a few hundred bytes into gigabytes.
-        """
-
-        _depth = 0
-
-        def compose_node(self, parent, index):
-            event = self.peek_event()
-            if isinstance(event, yaml.AliasEvent):
-                raise _Refused(f"anchors and aliases (*{event.anchor}) are not accepted; write the value out in full",
-                               event.start_mark)
-            if getattr(event, "anchor", None) is not None:
-                raise _Refused(f"anchors and aliases (&{event.anchor}) are not accepted; write the value out in full",
-                               event.start_mark)
-            self._depth += 1
-            try:
-                if self._depth > max_depth:
-                    raise _Refused(f"nested deeper than {max_depth} levels", event.start_mark)
-                return super().compose_node(parent, index)
-            finally:
-                self._depth -= 1
-
-        def construct_mapping(self, node, deep=False):
-            seen = set()
-            for key_node, _ in node.value:
-                if key_node.tag == "tag:yaml.org,2002:merge":
-                    raise _Refused("merge keys (<<) are not accepted; write the fields out in full",
-                                   key_node.start_mark)
-                key = self.construct_object(key_node, deep=True)
-                try:
-                    hashable = key in seen
-                except TypeError:
-                    raise _Refused("a YAML mapping key must be plain text", key_node.start_mark) from None
-                if hashable:
-                    raise _Refused(f"key {key!r} appears twice", key_node.start_mark)
-                seen.add(key)
-            return super().construct_mapping(node, deep=deep)
-
-        def construct_yaml_int(self, node):
-            text = self.construct_scalar(node)
-            return int(text) if _DECIMAL.fullmatch(text) else OddNumeral(text)
-
-        def construct_yaml_float(self, node):
-            text = self.construct_scalar(node)
-            if "_" in text or ":" in text:
-                return OddNumeral(text)
-            return super().construct_yaml_float(node)
-
-    LimitedSafeLoader.add_constructor("tag:yaml.org,2002:int", LimitedSafeLoader.construct_yaml_int)
-    LimitedSafeLoader.add_constructor("tag:yaml.org,2002:float", LimitedSafeLoader.construct_yaml_float)
-    return LimitedSafeLoader
-
-
-def _first_odd_numeral(node, path=()):
-    """(path, numeral) of the first :class:`OddNumeral` in document order, or None."""
-    if isinstance(node, OddNumeral):
-        return path, node
-    if isinstance(node, dict):
-        for k, v in node.items():
-            if isinstance(k, OddNumeral):
-                return path + (k.text,), k
-            found = _first_odd_numeral(v, path + (k,))
-            if found:
-                return found
-    elif isinstance(node, list):
-        for i, v in enumerate(node):
-            found = _first_odd_numeral(v, path + (i,))
-            if found:
-                return found
-    return None
-
-
-def read_yaml_file(path, *, max_bytes: int = MAX_YAML_BYTES, max_depth: int = MAX_YAML_DEPTH):
-    """Read a YAML document with size, depth, alias and type limits.
-
-    Returns the loaded document (usually a dict).  Every refusal is an
-    :class:`InputError` naming the file: missing, unreadable, too large, not
-    UTF-8 text, not YAML, or using features a shop file never needs.
-    """
-    return parse_yaml_bytes(read_limited(path, max_bytes), str(path), max_bytes=max_bytes, max_depth=max_depth)
 
 
 def _not_regular(mode: int, what: str) -> str | None:
@@ -444,37 +338,3 @@ def read_csv_rows(path, what: str = "CSV file", max_bytes: int = MAX_CSV_BYTES) 
         problem = (f"a field is longer than {csv.field_size_limit()} characters" if "field limit" in str(exc)
                    else f"not readable as CSV ({exc})")
         raise InputError(label, f"line {reader.line_num + 1}: {problem}; expected a {what}") from None
-
-
-def parse_yaml_bytes(raw: bytes, label: str, *, max_bytes: int = MAX_YAML_BYTES,
-                     max_depth: int = MAX_YAML_DEPTH):
-    """Parse YAML from bytes with the limits of :func:`read_yaml_file`."""
-    import yaml
-
-    if len(raw) > max_bytes:
-        raise InputError(label, f"file is larger than {max_bytes // 1000} kB; not a shop file")
-    try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError:
-        raise InputError(label, "is not UTF-8 text (binary file?)") from None
-    if "\x00" in text:
-        raise InputError(label, "contains NUL characters (binary file?)")
-    try:
-        doc = yaml.load(text, Loader=_yaml_loader_class(max_depth))  # noqa: S506 - SafeLoader subclass
-    except _Refused as exc:
-        where = f"line {exc.mark.line + 1}, column {exc.mark.column + 1}: " if exc.mark else ""
-        raise InputError(label, f"{where}{exc.problem}") from None
-    except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark or exc.context_mark
-        where = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
-        problem = exc.problem or exc.context or "not valid YAML"
-        raise InputError(label, f"not valid YAML{where}: {problem}") from None
-    except yaml.YAMLError as exc:
-        raise InputError(label, f"not valid YAML: {exc}") from None
-    except RecursionError:
-        raise InputError(label, "nested too deeply") from None
-    odd = _first_odd_numeral(doc)
-    if odd:
-        where, numeral = odd
-        raise InputError(join_path(*where) or label, numeral.reason())
-    return doc

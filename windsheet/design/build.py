@@ -53,6 +53,17 @@ def _hz(x):
     return f"{x:.3g} Hz"
 
 
+def _capacitance_note(capacitance, srf, turns: int) -> str:
+    """Why no self-capacitance or self-resonance is predicted, in words; empty when both are."""
+    if capacitance and srf:
+        return ""
+    if turns <= 1:
+        return ("one turn per winding: no turn lies beside another of its own winding, so there is no "
+                "turn-to-turn capacitance; the leads' stray capacitance (not modelled) sets its self-resonance, "
+                "which is not predicted")
+    return ("no capacitance found between the winding's own turns; its self-resonance is not predicted")
+
+
 def _refuse_above_self_resonance(duty, srf):
     """At or above its self-resonance a winding is capacitive: not the inductor ordered."""
     if duty.frequency > 0 and srf is not None and duty.frequency >= srf:
@@ -440,6 +451,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
             "loss_W": float(np.sum(strand_loss)) if has_current else None,
             "capacitance_F": st["capacitance"]["terminal_F"],
             "self_resonance_Hz": st["self_resonance_Hz"],
+            "capacitance_note": _capacitance_note(st["capacitance"]["terminal_F"], st["self_resonance_Hz"],
+                                                  int(turns)),
             "accept": {**_inductance_accept(net.inductance, target, tol.inductance),
                        "resistance_min_ohm": net.resistance * (1 - tol.resistance),
                        "resistance_max_ohm": net.resistance * (1 + tol.resistance)},

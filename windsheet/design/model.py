@@ -278,6 +278,8 @@ class Terminal(Part):
     loss_W: Optional[float] = None
     capacitance_F: Optional[float] = None
     self_resonance_Hz: Optional[float] = None
+    capacitance_note: str = Field("", description="why no self-capacitance or self-resonance is predicted, "
+                                                  "when none is (empty otherwise)")
     accept: AcceptBands
     resistance_ac_test_ohm: Optional[float] = Field(None, description="at the test frequency, 20 °C [ohm]")
     q_test: Optional[float] = Field(None, description="Q = ωL/R_ac at the test frequency, 20 °C; D = 1/Q")

@@ -17,12 +17,14 @@ from typing import Annotated, Any, Literal, Optional, Union
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Field, Tag, ValidationError, model_validator
 
 from windsheet.common.errors import InputError, field_name, join_path
-from windsheet.common.fileio import parse_yaml_bytes, read_limited
+from windsheet.common.fileio import read_limited
+from windsheet.common.yaml_reading import parse_yaml_bytes
 from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                       pin_assignment)
 from .fields import (Angle, Energy, Flag, Fraction, Frequency, Frequency0, Ident, Inductance, Length, Length0,
                            PeakVoltage, PulseWidth, RiseTime, Temperature, Text, Voltage, choice, count_or_auto, lowered,
                            quantity, strand_keys)
+from .limits import JOB_UNITS
 from .units import SINE_CREST, parse_quantity, read_quantity
 
 #: Orders are small; anything larger is not an order. [bytes]
@@ -59,7 +61,7 @@ class Job(_M):
     number: Ident
     part: Text
     customer: Text = ""
-    quantity: Annotated[int, Field(ge=1, le=1000, strict=True)] = 1
+    quantity: Annotated[int, Field(ge=1, le=JOB_UNITS, strict=True)] = 1
     revision: Ident = "A"
     issued_by: Text = ""
     issue_date: Optional[_dt.date] = None
@@ -545,6 +547,10 @@ class Order:
         if job.units is not None and len(set(job.units)) != len(job.units):
             raise InputError("job.units", "serial numbers must be unique")
         _check_fractions(doc)
+        if doc.duty.between_windings is not None and self.hookup_name != "separate":
+            raise InputError("duty.between_windings", f"applies to separate windings only; this order's strands "
+                             f"are joined ({self.hookup_name}), so there is no voltage between windings — "
+                             "leave it out")
 
     @property
     def units(self) -> list[str]:
@@ -609,13 +615,25 @@ def _check_construction(doc: OrderDoc, pins, hookup_name: str) -> None:
                              "below 100 %")
 
 
+#: The narrowest tolerance band read: a bench LCR meter's or milliohm meter's basic accuracy is
+#: about 0.1 % (common practice), so a narrower band is judged on the meter's error. [1]
+MIN_TOLERANCE = 0.001
+
+
 def _check_fractions(doc: OrderDoc):
-    """Percentages whose meaning ends at 100 %: a 150 % tolerance accepts a negative inductance."""
+    """Percentages whose meaning ends at 100 %: a 150 % tolerance accepts a negative inductance;
+    a 0 % tolerance is a band no reading can meet."""
     tol, ins = doc.tolerances, doc.insulation
     for path, value in (("tolerances.inductance", tol.inductance), ("tolerances.resistance", tol.resistance),
+                        ("tolerances.strand_balance", tol.strand_balance),
                         ("insulation.hot_pdiv_derating", ins.hot_pdiv_derating)):
+        if value is None:
+            continue
         if value >= 1.0:
             raise InputError(path, f"expected a percentage below 100 %, got {value * 100:g} %")
+        if path.startswith("tolerances.") and value < MIN_TOLERANCE:
+            raise InputError(path, f"expected a tolerance of at least {MIN_TOLERANCE * 100:g} % (a bench meter's "
+                                   f"accuracy; a narrower band is judged on the meter's error), got {value * 100:g} %")
     if not 0 < ins.derating <= 1.0:
         raise InputError("insulation.derating", "expected the share of the breakdown voltage allowed in service, "
                          f"above 0 % and at most 100 % (common practice 25 %), got {ins.derating * 100:g} %")

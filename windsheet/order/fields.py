@@ -47,7 +47,16 @@ PulseWidth = Annotated[float, quantity("pulse_width")]
 Energy = Annotated[float, quantity("energy")]
 PeakVoltage = Annotated[float, quantity("voltage", form="peak")]
 Fraction = Annotated[float, BeforeValidator(_pct)]
-Text = Annotated[str, Field(max_length=200)]
+def _plain_text(v):
+    # A control character (DEL, an escape, a newline) would garble the sheet and the terminal.
+    if isinstance(v, str):
+        bad = next((ch for ch in v if ord(ch) < 32 or 127 <= ord(ch) < 160 or ch in "\u2028\u2029"), None)
+        if bad is not None:
+            raise ValueError(f"contains the control character U+{ord(bad):04X}; expected plain text on one line")
+    return v
+
+
+Text = Annotated[str, Field(max_length=200), BeforeValidator(_plain_text)]
 
 
 def _alnum(v):

@@ -94,6 +94,9 @@ def check_engine_work(turns: int, layers: int, strands: int, path: str) -> None:
             "or fewer turns"))
 
 
+#: Units (serial numbers) one job may have: ``job.quantity`` is at most this.
+JOB_UNITS = 1000
+
 #: Units on one printed sheet (a traveller's QC record, a sign-off sheet).  Four
 #: units fill a QC table: a 100-unit traveller is about 32 pages, 13 s and 265 MB
 #: on a busy 2-core machine (250 units: 21 s, 460 MB).  A larger job is issued in lots.

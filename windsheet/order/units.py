@@ -55,6 +55,10 @@ DIMENSIONS = {
 # Plausible magnitudes for a coil-shop document (SI, outside zero).  Far wider
 # than any real order; they keep absurd values (1e300 A) from overflowing the
 # engine into inf/NaN and say so at the field instead.
+#: The coldest temperature windsheet reads (an ambient, a hot-spot setting, a bench's
+#: ambient): copper's linear resistance-temperature rule is not used below it. [degC]
+TEMPERATURE_FLOOR_DEGC = -100.0
+
 SANE_RANGE = {
     "length": (1e-7, 1e3),
     "inductance": (1e-12, 1e4),
@@ -306,6 +310,12 @@ def _check_range(si, dimension, si_unit, value, path, allow_zero, allow_negative
             raise InputError(path, f"must be greater than zero, got {value!r}")
     elif si < -273.15 - 1e-9:
         raise InputError(path, f"is below absolute zero: {value!r}")
+    elif si < TEMPERATURE_FLOOR_DEGC:
+        # Copper's resistance is linear in temperature (IEC 60028) only well above the
+        # cryogenic range; at 0 K it would be negative and the heat balance has no solution.
+        raise InputError(path, f"expected a temperature from {TEMPERATURE_FLOOR_DEGC:g} degC to "
+                               f"{SANE_RANGE['temperature'][1]:g} degC, like '25 degC'; got {value!r} "
+                               "(windsheet's resistance and heating models do not reach that cold)")
     lo, hi = SANE_RANGE.get(dimension, (0.0, math.inf))
     if abs(si) > hi:
         raise InputError(path, f"must be at most {hi:g} {si_unit}, got {value!r}")

@@ -155,8 +155,8 @@ def _text(max_len: int):
         value = str(value).strip()
         if len(value) > max_len:
             raise PydanticCustomError("text", f"longer than {max_len} characters")
-        if any(ord(c) < 32 and c not in "\t" for c in value):
-            raise PydanticCustomError("text", "contains control characters")
+        if any((ord(c) < 32 and c not in "\t") or 127 <= ord(c) < 160 for c in value):
+            raise PydanticCustomError("text", "contains control characters; expected plain text on one line")
         return value
     return BeforeValidator(check)
 

@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 from windsheet.common.errors import InputError
-from windsheet.common.fileio import MAX_YAML_BYTES, read_limited, read_yaml_file
+from windsheet.common.fileio import read_limited
+from windsheet.common.yaml_reading import MAX_YAML_BYTES, read_yaml_file
 
 from .measured import MeasuredFile, measured_from_dict
 from .readings_form import measured_from_csv

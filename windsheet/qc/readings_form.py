@@ -19,7 +19,7 @@ import csv
 import io
 import re
 
-from windsheet.common.errors import InputError
+from windsheet.common.errors import InputError, quoted
 
 #: Columns of a required line, with the unit written in the header.
 _COLUMNS = {
@@ -146,7 +146,7 @@ def _path_of(key: str, where: str) -> list[str]:
         return parts
     if head == "waive" and len(parts) >= 2:
         return ["waive", ".".join(parts[1:])]
-    raise InputError(where, f"unknown column {key!r}; expected a QC line like 'terminal.inductance [uH]'")
+    raise InputError(where, f"unknown column {quoted(key)}; expected a QC line like 'terminal.inductance [uH]'")
 
 
 def measured_from_csv(text: str, label: str = "readings.csv"):
@@ -163,7 +163,7 @@ def measured_from_csv(text: str, label: str = "readings.csv"):
             raise
         k, rest = int(m.group(1)), m.group(2)
         col = next((c for path, c in columns.items() if rest == path or rest.startswith(path + ".")), None)
-        where = f"{label}: row {k + 2}" + (f", column {col!r}" if col else (f", {rest}" if rest else ""))
+        where = f"{label}: row {k + 2}" + (f", column {quoted(col)}" if col else (f", {rest}" if rest else ""))
         raise InputError(where, exc.message) from None
 
 
@@ -173,7 +173,22 @@ def measured_dict_from_csv(text: str, label: str = "readings.csv", columns=None)
     ``columns``, when given, is filled with the dotted document path of each
     column (``terminals.inductance``) against the header that gave it.
     """
-    rows = list(csv.reader(io.StringIO(text)))
+    from windsheet.order.limits import JOB_UNITS
+
+    # Count lines before parsing: a file with more rows than any job has units would
+    # otherwise be read and validated in full (seconds) only to be refused.
+    lines = sum(1 for ln in text.splitlines() if ln.strip())
+    if lines - 1 > JOB_UNITS:
+        raise InputError(label, f"{lines - 1} rows is more than a job's units (at most {JOB_UNITS}); "
+                                "expected a header row and one row per unit")
+    reader = csv.reader(io.StringIO(text, newline=""), strict=True)
+    try:
+        rows = list(reader)
+    except csv.Error as exc:
+        problem = (f"a cell is longer than {csv.field_size_limit()} characters" if "field limit" in str(exc)
+                   else "a quote is not closed" if "end of data" in str(exc)
+                   else f"not readable as CSV ({str(exc)[:80]})")
+        raise InputError(f"{label}: line {reader.line_num}", f"{problem}; expected one row per unit") from None
     rows = [r for r in rows if any(c.strip() for c in r)]
     if len(rows) < 2:
         raise InputError(label, "expected a header row and one row per unit")
@@ -181,9 +196,9 @@ def measured_dict_from_csv(text: str, label: str = "readings.csv", columns=None)
     for k, h in enumerate(rows[0]):
         m = _HEADER.match(h or "")
         if not m:
-            raise InputError(f"{label}:column {k + 1}", f"cannot read header {h!r}; expected 'name [unit]'")
+            raise InputError(f"{label}:column {k + 1}", f"cannot read header {quoted(h)}; expected 'name [unit]'")
         name, unit = m.group(1), m.group(2)
-        cols.append((name, unit, None if name in _FILE_FIELDS else _path_of(name, f"{label}:{h}")))
+        cols.append((name, unit, None if name in _FILE_FIELDS else _path_of(name, f"{label}:{h if len(h) <= 40 else h[:39] + chr(8230)}")))
         if columns is not None and cols[-1][2]:
             columns[".".join(cols[-1][2])] = h.strip()
     if not any(c[0] == "serial" for c in cols):
@@ -198,7 +213,7 @@ def measured_dict_from_csv(text: str, label: str = "readings.csv", columns=None)
                 continue
             if path is None:
                 if doc.get(name, cell) != cell:
-                    raise InputError(f"{label}:row {i}:{name}", f"is {cell!r} but an earlier row has {doc[name]!r}")
+                    raise InputError(f"{label}:row {i}:{name}", f"is {quoted(cell)} but an earlier row has {quoted(doc[name])}")
                 doc[name] = cell
                 continue
             value = f"{cell} {u}" if u and re.match(r"^[-+]?[\d.]+(e[-+]?\d+)?$", cell, re.I) else cell

@@ -93,9 +93,10 @@ def _strand_lines(design, unit, base, strands, ambient, f_default, tol_L, tol_R,
                                         sp.resistance_20C_ohm,
                                         _bounds(design, key) if design.qc_plan.line(key) else tol_R,
                                         join_path(path, "resistance"), _conductor(design))
-            if r_line["measured"] is not None:
-                strand_R[sid] = r_line["measured"]
-            lines.append(r_line)
+            if r_line is not None:
+                if r_line["measured"] is not None:
+                    strand_R[sid] = r_line["measured"]
+                lines.append(r_line)
         if sr.turns is not None:
             ok = sr.turns == sp.turns
             lines.append(sl.line(f"strand.{sid}.turns", f"Turns counted, strand {sid}", "turns",
@@ -210,7 +211,8 @@ def _terminal_lines(design, unit, base, ambient, f_default, resize):
         r_line = sl.resistance_line("terminal.resistance", "Resistance at terminals", t.resistance, ambient,
                                     term.resistance_ohm, _bounds(design, "terminal.resistance"),
                                     join_path(base, "terminals", "resistance"), _conductor(design))
-        lines.append(r_line)
+        if r_line is not None:
+            lines.append(r_line)
     finding = None
     if any(x is not None and x["result"] == "fail" for x in (l_line, r_line)):
         taps = [{"from": tp.from_, "to": tp.to, "inductance_H": tp.henries} for tp in unit.taps]
@@ -359,6 +361,11 @@ def evaluate_unit(design, measured: MeasuredFile, unit: UnitReadings, index: int
     waived = {k: v for k, v in waive.items() if k in unread}
     missing = [k for k in missing_all if k not in waived]
     lines += [sl.waived_line(k, r) for k, r in waived.items()]
+    if ambient is None and (unit.terminals.resistance is not None
+                            or any(sr.resistance is not None for sr in unit.strands.values())):
+        findings.append(_fact("unit", "incomplete", "resistance read but not judged: no ambient temperature "
+                                                    "to correct it to 20 °C; give 'ambient: 21 degC'"))
+        missing += [k for k in ("ambient",) if k not in missing]
     if missing:
         findings.append(_fact("unit", "incomplete", "not proven: required QC lines not read: " + ", ".join(missing)))
     return {"serial": unit.serial, "verdict": sl.unit_verdict(lines, missing), "lines": lines,

@@ -73,14 +73,16 @@ def freq_note(reading: dict) -> str:
 
 def resistance_line(key, item, reading, ambient, predicted, tol_or_band, path, conductor="copper"):
     """A resistance line corrected to 20 °C with the conductor's own coefficient;
-    ``tol_or_band`` is a fraction or (lo, hi)."""
+    ``tol_or_band`` is a fraction or (lo, hi).  None when no ambient temperature is
+    known (an open circuit fails without one)."""
     lo, hi = (band(predicted, tol_or_band) if not isinstance(tol_or_band, tuple) else tol_or_band)
     if reading.open:
         return line(key, item, "ohm", None, predicted, lo, hi, result="fail",
                     reading={"open": True}, note="open circuit")
     if ambient is None:
-        raise InputError(path, "needs the ambient temperature to correct it to 20 °C; "
-                               "give 'ambient: 21 degC' for the unit or the whole file")
+        # Not judged (None): without the ambient the reading cannot be corrected to 20 °C, so the
+        # line stays unread and the unit INCOMPLETE, never passed on an uncorrected value.
+        return None
     from windsheet.physics.wire import conductor as conductor_data
 
     alpha = conductor_data(conductor)["temperature_coefficient_20C"]

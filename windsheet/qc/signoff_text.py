@@ -38,7 +38,14 @@ def summary_lines(result: dict, eng) -> list[str]:
             out.append(f"  -> {d['finding']}")
     for c in result.get("cautions") or []:
         out.append(f"Caution: {c}")
-    out.append(f"Verdict: {result['verdict'].upper()}")
+    verdict = f"Verdict: {result['verdict'].upper()}"
+    not_signed = result.get("units_not_signed") or []
+    if not_signed:
+        # A verdict over the units read only: say plainly that the job is not finished.
+        total = len(result["units"]) + len(not_signed)
+        verdict += (f" for the {len(result['units'])} unit(s) read; {len(not_signed)} of {total} units "
+                    f"not signed: {', '.join(not_signed[:10])}{' …' if len(not_signed) > 10 else ''}")
+    out.append(verdict)
     return out
 
 

@@ -50,7 +50,8 @@ def _ratios(design, values, key):
     out = {}
     for s in design.strands:
         v = values.get(s.id)
-        if v is not None and getattr(s, key) and not math.isinf(v):
+        # A reading of zero (a short) is no basis for a ratio; its own line fails it.
+        if v is not None and getattr(s, key) and math.isfinite(v) and v > 0:
             out[s.id] = v / getattr(s, key)
     return out
 

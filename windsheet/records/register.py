@@ -27,18 +27,17 @@ from windsheet.common.errors import InputError
 from windsheet.records import register_schema as schema
 from windsheet.common.fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
+from .register_checks import (APPLICATION, APPLICATION_ID, _check_contents, _check_header, _check_writable,  # noqa: F401
+                              _disk_fault, _is_locked, _locked_error, _one_line, _read_header, _read_only_error,
+                              _reads)
+from .register_states import JobStates
 from .sheet_ledger import finish_pending, record_pending
 from windsheet.design.state_rules import recorded_state
 from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
 
 DEFAULT_FILE = "windsheet-register.db"
 ENV_VAR = "WINDSHEET_REGISTER"
-APPLICATION = "windsheet-register"
-#: PRAGMA application_id, "WSHR" in ASCII: marks the file in its own header.
-APPLICATION_ID = 0x57534852
 DEFAULT_TIMEOUT_S = 10.0
-
-_SQLITE_MAGIC = b"SQLite format 3\x00"
 
 _SCHEMA = """
 CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
@@ -107,67 +106,6 @@ def _dumps(obj) -> str:
         raise InputError("register", f"cannot record a value that is not finite: {exc}") from None
 
 
-# --- Recognising a register -----------------------------------------------------------
-
-def _read_header(path: Path, label: str) -> bytes:
-    try:
-        with open(path, "rb") as fh:
-            return fh.read(100)
-    except PermissionError:
-        raise InputError(label, "cannot read the register: permission denied") from None
-    except IsADirectoryError:
-        raise InputError(label, "is a folder, not a register file") from None
-    except OSError as exc:
-        raise InputError(label, f"cannot read the register: {exc.strerror or exc}") from None
-
-
-def _check_header(header: bytes, label: str) -> None:
-    if len(header) < 100 or not header.startswith(_SQLITE_MAGIC):
-        raise InputError(label, "is not a windsheet register (not an SQLite database); "
-                                "refusing to touch it — give another path with --register")
-    app_id = int.from_bytes(header[68:72], "big")
-    if app_id != APPLICATION_ID:
-        raise InputError(label, "is an SQLite database but not a windsheet register; "
-                                "refusing to touch it — give another path with --register")
-
-
-def _check_contents(conn: sqlite3.Connection, label: str) -> int:
-    """Check a register's header tables, version and structure; returns its schema version."""
-    try:
-        ok = conn.execute("PRAGMA quick_check").fetchone()[0]
-        row = conn.execute("SELECT value FROM meta WHERE key = 'application'").fetchone()
-        version = conn.execute("PRAGMA user_version").fetchone()[0]
-    except (sqlite3.DatabaseError, UnicodeError) as exc:
-        if _is_locked(exc):
-            raise _locked_error(label) from None
-        raise InputError(label, f"register is damaged or not a windsheet register ({_one_line(exc)})") from None
-    if ok != "ok":
-        first = (str(ok).splitlines() or ["?"])[0][:160]
-        raise InputError(label, f"register is damaged (integrity check: {first}); restore it from a backup")
-    if row is None or row[0] != APPLICATION:
-        raise InputError(label, "is not a windsheet register (no application marker)")
-    if version > SCHEMA_VERSION:
-        raise InputError(label, f"register has schema version {version}, newer than this windsheet "
-                                f"understands ({SCHEMA_VERSION}); upgrade windsheet")
-    if version < 1:
-        raise InputError(label, "register has no schema version; it is damaged")
-    try:
-        schema.check_structure(conn, version, label)
-    except (sqlite3.DatabaseError, UnicodeError) as exc:
-        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
-    return version
-
-
-def _is_locked(exc: Exception) -> bool:
-    text = str(exc).lower()
-    return "locked" in text or "busy" in text
-
-
-def _locked_error(label: str) -> InputError:
-    return InputError(label, "register is locked by another writer; waited, then gave up — "
-                             "try again when the other sign-off has finished")
-
-
 # --- Creating -------------------------------------------------------------------------
 
 def _create(path: Path, label: str) -> None:
@@ -222,33 +160,7 @@ def _create(path: Path, label: str) -> None:
 
 # --- The register ---------------------------------------------------------------------
 
-def _reads(method):
-    """A read of the register: damage found while reading is one line, never a traceback."""
-    import functools
-
-    @functools.wraps(method)
-    def wrapper(self, *args, **kwargs):
-        try:
-            return method(self, *args, **kwargs)
-        except InputError:
-            raise
-        except sqlite3.OperationalError as exc:
-            if _is_locked(exc):
-                raise _locked_error(self.label) from None
-            raise InputError(self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
-        except (sqlite3.DatabaseError, ValueError, TypeError, AttributeError, KeyError, UnicodeError) as exc:
-            raise InputError(self.label, f"register is damaged ({type(exc).__name__}: {_one_line(exc)}); "
-                                         "restore it from a backup") from None
-    return wrapper
-
-
-def _one_line(exc) -> str:
-    if isinstance(exc, UnicodeDecodeError):
-        return "text that is not UTF-8"
-    return (str(exc).splitlines() or [""])[0][:160]
-
-
-class Register:
+class Register(JobStates):
     """An open job register; use :func:`open_register`."""
 
     #: Schema version of the open file (a read-only old register stays at its own).
@@ -279,19 +191,32 @@ class Register:
         except sqlite3.OperationalError as exc:
             if _is_locked(exc):
                 raise _locked_error(self.label) from None
-            raise InputError(self.label, f"cannot write the register: {exc}") from None
+            raise _disk_fault(self.label, exc) or InputError(self.label, f"cannot write the register: {exc}") from None
         try:
             yield self.conn
+        except sqlite3.OperationalError as exc:
+            self._rollback()
+            fault = _disk_fault(self.label, exc)
+            if fault is None:
+                raise
+            raise fault from None
         except BaseException:
-            self.conn.execute("ROLLBACK")
+            self._rollback()
             raise
         try:
             self.conn.execute("COMMIT")
         except sqlite3.OperationalError as exc:
-            self.conn.execute("ROLLBACK")
+            self._rollback()
             if _is_locked(exc):
                 raise _locked_error(self.label) from None
-            raise InputError(self.label, f"cannot write the register: {exc}") from None
+            raise _disk_fault(self.label, exc) or InputError(self.label, f"cannot write the register: {exc}") from None
+
+    def _rollback(self) -> None:
+        # SQLite may have rolled back already (a full disk does that); nothing is half-written either way.
+        try:
+            self.conn.execute("ROLLBACK")
+        except sqlite3.OperationalError:
+            pass
 
     # -- issue -------------------------------------------------------------------------
 
@@ -434,68 +359,6 @@ class Register:
 
     # -- reading -----------------------------------------------------------------------
 
-    def _states(self, number: Optional[str] = None) -> list[dict]:
-        """Each job's state at its latest issued revision (one job, or all, newest issue first).
-
-        Two queries whatever the register's size: the latest issue of each job,
-        then every unit sign-off of those revisions, read in order so the last
-        verdict of each serial stands.
-        """
-        v2 = self.version >= 2
-        design = "i.design_state" if v2 else "NULL"
-        where = "WHERE i.job = ?" if number is not None else ""
-        args = (number,) if number is not None else ()
-        latest = self.conn.execute(
-            "SELECT i.job, i.id, i.revision, i.order_sha256, i.units_json, i.issued_at, i.issued_by, "
-            f"{design}, j.part, j.customer "
-            "FROM issues i JOIN jobs j ON j.number = i.job "
-            f"JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id {where} "
-            "ORDER BY i.id DESC", args).fetchall()
-        verdict = "u.unit_verdict" if v2 else "json_extract(u.measurements_json, '$.verdict')"
-        units: dict = {}
-        for job, serial, v, col in self.conn.execute(
-                f"SELECT s.job, u.serial, {verdict}, u.verdict FROM unit_signoffs u "
-                "JOIN signoffs s ON s.id = u.signoff_id "
-                "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.job = s.job "
-                "JOIN issues i ON i.id = l.id AND i.revision = s.revision "
-                + ("WHERE s.job = ? " if number is not None else "") + "ORDER BY u.id", args):
-            units.setdefault(job, {})[serial] = v or col
-        out = []
-        for job, iid, rev, sha, units_json, at, by, dstate, part, customer in latest:
-            serials = json.loads(units_json)
-            if not isinstance(serials, list):
-                raise ValueError(f"issue {iid}: units_json is not a list")
-            got = units.get(job, {})
-            passed = sorted(s for s, v in got.items() if v == "pass")
-            failed = sorted(s for s, v in got.items() if v == "fail")
-            incomplete = sorted(s for s, v in got.items() if v == "incomplete")
-            everyone = set(serials) or set(got)
-            state = ("failed" if failed else "incomplete" if incomplete
-                     else "passed" if got and everyone <= set(passed) else "issued")
-            if dstate is None:  # a version-1 register read as it is
-                dstate = recorded_state(self.issued_record(iid))["state"]
-            out.append({"number": job, "revision": rev, "order_sha256": sha, "issued_at": at,
-                        "issued_by": by, "state": state, "units": serials, "part": part, "customer": customer,
-                        "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
-                        "units_not_signed": [s for s in serials if s not in got],
-                        "design_status": {"state": dstate}, "issue_id": iid})
-        return out
-
-    @_reads
-    def job_state(self, number: str) -> dict:
-        """State of a job at its latest issued revision: issued, passed, failed or incomplete."""
-        found = self._states(number)
-        if not found:
-            raise InputError("job", f"job {number} is not in register {self.label}")
-        st = found[0]
-        st["design_status"] = recorded_state(self.issued_record(st["issue_id"]))
-        return st
-
-    @_reads
-    def list_jobs(self) -> list[dict]:
-        """Every job with its state, newest issue first."""
-        return self._states()
-
     @_reads
     def job_history(self, number: str) -> dict:
         """Every issue and sign-off of a job, oldest first."""
@@ -584,7 +447,9 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
     try:
         conn.execute(f"PRAGMA busy_timeout = {int(timeout * 1000)}")
         version = _check_contents(conn, label)
-        # Content checked before anything is written, the migration included.
+        # Content checked before anything is written, the migration included: what the
+        # listing reads (so a register it calls damaged is never written to) and the JSON.
+        schema.check_text(conn, label)
         schema.check_json(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
@@ -593,16 +458,18 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         conn.execute("PRAGMA foreign_keys = ON")
         version = schema.migrate(conn, version, _now())
         ensure_table(conn)  # registers made before lots were recorded gain the table
+        schema.ensure_listing_index(conn, version)
     except sqlite3.OperationalError as exc:
         conn.close()
         if _is_locked(exc):
             raise _locked_error(label) from None
         if "readonly" in str(exc).lower():
             raise _read_only_error(label) from None
-        raise InputError(label, f"cannot open the register: {exc}") from None
+        raise _disk_fault(label, exc) or InputError(label, f"cannot open the register: {exc}") from None
     except (sqlite3.DatabaseError, UnicodeError) as exc:
         conn.close()
-        raise InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+        raise (_disk_fault(label, exc)
+               or InputError(label, f"register is damaged ({_one_line(exc)}); restore it from a backup")) from None
     except BaseException:
         conn.close()
         raise
@@ -614,18 +481,6 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         reg.close()
         raise
     return reg
-
-
-def _read_only_error(label: str) -> InputError:
-    return InputError(label, "register is read-only here (no write permission on the file or its folder); "
-                             "nothing was recorded — list it with 'windsheet register', or ask for write access")
-
-
-def _check_writable(p: Path, label: str) -> None:
-    """Refuse to open a register for writing that cannot be written (file, or its folder for the WAL files)."""
-    folder = p.parent if str(p.parent) else Path(".")
-    if not os.access(p, os.W_OK) or not os.access(folder, os.W_OK | os.X_OK):
-        raise _read_only_error(label)
 
 
 def _sqlite_uri(p: Path, immutable: bool) -> str:
@@ -656,7 +511,8 @@ def open_register_readonly(path=None) -> Register:
     except sqlite3.Error as exc:
         raise InputError(label, f"cannot read the register: {exc}") from None
     try:
-        version = _check_contents(conn, label)
+        # Proportional to the work: the header, version and structure now; each row as it is read.
+        version = _check_contents(conn, label, whole_file=False)
     except (sqlite3.OperationalError, UnicodeError) as exc:
         conn.close()
         if immutable:
@@ -669,6 +525,36 @@ def open_register_readonly(path=None) -> Register:
     reg = Register(conn, p, DEFAULT_TIMEOUT_S)
     reg.version = version
     return reg
+
+
+def check_register(path=None) -> dict:
+    """The whole check of a register, read-only: every page (SQLite's ``integrity_check``),
+    the text the listing reads and the JSON of every record.
+
+    Returns counts of what was checked; a fault is an :class:`InputError` naming what is
+    damaged, as the writers refuse it.  ``windsheet register --check``.
+    """
+    reg = open_register_readonly(path)
+    try:
+        conn = reg.conn
+        try:
+            ok = conn.execute("PRAGMA integrity_check(1)").fetchone()[0]
+        except sqlite3.DatabaseError as exc:
+            raise (_disk_fault(reg.label, exc) or InputError(
+                reg.label, f"register is damaged ({_one_line(exc)}); restore it from a backup")) from None
+        if ok != "ok":
+            raise InputError(reg.label, f"register is damaged (integrity check: {str(ok)[:160]}); "
+                                        "restore it from a backup")
+        try:
+            schema.check_text(conn, reg.label)
+            schema.check_json(conn, reg.label)
+            counts = {t: conn.execute(f"SELECT count(*) FROM {t}").fetchone()[0]
+                      for t in ("jobs", "issues", "signoffs", "unit_signoffs")}
+        except sqlite3.DatabaseError as exc:
+            raise InputError(reg.label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
+        return {"register": reg.label, "schema_version": reg.version, **counts}
+    finally:
+        reg.close()
 
 
 def _column_verdict(verdict: str) -> str:

@@ -113,20 +113,94 @@ def check_json(conn: sqlite3.Connection, label: str) -> None:
 
     Run before anything is written, in SQLite's own JSON functions: a
     100 MB register is checked in a fraction of a second without loading it.
+    One scan per table: each text is parsed once (``json_valid``) and its kind read
+    from its first character; a row that scan doubts is then judged by ``json_type``.
     """
+    tables: dict = {}
     for table, col, kind in JSON_COLUMNS:
+        tables.setdefault(table, []).append((col, kind))
+    opens = {"object": "{", "array": "["}
+    for table, cols in tables.items():
+        doubt = " OR ".join(f"NOT json_valid({c}) OR substr(ltrim(substr({c}, 1, 64)), 1, 1) != '{opens[k]}'"
+                            for c, k in cols)
         try:
-            bad = conn.execute(
-                f"SELECT id FROM {table} WHERE NOT json_valid({col}) OR json_type({col}) != ? LIMIT 1",
-                (kind,)).fetchone()
+            for (row_id,) in conn.execute(f"SELECT id FROM {table} WHERE {doubt}"):
+                for col, kind in cols:
+                    ok = conn.execute(f"SELECT CASE WHEN json_valid({col}) THEN json_type({col}) = ? ELSE 0 END "
+                                      f"FROM {table} WHERE id = ?", (kind, row_id)).fetchone()[0]
+                    if not ok:
+                        raise InputError(label, f"register is damaged: {table} row {row_id} holds no valid JSON "
+                                                f"{kind} in {col}; restore it from a backup")
         except sqlite3.OperationalError as exc:
             if "decode" in str(exc).lower() or "utf" in str(exc).lower():
-                raise InputError(label, f"register is damaged: {table}.{col} is not valid UTF-8 text; "
+                raise InputError(label, f"register is damaged: {table} holds text that is not valid UTF-8; "
                                         "restore it from a backup") from None
             raise
-        if bad is not None:
-            raise InputError(label, f"register is damaged: {table} row {bad[0]} holds no valid JSON {kind} "
-                                    f"in {col}; restore it from a backup")
+
+
+#: A covering index of what the listing reads of each issue: the listing, a page of the bench's job
+#: list and the writers' text check read it instead of the issue records, whose JSON (tens of kB)
+#: comes before these columns. Not a schema change: a register without it is read as before.
+LISTING_INDEX = "issues_listing"
+LISTING_INDEX_SQL = (f"CREATE INDEX IF NOT EXISTS {LISTING_INDEX} ON issues(job, id, revision, order_sha256, "
+                     "issued_at, issued_by, design_state, units_json)")
+
+
+def has_listing_index(conn: sqlite3.Connection) -> bool:
+    return conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'index' AND name = ?",
+                        (LISTING_INDEX,)).fetchone() is not None
+
+
+def ensure_listing_index(conn: sqlite3.Connection, version: int) -> None:
+    """Add the listing's covering index to a version-2 register that lacks it (one pass, once)."""
+    if version < 2 or has_listing_index(conn):
+        return
+    conn.execute("BEGIN IMMEDIATE")
+    try:
+        conn.execute(LISTING_INDEX_SQL)
+        conn.execute("COMMIT")
+    except BaseException:
+        conn.execute("ROLLBACK")
+        raise
+
+
+#: The text columns the register's listing and the bench's job list read, by table: a writer checks
+#: them before it writes, so a register the listing refuses as damaged is never written to.
+LISTED_TEXT = {
+    "jobs": ("number", "part", "customer", "first_issued_at"),
+    "issues": ("job", "revision", "order_sha256", "units_json", "issued_by", "issued_at", "design_state"),
+    "signoffs": ("job", "revision", "inspector", "verdict", "signed_at"),
+    "unit_signoffs": ("job", "serial", "verdict", "unit_verdict", "inspector", "signed_at"),
+}
+
+
+def check_text(conn: sqlite3.Connection, label: str) -> None:
+    """Refuse a register whose listed text columns hold bytes that are not UTF-8 (one line).
+
+    Only rows with a character outside printable ASCII are read into Python (a
+    ``GLOB`` in SQLite finds them), so a register of plain text is checked in
+    one scan without decoding anything.
+    """
+    for table, wanted in LISTED_TEXT.items():
+        cols = [c for c in wanted if c in columns(conn, table)]
+        if not cols:
+            continue
+        odd = " OR ".join(f"{c} GLOB '*[^ -~]*'" for c in cols)
+        # The issues' listed columns all sit in the listing's covering index: read it, not the records.
+        indexed = f" INDEXED BY {LISTING_INDEX}" if table == "issues" and has_listing_index(conn) else ""
+        old_factory = conn.text_factory
+        conn.text_factory = bytes
+        try:
+            for row in conn.execute(f"SELECT rowid, {', '.join(cols)} FROM {table}{indexed} WHERE {odd}"):
+                for col, value in zip(cols, row[1:]):
+                    if isinstance(value, bytes):
+                        try:
+                            value.decode("utf-8")
+                        except UnicodeDecodeError:
+                            raise InputError(label, f"register is damaged: {table}.{col} of row {row[0]} is not "
+                                                    "valid UTF-8 text; restore it from a backup") from None
+        finally:
+            conn.text_factory = old_factory
 
 
 def migrate(conn: sqlite3.Connection, version: int, now: str) -> int:

@@ -14,8 +14,67 @@ import contextlib
 import os
 
 
-def _serve(conn) -> None:
+#: How often the worker looks whether its parent is still there (where no parent-death signal exists). [s]
+WATCHDOG_PERIOD_S = 0.5
+
+
+def die_with_parent(parent_pid: int) -> None:
+    """Make this (forked) worker end when the command that forked it ends, however it ends
+    (the PDF worker, and the batch's worker processes as their initializer).
+
+    On Linux the kernel sends SIGKILL at the parent's death (``prctl(PR_SET_PDEATHSIG)``);
+    elsewhere, and as a second guard, a daemon thread watches the parent's PID.  A parent
+    already gone before either was set up is caught by the first look.
+    """
+    import signal
+    import sys
+    import threading
+
+    if sys.platform.startswith("linux"):
+        try:
+            import ctypes
+
+            PR_SET_PDEATHSIG = 1
+            ctypes.CDLL(None, use_errno=True).prctl(PR_SET_PDEATHSIG, int(signal.SIGKILL), 0, 0, 0)
+        except (OSError, AttributeError):
+            pass
+
+    def watch():
+        import time
+
+        while os.getppid() == parent_pid:
+            time.sleep(WATCHDOG_PERIOD_S)
+        os._exit(0)
+
+    if os.getppid() != parent_pid:
+        os._exit(0)
+    threading.Thread(target=watch, name="windsheet-pdf-watchdog", daemon=True).start()
+
+
+def _detach_from_caller() -> None:
+    # The worker writes nothing to the terminal: it must not hold the caller's stdin,
+    # stdout and stderr (a pipe the caller waits on would never see its end).
+    try:
+        null = os.open(os.devnull, os.O_RDWR)
+    except OSError:
+        return
+    for fd in (0, 1, 2):
+        try:
+            os.dup2(null, fd)
+        except OSError:
+            pass
+    os.close(null)
+
+
+def _serve(conn, parent_end=None, parent_pid: int | None = None) -> None:
     """The worker: import WeasyPrint at once, then render each HTML page it is sent."""
+    if parent_end is not None:
+        # The fork copied the parent's end of the pipe too: holding it, the worker would
+        # never see end-of-file when the parent dies.
+        parent_end.close()
+    if parent_pid is not None:
+        die_with_parent(parent_pid)
+        _detach_from_caller()
     try:
         from .sheet_pdf import _weasyprint, render_pdf
 
@@ -40,7 +99,8 @@ class PdfWorker:
 
         ctx = multiprocessing.get_context("fork")
         self._conn, child = ctx.Pipe()
-        self._proc = ctx.Process(target=_serve, args=(child,), daemon=True, name="windsheet-pdf")
+        self._proc = ctx.Process(target=_serve, args=(child, self._conn, os.getpid()), daemon=True,
+                                 name="windsheet-pdf")
         self._proc.start()
         child.close()
         self._used = False

@@ -1,0 +1,169 @@
+"""Each job's state at its latest issue, read in a few queries whatever the register's size:
+the listing, one job's state, and one page of the jobs matching the listing's filters.
+
+A mixin of :class:`windsheet.records.register.Register` (``self.conn``, ``self.version``, ``self.label``).
+"""
+
+from __future__ import annotations
+
+import json
+from typing import Optional
+
+from windsheet.common.errors import InputError
+from windsheet.design.state_rules import recorded_state
+from windsheet.records import register_schema as schema
+from .register_checks import _reads
+
+
+class JobStates:
+    """The register's job states (see :class:`windsheet.records.register.Register`)."""
+
+    def _latest_where(self, number=None, customer=None, since=None) -> tuple[str, tuple]:
+        clauses, args = [], []
+        if number is not None:
+            clauses.append("i.job = ?")
+            args.append(number)
+        if customer:
+            clauses.append("lower(coalesce(j.customer, '')) LIKE ? ESCAPE '\\'")
+            args.append("%" + customer.strip().lower().replace("\\", "\\\\").replace("%", "\\%")
+                        .replace("_", "\\_") + "%")
+        if since:
+            clauses.append("substr(i.issued_at, 1, 10) >= ?")
+            args.append(since)
+        return ("WHERE " + " AND ".join(clauses)) if clauses else "", tuple(args)
+
+    def _listing_index(self) -> bool:
+        if getattr(self, "_has_listing_index", None) is None:
+            self._has_listing_index = self.version >= 2 and schema.has_listing_index(self.conn)
+        return self._has_listing_index
+
+    def _page_source(self, customer=None, since=None) -> tuple[str, tuple]:
+        """``FROM … WHERE …`` of the latest issue of each job matching the filters, as ``l.id``.
+
+        Without a date the issues' own rows are not read at all (the latest ids come from
+        the index on ``(job, id)``, the customer from the jobs table): a page, and the count
+        of all, cost the same whatever size the issue records are.
+        """
+        latest = "(SELECT job, MAX(id) AS id FROM issues GROUP BY job) l JOIN jobs j ON j.number = l.job"
+        if since:
+            latest += (f" JOIN issues i INDEXED BY {schema.LISTING_INDEX} ON i.job = l.job AND i.id = l.id"
+                       if self._listing_index() else " JOIN issues i ON i.id = l.id")
+        where, args = self._latest_where(None, customer, since)
+        return f"FROM {latest} {where}", args
+
+    def _states(self, number: Optional[str] = None, *, customer: Optional[str] = None,
+                since: Optional[str] = None, limit: Optional[int] = None, offset: int = 0) -> list[dict]:
+        """Each job's state at its latest issued revision (one job, or all, newest issue first).
+
+        Two queries whatever the register's size: the latest issue of each job
+        (those of a customer, issued since a date, one page of them when
+        ``limit`` is given), then every unit sign-off of those revisions, read in
+        order so the last verdict of each serial stands.
+        """
+        v2 = self.version >= 2
+        design = "i.design_state" if v2 else "NULL"
+        where, args = self._latest_where(number, customer, since)
+        if limit is not None:
+            # The page's issue ids first, from the index and the jobs table (no record is read
+            # but the page's own), then the page's rows.
+            source, page_args = self._page_source(customer, since)
+            ids = [r[0] for r in self.conn.execute(
+                f"SELECT l.id {source} ORDER BY l.id DESC LIMIT {int(limit)} OFFSET {int(offset)}", page_args)]
+            where, args = f"WHERE i.id IN ({', '.join('?' * len(ids)) or 'NULL'})", tuple(ids)
+        if self._listing_index():
+            # Every column read here is in the covering index: no issue record is read.
+            join = (f"(SELECT job, MAX(id) AS id FROM issues GROUP BY job) l "
+                    f"JOIN issues i INDEXED BY {schema.LISTING_INDEX} ON i.job = l.job AND i.id = l.id "
+                    "JOIN jobs j ON j.number = l.job")
+        else:
+            join = ("issues i JOIN jobs j ON j.number = i.job "
+                    "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.id = i.id")
+        latest = self.conn.execute(
+            "SELECT i.job, i.id, i.revision, i.order_sha256, i.units_json, i.issued_at, i.issued_by, "
+            f"{design}, j.part, j.customer FROM {join} {where} ORDER BY i.id DESC", args).fetchall()
+        verdict = "u.unit_verdict" if v2 else "json_extract(u.measurements_json, '$.verdict')"
+        if number is not None:
+            only, only_args = "WHERE s.job = ? ", (number,)
+        elif limit is not None or customer or since:
+            # The page's jobs only (at most a page of them; SQLite takes 999 parameters at least).
+            names = [row[0] for row in latest]
+            if len(names) > 900:
+                only, only_args = "", ()
+            else:
+                only, only_args = f"WHERE s.job IN ({', '.join('?' * len(names)) or 'NULL'}) ", tuple(names)
+        else:
+            only, only_args = "", ()
+        units: dict = {}
+        for job, serial, v, col in self.conn.execute(
+                f"SELECT s.job, u.serial, {verdict}, u.verdict FROM unit_signoffs u "
+                "JOIN signoffs s ON s.id = u.signoff_id "
+                "JOIN (SELECT job, MAX(id) AS id FROM issues GROUP BY job) l ON l.job = s.job "
+                "JOIN issues i ON i.id = l.id AND i.revision = s.revision "
+                + only + "ORDER BY u.id", only_args):
+            units.setdefault(job, {})[serial] = v or col
+        out = []
+        for job, iid, rev, sha, units_json, at, by, dstate, part, customer in latest:
+            serials = json.loads(units_json)
+            if not isinstance(serials, list):
+                raise ValueError(f"issue {iid}: units_json is not a list")
+            got = units.get(job, {})
+            by = {"pass": [], "fail": [], "incomplete": []}  # one pass over the unit verdicts
+            for serial, v in got.items():
+                if v in by:
+                    by[v].append(serial)
+            passed, failed, incomplete = sorted(by["pass"]), sorted(by["fail"]), sorted(by["incomplete"])
+            everyone = set(serials) or set(got)
+            state = ("failed" if failed else "incomplete" if incomplete
+                     else "passed" if got and everyone <= set(passed) else "issued")
+            if dstate is None:  # a version-1 register read as it is
+                dstate = recorded_state(self.issued_record(iid))["state"]
+            out.append({"number": job, "revision": rev, "order_sha256": sha, "issued_at": at,
+                        "issued_by": by, "state": state, "units": serials, "part": part, "customer": customer,
+                        "units_passed": passed, "units_failed": failed, "units_incomplete": incomplete,
+                        "units_not_signed": [s for s in serials if s not in got],
+                        "design_status": {"state": dstate}, "issue_id": iid})
+        return out
+
+    @_reads
+    def job_state(self, number: str) -> dict:
+        """State of a job at its latest issued revision: issued, passed, failed or incomplete."""
+        found = self._states(number)
+        if not found:
+            raise InputError("job", f"job {number} is not in register {self.label}")
+        st = found[0]
+        st["design_status"] = recorded_state(self.issued_record(st["issue_id"]))
+        return st
+
+    @_reads
+    def list_jobs(self) -> list[dict]:
+        """Every job with its state, newest issue first."""
+        return self._states()
+
+    @_reads
+    def list_jobs_page(self, page: int = 1, per_page: int = 100, *, state: Optional[str] = None,
+                       customer: Optional[str] = None, since: Optional[str] = None) -> tuple[list[dict], int]:
+        """One page of the jobs matching the filters (newest issue first), and how many match.
+
+        ``customer`` is a case-insensitive part of the name, ``since`` a date
+        (``YYYY-MM-DD``), ``state`` issued, passed, failed or incomplete; the
+        filters are read as :func:`windsheet.records.register_listing.select` reads them.
+        Without a state the page is cut in SQL: a page costs the same whatever the
+        register's size; a state is known only from the sign-offs, so with one the
+        customer's and date's jobs are read and the state's picked from them.
+        """
+        from .register_listing import select
+
+        select([], state, customer, since)  # the filters' own refusals, as the listing's
+        since = (since or "").strip() or None
+        page, per_page = max(1, int(page)), max(1, int(per_page))
+        if customer and not customer.isascii():
+            # SQLite's lower() folds ASCII only: a name like 'Sørensen' is matched as the listing matches it.
+            chosen = select(self._states(since=since), state, customer)
+            return chosen[(page - 1) * per_page: page * per_page], len(chosen)
+        if state is None:
+            source, args = self._page_source(customer, since)
+            total = self.conn.execute(f"SELECT count(*) {source}", args).fetchone()[0]
+            return self._states(customer=customer, since=since, limit=per_page,
+                                offset=(page - 1) * per_page), total
+        chosen = select(self._states(customer=customer, since=since), state)
+        return chosen[(page - 1) * per_page: page * per_page], len(chosen)
