@@ -178,20 +178,20 @@ def candidates(doc: dict, design) -> list[dict]:
     return [change for _, change in options(doc, design)]
 
 
-def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[tuple[str, ...], dict]]:
+def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[int, ...]]:
     """Every combination of up to ``most`` single changes of different kinds, cheapest first.
 
-    Order: fewest changes, then the cost of the costliest kind, then of the
-    next (so a lead route with a tape comes before a lead route with a
-    heavier grade), then the order of ``singles``.  Two lead routes count as
-    one kind of change and are never combined with each other; nor are two
-    tapes, two pitches, two impregnations or two grades.
+    Each combination is a tuple of indices into ``singles``.  Order: fewest
+    changes, then the cost of the costliest kind, then of the next (so a
+    lead route with a tape comes before a lead route with a heavier grade),
+    then the order of ``singles``.  Two changes of one kind (two tapes, two
+    pitches, two lead routes) are never combined.
 
     Examples
     --------
     >>> s = [("lead route", {"a": 1}), ("tape", {"b": 1}), ("grade", {"c": 1})]
-    >>> [c for _, c in combinations(s, 2)]
-    [{'a': 1}, {'b': 1}, {'c': 1}, {'a': 1, 'b': 1}, {'a': 1, 'c': 1}, {'b': 1, 'c': 1}]
+    >>> combinations(s, 2)
+    [(0,), (1,), (2,), (0, 1), (0, 2), (1, 2)]
     """
     from itertools import combinations as pick
 
@@ -199,19 +199,45 @@ def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[t
     for n in range(1, most + 1):
         for idx in pick(range(len(singles)), n):
             kinds = [singles[i][0] for i in idx]
-            if len(set(kinds)) < n:
-                continue
-            change = {}
-            for i in idx:
-                change.update(singles[i][1])
-            cost = sorted((KINDS.index(k) for k in kinds), reverse=True)
-            out.append(((n, cost, idx), (tuple(kinds), change)))
+            if len(set(kinds)) == n:
+                out.append(((n, sorted((KINDS.index(k) for k in kinds), reverse=True), idx), idx))
     out.sort(key=lambda t: t[0])
-    return [c for _, c in out]
+    return [idx for _, idx in out]
+
+
+def over_limits(ins) -> tuple[float, float, float]:
+    """Each judged quantity over the limit it must stay within for a pass: enamel, tape, discharge.
+
+    Values above 1 keep the order from passing.  The discharge limit is the
+    hot inception voltage, less the safety factor on AC duty
+    (:func:`windsheet.physics.insulation.insulation_verdict`).
+    """
+    enamel = (ins.enamel_Vpk or 0.0) / ins.allowed_Vpk if ins.allowed_Vpk else 0.0
+    tape = ins.layer_Vpk / ins.tape_rating_V if ins.tape_rating_V else 0.0
+    pd = 0.0
+    if ins.pdiv_hot_Vpk and ins.pd_pair is not None:
+        factor = (ins.pd_safety_factor or 1.0) if ins.duty != "dc" else 1.0
+        pd = ins.pd_pair.voltage_Vpk * factor / ins.pdiv_hot_Vpk
+    return enamel, tape, pd
+
+
+def _helps(before, after) -> bool:
+    """A single change lowers at least one quantity that was over its limit (by 0.5 % or more)."""
+    return any(b > 1.0 and a < b * 0.995 for b, a in zip(before, after))
 
 
 def find_remedies(order, design, check, budget: int = BUDGET) -> list[dict]:
     """The changes, single or combined, that improve the order's insulation verdict.
+
+    Every single change of :func:`options` is tried first.  Combinations
+    (:func:`combinations`, pairs before triples) are then made only of
+    single changes that helped: that improved the verdict, or lowered a
+    judged quantity that was over its limit (:func:`over_limits`); lead
+    routes always count as helping, since a second lead can hide what the
+    first one's change did.  A combination is skipped when one that passes
+    has the same kinds and no costlier option of any of them, or is
+    contained in it; once a pass is found, no combination of more changes
+    is tried.  At most ``budget`` re-sizings are made.
 
     Parameters
     ----------
@@ -242,15 +268,29 @@ def find_remedies(order, design, check, budget: int = BUDGET) -> list[dict]:
     if now == VERDICT_RANK["pass"]:
         return []
     doc = read_yaml_bytes(order.source, "order", label=order.path or "order")
-    found = []
-    passing = []      # changes that pass: any combination containing one is not tried
+    singles = options(doc, design)
+    before = over_limits(design.insulation)
+    found, passing, helped = [], [], set()
     tried = 0
 
-    for k, (kinds, change) in enumerate(combinations(options(doc, design))):
+    def dominated(idx):
+        for p in passing:
+            if set(p) <= set(idx):
+                return True     # contains a pass: only changes the job more
+            if len(p) == len(idx) and all(singles[i][0] == singles[j][0] and i <= j for i, j in zip(p, idx)):
+                return True     # the same kinds, each option at least as costly
+        return False
+
+    for rank, idx in enumerate(combinations(singles)):
         if tried >= budget or sum(r["verdict"] == "pass" for _, r in found) >= SHOWN:
             break
-        if any(p.items() <= change.items() for p in passing):
+        if passing and len(idx) > max(len(p) for p in passing):
+            break       # a pass with fewer changes is found: more changes are not what a winder wants
+        if len(idx) > 1 and not set(idx) <= helped or dominated(idx):
             continue
+        change = {}
+        for i in idx:
+            change.update(singles[i][1])
         tried += 1
         text = yaml.safe_dump(apply(doc, change), allow_unicode=True, sort_keys=False).encode()
         try:
@@ -258,10 +298,14 @@ def find_remedies(order, design, check, budget: int = BUDGET) -> list[dict]:
         except InputError:
             continue   # does not fit, or not an inductor at the duty: not a remedy
         got = result.insulation
+        better = VERDICT_RANK[got.verdict] > now
+        if len(idx) == 1 and (better or singles[idx[0]][0] == "lead route"
+                              or _helps(before, over_limits(got))):
+            helped.add(idx[0])
         if got.verdict == "pass":
-            passing.append(change)
-        if VERDICT_RANK[got.verdict] > now:
-            found.append(((-VERDICT_RANK[got.verdict], k), {
+            passing.append(idx)
+        if better:
+            found.append(((-VERDICT_RANK[got.verdict], rank), {
                 "set": change, "verdict": got.verdict,
                 "worst_Vpk": float(result.worst_adjacent.voltage_Vpk), "pdiv_Vpk": got.pdiv_Vpk}))
     # Tried in cost order, so within one verdict the earlier is the smaller change.
