@@ -185,7 +185,9 @@ def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[i
     changes, then the cost of the costliest kind, then of the next (so a
     lead route with a tape comes before a lead route with a heavier grade),
     then the order of ``singles``.  Two changes of one kind (two tapes, two
-    pitches, two lead routes) are never combined.
+    pitches, two grades) are never combined, except the routes of two
+    different leads (the start through the former and the finish out at
+    the end flange), which count as two changes.
 
     Examples
     --------
@@ -195,11 +197,15 @@ def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[i
     """
     from itertools import combinations as pick
 
+    def key(i):
+        k, change = singles[i]
+        return (k, tuple(change)) if k == "lead route" else (k,)
+
     out = []
     for n in range(1, most + 1):
         for idx in pick(range(len(singles)), n):
             kinds = [singles[i][0] for i in idx]
-            if len(set(kinds)) == n:
+            if len({key(i) for i in idx}) == n:
                 out.append(((n, sorted((KINDS.index(k) for k in kinds), reverse=True), idx), idx))
     out.sort(key=lambda t: t[0])
     return [idx for _, idx in out]
