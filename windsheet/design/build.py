@@ -308,10 +308,10 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                        film_min=None if wire.min_increase is None else wire.min_increase / 2.0,
                        # Beyond the wire's thermal class the thermal verdict fails the job anyway;
                        # the air there is taken at the class temperature (a runaway has no hot spot).
-                       # No current heats it: the air is at the temperature the winding is stated at.
-                       hot_spot_C=t_op if temps is None else
-                       min(max(temps["hot_spot_C"], duty.operating_temperature or -273.15),
-                           float(wire.thermal_class)))
+                       # No current heats it (no heat balance): the air is at the winding's stated temperature.
+                       hot_spot_C=min(t_op if temps is None else
+                                      max(temps["hot_spot_C"], duty.operating_temperature or -273.15),
+                                      float(wire.thermal_class)))
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
                        edge=_edge(order, duty_net, turns), cap_network=cap_net, cap_drops=cap_drops,
                        **stress_args)
