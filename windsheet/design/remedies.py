@@ -100,7 +100,22 @@ def _kv(v: float) -> str:
 
 
 def options(doc: dict, design) -> list[tuple[str, dict]]:
-    """Single changes worth trying for this order, ``(kind, {path: value})``, cheapest kind first.
+    """Single changes worth trying for this order, cheapest kind first.
+
+    Parameters
+    ----------
+    doc : dict
+        The order's YAML mapping, as written.
+    design : windsheet.design.model.DesignCore
+        The order's own design (its leads, layers, tape, pitch and grade).
+
+    Returns
+    -------
+    options : list of (str, dict)
+        ``(kind, {path: value})``, kind one of :data:`KINDS`; within a kind
+        the smaller change first (3 kV before 5 kV, 1.5 before 2 diameters
+        of pitch, varnish before potting).  A tape written as several fields
+        (thickness, rating, material) is one change: one reel for another.
 
     Examples
     --------
@@ -171,11 +186,6 @@ def options(doc: dict, design) -> list[tuple[str, dict]]:
         if c not in unique:
             unique.append(c)
     return unique
-
-
-def candidates(doc: dict, design) -> list[dict]:
-    """The single changes of :func:`options`, each ``{path: value}``, cheapest kind first."""
-    return [change for _, change in options(doc, design)]
 
 
 def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[int, ...]]:
