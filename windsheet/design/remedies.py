@@ -13,9 +13,10 @@ What a winder would try, one kind at a time, cheapest kind first:
 1. **lead route** — take the start lead out through the former, the finish
    or the joint out at the end flange: a few centimetres of sleeving, the
    winding itself is unchanged;
-2. **tape** — layer tape where there is none; a tape of a higher rating, or a
-   thicker tape of a higher rating, where the tape is over-stressed or its
-   layer pair is near discharge: a different reel, the same winding;
+2. **tape** — layer tape where there is none; where there is, a tape of a
+   higher rating (for a tape over its rating) or a thicker tape of a higher
+   rating (for a layer pair near discharge): a different reel, the same
+   winding;
 3. **spacing** — the strands at a wider pitch, spread evenly: the same wire
    and turns, a slower and more careful traverse;
 4. **layers** — more layers of fewer turns: a new build, new resistance and
@@ -25,11 +26,15 @@ What a winder would try, one kind at a time, cheapest kind first:
 6. **grade** — a heavier enamel grade: different wire stock to buy, and a
    larger overall diameter that changes the fit.
 
-:func:`find_remedies` tries every single change, then pairs of changes of two
-different kinds, then triples, cheapest first, within a budget of
-:data:`BUDGET` re-sizings per order; a combination that contains a change
-which already passes on its own is not tried (it can only change the job
-more).  The remedies are ranked passes first, then by how little they change
+:func:`find_remedies` tries every single change first (a handful of
+re-sizings, and they show which changes help at all).  Then pairs, then
+triples, of changes of different kinds (the routes of two different leads
+count as two changes), made only of single changes that helped, cheapest
+first, within a budget of :data:`BUDGET` re-sizings per order.  A
+combination is not tried when it contains a change that already passes, or
+when a pass of the same kinds with no costlier option is known: it could only
+change the job more.  Once a pass is found, no combination of more changes is
+tried.  The remedies are ranked passes first, then by how little they change
 the job: fewest changes, then the cheapest kinds (compared costliest kind
 first, by the list above); at most :data:`SHOWN` are kept.  A sectioned or
 progressive winding would also lower the layer voltages, but windsheet does
