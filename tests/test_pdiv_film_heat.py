@@ -90,3 +90,23 @@ def test_the_thinner_film_turns_a_pass_into_marginal(tmp_path):
     thick_hot = touching_pdiv(0.022e-3) * ins.pdiv_density_factor * 0.85
     assert thin_hot / 1.25 < pair < thin_hot and pair < thick_hot / 1.25
     assert ins.verdict == "marginal"
+
+
+def test_without_current_the_hot_inception_is_taken_at_the_stated_temperature_or_the_class():
+    # No current, so no heat balance: the air between the turns is at the running temperature the
+    # order states, capped at the wire's thermal class; without one, at the class temperature (the
+    # winding's heating is unknown, and the class is its safe side).
+    import yaml as _yaml
+    from windsheet.design.build import build_design as _build
+    from windsheet.order.document import parse_order as _parse
+
+    order = {"job": {"number": "HL-9613", "part": "No-current coil"},
+             "form": {"kind": "cylinder", "diameter": "20 mm", "traverse": "50 mm"},
+             "wire": {"size": "0.50 mm", "grade": 2},
+             "winding": {"turns": 240, "layers": 3}, "hookup": "single",
+             "duty": {"voltage": "400 V", "frequency": "50 Hz", "ambient": "40 degC"}}
+    spots = []
+    for extra in ({}, {"operating_temperature": "120 degC"}, {"operating_temperature": "250 degC"}):
+        doc = {**order, "duty": {**order["duty"], **extra}}
+        spots.append(_build(_parse(_yaml.safe_dump(doc).encode()), remedies=False).insulation.pdiv_hot_spot_C)
+    assert spots == [pytest.approx(155.0), pytest.approx(120.0), pytest.approx(155.0)]

@@ -319,11 +319,13 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                        film_min=None if wire.min_increase is None else wire.min_increase / 2.0,
                        # Beyond the wire's thermal class the thermal verdict fails the job anyway;
                        # the air there is taken at the class temperature (a runaway has no hot spot).
-                       # Without a steady heat balance (no current given, or a runaway) the air is
-                       # also taken at the class temperature: the safe side of an unknown.
-                       hot_spot_C=float(wire.thermal_class) if not steady else
-                       min(max(temps["hot_spot_C"], duty.operating_temperature or -273.15),
-                           float(wire.thermal_class)))
+                       # Without a steady heat balance (no current to heat it, or a runaway) the air
+                       # is at the running temperature the order states, else at the class temperature:
+                       # the safe side of an unknown.
+                       hot_spot_C=min(max(temps["hot_spot_C"], duty.operating_temperature or -273.15) if steady
+                                      else duty.operating_temperature if temps is None
+                                      and duty.operating_temperature is not None
+                                      else float(wire.thermal_class), float(wire.thermal_class)))
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
                        edge=_edge(order, duty_net, turns), cap_network=cap_net, cap_drops=cap_drops,
                        **stress_args)

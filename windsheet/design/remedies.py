@@ -8,10 +8,35 @@ check as the order itself; only those that give a better verdict are
 listed, with the verdict, worst voltage and inception voltage they gave.  A
 script can paste ``set`` into the order and get that verdict.
 
-Candidates tried: a heavier enamel grade; the strands spaced at a wider
-pitch (spread evenly); tape between layers; more layers of fewer turns;
-impregnation; other routes for the leads and joints; and, when no single
-change gives a pass, the heaviest grade together with each of the others.  A sectioned or
+What a winder would try, one kind at a time, cheapest kind first:
+
+1. **lead route** — take the start lead out through the former, the finish
+   or the joint out at the end flange: a few centimetres of sleeving, the
+   winding itself is unchanged;
+2. **tape** — layer tape where there is none; where there is, a tape of a
+   higher rating (for a tape over its rating) or a thicker tape of a higher
+   rating (for a layer pair near discharge): a different reel, the same
+   winding;
+3. **spacing** — the strands at a wider pitch, spread evenly: the same wire
+   and turns, a slower and more careful traverse;
+4. **layers** — more layers of fewer turns: a new build, new resistance and
+   inductance;
+5. **impregnation** — varnish, or potting: an added process (oven, vacuum,
+   cure time) on every part;
+6. **grade** — a heavier enamel grade: different wire stock to buy, and a
+   larger overall diameter that changes the fit.
+
+:func:`find_remedies` tries every single change first (a handful of
+re-sizings, and they show which changes help at all).  Then pairs, then
+triples, of changes of different kinds (the routes of two different leads
+count as two changes), made only of single changes that helped, cheapest
+first, within a budget of :data:`BUDGET` re-sizings per order.  A
+combination is not tried when it contains a change that already passes, or
+when a pass of the same kinds with no costlier option is known: it could only
+change the job more.  Once a pass is found, no combination of more changes is
+tried.  The remedies are ranked passes first, then by how little they change
+the job: fewest changes, then the cheapest kinds (compared costliest kind
+first, by the list above); at most :data:`SHOWN` are kept.  A sectioned or
 progressive winding would also lower the layer voltages, but windsheet does
 not lay those out, so it is not offered.
 """
@@ -58,21 +83,87 @@ def apply(doc: dict, changes: dict) -> dict:
     return doc
 
 
+#: The kinds of change, cheapest first (see the module docstring for why).
+KINDS = ("lead route", "tape", "spacing", "layers", "impregnation", "grade")
+#: Most re-sizings tried for one order (singles first, then pairs, then triples).
+BUDGET = 40
+#: Most remedies listed.
+SHOWN = 5
+
+# Tapes tried when the order's own tape is over-stressed or near discharge:
+# a higher rating on the same thickness, or a thicker tape of a higher rating.
+TAPE_RATINGS_V = (3e3, 5e3, 10e3)
+THICKER_TAPES = ((0.1e-3, 5e3), (0.25e-3, 10e3))
+
+
 def _mm(x: float) -> str:
     return f"{x * 1e3:.3g} mm"
 
 
-def candidates(doc: dict, design) -> list[dict]:
-    """Changes worth trying for this order, each ``{path: value}``, in the order offered."""
+def _kv(v: float) -> str:
+    return f"{v / 1e3:g} kV"
+
+
+def options(doc: dict, design) -> list[tuple[str, dict]]:
+    """Single changes worth trying for this order, cheapest kind first.
+
+    Parameters
+    ----------
+    doc : dict
+        The order's YAML mapping, as written.
+    design : windsheet.design.model.DesignCore
+        The order's own design (its leads, layers, tape, pitch and grade).
+
+    Returns
+    -------
+    options : list of (str, dict)
+        ``(kind, {path: value})``, kind one of :data:`KINDS`; within a kind
+        the smaller change first (3 kV before 5 kV, 1.5 before 2 diameters
+        of pitch, varnish before potting).  A tape written as several fields
+        (thickness, rating, material) is one change: one reel for another.
+
+    Examples
+    --------
+    >>> KINDS.index("lead route") < KINDS.index("tape") < KINDS.index("grade")
+    True
+    """
     out = []
     wire = doc.get("wire") or {}
     winding = doc.get("winding") or {}
     strands = design.winding.strands
     layers = design.layers
     ov = design.wire.overall_diameter_m
-    if not wire.get("catalog"):
-        grade = int(design.wire.grade or wire.get("grade") or 2)
-        out += [{"wire.grade": g} for g in (2, 3) if g > grade]
+
+    routes = (winding.get("leads") or {})
+    for lead in design.leads:
+        if lead.joint and " + " in lead.joint and lead.route != "end-flange" \
+                and lead.lead.endswith(".finish") and routes.get("joint") != "end-flange":
+            out.append(("lead route", {"winding.leads.joint": "end-flange"}))
+        elif lead.lead.endswith(".finish") and not lead.joint and lead.route != "end-flange":
+            out.append(("lead route", {"winding.leads.finish": "end-flange"}))
+        elif lead.lead.endswith(".start") and lead.route != "through-form":
+            out.append(("lead route", {"winding.leads.start": "through-form"}))
+
+    if layers > 1:
+        tape = float(design.winding.layer_tape_m or 0.0)
+        rating = design.insulation.tape_rating_V
+        if not tape > 0:
+            out += [("tape", {"winding.layer_tape": "0.1 mm"}), ("tape", {"winding.layer_tape": "0.25 mm"})]
+        else:
+            if rating is not None:
+                # The same tape at a higher rating: the next two ratings up.
+                out += [("tape", {"winding.layer_tape.rating": _kv(r)})
+                        for r in [r for r in TAPE_RATINGS_V if r > rating * (1 + 1e-9)][:2]]
+            # One change of reel, written field by field; a named material is renamed, so the
+            # traveller does not call for the old reel.
+            named = isinstance(winding.get("layer_tape"), dict) and winding["layer_tape"].get("material")
+            for t, r in THICKER_TAPES:
+                if t > tape * (1 + 1e-6) and (rating is None or r >= rating):
+                    change = {"winding.layer_tape.thickness": _mm(t), "winding.layer_tape.rating": _kv(r)}
+                    if named:
+                        change["winding.layer_tape.material"] = f"tape {_mm(t)}, rated {_kv(r)}"
+                    out.append(("tape", change))
+
     pitch = float(design.winding.pitch_m or 0.0)
     for factor in (1.5, 2.0, 3.0):
         new = strands * ov * factor
@@ -80,26 +171,21 @@ def candidates(doc: dict, design) -> list[dict]:
             change = {"winding.pitch": _mm(new)}
             if strands > 1:
                 change["winding.strand_spacing"] = "even"
-            out.append(change)
-    if layers > 1:
-        if not design.winding.layer_tape_m > 0:
-            out += [{"winding.layer_tape": "0.1 mm"}, {"winding.layer_tape": "0.25 mm"}]
-        if 2 * layers <= 200:
-            out.append({"winding.layers": 2 * layers})
+            out.append(("spacing", change))
+
+    if layers > 1 and 2 * layers <= 200:
+        out.append(("layers", {"winding.layers": 2 * layers}))
+
     imp = winding.get("impregnation") or "none"
     if imp == "none":
-        out.append({"winding.impregnation": "varnish"})
+        out.append(("impregnation", {"winding.impregnation": "varnish"}))
     if imp != "potted":
-        out.append({"winding.impregnation": "potted"})
-    routes = (winding.get("leads") or {})
-    for lead in design.leads:
-        if lead.joint and " + " in lead.joint and lead.route != "end-flange" \
-                and lead.lead.endswith(".finish") and routes.get("joint") != "end-flange":
-            out.append({"winding.leads.joint": "end-flange"})
-        elif lead.lead.endswith(".finish") and not lead.joint and lead.route != "end-flange":
-            out.append({"winding.leads.finish": "end-flange"})
-        elif lead.lead.endswith(".start") and lead.route != "through-form":
-            out.append({"winding.leads.start": "through-form"})
+        out.append(("impregnation", {"winding.impregnation": "potted"}))
+
+    if not wire.get("catalog"):
+        grade = int(design.wire.grade or wire.get("grade") or 2)
+        out += [("grade", {"wire.grade": g}) for g in (2, 3) if g > grade]
+
     unique = []
     for c in out:
         if c not in unique:
@@ -107,8 +193,72 @@ def candidates(doc: dict, design) -> list[dict]:
     return unique
 
 
-def find_remedies(order, design, check) -> list[dict]:
-    """The candidate changes that improve the order's insulation verdict.
+def combinations(singles: list[tuple[str, dict]], most: int = 3) -> list[tuple[int, ...]]:
+    """Every combination of up to ``most`` single changes of different kinds, cheapest first.
+
+    Each combination is a tuple of indices into ``singles``.  Order: fewest
+    changes, then the cost of the costliest kind, then of the next (so a
+    lead route with a tape comes before a lead route with a heavier grade),
+    then the order of ``singles``.  Two changes of one kind (two tapes, two
+    pitches, two grades) are never combined, except the routes of two
+    different leads (the start through the former and the finish out at
+    the end flange), which count as two changes.
+
+    Examples
+    --------
+    >>> s = [("lead route", {"a": 1}), ("tape", {"b": 1}), ("grade", {"c": 1})]
+    >>> combinations(s, 2)
+    [(0,), (1,), (2,), (0, 1), (0, 2), (1, 2)]
+    """
+    from itertools import combinations as pick
+
+    def key(i):
+        k, change = singles[i]
+        return (k, tuple(change)) if k == "lead route" else (k,)
+
+    out = []
+    for n in range(1, most + 1):
+        for idx in pick(range(len(singles)), n):
+            kinds = [singles[i][0] for i in idx]
+            if len({key(i) for i in idx}) == n:
+                out.append(((n, sorted((KINDS.index(k) for k in kinds), reverse=True), idx), idx))
+    out.sort(key=lambda t: t[0])
+    return [idx for _, idx in out]
+
+
+def over_limits(ins) -> tuple[float, float, float]:
+    """Each judged quantity over the limit it must stay within for a pass: enamel, tape, discharge.
+
+    Values above 1 keep the order from passing.  The discharge limit is the
+    hot inception voltage, less the safety factor on AC duty
+    (:func:`windsheet.physics.insulation.insulation_verdict`).
+    """
+    enamel = (ins.enamel_Vpk or 0.0) / ins.allowed_Vpk if ins.allowed_Vpk else 0.0
+    tape = ins.layer_Vpk / ins.tape_rating_V if ins.tape_rating_V else 0.0
+    pd = 0.0
+    if ins.pdiv_hot_Vpk and ins.pd_pair is not None:
+        factor = (ins.pd_safety_factor or 1.0) if ins.duty != "dc" else 1.0
+        pd = ins.pd_pair.voltage_Vpk * factor / ins.pdiv_hot_Vpk
+    return enamel, tape, pd
+
+
+def _helps(before, after) -> bool:
+    """A single change lowers at least one quantity that was over its limit (by 0.5 % or more)."""
+    return any(b > 1.0 and a < b * 0.995 for b, a in zip(before, after))
+
+
+def find_remedies(order, design, check, budget: int = BUDGET) -> list[dict]:
+    """The changes, single or combined, that improve the order's insulation verdict.
+
+    Every single change of :func:`options` is tried first.  Combinations
+    (:func:`combinations`, pairs before triples) are then made only of
+    single changes that helped: that improved the verdict, or lowered a
+    judged quantity that was over its limit (:func:`over_limits`); lead
+    routes always count as helping, since a second lead can hide what the
+    first one's change did.  A combination is skipped when one that passes
+    has the same kinds and no costlier option of any of them, or is
+    contained in it; once a pass is found, no combination of more changes
+    is tried.  At most ``budget`` re-sizings are made.
 
     Parameters
     ----------
@@ -119,12 +269,15 @@ def find_remedies(order, design, check) -> list[dict]:
     check : callable
         ``check(order) -> Design`` sizing a changed order exactly as the
         order itself was sized (without remedies of its own).
+    budget : int
+        Most calls of ``check`` for this order.
 
     Returns
     -------
     remedies : list of dict
-        ``{"set": {path: value}, "verdict", "worst_Vpk", "pdiv_Vpk"}``,
-        better verdicts first, then in the order tried.
+        ``{"set": {path: value}, "verdict", "worst_Vpk", "pdiv_Vpk"}``, at
+        most :data:`SHOWN`: passes first, then fewest changes, then the
+        cheapest kinds (:data:`KINDS`).
 
     References
     ----------
@@ -136,32 +289,48 @@ def find_remedies(order, design, check) -> list[dict]:
     if now == VERDICT_RANK["pass"]:
         return []
     doc = read_yaml_bytes(order.source, "order", label=order.path or "order")
-    found = []
+    singles = options(doc, design)
+    before = over_limits(design.insulation)
+    found, passing, helped = [], [], set()
+    tried = 0
 
-    def attempt(k, change):
+    def dominated(idx):
+        for p in passing:
+            if set(p) <= set(idx):
+                return True     # contains a pass: only changes the job more
+            if len(p) == len(idx) and all(singles[i][0] == singles[j][0] and i <= j for i, j in zip(p, idx)):
+                return True     # the same kinds, each option at least as costly
+        return False
+
+    for rank, idx in enumerate(combinations(singles)):
+        if tried >= budget or sum(r["verdict"] == "pass" for _, r in found) >= SHOWN:
+            break
+        if passing and len(idx) > max(len(p) for p in passing):
+            break       # a pass with fewer changes is found: more changes are not what a winder wants
+        if len(idx) > 1 and not set(idx) <= helped or dominated(idx):
+            continue
+        change = {}
+        for i in idx:
+            change.update(singles[i][1])
+        tried += 1
         text = yaml.safe_dump(apply(doc, change), allow_unicode=True, sort_keys=False).encode()
         try:
             result = check(parse_order(text, order.path))
         except InputError:
-            return   # does not fit, or not an inductor at the duty: not a remedy
+            continue   # does not fit, or not an inductor at the duty: not a remedy
         got = result.insulation
-        if VERDICT_RANK[got.verdict] > now:
-            found.append((-VERDICT_RANK[got.verdict], k, {
+        better = VERDICT_RANK[got.verdict] > now
+        if len(idx) == 1 and (better or singles[idx[0]][0] == "lead route"
+                              or _helps(before, over_limits(got))):
+            helped.add(idx[0])
+        if got.verdict == "pass":
+            passing.append(idx)
+        if better:
+            found.append(((-VERDICT_RANK[got.verdict], rank), {
                 "set": change, "verdict": got.verdict,
                 "worst_Vpk": float(result.worst_adjacent.voltage_Vpk), "pdiv_Vpk": got.pdiv_Vpk}))
-
-    singles = candidates(doc, design)
-    for k, change in enumerate(singles):
-        attempt(k, change)
-    if not any(r["verdict"] == "pass" for _, _, r in found):
-        # No single change clears it: a heavier grade (breakdown) with a change
-        # that keeps air out of the way (partial discharge).
-        grades = [c for c in singles if "wire.grade" in c]
-        others = [c for c in singles if "wire.grade" not in c and "winding.layers" not in c]
-        for g in grades[-1:]:
-            for k, other in enumerate(others):
-                attempt(len(singles) + k, {**g, **other})
-    return [r for _, _, r in sorted(found, key=lambda t: (t[0], t[1]))]
+    # Tried in cost order, so within one verdict the earlier is the smaller change.
+    return [r for _, r in sorted(found, key=lambda t: t[0])][:SHOWN]
 
 
 def advice(remedies: list[dict], verdict: str) -> list[str]:
@@ -177,9 +346,9 @@ def advice(remedies: list[dict], verdict: str) -> list[str]:
     if verdict == "pass":
         return []
     if not remedies:
-        return ["None of the changes windsheet tries (heavier grade, spaced strands, layer tape, more "
-                "layers, impregnation, lead routes) improves this verdict: change the hookup or the "
-                "construction (a sectioned or progressive winding, for example)."]
+        return ["None of the changes windsheet tries, alone or up to three together (lead routes, layer "
+                "tape, spaced strands, more layers, impregnation, heavier grade), improves this verdict: "
+                "change the hookup or the construction (a sectioned or progressive winding, for example)."]
     out = []
     for r in remedies:
         sets = ", ".join(f"{k}: {v}" for k, v in r["set"].items())
