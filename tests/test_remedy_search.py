@@ -15,7 +15,9 @@ from windsheet.order.document import parse_order
 
 # A three-layer relay coil on steady DC, finish lead already taken out at the end flange.  Its
 # worst stress is the start lead up the start flange against the top layer; across each 0.08 mm
-# layer tape (rated 1 kV) the layer pair stands about 1.07 kV peak.  Invented demo order.
+# layer tape (rated 1 kV) the layer pair stands about 1.07 kV peak.  It runs at its 40 °C ambient
+# (stated: an order without a current or a running temperature is judged with the air at the
+# wire's class temperature, the safe side of an unknown heating).  Invented demo order.
 TAPED_1600 = yaml.safe_load("""
 job: {number: HL-9611, part: "Relay coil, taped layers"}
 form: {kind: cylinder, diameter: 20 mm, traverse: 50 mm}
@@ -27,7 +29,7 @@ winding:
   layer_tape: {thickness: 0.08 mm, rating: 1 kV, material: "polyester tape 80 µm"}
   leads: {finish: end-flange}
 hookup: single
-duty: {voltage: 1.6 kV, frequency: 0 Hz}
+duty: {voltage: 1.6 kV, frequency: 0 Hz, ambient: 40 degC, operating_temperature: 40 degC}
 """)
 
 # The same coil at 1.75 kV DC: the layer pair across the 0.08 mm tape is then over its own

@@ -1,4 +1,4 @@
-"""The job register: an SQLite file recording issued travellers and sign-offs.
+"""The job register: an SQLite file that keeps the issued travellers and sign-offs.
 
 Safety rules, in order of importance:
 
