@@ -181,7 +181,7 @@ def _boxes(page):
 
 
 def layout_faults(doc) -> list[str]:
-    """Tables wider than the text block; captions on another page than their figure."""
+    """Tables wider than the text block; text out of its table cell; captions on another page than their figure."""
     faults = []
     figure_pages, caption_pages, seen = {}, {}, set()
     for k, page in enumerate(doc.pages, start=1):
@@ -196,6 +196,14 @@ def layout_faults(doc) -> list[str]:
                     seen.add((k, b.element))
                     faults.append(f"page {k}: a table ({_first_text(b.element)!r}) runs "
                                   f"{max(x1 - right, left - x0):.0f} px outside the text block")
+            if tag in ("td", "th") and hasattr(b, "descendants"):
+                # Text that runs out of its table cell (a header kept on one line, say) overdraws the next.
+                x1 = b.content_box_x() + b.width
+                for t in b.descendants():
+                    if type(t).__name__ == "TextBox" and t.position_x + t.width > x1 + 1.0:
+                        faults.append(f"page {k}: {t.text!r} runs {t.position_x + t.width - x1:.0f} px out of "
+                                      "its table cell")
+                        break
             if tag in ("img", "svg"):
                 fig = _ancestor(b.element, doc, "figure")
                 if fig is not None:
