@@ -222,6 +222,23 @@ def _ring(layout, sectors=None, most=90):
             "gap_deg": float(360.0 - (deg.max() - deg.min()) - wire_deg), "layers": layers}
 
 
+def _air_temperature(temps, steady: bool, operating_C, class_C: float) -> float:
+    """The temperature of the air between the turns, for the hot inception voltage. [°C]
+
+    The heat balance's hot spot (or the order's running temperature, if higher); without a
+    steady balance (no current to heat it, or a runaway) the running temperature the order
+    states, else the class temperature, the safe side of an unknown.  Never above the class:
+    beyond it the thermal verdict fails the job anyway.
+    """
+    if steady:
+        air = max(temps["hot_spot_C"], operating_C or -273.15)
+    elif temps is None and operating_C is not None:
+        air = operating_C
+    else:
+        air = class_C
+    return min(air, class_C)
+
+
 def build_design(order: Order, today: _dt.date | None = None, remedies: bool = True) -> Design:
     """Size an order: the complete, typed design, SI units.
 
@@ -317,15 +334,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                        pdiv_Vpk=doc.insulation.pdiv, pdiv_hot_margin=doc.insulation.hot_pdiv_derating,
                        leads=leads, impregnation=doc.winding.impregnation, lead_length=doc.winding.lead_length,
                        film_min=None if wire.min_increase is None else wire.min_increase / 2.0,
-                       # Beyond the wire's thermal class the thermal verdict fails the job anyway;
-                       # the air there is taken at the class temperature (a runaway has no hot spot).
-                       # Without a steady heat balance (no current to heat it, or a runaway) the air
-                       # is at the running temperature the order states, else at the class temperature:
-                       # the safe side of an unknown.
-                       hot_spot_C=min(max(temps["hot_spot_C"], duty.operating_temperature or -273.15) if steady
-                                      else duty.operating_temperature if temps is None
-                                      and duty.operating_temperature is not None
-                                      else float(wire.thermal_class), float(wire.thermal_class)))
+                       hot_spot_C=_air_temperature(temps, steady, duty.operating_temperature,
+                                                   float(wire.thermal_class)))
     st = stress.assess(layout, duty_net, duty.voltage, duty.frequency, wire.breakdown, drops=drops,
                        edge=_edge(order, duty_net, turns), cap_network=cap_net, cap_drops=cap_drops,
                        **stress_args)

@@ -51,4 +51,4 @@ def sleeve_words(p, ends, when: str) -> str:
 
 def _beside_leads(p, end: str) -> bool:
     """Whether this end's lead also lies beside other leads (lead against lead, from the design)."""
-    return any(lead.lead == end and getattr(lead, "beside_leads", None) for lead in p.leads)
+    return any(lead.lead == end and lead.beside_leads for lead in p.leads)
