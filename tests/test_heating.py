@@ -93,6 +93,34 @@ def test_prediction_uses_the_computed_temperature():
         s.current_A / (math.pi * (p.wire.copper_diameter_m * 1e3) ** 2 / 4))
 
 
+def test_the_surface_rise_is_the_hotter_of_the_balance_and_mclyman():
+    doc = _multilayer()
+    doc["duty"].pop("operating_temperature", None)
+    order = parse_order(yaml.safe_dump(doc).encode(), "o.yaml")
+    th = build_design(order, remedies=False).thermal
+    empirical = mclyman_rise(th.loss_W, th.surface_area_m2)
+    # McLyman's rule (above) is a floor: the design never reads cooler than it.
+    assert th.surface_rise_K >= empirical * (1 - 1e-9)
+    # A 26 mm coil: small enough that McLyman's rule is the hotter, so it governs.
+    assert th.characteristic_length_m == pytest.approx(0.02606, rel=1e-3)
+    assert th.surface_rise_basis == "empirical"
+    assert th.surface_rise_K == pytest.approx(empirical, rel=1e-9)
+    assert th.hot_spot_C > th.surface_C == pytest.approx(order.doc.duty.ambient + empirical, rel=1e-9)
+
+
+@pytest.mark.parametrize("d", [0.02, 0.1])
+@pytest.mark.parametrize("psi_W_per_cm2", [0.005, 0.1])
+def test_safe_rise_never_reads_below_mclyman(d, psi_W_per_cm2):
+    area = 0.01
+    power = psi_W_per_cm2 * area * 1e4
+    rise, basis = heating.safe_surface_rise(power, area, d, 25.0)
+    # McLyman, ch. 6 (memory): the small coil takes the empirical rise, 17 % above the balance.
+    assert rise >= mclyman_rise(power, area) * (1 - 1e-12)
+    assert basis == ("empirical" if rise == pytest.approx(mclyman_rise(power, area), rel=1e-12) else "balance")
+    if d == 0.02:
+        assert basis == "empirical"
+
+
 def test_order_temperature_below_the_computed_one_is_warned():
     p = build_design(parse_order(yaml.safe_dump(_multilayer(operating_temperature="40 degC")).encode(), "o.yaml"),
                 remedies=False)

@@ -151,7 +151,7 @@ def thermal_section(temps, wire, strand_i, order_t, missing=None):
            "current_density_A_per_mm2": max(j) if j else None}
     if not temps["converged"]:
         # No steady state: the temperatures at the cut-off are not the winding's.
-        out.update(surface_rise_K=None, surface_C=None, hot_spot_C=None, mean_C=None, loss_W=None)
+        out.update(surface_rise_K=None, surface_rise_basis=None, surface_C=None, hot_spot_C=None, mean_C=None, loss_W=None)
     return out
 
 

@@ -390,6 +390,9 @@ class Thermal(Part):
 
     loss_W: Optional[float] = None
     surface_rise_K: Optional[float] = None
+    surface_rise_basis: Optional[str] = Field(
+        None, description="which rise governed: 'balance' (convection and radiation) or 'empirical' "
+                          "(McLyman's rule, hotter on small coils)")
     surface_C: Optional[float] = None
     hot_spot_C: Optional[float] = None
     mean_C: Optional[float] = None
