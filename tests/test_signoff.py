@@ -11,8 +11,8 @@ from hypothesis import strategies as st
 
 from windsheet.common.errors import InputError
 from windsheet.physics.network import named_hookup
-from windsheet.qc.measured import (coupling_coefficient, measured_from_dict, mutual_from_series,
-                                resistance_at_20C, resonance_inductance)
+from windsheet.qc.measured import measured_from_dict, resistance_at_20C
+from windsheet.qc.reading_formulas import coupling_coefficient, mutual_from_series, resonance_inductance
 from windsheet.design.legacy import design_from_v1
 from windsheet.qc.signoff import GAUGE_STEP_R, exit_status
 from windsheet.qc.signoff import evaluate_signoff as _evaluate_signoff

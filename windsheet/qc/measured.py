@@ -43,157 +43,22 @@ decay: 0.82}``, decay the ratio of successive peaks of one polarity.
 
 from __future__ import annotations
 
-import datetime as _dt
-import math
 import re
 from typing import Annotated, Any, Literal, Optional, Union
 
-from pydantic import (BaseModel, BeforeValidator, ConfigDict, Field, ValidationError,
-                      field_validator, model_validator)
+from pydantic import BeforeValidator, ConfigDict, Field, ValidationError, field_validator, model_validator
 from pydantic_core import PydanticCustomError
 
 from windsheet.common.errors import InputError, join_path
 from windsheet.order.units import parse_quantity
-from windsheet.physics.wire import copper
 from windsheet.physics.wire import resistance_to_20C as resistance_at_20C  # noqa: F401 - re-exported for sign-off
 
-#: Temperature coefficient of resistance of annealed copper at 20 degC [1/K], IEC 60028.
-ALPHA_COPPER_20C = copper()["temperature_coefficient_20C"]
+from .reading_formulas import resonance_inductance
+from .reading_types import (Capacitance, Current, Duration, Frequency, InstrumentIds, LotId, ReadingModel,
+                            ReadingsHeader, Serial, Temperature, Text, Voltage, _quantity)
 
 STRAND_ID = re.compile(r"^[A-Z]$")
 PAIR_ID = re.compile(r"^([A-Z])-([A-Z])$")
-
-
-# --- Formulas ----------------------------------------------------------------------
-
-def resonance_inductance(resonant_frequency, capacitance):
-    """Inductance that rings at ``resonant_frequency`` with ``capacitance``.
-
-    Parameters
-    ----------
-    resonant_frequency : float or ndarray
-        Frequency of the parallel (or series) resonance observed. [Hz]
-    capacitance : float or ndarray
-        Known capacitor across the coil. [F]
-
-    Returns
-    -------
-    L : float or ndarray
-        Inductance, ``1 / ((2 pi f)^2 C)``. [H]  The coil's own
-        self-capacitance adds to ``C``; with a capacitor much larger than it
-        the error is their ratio.
-
-    References
-    ----------
-    .. [1] Thomson's resonance condition, omega^2 L C = 1; e.g. F. E. Terman,
-       Radio Engineers' Handbook, McGraw-Hill, 1943, sec. 3.
-    """
-    omega = 2.0 * math.pi * resonant_frequency
-    return 1.0 / (omega * omega * capacitance)
-
-
-def mutual_from_series(series_aiding, series_opposing):
-    """Mutual inductance from series-aiding and series-opposing readings.
-
-    Parameters
-    ----------
-    series_aiding, series_opposing : float or ndarray
-        Inductance of two windings in series, fluxes adding / opposing. [H]
-
-    Returns
-    -------
-    M : float or ndarray
-        ``(La - Lo) / 4``. [H]  From La = L1 + L2 + 2M and Lo = L1 + L2 - 2M.
-
-    References
-    ----------
-    .. [1] F. W. Grover, Inductance Calculations, Van Nostrand, 1946, ch. 1
-       (the series-aiding / series-opposing method of measuring M).
-    """
-    return (series_aiding - series_opposing) / 4.0
-
-
-def coupling_coefficient(mutual, l1, l2):
-    """Coefficient of coupling ``k = M / sqrt(L1 L2)``.
-
-    Parameters
-    ----------
-    mutual : float or ndarray
-        Mutual inductance. [H]
-    l1, l2 : float or ndarray
-        Self-inductances of the two windings. [H]
-
-    Returns
-    -------
-    k : float or ndarray
-        Coupling coefficient [-], between -1 and 1 for physical windings.
-
-    References
-    ----------
-    .. [1] F. W. Grover, Inductance Calculations, Van Nostrand, 1946, ch. 1.
-    """
-    return mutual / math.sqrt(l1 * l2)
-
-
-# --- Field types: quantities parsed at the edge ------------------------------------
-
-def _quantity(dimension: str, *, allow_zero: bool = False, form=None):
-    def parse(value):
-        try:
-            return parse_quantity(value, dimension, "", allow_zero=allow_zero, form=form)
-        except InputError as exc:
-            raise PydanticCustomError("quantity", exc.message) from None
-    return BeforeValidator(parse)
-
-
-def _text(max_len: int):
-    def check(value):
-        if isinstance(value, (_dt.date, _dt.datetime)):
-            return value.isoformat()
-        if isinstance(value, bool) or not isinstance(value, (str, int)):
-            raise PydanticCustomError("text", "expected text")
-        value = str(value).strip()
-        if len(value) > max_len:
-            raise PydanticCustomError("text", f"longer than {max_len} characters")
-        if any((ord(c) < 32 and c not in "\t") or 127 <= ord(c) < 160 for c in value):
-            raise PydanticCustomError("text", "contains control characters; expected plain text on one line")
-        return value
-    return BeforeValidator(check)
-
-
-Inductance = Annotated[float, _quantity("inductance")]
-Capacitance = Annotated[float, _quantity("capacitance")]
-Frequency = Annotated[float, _quantity("frequency")]
-Voltage = Annotated[float, _quantity("voltage")]
-Current = Annotated[float, _quantity("current", allow_zero=True)]
-Duration = Annotated[float, _quantity("time")]
-Temperature = Annotated[float, _quantity("temperature")]
-Text = Annotated[str, _text(200)]
-
-
-def _lot_id(value):
-    if isinstance(value, bool) or not isinstance(value, (str, int)):
-        raise PydanticCustomError("lot", "expected a reel, lot or instrument id like 'R-2291'")
-    value = str(value).strip()
-    if not LOT_ID.match(value):
-        raise PydanticCustomError("lot", "expected a reel, lot or instrument id of letters, digits and "
-                                         "'. _ / : # -', at most 64 characters, like 'R-2291'")
-    return value
-
-
-#: Reel, lot and instrument ids: printable, no spaces at the ends, so a search matches exactly.
-LOT_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._/:#-]{0,63}$")
-LotId = Annotated[str, BeforeValidator(_lot_id)]
-
-
-def _instrument_map(value):
-    if value is not None and not isinstance(value, dict):
-        raise PydanticCustomError("ids", "expected each instrument's id by what it measures, like "
-                                         "{lcr: LCR-07, hipot: HV-03} (on the bench page: 'lcr: LCR-07; hipot: HV-03')")
-    return value
-
-
-InstrumentIds = Annotated[Optional[dict[str, LotId]], BeforeValidator(_instrument_map)]
 
 
 def _resistance_or_open(value):
@@ -205,9 +70,7 @@ def _resistance_or_open(value):
         raise PydanticCustomError("quantity", f"{exc.message} (or 'open' for no continuity)") from None
 
 
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
-
+_Model = ReadingModel
 
 class ResistanceReading(_Model):
     """A resistance reading: ``value`` in ohms, or ``open`` (no continuity)."""
@@ -480,7 +343,7 @@ def _continuity_word(value):
 
 
 class UnitReadings(_Model):
-    serial: Text
+    serial: Serial
     ambient: Optional[Temperature] = None
     test_frequency: Optional[Frequency] = None
     strands: dict[str, StrandReadings] = Field(default_factory=dict)
@@ -500,27 +363,9 @@ class UnitReadings(_Model):
     core_lot: Optional[LotId] = None
     instrument_ids: InstrumentIds = None
 
-    @field_validator("serial")
-    @classmethod
-    def _serial_present(cls, value):
-        if not value:
-            raise PydanticCustomError("serial", "expected a serial number like 'HL-0412-01'")
-        return value
 
 
-class MeasuredFile(_Model):
-    job: Text
-    revision: Optional[Text] = None
-    inspector: Optional[Text] = None
-    date: Optional[Text] = None
-    instruments: Optional[Text] = None
-    ambient: Optional[Temperature] = None
-    test_frequency: Optional[Frequency] = None
-    wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
-    core_lot: Optional[LotId] = None
-    instrument_ids: InstrumentIds = None
-    #: QC lines waived for every unit of the file, each with the reason.
-    waive: dict[str, Text] = Field(default_factory=dict)
+class MeasuredFile(ReadingsHeader):
     units: list[UnitReadings] = Field(min_length=1, max_length=10_000)
 
 

@@ -24,8 +24,8 @@ from typing import Callable, Optional
 
 from windsheet.qc import signoff_lines as sl
 from windsheet.common.errors import InputError, join_path
-from .measured import MeasuredFile, UnitReadings, coupling_coefficient, mutual_from_series, unit_ambient, \
-    unit_test_frequency
+from .measured import MeasuredFile, UnitReadings, unit_ambient, unit_test_frequency
+from .reading_formulas import coupling_coefficient, mutual_from_series
 from windsheet.design.qc_plan import DEFAULT_MIN_INSULATION_OHM, leakage_band
 from .signoff_diagnosis import diagnose_strand, diagnose_terminals
 from .unit_diagnosis import one_diagnosis

@@ -14,13 +14,13 @@ import math
 import re
 from typing import Annotated, Any, Literal, Optional, Union
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError, field_validator, model_validator
+from pydantic import BeforeValidator, Field, ValidationError, model_validator
 from pydantic_core import PydanticCustomError
 
 from windsheet.common.errors import InputError
 
-from .measured import (HipotReading, InductanceReading, LotId, Resistance, Temperature, Text, _input_error_from,
-                       _quantity)
+from .measured import HipotReading, InductanceReading, Resistance, _input_error_from
+from .reading_types import InstrumentIds, LotId, ReadingModel, ReadingsHeader, Serial, Temperature, Text, _quantity
 
 Insulation = Annotated[float, _quantity("resistance")]
 
@@ -66,8 +66,7 @@ def _hipot_word(value):
     return {"result": value} if isinstance(value, (str, bool)) else value
 
 
-class _M(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+_M = ReadingModel
 
 
 class WindingReadings(_M):
@@ -82,7 +81,7 @@ class TapReadings(_M):
 
 
 class TransformerUnit(_M):
-    serial: Text
+    serial: Serial
     ambient: Optional[Temperature] = None
     windings: dict[str, WindingReadings] = Field(default_factory=dict)
     taps: dict[str, TapReadings] = Field(default_factory=dict)
@@ -93,7 +92,7 @@ class TransformerUnit(_M):
     notes: Optional[Text] = None
     wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
     core_lot: Optional[LotId] = None
-    instrument_ids: Optional[dict[str, LotId]] = None
+    instrument_ids: InstrumentIds = None
 
     @model_validator(mode="before")
     @classmethod
@@ -111,26 +110,8 @@ class TransformerUnit(_M):
                     del data["taps"][k]
         return data
 
-    @field_validator("serial")
-    @classmethod
-    def _serial(cls, value):
-        if not value:
-            raise PydanticCustomError("serial", "expected a serial number like 'HL-0431-01'")
-        return value
 
-
-class TransformerReadings(_M):
-    job: Text
-    revision: Optional[Text] = None
-    inspector: Optional[Text] = None
-    date: Optional[Text] = None
-    instruments: Optional[Text] = None
-    ambient: Optional[Temperature] = None
-    test_frequency: Optional[Annotated[float, _quantity("frequency")]] = None
-    wire_lot: Optional[Union[LotId, dict[str, LotId]]] = None
-    core_lot: Optional[LotId] = None
-    instrument_ids: Optional[dict[str, LotId]] = None
-    waive: dict[str, Text] = Field(default_factory=dict)
+class TransformerReadings(ReadingsHeader):
     units: list[TransformerUnit] = Field(min_length=1, max_length=10_000)
 
 
