@@ -3,8 +3,8 @@
 import numpy as np
 import pytest
 
-from windsheet.physics.network import (HookupError, alternative_hookups, check_hookup, named_hookup,
-                               separate_windings, solve_network)
+from windsheet.physics.hookup import HookupError, check_hookup, named_hookup
+from windsheet.physics.network import alternative_hookups, separate_windings, solve_network
 
 L1, L2, M = 1.0e-3, 0.8e-3, 0.6e-3
 LM = np.array([[L1, M], [M, L2]])
@@ -98,7 +98,7 @@ def test_separate_windings_offset():
 
 def test_separate_windings_need_a_pin_for_every_end():
     # Each strand of a separate hookup is its own winding: all four ends come out (T1..T4).
-    from windsheet.physics.network import HookupError, brought_out, named_hookup, pin_assignment
+    from windsheet.physics.hookup import HookupError, brought_out, named_hookup, pin_assignment
 
     joins, terms = named_hookup("separate", 2)
     out = brought_out("separate", terms, "AB")

@@ -10,7 +10,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from windsheet.common.errors import InputError
-from windsheet.physics.network import named_hookup
+from windsheet.physics.hookup import named_hookup
 from windsheet.qc.measured import measured_from_dict, resistance_at_20C
 from windsheet.qc.reading_formulas import coupling_coefficient, mutual_from_series, resonance_inductance
 from windsheet.design.legacy import design_from_v1

@@ -23,7 +23,8 @@ import numpy as np
 from windsheet.physics import shorted_turn as st
 from windsheet.physics.ac_resistance import winding_ac_ratio
 from windsheet.physics.flux_linkage import cored_turn_flux_linkage
-from windsheet.physics.network import STRAND_IDS, check_hookup, solve_network, terminal_impedance
+from windsheet.physics.hookup import STRAND_IDS, check_hookup
+from windsheet.physics.network import solve_network, terminal_impedance
 from windsheet.physics.ring_wave import ring_at_its_frequency
 from windsheet.physics.wire import dc_resistance
 

@@ -24,7 +24,8 @@ from windsheet.physics import heating
 from windsheet.physics.insulation import hipot_voltage
 from windsheet.physics.leads import lead_routes
 from .remedies import advice, find_remedies
-from windsheet.physics.network import STRAND_IDS, alternative_hookups, separate_windings, solve_network
+from windsheet.physics.hookup import STRAND_IDS
+from windsheet.physics.network import alternative_hookups, separate_windings, solve_network
 from windsheet.order.document import BobbinForm, CylinderForm, Order, ToroidForm
 from windsheet.order.wire_choice import resolve_wire
 from .bench_tests import bench_tests

@@ -10,7 +10,7 @@ these counts; none counts them again.
 
 from __future__ import annotations
 
-from windsheet.physics.network import brought_out
+from windsheet.physics.hookup import brought_out
 
 from .model import Connections, Joint, PinLink, StrandEnd, TerminalLead
 

@@ -18,8 +18,8 @@ from pydantic import Field, ValidationError, model_validator
 from windsheet.common.errors import InputError, field_name, join_path
 from windsheet.common.fileio import read_limited
 from windsheet.common.yaml_reading import parse_yaml_bytes
-from windsheet.physics.network import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
-                      pin_assignment)
+from windsheet.physics.hookup import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
+                                     pin_assignment)
 from .fields import (Energy, Fraction, Frequency, Frequency0, PeakVoltage, PulseWidth, RiseTime, Temperature, lowered,
                      quantity)
 # The order's parts live in .parts; those other modules take from here are named again on purpose.

@@ -20,7 +20,8 @@ from typing import Optional
 
 import numpy as np
 
-from windsheet.physics.network import STRAND_IDS, terminal_reading
+from windsheet.physics.hookup import STRAND_IDS
+from windsheet.physics.network import terminal_reading
 
 from .wiring_hypotheses import CLEAR_MATCH, log_distance
 

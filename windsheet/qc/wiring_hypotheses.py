@@ -25,7 +25,8 @@ from typing import Callable, Optional
 
 import numpy as np
 
-from windsheet.physics.network import STRAND_IDS, named_hookup, terminal_reading
+from windsheet.physics.hookup import STRAND_IDS, named_hookup
+from windsheet.physics.network import terminal_reading
 
 #: A hypothesis is the cause only when it sits this close to the readings in
 #: log-ratio distance (about 15 %); beyond that the nearest is only a lead.

@@ -115,8 +115,8 @@ def _coil_path(x0, x1, y, bumps=5):
 
 
 def winding_terminals(hookup: dict, strand_ids) -> list[str]:
-    """The ends brought out as terminals, in T1, T2, … order (see :func:`windsheet.physics.network.brought_out`)."""
-    from windsheet.physics.network import brought_out
+    """The ends brought out as terminals, in T1, T2, … order (see :func:`windsheet.physics.hookup.brought_out`)."""
+    from windsheet.physics.hookup import brought_out
 
     return brought_out(hookup.get("name") or "", hookup.get("terminals"), strand_ids)
 
