@@ -53,7 +53,8 @@ def kind(path):
         return "tape"
     if path in ("winding.pitch", "winding.strand_spacing"):
         return "spacing"
-    return {"winding.layers": "layers", "winding.impregnation": "impregnation", "wire.grade": "grade"}[path]
+    return {"winding.layers": "layers", "winding.sections": "sections", "winding.impregnation": "impregnation",
+            "wire.grade": "grade"}[path]
 
 
 def cost(change):

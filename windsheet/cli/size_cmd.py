@@ -89,6 +89,13 @@ def summary_lines(p) -> list[str]:
     wa = p.worst_adjacent
     row("Worst adjacent", f"{eng(wa.voltage_Vpk, 'V')} peak — {wa.where}")
     ins = p.insulation
+    sec = p.sections
+    if sec is not None:
+        row("Sections", f"{sec.count} × {eng(sec.width_m, 'm')}, walls {eng(sec.wall_thickness_m, 'm')} "
+                        f"{sec.wall_material}; layers {', '.join(map(str, sec.layers_per_section))}; "
+                        f"walls {sec.verdict.upper()}, worst {max(w.across_Vpk for w in sec.walls):.0f} V peak across "
+                        f"(allowed {sec.walls[0].allowed_Vpk:.0f} V peak), crossover "
+                        f"{max(w.crossover_Vpk for w in sec.walls):.0f} V peak (sleeved)")
     row("Insulation", f"{ins.verdict.upper()}" + "".join(f"\n{'':16}  {r}" for r in ins.reasons))
     row("Hipot", f"{eng(p.hipot.voltage_V, 'V')} for {p.hipot.duration_s:.0f} s — {p.hipot.basis}")
     if p.state.state != "ok":

@@ -131,7 +131,7 @@ def bench_tests(L, R20, layout, wire, hookup_name, joins, terminals, test_freque
     spacing = layout.pitch / layout.strands
 
     def ratio(f):
-        return winding_ac_ratio(f, d, rho, layout.layers, spacing)["ratio"] if f > 0 else 1.0
+        return winding_ac_ratio(f, d, rho, layout.radial_layers, spacing)["ratio"] if f > 0 else 1.0
 
     f = float(test_frequency)
     w = 2 * math.pi * f

@@ -23,6 +23,7 @@ from windsheet.physics.flux_linkage import strand_sums, turn_linkage_matrix
 from windsheet.physics import heating
 from windsheet.physics.insulation import hipot_voltage
 from windsheet.physics.leads import lead_routes
+from .section_check import check_sections, with_sections
 from .remedies import advice, find_remedies
 from windsheet.physics.hookup import STRAND_IDS
 from windsheet.physics.network import alternative_hookups, separate_windings, solve_network
@@ -359,6 +360,14 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
               + [w for w in own["warnings"] if "self-resonance" in w]}
     _refuse_above_self_resonance(duty, st["self_resonance_Hz"])
     warnings.extend(st.get("warnings", []))
+    walls = None
+    if layout.sections > 1:
+        f0 = doc.form
+        walls = check_sections(layout, st["turn_potential_Vpk"], doc.winding.section_wall,
+                               doc.insulation.derating, duty.frequency > 0 and duty.waveform != "pulse",
+                               f0.height if isinstance(f0, BobbinForm) else getattr(f0, "max_build", None),
+                               potted=doc.winding.impregnation == "potted")
+        st = {**st, "insulation": with_sections(st["insulation"], walls)}
     bench = bench_tests(L, R20, layout, wire, order.hookup_name, order.joins, order.terminals,
                         doc.test.frequency, st["capacitance"]["terminal_F"], doc.test.ring_capacitor,
                         doc.tolerances.inductance, doc.tolerances.resistance, sizing.core_al(order))
@@ -425,6 +434,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                     "layer_style": layout.layer_style, "strand_spacing": doc.winding.strand_spacing,
                     "impregnation": doc.winding.impregnation,
                     "turns_in_layer": list(layout.turns_in_layer), "pitch_m": layout.pitch,
+                    "layers_per_section": list(layout.layers_per_section) if layout.sections > 1 else [],
                     "layer_tape_m": order.tape, "layer_tape_material": order.tape_material if order.tape else None,
                     "layer_tape_rating_V": order.tape_rating,
                     "lead_length_m": doc.winding.lead_length, "scrap_allowance": doc.winding.scrap_allowance,
@@ -493,6 +503,7 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
                      "hot_surface_limit_C": heating.HOT_SURFACE_C},
         "cross_section": _cross_section(layout, potential=st.get("turn_potential_Vpk"),
                                         worst=st.get("worst_pair") or (None, None)),
+        "sections": walls,
         "warnings": warnings,
         "shorted_turn": bench["shorted_turn"],
         "ring_wave": bench["ring_wave"],

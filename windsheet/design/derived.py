@@ -61,16 +61,26 @@ def layer_plan(core: DesignCore) -> list[LayerRow]:
     if margin_t and core.wire is not None:
         # The margins stand beside the layers' ends, where turns stack: a wire and a tape per layer.
         wraps = max(1, math.ceil((core.wire.overall_diameter_m + (w.layer_tape_m if tape else 0.0)) / margin_t - 1e-9))
+    # A sectioned winding: each section's layers counted on their own, back and forth from its start side.
+    sections = w.layers_per_section or [n]
+    place = [(s, k) for s, count in enumerate(sections) for k in range(count)]
     rows, count = [], 0
     for k, turns in enumerate(w.turns_in_layer):
         start = count
         count += int(turns)
+        section, within = place[k]
         if toroid:
             from_end = "start-mark" if k % 2 == 0 else "end of the layer below"
         else:
-            from_end = "start-end" if k % 2 == 0 else "finish-end"
+            from_end = "start-end" if within % 2 == 0 else "finish-end"
         last = k == n - 1
-        after = ("outer-wrap" if w.outer_wrap is not None else None) if last else ("layer-tape" if tape else None)
-        rows.append(LayerRow(layer=k + 1, turns=int(turns), from_end=from_end, counter_start=start,
-                             counter_end=count, tape_after=after, margin_wraps=wraps))
+        if last:
+            after = "outer-wrap" if w.outer_wrap is not None else None
+        elif within == sections[section] - 1:
+            after = "crossover"
+        else:
+            after = "layer-tape" if tape else None
+        rows.append(LayerRow(layer=within + 1, turns=int(turns), from_end=from_end, counter_start=start,
+                             counter_end=count, tape_after=after, margin_wraps=wraps,
+                             section=section + 1 if w.layers_per_section else None))
     return rows

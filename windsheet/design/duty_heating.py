@@ -48,7 +48,7 @@ def resistivity(wire, temperature_C):
 def ac_ratio(order: Order, wire, layout, temperature_C):
     """AC/DC resistance of the winding at the duty frequency (:func:`winding_ac_ratio`)."""
     return winding_ac_ratio(order.doc.duty.frequency, wire.copper_diameter, resistivity(wire, temperature_C),
-                            layout.layers, layout.pitch / layout.strands)
+                            layout.radial_layers, layout.pitch / layout.strands)
 
 
 class DutyCurrent:

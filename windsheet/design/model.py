@@ -127,6 +127,8 @@ class Winding(Part):
     strand_spacing: Optional[str] = None
     impregnation: str = "none"
     turns_in_layer: list[int] = Field(default_factory=list, description="turns per strand in each layer")
+    layers_per_section: list[int] = Field(default_factory=list, description="a sectioned winding: the layers "
+                                          "of each section, in winding order (turns_in_layer runs through them)")
     pitch_m: Optional[float] = None
     layer_tape_m: float = 0.0
     layer_tape_material: Optional[str] = None
@@ -614,8 +616,11 @@ class LayerRow(Part):
     counter_start: int = Field(description="the turn counter at the layer's first turn, counted per strand from "
                                "the start of the winding")
     counter_end: int = Field(description="the turn counter at the layer's last turn")
-    tape_after: Optional[str] = Field(None, description="what goes over it: layer-tape, outer-wrap, or null")
+    tape_after: Optional[str] = Field(None, description="what goes over it: layer-tape, outer-wrap, crossover "
+                                      "(the wire crosses the wall to the next section), or null")
     margin_wraps: Optional[int] = Field(None, description="margin-tape wraps at each end built up with this layer")
+    section: Optional[int] = Field(None, description="a sectioned winding: the section (1 = the start's); layer "
+                                   "then counts within it, and from_end is the section's own start or finish side")
 
 
 class QcPlan(Part):
@@ -642,6 +647,40 @@ class DesignState(Part):
 
     state: Literal["ok", "marginal", "failing", "forced"]
     reasons: list[str] = Field(default_factory=list)
+
+
+class WallCheck(Part):
+    """One wall of a sectioned winding: the voltage across it and what it must withstand."""
+
+    wall: int = Field(description="1: between sections 1 and 2")
+    across_Vpk: float = Field(description="largest voltage between turns facing the wall on either side [V peak]")
+    allowed_Vpk: float = Field(description="thickness × strength × derating [V peak]")
+    crossover_Vpk: float = Field(description="the crossover wire against the turns beside its wall; it is "
+                                 "sleeved for this [V peak]")
+    creepage_needed_m: Optional[float] = Field(None, description="IEC 60664-1 creepage for the voltage "
+                                               "across the wall (null: above the table's 2000 V rms) [m]")
+    creepage_available_m: float = Field(description="over the wall's top, face to face [m]")
+    verdict: str = Field(description="pass, marginal or fail")
+    reason: str = ""
+
+
+class Sections(Part):
+    """A sectioned winding: sections wound one after another, walls between them."""
+
+    count: int
+    width_m: float = Field(description="each section's width [m]")
+    wall_thickness_m: float
+    wall_material: str = ""
+    wall_strength_V_per_m: float = Field(description="the wall material's short-time dielectric strength [V/m]")
+    wall_strength_given: bool = False
+    layers_per_section: list[int] = Field(default_factory=list)
+    turns_per_section: list[int] = Field(default_factory=list, description="turns per strand in each section")
+    walls: list[WallCheck] = Field(default_factory=list)
+    crossover_sleeves_per_unit: int = Field(0, description="one sleeve through each wall's slot for each strand")
+    crossover_Vpk: float = Field(0.0, description="the highest voltage a crossover meets: its sleeving's least "
+                                 "rating [V peak]")
+    verdict: str = Field("pass", description="the worst wall's verdict")
+    basis: str = ""
 
 
 # --- the whole -------------------------------------------------------------------------
@@ -683,6 +722,7 @@ class DesignCore(Part):
     energy: Optional[Energy] = None
     cautions: Optional[Cautions] = None
     cross_section: Optional[CrossSection] = None
+    sections: Optional[Sections] = None
     warnings: list[str] = Field(default_factory=list)
     shorted_turn: Optional[ShortedTurn] = None
     ring_wave: Optional[RingWave] = None

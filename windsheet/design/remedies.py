@@ -84,7 +84,7 @@ def apply(doc: dict, changes: dict) -> dict:
 
 
 #: The kinds of change, cheapest first (see the module docstring for why).
-KINDS = ("lead route", "tape", "spacing", "layers", "impregnation", "grade")
+KINDS = ("lead route", "tape", "spacing", "layers", "sections", "impregnation", "grade")
 #: Most re-sizings tried for one order (singles first, then pairs, then triples).
 BUDGET = 40
 #: Most remedies listed.
@@ -173,8 +173,14 @@ def options(doc: dict, design) -> list[tuple[str, dict]]:
                 change["winding.strand_spacing"] = "even"
             out.append(("spacing", change))
 
-    if layers > 1 and 2 * layers <= 200:
-        out.append(("layers", {"winding.layers": 2 * layers}))
+    per_section = max(design.winding.layers_per_section or [layers])
+    if layers > 1 and 2 * per_section * max(len(design.winding.layers_per_section), 1) <= 200:
+        out.append(("layers", {"winding.layers": 2 * per_section}))
+
+    # Walls across the traverse: each section takes about 1/N of the turns, and of the layer voltage.
+    if design.form.kind in ("cylinder", "bobbin") and layers > 1:
+        now = int(winding.get("sections") or 1)
+        out += [("sections", {"winding.sections": n}) for n in (2, 4, 8) if n > now]
 
     imp = winding.get("impregnation") or "none"
     if imp == "none":

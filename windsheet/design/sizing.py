@@ -15,6 +15,7 @@ import numpy as np
 from windsheet.physics import coil_formulas as cf
 from windsheet.physics import inductance as ind
 from windsheet.physics import layout as lay
+from windsheet.physics import section_layout as sections
 from windsheet.common.errors import InputError
 from windsheet.order.limits import check_engine_work, check_turns_in_all
 from windsheet.physics.network import separate_windings, solve_network
@@ -54,6 +55,11 @@ def place_turns(order: Order, wire, turns: int):
         raise InputError("winding.spread", "applies to a toroid only (spread round the core)")
     if not isinstance(f, ToroidForm):
         width, across = winding_width(order)
+    elif w.sections > 1:
+        raise InputError("winding.sections", "applies to a cylinder or bobbin (walls across the traverse); "
+                         "a toroid is sectored round the core (winding.spread)")
+    if w.sections > 1:
+        return _sectioned(order, wire, turns, width, across, args)
     try:
         if isinstance(f, CylinderForm):
             # Enamel is only proven to survive a mandrel of the wire's own diameter
@@ -74,6 +80,27 @@ def place_turns(order: Order, wire, turns: int):
     except lay.WindingDoesNotFit as exc:
         raise InputError("winding.turns" if order.doc.winding.turns else "winding.target_inductance",
                          f"does not fit: {exc}") from None
+
+
+def _sectioned(order: Order, wire, turns: int, width: float, across: str, args: dict):
+    """The turns laid in ``winding.sections`` sections, each as the form lays an unsectioned winding."""
+    f, w = order.doc.form, order.doc.winding
+    field = "winding.turns" if w.turns else "winding.target_inductance"
+    args = {k: v for k, v in args.items() if k != "turns"}
+
+    def one(section_w, n):
+        if isinstance(f, CylinderForm):
+            return lay.cylinder_layout(f.diameter, section_w, max_build=f.max_build, turns=n,
+                                       across="a section", **args)
+        return lay.bobbin_layout(section_w, f.height, diameter=f.diameter, mean_turn_length=f.mean_turn_length,
+                                 turns=n, across="a section", **args)
+    if turns < w.sections:
+        raise InputError("winding.sections", f"{w.sections} sections need at least one turn each; "
+                         f"the winding has {turns}")
+    try:
+        return sections.sectioned_layout(one, width, w.sections, w.section_wall.thickness, turns)
+    except lay.WindingDoesNotFit as exc:
+        raise InputError(field, f"does not fit: {exc} ({across})") from None
 
 
 def sector_spans(order: Order) -> list[tuple[float, float]]:

@@ -167,6 +167,21 @@ class LayerTape(_M):
     material: Text = "polyester tape"
 
 
+class SectionWall(_M):
+    """The wall between two sections of a sectioned winding: its thickness, material and strength."""
+    thickness: Length = 1.0e-3
+    material: Text = "glass-filled nylon"
+    #: The material's short-time dielectric strength (IEC 60243-1), per metre: ``15 kV/mm`` is read
+    #: as a voltage over a length.  Default 15 kV/mm (memory: the low end of glass-filled nylon and PBT
+    #: datasheets, 15–30 kV/mm).
+    strength: Optional[Voltage] = None
+    #: The length the strength is given over (``strength: 15 kV`` with ``per: 1 mm``).
+    per: Length = 1.0e-3
+    #: Pollution degree and material group for the creepage over the wall (IEC 60664-1).
+    pollution_degree: Annotated[int, Field(ge=1, le=3, strict=True)] = 2
+    material_group: Literal["I", "II", "IIIa", "IIIb"] = "IIIa"
+
+
 class LeadRoutes(_M):
     """How each lead and joint wire is dressed (see :mod:`windsheet.physics.leads`); unnamed routes
     take the default for the winding."""
@@ -295,3 +310,6 @@ class Winding(_M):
     outer_wrap: Annotated[Optional[OuterWrap], BeforeValidator(_outer_wrap)] = OuterWrap()
     #: Several windings on a toroid: side by side in every turn, or each in its own sector.
     arrangement: Annotated[Arrangement, BeforeValidator(_arrangement)] = Arrangement()
+    #: Cylinders and bobbins: the traverse divided by walls into sections wound one after another.
+    sections: Annotated[int, Field(ge=1, le=32, strict=True)] = 1
+    section_wall: SectionWall = SectionWall()

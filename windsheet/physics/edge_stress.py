@@ -56,7 +56,7 @@ def end_turn(layout: Layout, strand: int, which: int) -> int:
     return int(sel[np.argmin(layout.index[sel])] if which == 0 else sel[np.argmax(layout.index[sel])])
 
 
-def edge_stress(layout: Layout, nb, c, edge, peak):
+def edge_stress(layout: Layout, nb, c, edge, peak, links=None):
     """Every turn's potential under a fast edge, and the pair voltages it gives.
 
     Parameters
@@ -75,6 +75,10 @@ def edge_stress(layout: Layout, nb, c, edge, peak):
         ``series_turns`` (turns between the terminals, for the even share).
     peak : float
         Height of the edge. [V]
+    links : tuple of (ndarray, ndarray, ndarray) or None
+        Further capacitances ``(i, j, c)`` [F] between turns that share the
+        charge but are not judged as pairs: across a sectioned winding's walls
+        (:func:`windsheet.physics.section_layout.wall_links`).
 
     Returns
     -------
@@ -112,10 +116,14 @@ def edge_stress(layout: Layout, nb, c, edge, peak):
     held = {end_turn(layout, s, w): float(val) for (s, w), val in edge["held"].items()}
     ties = [(end_turn(layout, *a), end_turn(layout, *b)) for a, b in edge["ties"]]
     cg = float(edge["ground_F"]) / n
-    v, _ = capacitive_distribution(n, nb.i, nb.j, c, cg, held, ties)
+    # Links (a sectioned winding's walls) carry charge between turns but are not pairs to judge.
+    li, lj, lc = (nb.i, nb.j, c) if links is None else (np.concatenate([nb.i, links[0]]),
+                                                        np.concatenate([nb.j, links[1]]),
+                                                        np.concatenate([c, links[2]]))
+    v, _ = capacitive_distribution(n, li, lj, lc, cg, held, ties)
     line = [t for t, val in held.items() if val == max(held.values())]
     earth = [t for t, val in held.items() if val != max(held.values())]
-    cs = series_capacitance(n, nb.i, nb.j, c, line, earth, ties) if earth else 0.0
+    cs = series_capacitance(n, li, lj, lc, line, earth, ties) if earth else 0.0
     alpha = impulse_alpha(edge["ground_F"], cs) if cs > 0 else None
     dv = np.abs(v[nb.i] - v[nb.j]) * peak
     ends = np.array([[v[end_turn(layout, s, 0)], v[end_turn(layout, s, 1)]] for s in range(layout.strands)])

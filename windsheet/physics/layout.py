@@ -104,6 +104,15 @@ class Layout:
     theta: np.ndarray | None = None
     ring_radius: float = 0.0
     spread: str = ""
+    # Sectioned windings (windsheet.physics.section_layout): how many sections, each turn's
+    # section (0 = the start's), each section's width and the wall between two [m], and
+    # the layers wound in each section.  ``layer`` then counts layers in winding order
+    # through the sections, so each (layer, strand) group keeps the shape groups() promises.
+    sections: int = 1
+    section: np.ndarray | None = None
+    section_width: float = 0.0
+    section_wall: float = 0.0
+    layers_per_section: tuple = ()
     # Results derived from the geometry alone (the neighbour search), kept
     # with the layout so that each is computed once however often it is asked for.
     _memo: dict = field(default_factory=dict, compare=False, repr=False)
@@ -111,6 +120,11 @@ class Layout:
     @property
     def n_turns(self) -> int:
         return int(self.r.size)
+
+    @property
+    def radial_layers(self) -> int:
+        """Layers one above another in the build: a section's, when the winding is sectioned."""
+        return max(self.layers_per_section) if self.sections > 1 else self.layers
 
     def section_points(self) -> np.ndarray:
         """Turn centres in the plane where the turns crowd, ``(n, 2)``. [m]

@@ -90,11 +90,15 @@ class Lead:
     joint: str | None
     beside: np.ndarray
     at_start_end: bool = False
+    #: A sectioned winding whose last section has an even layer count ends beside its wall.
+    at_last_wall: bool = False
     bundle: str = "start"
 
     @property
     def route_text(self) -> str:
         """The route in words, saying where a finish really leaves the winding."""
+        if self.which == 1 and self.at_last_wall and self.route == "end-flange":
+            return "lifted straight out where it ends, beside the last section's wall, clear of the turns"
         if self.which == 1 and self.at_start_end and self.route in ROUTE_TEXT_AT_START:
             return ROUTE_TEXT_AT_START[self.route]
         return ROUTE_TEXT.get(self.route, self.route)
@@ -296,6 +300,7 @@ def lead_routes(layout: Layout, joins, terminals, routes=None, hookup: str = "")
                 route = chosen["finish"]
             out.append(Lead(end=end, strand=s, which=which, route=route, joint=joint,
                             beside=lead_beside(layout, s, which, route),
-                            at_start_end=which == 1 and layout.layers % 2 == 0,
+                            at_start_end=which == 1 and layout.layers % 2 == 0 and layout.sections == 1,
+                            at_last_wall=which == 1 and layout.sections > 1 and layout.layers_per_section[-1] % 2 == 0,
                             bundle=lead_bundle(layout, s, which, route)))
     return out

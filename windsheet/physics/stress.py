@@ -30,6 +30,7 @@ from .insulation import (DERATING, HIPOT_BASIS, HIPOT_DURATION_S, PDIV_HOT_MARGI
 from .layout import Layout
 from .neighbours import neighbour_pairs
 from .row_capacitance import edge_pair_capacitances
+from .section_layout import wall_links
 from .leads import BUNDLE_TEXT
 from .voltage_map import describe_turn, pair_record, pair_voltages, turn_drops, turn_potentials
 
@@ -263,11 +264,13 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
     nb = neighbour_pairs(layout)
     dv = pair_voltages(v, nb.i, nb.j, peak)
     i, j, kind, c, layer_C = cap.pair_capacitances(layout, eps_r, tape_eps_r, nb)
+    # A sectioned winding's walls couple the turns that face them: charge, not pairs to judge.
+    links = wall_links(layout) if layout.sections > 1 else None
     impulse = None
     if edge is not None:
         # The ladder's rungs are partial capacitances: a spaced turn among its neighbours in a row.
         v_edge, ends_edge, dv_edge, impulse = edge_stress(layout, nb, edge_pair_capacitances(layout, nb, c, eps_r),
-                                                          edge, peak)
+                                                          edge, peak, links)
         dv = np.maximum(dv, dv_edge)
 
     # Inception is judged at the thinnest film the standard allows (its minimum increase); the
@@ -394,6 +397,8 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
                     for a, b, _ in lead_lead]
         leads_F = cap.energy_method_capacitance(np.full(len(dv_leads), per_m * lead_length), dv_leads, 1.0)
     pairs_C = cap.energy_method_capacitance(c, v_c[i] - v_c[j], 1.0)
+    if links is not None:
+        pairs_C += cap.energy_method_capacitance(links[2], v_c[links[0]] - v_c[links[1]], 1.0)
     warnings = []
     method = ("energy method over neighbour pairs on the winding's low-frequency voltage map (Massarini-Kazimierczuk between touching "
               "turns, two-wire line with air beyond the enamel between spaced ones, flux tubes "

@@ -137,19 +137,23 @@ def job_tape(p, overlap: float = TAPE_OVERLAP) -> Optional[dict]:
     its length is the form's perimeter plus 2π times that height, plus the overlap.
     """
     w = p.winding
-    layers = p.layers
-    if not w.layer_tape_m > 0 or layers < 2:
+    # The wraps the layer table calls for (a sectioned winding's within each section).
+    rows = [r for r in getattr(p, "layer_plan", []) if r.tape_after == "layer-tape"]
+    if not w.layer_tape_m > 0 or not rows:
         return None
     qty = p.quantity
     base = _base_perimeter(p.form)
     build = float(p.fit.build_m or 0.0)
+    layers = w.layers_per_section or [p.layers]
     length = None
     if base is not None:
-        length = qty * sum((base + 2 * math.pi * k * build / layers) * (1 + overlap) for k in range(1, layers))
-    width = p.fit.traverse_m
+        length = qty * sum((base + 2 * math.pi * r.layer * build / layers[(r.section or 1) - 1]) * (1 + overlap)
+                           for r in rows)
+    sec = getattr(p, "sections", None)
+    width = sec.width_m if sec else p.fit.traverse_m
     return {"spec": f"{w.layer_tape_material or 'insulating tape'}, {w.layer_tape_m * 1e6:.0f} µm thick"
                     + (f", {width * 1e3:.1f} mm wide" if width else ""),
-            "wraps": qty * (layers - 1), "length_m": length, "quantity": qty}
+            "wraps": qty * len(rows), "length_m": length, "quantity": qty}
 
 
 def job_sleeving(p) -> dict:

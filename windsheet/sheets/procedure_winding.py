@@ -126,6 +126,8 @@ def winding_step(p) -> dict:
             "end it starts from (start or finish end of the traverse) and the turn counter at its end, counted "
             f"from the first turn (zero the counter there). Every layer {how}{together}; {pitch}. Check the "
             "counter at each layer's end and tick its row.")
+    if p.sections is not None:
+        text += " " + _section_words(p)
     tape = _layer_tape_words(p)
     if tape:
         text += " " + tape
@@ -133,6 +135,18 @@ def winding_step(p) -> dict:
         text += f" Build up {rows[0].margin_wraps} margin-tape wrap(s) at each end with every layer."
     return step(f"Wind the {len(rows)} layers (layer table)", text,
                 ["counter at end"] + (["tape"] if tape else []))
+
+
+def _section_words(p) -> str:
+    """How a sectioned winding goes on: section by section, the crossover through each wall sleeved."""
+    sec = p.sections
+    cross = max((w.crossover_Vpk for w in sec.walls), default=0.0)
+    return (f"The former has {sec.count} sections of {length(sec.width_m)} between walls of "
+            f"{length(sec.wall_thickness_m)} {sec.wall_material}; the table numbers each layer section.layer, "
+            "and each section's start and finish sides are its own, the start side nearer the start end. Wind "
+            "each section complete; at a row marked \"cross wall\" take the wire through the wall's slot to the "
+            "bore of the next section, sleeved through the slot and against the turns beside it (it meets up to "
+            f"{volt(cross)} peak there), never over the wall's top.")
 
 
 def _layer_tape_words(p) -> str:
@@ -153,7 +167,7 @@ def layer_table(p) -> list[dict]:
     toroid = (p.form.kind or "") == "toroid"
     way = p.winding.direction or "clockwise"
     back = "anticlockwise" if way == "clockwise" else "clockwise"
-    then = {"layer-tape": "tape", "outer-wrap": "outer wrap", None: "—"}
+    then = {"layer-tape": "tape", "outer-wrap": "outer wrap", "crossover": "cross wall", None: "—"}
     out = []
     for r in rows:
         if toroid:
@@ -164,7 +178,7 @@ def layer_table(p) -> list[dict]:
             start = "start" if r.from_end == "start-end" else "finish"
             run = "→ to finish" if r.from_end == "start-end" else "← to start"
             spread = ""
-        out.append({"layer": r.layer, "turns": r.turns, "start": start, "run": run, "spread": spread,
+        out.append({"layer": r.layer if r.section is None else f"{r.section}.{r.layer}", "turns": r.turns, "start": start, "run": run, "spread": spread,
                     "counter": r.counter_end, "then": then.get(r.tape_after, r.tape_after or "—"),
                     "margin": r.margin_wraps})
     return out

@@ -87,7 +87,7 @@ def traveller_context(p, forced: bool = False) -> dict:
         "insulation_rows": insulation_rows(p.insulation),
         "duty_physics_rows": duty_physics_rows(p),
         "thermal": p.thermal,
-        "impulse_rows": impulse_rows(p.impulse),
+        "impulse_rows": impulse_rows(p.impulse) + section_rows(p.sections),
     }
 
 
@@ -261,6 +261,19 @@ def impulse_rows(imp) -> list[tuple[str, str]]:
     return rows
 
 
+def section_rows(sec) -> list[tuple[str, str]]:
+    """A sectioned winding's walls: what each must withstand, as the design judged it."""
+    if not sec:
+        return []
+    rows = [("Sections", f"{sec.count} of {length(sec.width_m)}, walls {length(sec.wall_thickness_m)} "
+                         f"{sec.wall_material} ({sec.wall_strength_V_per_m / 1e6:g} kV/mm"
+                         + ("" if sec.wall_strength_given else ", assumed") + ")")]
+    for w in sec.walls:
+        rows.append((f"Wall {w.wall}", f"{w.verdict.upper()}: {w.reason} The crossover meets "
+                     f"{volt(w.crossover_Vpk)} peak (sleeved)."))
+    return rows
+
+
 def pick_list(p) -> list[dict]:
     """Materials to draw from stores, one row each, with the quantity to pick."""
     wire, w, form, job, conn = p.wire, p.winding, p.form, p.job, p.connections
@@ -278,7 +291,7 @@ def pick_list(p) -> list[dict]:
         picks.append({"item": "Layer tape",
                       "spec": f"{w.layer_tape_material or 'insulating tape'}, {length(w.layer_tape_m)} thick"
                               + (f", rated {volt(rating)}" if rating else "") + ", full traverse width",
-                      "qty": f"{p.layers - 1} wrap(s) per unit"})
+                      "qty": f"{sum(r.tape_after == 'layer-tape' for r in p.layer_plan)} wrap(s) per unit"})
     if form.margin_tape_m:
         picks.append({"item": "Margin tape",
                       "spec": f"{form.margin_tape_material or 'margin tape'}, {length(form.margin_tape_m)} wide, "
@@ -289,6 +302,11 @@ def pick_list(p) -> list[dict]:
                           f"{thermal_class(wire.thermal_class_C)}",
                   "qty": f"{conn.sleeving_pieces_per_unit} piece(s) per unit: {len(conn.joints)} joint(s) + "
                          f"{len(conn.terminals)} lead(s)"})
+    if p.sections:
+        picks.append({"item": "Crossover sleeving",
+                      "spec": f"through each wall's slot, rated at least {volt(p.sections.crossover_Vpk)} peak, "
+                              f"thermal class {thermal_class(wire.thermal_class_C)}",
+                      "qty": f"{p.sections.crossover_sleeves_per_unit} piece(s) per unit"})
     if w.lead_length_m:
         picks.append({"item": "Leads", "spec": f"{length(w.lead_length_m)} left at each of "
                                               f"{conn.wire_ends_per_unit} wire ends (included in wire length)",
