@@ -164,9 +164,53 @@ def test_readers_check_what_they_read_and_register_check_checks_everything(tmp_p
     assert check.exit_code == 2
     assert check.stderr == (f"windsheet: {reg}: register is damaged: issues row 1 holds no valid JSON object "
                             "in predictions_json; restore it from a backup\n")
+    # A writer that reads or touches that job's record refuses before writing: a reprint of its
+    # traveller, its sign-off (both read or point at issue row 1).
     before = reg.read_bytes()
-    assert run("register", "--issue", SINGLE, "--register", reg).exit_code == 2
-    assert reg.read_bytes() == before
+    for args in (("traveller", BIFILAR, "-o", tmp_path / "again.html", "--register", reg),
+                 ("register", "--issue", BIFILAR, "--register", reg),
+                 ("signoff", BIFILAR, MEASURED, "--register", reg)):
+        res = run(*args)
+        assert res.exit_code == 2 and "register is damaged" in res.stderr, (args, res.output)
+        assert "issues row 1" in res.stderr and len(res.stderr.splitlines()) == 1, res.stderr
+    assert reg.read_bytes() == before and not (tmp_path / "again.html").exists()
+    # A writer of another job checks only what the listing reads and its own rows: it writes, and
+    # the damaged record is kept as it was (never lost), still found by the whole check.
+    assert run("register", "--issue", SINGLE, "--register", reg).exit_code == 0
+    conn = sqlite3.connect(reg)
+    assert conn.execute("SELECT predictions_json FROM issues WHERE id = 1").fetchone() == ("{broken",)
+    assert conn.execute("SELECT job FROM issues ORDER BY id").fetchall() == [("HL-0412",), ("HL-0410",)]
+    conn.close()
+    assert run("register", "--check", "--register", reg).exit_code == 2
+
+
+def test_a_writer_checks_what_the_listing_reads_and_no_record_json(tmp_path):
+    """The writers' check reads the listing's columns and never an issue's prediction or a
+    sign-off's result (the columns that make a register large)."""
+    from windsheet.records import register_schema as schema
+
+    reg = tmp_path / "reg.db"
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.html", "--register", reg).exit_code == 0
+    assert run("signoff", BIFILAR, MEASURED, "--register", reg).exit_code == 0
+    conn = sqlite3.connect(reg)
+    seen = []
+    conn.set_trace_callback(seen.append)
+    schema.check_listed(conn, str(reg))
+    conn.set_trace_callback(None)
+    reads = " ".join(seen)
+    for record in ("predictions_json", "order_text", "result_json", "measurements_json"):
+        assert record not in reads, record
+    # Each issue's columns come from the covering index (SQLite's own query plan).
+    issues_read = next(q for q in seen if "FROM issues" in q and "units_json" in q and "json_valid" not in q)
+    plan = " ".join(r[3] for r in conn.execute("EXPLAIN QUERY PLAN " + issues_read))
+    assert "COVERING INDEX issues_listing" in plan, plan
+    # And it refuses what the listing refuses: a unit's serial that is not UTF-8.
+    conn.execute("UPDATE unit_signoffs SET serial = cast(x'48ff' as text) WHERE id = 2")
+    conn.commit()
+    with pytest.raises(InputError, match="unit_signoffs.serial of row 2 is not valid UTF-8"):
+        schema.check_listed(conn, str(reg))
+    conn.close()
+    assert run("register", "--register", reg).exit_code == 2
 
 
 def test_register_check_on_a_whole_register_counts_what_it_checked(tmp_path):
