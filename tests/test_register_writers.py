@@ -263,3 +263,42 @@ def test_the_listing_reads_the_covering_index_and_lists_the_same(tmp_path):
         assert r.list_jobs() == jobs
         assert r.list_jobs_page(2, 10, customer="fenwick", since="2026-01-01") == (page, total)
     assert total == 15 and [j["number"] for j in page] == [f"HL-{k:04d}" for k in (9, 7, 5, 3, 1)]
+
+
+def test_the_whole_listing_and_one_jobs_state_agree_on_revisions_and_re_tests(tmp_path):
+    """The whole listing tallies unit verdicts against each job's latest revision itself; one job's
+    state (and a page) has SQLite pick them. Both must give the states worked out by hand here."""
+    from conftest import design_for_job
+    from windsheet.records.register import open_register
+
+    def signoff(reg, number, rev, sha, verdicts):
+        reg.record_signoff({"job": number, "revision": rev, "verdict": "pass" if set(verdicts.values()) == {"pass"}
+                            else "fail", "units": [{"serial": s, "verdict": v, "lines": []}
+                                                   for s, v in verdicts.items()]}, sha, "QC")
+
+    with open_register(tmp_path / "reg.db") as reg:
+        # HL-0001: passed at revision A, then revision B issued: A's sign-offs do not count.
+        reg.record_issue(design_for_job("HL-0001", "A", ["a1", "a2"]), "o", "1" * 64)
+        signoff(reg, "HL-0001", "A", "1" * 64, {"a1": "pass", "a2": "pass"})
+        reg.record_issue(design_for_job("HL-0001", "B", ["a1", "a2"]), "o", "2" * 64)
+        # HL-0002: a unit failed, then passed its re-test: the last verdict of each serial stands.
+        reg.record_issue(design_for_job("HL-0002", "A", ["b1", "b2"]), "o", "3" * 64)
+        signoff(reg, "HL-0002", "A", "3" * 64, {"b1": "pass", "b2": "fail"})
+        signoff(reg, "HL-0002", "A", "3" * 64, {"b2": "pass"})
+        # HL-0003: one unit passed, one not signed; HL-0004: one incomplete.
+        reg.record_issue(design_for_job("HL-0003", "A", ["c1", "c2"]), "o", "4" * 64)
+        signoff(reg, "HL-0003", "A", "4" * 64, {"c1": "pass"})
+        reg.record_issue(design_for_job("HL-0004", "A", ["d1"]), "o", "5" * 64)
+        signoff(reg, "HL-0004", "A", "5" * 64, {"d1": "incomplete"})
+        listed = {j["number"]: (j["revision"], j["state"], j["units_passed"], j["units_not_signed"])
+                  for j in reg.list_jobs()}
+        assert listed == {"HL-0001": ("B", "issued", [], ["a1", "a2"]),
+                          "HL-0002": ("A", "passed", ["b1", "b2"], []),
+                          "HL-0003": ("A", "issued", ["c1"], ["c2"]),
+                          "HL-0004": ("A", "incomplete", [], [])}
+        for number, (rev, state, passed, not_signed) in listed.items():
+            one = reg.job_state(number)
+            assert (one["revision"], one["state"], one["units_passed"], one["units_not_signed"]) == listed[number]
+        page, total = reg.list_jobs_page(1, 3)
+        assert total == 4 and [(j["number"], j["state"]) for j in page] == [
+            ("HL-0004", "incomplete"), ("HL-0003", "issued"), ("HL-0002", "passed")]
