@@ -84,6 +84,7 @@ def main() -> int:
             print(f"{n:>7}  {path.stat().st_size / 1e6:>5.0f} MB  {listing:>6.2f} s  {lot:>5.2f} s  "
                   f"{job_page:>6.3f} s  {check:>6.2f} s  {issue:>6.2f} s  {part:>11.3f} s", flush=True)
             path.unlink()
+    print(f"load average at the end {os.getloadavg()[0]:.1f}")
     return 0
 
 

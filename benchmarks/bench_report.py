@@ -80,6 +80,7 @@ def main() -> int:
                 units = register_units(reg.conn)
             stats = median_time(lambda: build_report(units))[0]
             print(f"{n:>7}  {len(units):>7}  {wall:>18.3f} s  {stats:>9.3f} s", flush=True)
+    print(f"load average at the end {os.getloadavg()[0]:.1f}")
     return 0
 
 
