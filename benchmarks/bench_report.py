@@ -1,4 +1,4 @@
-"""``windsheet report`` at 1,000 and 10,000 jobs: the QC statistics in one grouped pass.
+"""``windsheet report`` at 1,000, 10,000 and 50,000 jobs: the QC statistics in one grouped pass.
 
 Each job is issued with a real sample's prediction (two families, alternating)
 and signed off for three units whose terminal lines carry measured and
@@ -10,6 +10,7 @@ pass/fail on time.
 
 from __future__ import annotations
 
+import os
 import subprocess
 import sys
 import tempfile
@@ -18,7 +19,7 @@ from pathlib import Path
 from timing import median_time
 
 ROOT = Path(__file__).resolve().parent.parent
-SIZES = (1_000, 10_000)
+SIZES = tuple(int(n) for n in os.environ.get("WINDSHEET_BENCH_JOBS", "1000,10000,50000").split(","))
 UNITS_PER_JOB = 3
 
 
@@ -67,6 +68,7 @@ def main() -> int:
     designs = [build_design(load_order(ROOT / "samples" / name), remedies=False)
                for name in ("hl-0412-bifilar-aiding.yaml", "hl-0410-single.yaml")]
     cli = [sys.executable, "-m", "windsheet.cli"]
+    print(f"load average {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores")
     print(f"{'jobs':>7}  {'units':>7}  {'report --json (CLI)':>20}  {'statistics':>11}")
     with tempfile.TemporaryDirectory() as tmp:
         for n in SIZES:
@@ -78,6 +80,7 @@ def main() -> int:
                 units = register_units(reg.conn)
             stats = median_time(lambda: build_report(units))[0]
             print(f"{n:>7}  {len(units):>7}  {wall:>18.3f} s  {stats:>9.3f} s", flush=True)
+    print(f"load average at the end {os.getloadavg()[0]:.1f}")
     return 0
 
 

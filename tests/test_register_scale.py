@@ -151,8 +151,6 @@ def _issued_register(tmp_path):
 
 @pytest.mark.parametrize("damage, words", [
     ("DROP TABLE unit_signoffs", "table 'unit_signoffs' is missing"),
-    ("UPDATE issues SET predictions_json = '{broken' WHERE id = 2", "issues row 2 holds no valid JSON object"),
-    ("UPDATE issues SET predictions_json = '[]' WHERE id = 1", "issues row 1 holds no valid JSON object"),
     ("UPDATE issues SET units_json = '{}' WHERE id = 3", "issues row 3 holds no valid JSON array"),
 ])
 def test_damaged_contents_are_refused_in_one_line_before_anything_is_written(tmp_path, damage, words):
@@ -171,6 +169,32 @@ def test_damaged_contents_are_refused_in_one_line_before_anything_is_written(tmp
     assert listing.exit_code in (0, 2) and "Traceback" not in listing.output
     if listing.exit_code == 2:
         assert len(listing.stderr.splitlines()) == 1
+
+
+@pytest.mark.parametrize("damage, row", [
+    ("UPDATE issues SET predictions_json = '{broken' WHERE id = 2", 2),
+    ("UPDATE issues SET predictions_json = '[]' WHERE id = 1", 1),
+])
+def test_another_jobs_damaged_record_is_kept_and_left_to_the_whole_check(tmp_path, damage, row):
+    # A writer checks what the listing reads and the records it touches, not every job's JSON:
+    # issuing HL-0412 writes; the damaged record of another job is kept as it was and
+    # `register --check` names it; that job's own record is refused where it is read.
+    path = _issued_register(tmp_path)
+    conn = sqlite3.connect(path)
+    conn.execute(damage)
+    conn.commit()
+    damaged = conn.execute("SELECT job, predictions_json FROM issues WHERE id = ?", (row,)).fetchone()
+    conn.close()
+    res = runner.invoke(app, ["register", "--issue", str(BIFILAR), "--register", str(path)])
+    assert res.exit_code == 0, res.output
+    conn = sqlite3.connect(path)
+    assert conn.execute("SELECT job, predictions_json FROM issues WHERE id = ?", (row,)).fetchone() == damaged
+    conn.close()
+    check = runner.invoke(app, ["register", "--check", "--register", str(path)])
+    assert check.exit_code == 2 and f"issues row {row} holds no valid JSON object" in check.stderr
+    with R.open_register(path) as reg:
+        with pytest.raises(InputError, match=f"issues row {row} holds no valid JSON object"):
+            reg.job_history(damaged[0])
 
 
 def test_text_that_is_not_utf8_is_damage(tmp_path):

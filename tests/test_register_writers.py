@@ -164,9 +164,53 @@ def test_readers_check_what_they_read_and_register_check_checks_everything(tmp_p
     assert check.exit_code == 2
     assert check.stderr == (f"windsheet: {reg}: register is damaged: issues row 1 holds no valid JSON object "
                             "in predictions_json; restore it from a backup\n")
+    # A writer that reads or touches that job's record refuses before writing: a reprint of its
+    # traveller, its sign-off (both read or point at issue row 1).
     before = reg.read_bytes()
-    assert run("register", "--issue", SINGLE, "--register", reg).exit_code == 2
-    assert reg.read_bytes() == before
+    for args in (("traveller", BIFILAR, "-o", tmp_path / "again.html", "--register", reg),
+                 ("register", "--issue", BIFILAR, "--register", reg),
+                 ("signoff", BIFILAR, MEASURED, "--register", reg)):
+        res = run(*args)
+        assert res.exit_code == 2 and "register is damaged" in res.stderr, (args, res.output)
+        assert "issues row 1" in res.stderr and len(res.stderr.splitlines()) == 1, res.stderr
+    assert reg.read_bytes() == before and not (tmp_path / "again.html").exists()
+    # A writer of another job checks only what the listing reads and its own rows: it writes, and
+    # the damaged record is kept as it was (never lost), still found by the whole check.
+    assert run("register", "--issue", SINGLE, "--register", reg).exit_code == 0
+    conn = sqlite3.connect(reg)
+    assert conn.execute("SELECT predictions_json FROM issues WHERE id = 1").fetchone() == ("{broken",)
+    assert conn.execute("SELECT job FROM issues ORDER BY id").fetchall() == [("HL-0412",), ("HL-0410",)]
+    conn.close()
+    assert run("register", "--check", "--register", reg).exit_code == 2
+
+
+def test_a_writer_checks_what_the_listing_reads_and_no_record_json(tmp_path):
+    """The writers' check reads the listing's columns and never an issue's prediction or a
+    sign-off's result (the columns that make a register large)."""
+    from windsheet.records import register_schema as schema
+
+    reg = tmp_path / "reg.db"
+    assert run("traveller", BIFILAR, "-o", tmp_path / "t.html", "--register", reg).exit_code == 0
+    assert run("signoff", BIFILAR, MEASURED, "--register", reg).exit_code == 0
+    conn = sqlite3.connect(reg)
+    seen = []
+    conn.set_trace_callback(seen.append)
+    schema.check_listed(conn, str(reg))
+    conn.set_trace_callback(None)
+    reads = " ".join(seen)
+    for record in ("predictions_json", "order_text", "result_json", "measurements_json"):
+        assert record not in reads, record
+    # Each issue's columns come from the covering index (SQLite's own query plan).
+    issues_read = next(q for q in seen if "FROM issues" in q and "units_json" in q and "json_valid" not in q)
+    plan = " ".join(r[3] for r in conn.execute("EXPLAIN QUERY PLAN " + issues_read))
+    assert "COVERING INDEX issues_listing" in plan, plan
+    # And it refuses what the listing refuses: a unit's serial that is not UTF-8.
+    conn.execute("UPDATE unit_signoffs SET serial = cast(x'48ff' as text) WHERE id = 2")
+    conn.commit()
+    with pytest.raises(InputError, match="unit_signoffs.serial of row 2 is not valid UTF-8"):
+        schema.check_listed(conn, str(reg))
+    conn.close()
+    assert run("register", "--register", reg).exit_code == 2
 
 
 def test_register_check_on_a_whole_register_counts_what_it_checked(tmp_path):
@@ -219,3 +263,42 @@ def test_the_listing_reads_the_covering_index_and_lists_the_same(tmp_path):
         assert r.list_jobs() == jobs
         assert r.list_jobs_page(2, 10, customer="fenwick", since="2026-01-01") == (page, total)
     assert total == 15 and [j["number"] for j in page] == [f"HL-{k:04d}" for k in (9, 7, 5, 3, 1)]
+
+
+def test_the_whole_listing_and_one_jobs_state_agree_on_revisions_and_re_tests(tmp_path):
+    """The whole listing tallies unit verdicts against each job's latest revision itself; one job's
+    state (and a page) has SQLite pick them. Both must give the states worked out by hand here."""
+    from conftest import design_for_job
+    from windsheet.records.register import open_register
+
+    def signoff(reg, number, rev, sha, verdicts):
+        reg.record_signoff({"job": number, "revision": rev, "verdict": "pass" if set(verdicts.values()) == {"pass"}
+                            else "fail", "units": [{"serial": s, "verdict": v, "lines": []}
+                                                   for s, v in verdicts.items()]}, sha, "QC")
+
+    with open_register(tmp_path / "reg.db") as reg:
+        # HL-0001: passed at revision A, then revision B issued: A's sign-offs do not count.
+        reg.record_issue(design_for_job("HL-0001", "A", ["a1", "a2"]), "o", "1" * 64)
+        signoff(reg, "HL-0001", "A", "1" * 64, {"a1": "pass", "a2": "pass"})
+        reg.record_issue(design_for_job("HL-0001", "B", ["a1", "a2"]), "o", "2" * 64)
+        # HL-0002: a unit failed, then passed its re-test: the last verdict of each serial stands.
+        reg.record_issue(design_for_job("HL-0002", "A", ["b1", "b2"]), "o", "3" * 64)
+        signoff(reg, "HL-0002", "A", "3" * 64, {"b1": "pass", "b2": "fail"})
+        signoff(reg, "HL-0002", "A", "3" * 64, {"b2": "pass"})
+        # HL-0003: one unit passed, one not signed; HL-0004: one incomplete.
+        reg.record_issue(design_for_job("HL-0003", "A", ["c1", "c2"]), "o", "4" * 64)
+        signoff(reg, "HL-0003", "A", "4" * 64, {"c1": "pass"})
+        reg.record_issue(design_for_job("HL-0004", "A", ["d1"]), "o", "5" * 64)
+        signoff(reg, "HL-0004", "A", "5" * 64, {"d1": "incomplete"})
+        listed = {j["number"]: (j["revision"], j["state"], j["units_passed"], j["units_not_signed"])
+                  for j in reg.list_jobs()}
+        assert listed == {"HL-0001": ("B", "issued", [], ["a1", "a2"]),
+                          "HL-0002": ("A", "passed", ["b1", "b2"], []),
+                          "HL-0003": ("A", "issued", ["c1"], ["c2"]),
+                          "HL-0004": ("A", "incomplete", [], [])}
+        for number, (rev, state, passed, not_signed) in listed.items():
+            one = reg.job_state(number)
+            assert (one["revision"], one["state"], one["units_passed"], one["units_not_signed"]) == listed[number]
+        page, total = reg.list_jobs_page(1, 3)
+        assert total == 4 and [(j["number"], j["state"]) for j in page] == [
+            ("HL-0004", "incomplete"), ("HL-0003", "issued"), ("HL-0002", "passed")]

@@ -245,8 +245,11 @@ def family_statistics(units: list[dict]) -> list[dict]:
             for job in fam["jobs"]:
                 xs = line["by_job"].get(job)
                 if xs:
-                    jb = bias(xs)
-                    per_job.append({"job": job, "n": jb["n"], "mean": float(np.mean(xs)), "sd": jb["sd"]})
+                    # One array per job (its mean and sd as bias() gives them, the mean not taken twice).
+                    xa = np.asarray(xs, dtype=float)
+                    mean = xa.mean()
+                    per_job.append({"job": job, "n": int(xa.size), "mean": float(mean),
+                                    "sd": float(xa.std(ddof=1)) if xa.size > 1 else None})
             lines.append({"key": line["key"], "item": line["item"], "bias": b,
                           "statement": bias_text(fam["label"], line["item"].lower(), b, apart),
                           "per_job": per_job, "chart": line_chart(line["points"])})

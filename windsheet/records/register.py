@@ -247,6 +247,7 @@ class Register(JobStates):
         if not order_sha256:
             raise InputError("order", "no order hash to record")
         with self.transaction() as c:
+            self._check_job_records(c, number)
             for (sha,) in c.execute("SELECT DISTINCT order_sha256 FROM issues WHERE job = ? AND revision = ?",
                                     (number, revision)):
                 if sha != order_sha256:
@@ -273,6 +274,15 @@ class Register(JobStates):
             if sheet is not None:
                 record_pending(c, sheet, cur.lastrowid, now)
             return int(cur.lastrowid), "issued"
+
+    def _check_job_records(self, c, number: str) -> None:
+        """The job's own issue records, checked before a writer adds to them (a reprint points at
+        one): each holds a JSON object. Other jobs' records are ``register --check``'s."""
+        bad = c.execute("SELECT id FROM issues WHERE job = ? AND NOT (json_valid(predictions_json) AND "
+                        "json_type(predictions_json) = 'object') ORDER BY id LIMIT 1", (number,)).fetchone()
+        if bad is not None:
+            raise InputError(self.label, f"register is damaged: issues row {bad[0]} holds no valid JSON object "
+                                         "in predictions_json; restore it from a backup")
 
     # -- sign-off ----------------------------------------------------------------------
 
@@ -318,6 +328,7 @@ class Register(JobStates):
         inspector = inspector or result.get("inspector")
         units = result.get("units") or []
         with self.transaction() as c:
+            self._check_job_records(c, number)
             issue_id = self._issue_for(c, number, revision, order_sha256)
             now = _now()
             cur = c.execute(
@@ -398,8 +409,14 @@ class Register(JobStates):
         row = self.conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()
         if row is None:
             raise InputError("register", f"no issue {issue_id}")
-        p = json.loads(row[0])
-        if not isinstance(p, dict) or not isinstance(p.get("job"), dict):
+        try:
+            p = json.loads(row[0])
+        except ValueError:
+            p = None
+        if not isinstance(p, dict):  # refused at its row, as register --check names it
+            raise InputError(self.label, f"register is damaged: issues row {issue_id} holds no valid JSON object "
+                                         "in predictions_json; restore it from a backup")
+        if not isinstance(p.get("job"), dict):
             raise ValueError(f"issue {issue_id}: its prediction is not a prediction")
         return p
 
@@ -446,11 +463,16 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         raise InputError(label, f"cannot open the register: {exc}") from None
     try:
         conn.execute(f"PRAGMA busy_timeout = {int(timeout * 1000)}")
-        version = _check_contents(conn, label)
-        # Content checked before anything is written, the migration included: what the
-        # listing reads (so a register it calls damaged is never written to) and the JSON.
-        schema.check_text(conn, label)
-        schema.check_json(conn, label)
+        # Proportional to the work: the header (read above), version and structure, and what the
+        # listing reads of every row (so a register it calls damaged is never written to); each
+        # record a writer reads or touches is checked as it is read. A migration reads every record:
+        # an older register gets the whole check first. The whole check is `register --check`.
+        version = _check_contents(conn, label, whole_file=_needs_migration(conn))
+        if version < SCHEMA_VERSION:
+            schema.check_text(conn, label)
+            schema.check_json(conn, label)
+        else:
+            schema.check_listed(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
@@ -481,6 +503,11 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         reg.close()
         raise
     return reg
+
+
+def _needs_migration(conn: sqlite3.Connection) -> bool:
+    """Whether opening for writing will migrate the register (read from its header's user_version)."""
+    return conn.execute("PRAGMA user_version").fetchone()[0] < SCHEMA_VERSION
 
 
 def _sqlite_uri(p: Path, immutable: bool) -> str:

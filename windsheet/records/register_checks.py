@@ -50,8 +50,10 @@ def _check_contents(conn: sqlite3.Connection, label: str, whole_file: bool = Tru
     """Check a register's header tables, version and structure; returns its schema version.
 
     ``whole_file`` adds SQLite's ``quick_check`` of every page (a read of the whole
-    file): made before anything is written, and by ``windsheet register --check``.
-    A reader leaves it out and meets any damage in the rows it reads, refused there.
+    file): made before a migration (which reads every record). A writer otherwise
+    checks what the listing reads (:func:`register_schema.check_listed`), a reader
+    meets any damage in the rows it reads, refused there; ``windsheet register
+    --check`` makes the whole check.
     """
     try:
         ok = conn.execute("PRAGMA quick_check").fetchone()[0] if whole_file else "ok"

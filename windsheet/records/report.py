@@ -26,30 +26,35 @@ BIAS_NOTE = ("Bias is the mean of measured / predicted − 1 over the family's u
 
 def register_units(conn) -> list[dict]:
     """Every signed-off unit (its latest sign-off), in sign-off order, with its family and lines."""
-    fam_by_issue: dict = {}
+    fam_by_issue = issue_families(conn)
     latest: dict = {}
+    loads = json.loads
     for uid, job, serial, at, mjson, issue_id in conn.execute(
             "SELECT u.id, u.job, u.serial, u.signed_at, u.measurements_json, s.issue_id FROM unit_signoffs u"
             " JOIN signoffs s ON s.id = u.signoff_id ORDER BY u.signed_at, u.id"):
-        if issue_id not in fam_by_issue:
-            fam_by_issue[issue_id] = recorded_family(conn, issue_id)
         latest.pop((job, serial), None)  # a re-test supersedes, and takes its own place in time
-        m = json.loads(mjson) or {}
+        m = loads(mjson) or {}
         latest[(job, serial)] = {"job": job, "serial": serial, "signed_at": at,
                                  "family": fam_by_issue[issue_id], "verdict": m.get("verdict") or "pass",
                                  "lines": m.get("lines") or []}
     return list(latest.values())
 
 
-def recorded_family(conn, issue_id: int) -> tuple[str, str]:
-    """``(key, label)`` of an issue's family: read from its recorded design, made for an older record."""
+def issue_families(conn) -> dict:
+    """``{issue id: (key, label)}`` of every issue signed off, in one query (not one per issue):
+    the family read from its recorded design, made for an older record that has none."""
     from windsheet.design.family import family_of
 
-    key, label, raw = conn.execute(
-        "SELECT json_extract(predictions_json, '$.family.key'), json_extract(predictions_json, '$.family.label'),"
-        " CASE WHEN json_extract(predictions_json, '$.family') IS NULL THEN predictions_json END"
-        " FROM issues WHERE id = ?", (issue_id,)).fetchone()
-    return (key, label) if key is not None else family_of(json.loads(raw))
+    out = {}
+    for issue_id, fam in conn.execute("SELECT id, json_extract(predictions_json, '$.family') FROM issues"
+                                      " WHERE id IN (SELECT issue_id FROM signoffs)"):
+        fam = json.loads(fam) if fam is not None else None
+        if isinstance(fam, dict) and fam.get("key") is not None:
+            out[issue_id] = (fam["key"], fam.get("label"))
+        else:
+            raw = conn.execute("SELECT predictions_json FROM issues WHERE id = ?", (issue_id,)).fetchone()[0]
+            out[issue_id] = family_of(json.loads(raw))
+    return out
 
 
 def build_report(units: list[dict], chart_lines=CHART_LINES) -> dict:
