@@ -174,6 +174,8 @@ def test_issue_signoff_states_and_history(tmp_path):
         reg.record_signoff(result(p, ("pass", "pass")))
         st = reg.list_jobs()[0]
         assert st["state"] == "passed" and st["units_passed"] == ["HL-0412-01", "HL-0412-02"]
+        # Who issued it, as issued (the listing's unit tally once overwrote it with the tally).
+        assert st["issued_by"] == "R. Okafor" and reg.job_state("HL-0412")["issued_by"] == "R. Okafor"
         events = reg.job_history("HL-0412")["events"]
     assert [e["event"] for e in events] == ["issued", "signed off", "signed off"]
     assert [e["verdict"] for e in events[1:]] == ["fail", "pass"]
