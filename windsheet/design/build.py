@@ -128,7 +128,9 @@ def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
     out = []
     worst_turns = {int(t) for t in worst if t is not None}
     full = max(layout.turns_in_layer)
-    for lay_i in range(layout.layers):
+    # A sectioned winding: its first section drawn; the others are wound the same beside it.
+    drawn = layout.layers_per_section[0] if layout.sections > 1 else layout.layers
+    for lay_i in range(drawn):
         sel = np.flatnonzero(layout.layer == lay_i)
         slots = sorted(set(layout.slot[sel].tolist()))
         # A partial layer shows fewer slots after the ellipsis, in proportion to its turns.
@@ -148,7 +150,7 @@ def _cross_section(layout, keep=6, potential=None, worst=(None, None)):
         out.append({"layer": lay_i + 1, "turns": len(slots), "slots": rows,
                     "elided": len(shown) < len(slots)})
     return {"layers": out, "tape_between_layers": layout.tape > 0 and layout.layers > 1,
-            "kind": layout.kind,
+            "kind": layout.kind, "sections": layout.sections,
             "potential_max_Vpk": float(np.max(potential)) if potential is not None and len(potential) else None}
 
 

@@ -530,6 +530,7 @@ class CrossSection(Part):
     layers: list[SectionLayer] = Field(default_factory=list)
     tape_between_layers: bool = False
     kind: Optional[str] = None
+    sections: int = Field(1, description="a sectioned winding: its first section's layers are the ones drawn")
     potential_max_Vpk: Optional[float] = None
 
 
