@@ -97,3 +97,26 @@ def test_sections_refused_on_a_toroid():
     with pytest.raises(Exception) as exc:
         _size(doc)
     assert "winding.sections" in str(getattr(exc.value, "path", "")) + str(exc.value)
+
+
+def test_a_wall_is_judged_at_the_larger_of_the_steady_and_the_edge_voltage():
+    from types import SimpleNamespace
+
+    from windsheet.design.section_check import check_sections
+
+    def one(width, n):
+        return cylinder_layout(0.02, width, 0.2e-3, 0.239e-3, 1, n, layers=3, layer_style="stacked")
+    lay = sectioned_layout(one, 2 * 20 * 0.239e-3 + 1e-3 + 1e-6, 2, 1e-3, 120)
+    order = np.argsort(np.argsort(lay.index))          # each turn's place along the winding
+    steady = np.linspace(1000.0, 0.0, 120)[order]
+    edge = steady.copy()
+    edge[order < 20] = 1000.0                             # the edge holds section 1's first layer up
+    wall = SimpleNamespace(strength=None, per=1e-3, thickness=1e-3, material="nylon", pollution_degree=2,
+                           material_group="IIIa")
+    # Counted by hand as in test_wall_voltage_is_the_hand_count: the facing turns are 19, 20, 59
+    # and 60, 99, 100 along the winding.
+    by_place = {int(k): t for t, k in enumerate(order)}
+    before, after = [by_place[k] for k in (19, 20, 59)], [by_place[k] for k in (60, 99, 100)]
+    hand = max(max(abs(v[a] - v[b]) for a in before for b in after) for v in (steady, edge))
+    got = check_sections(lay, steady, wall, 0.25, False, potted=True, edge_potential=edge)["walls"][0]
+    assert got["across_Vpk"] == pytest.approx(hand, rel=1e-12) and hand > 500.0

@@ -368,7 +368,8 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         walls = check_sections(layout, st["turn_potential_Vpk"], doc.winding.section_wall,
                                doc.insulation.derating, duty.frequency > 0 and duty.waveform != "pulse",
                                f0.height if isinstance(f0, BobbinForm) else getattr(f0, "max_build", None),
-                               potted=doc.winding.impregnation == "potted")
+                               potted=doc.winding.impregnation == "potted",
+                               edge_potential=st.get("edge_turn_potential_Vpk"))
         st = {**st, "insulation": with_sections(st["insulation"], walls)}
     bench = bench_tests(L, R20, layout, wire, order.hookup_name, order.joins, order.terminals,
                         doc.test.frequency, st["capacitance"]["terminal_F"], doc.test.ring_capacitor,

@@ -29,19 +29,25 @@ def _creepage_needed(across_Vpk, ac, pollution_degree, group):
         return None
 
 
-def check_sections(layout, potential, wall, derating, ac, wall_top=None, potted=False):
+def check_sections(layout, potential, wall, derating, ac, wall_top=None, potted=False, edge_potential=None):
     """Each wall of a sectioned layout judged, as the design's ``sections`` part.
 
     ``potential`` is each turn's peak potential [V]; ``wall`` the order's
     ``winding.section_wall``; ``wall_top`` the walls' height above the winding
     surface [m] (a bobbin's window height, a cylinder's max_build; None: flush).
     A potted winding has no surface over the wall to track along: no creepage.
+    ``edge_potential`` [V], under a fast edge: each wall is judged at the larger of the
+    steady and the edge's voltage across it (as every neighbouring pair is).
     """
     strength = DEFAULT_WALL_STRENGTH_V_PER_M if wall.strength is None else wall.strength / wall.per
     allowed = sl.wall_allowed_voltage(wall.thickness, strength, derating)
     available = sl.creepage_over_wall(wall.thickness, wall_top, layout.build_height)
     walls = []
-    for w in sl.wall_voltages(layout, potential):
+    steady = sl.wall_voltages(layout, potential)
+    edge = sl.wall_voltages(layout, edge_potential) if edge_potential is not None else steady
+    for w, e in zip(steady, edge):
+        w = {**w, "across_Vpk": max(w["across_Vpk"], e["across_Vpk"]),
+             "crossover_Vpk": max(w["crossover_Vpk"], e["crossover_Vpk"])}
         v = w["across_Vpk"]
         need = 0.0 if potted else _creepage_needed(v, ac, wall.pollution_degree, wall.material_group)
         where = f"wall {w['wall']} (between sections {w['wall']} and {w['wall'] + 1})"
@@ -75,8 +81,8 @@ def check_sections(layout, potential, wall, derating, ac, wall_top=None, potted=
             "layers_per_section": list(layout.layers_per_section), "turns_per_section": turns,
             "walls": walls, "verdict": worst, "crossover_sleeves_per_unit": len(walls) * layout.strands,
             "crossover_Vpk": max((w["crossover_Vpk"] for w in walls), default=0.0),
-            "basis": ("voltage across each wall from the steady voltage map (the turns facing it on either "
-                      "side); solid: thickness × the material's short-time strength (IEC 60243-1) × the "
+            "basis": ("voltage across each wall from the steady voltage map, and under a fast edge from its "
+                      "initial distribution, the larger (the turns facing it on either side); solid: thickness × the material's short-time strength (IEC 60243-1) × the "
                       "order's derating; creepage over the top, face to face (IEC 60664-1 table F.4)")}
 
 

@@ -471,5 +471,7 @@ def assess(layout: Layout, network, applied_V, frequency, wire_breakdown_V, *,
         # For the traveller's voltage picture: each turn's peak potential from terminal 1, and
         # the worst pair's turn indices (None when the worst is a lead).
         "turn_potential_Vpk": np.abs(v) * peak,
+        # Under a fast edge, the initial capacitive distribution's (None without one).
+        "edge_turn_potential_Vpk": None if edge is None else np.abs(v_edge) * peak,
         "worst_pair": (worst.get("i"), worst.get("j")),
     }
