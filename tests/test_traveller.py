@@ -83,9 +83,11 @@ def failing(p):
 
 
 
-def pdf_pages_text(pdf: bytes) -> list[str]:
+@lru_cache(maxsize=64)
+def pdf_pages_text(pdf: bytes) -> tuple[str, ...]:
+    # Cached: reading a PDF's text was half of this module's time, the same sheets read by many tests.
     reader = pypdf.PdfReader(io.BytesIO(pdf))
-    return [normalise(p.extract_text()) for p in reader.pages]
+    return tuple(normalise(p.extract_text()) for p in reader.pages)
 
 
 def normalise(text: str) -> str:
@@ -643,8 +645,19 @@ def test_cli_bad_paper_is_refused(tmp_path):
 
 # --- pagination: every sample on A4 and on Letter, read back from the PDF's own text ----------
 
+_LINES: dict = {}
+
+
 def _page_lines(page) -> list[tuple[float, float, str]]:
-    """``(y, x, text)`` of every text run on a page, y in points from the bottom."""
+    """``(y, x, text)`` of every text run on a page, y in points from the bottom (read once a page)."""
+    # Keyed by the page object, kept alive with its runs: the cached sheets' pages are read by many tests.
+    hit = _LINES.get(id(page))
+    if hit is None or hit[0] is not page:
+        hit = _LINES[id(page)] = (page, _read_page_lines(page))
+    return hit[1]
+
+
+def _read_page_lines(page) -> list[tuple[float, float, str]]:
     runs = []
 
     def visit(text, cm, tm, font_dict, font_size):
