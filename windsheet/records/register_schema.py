@@ -174,6 +174,17 @@ LISTED_TEXT = {
 }
 
 
+def _require_utf8(label: str, table: str, cols, rowid, values) -> None:
+    """Refuse, naming the row, a listed column read as bytes that are not UTF-8."""
+    for col, value in zip(cols, values):
+        if isinstance(value, bytes):
+            try:
+                value.decode("utf-8")
+            except UnicodeDecodeError:
+                raise InputError(label, f"register is damaged: {table}.{col} of row {rowid} is not "
+                                        "valid UTF-8 text; restore it from a backup") from None
+
+
 def check_text(conn: sqlite3.Connection, label: str) -> None:
     """Refuse a register whose listed text columns hold bytes that are not UTF-8 (one line).
 
@@ -192,13 +203,7 @@ def check_text(conn: sqlite3.Connection, label: str) -> None:
         conn.text_factory = bytes
         try:
             for row in conn.execute(f"SELECT rowid, {', '.join(cols)} FROM {table}{indexed} WHERE {odd}"):
-                for col, value in zip(cols, row[1:]):
-                    if isinstance(value, bytes):
-                        try:
-                            value.decode("utf-8")
-                        except UnicodeDecodeError:
-                            raise InputError(label, f"register is damaged: {table}.{col} of row {row[0]} is not "
-                                                    "valid UTF-8 text; restore it from a backup") from None
+                _require_utf8(label, table, cols, row[0], row[1:])
         finally:
             conn.text_factory = old_factory
 
@@ -279,13 +284,7 @@ def check_listed(conn: sqlite3.Connection, label: str) -> None:
                             if not (r[1] if isinstance(r[1], bytes) else str(r[1]).encode()).isascii()]
             for rowid in doubtful:
                 row = conn.execute(f"SELECT {', '.join(cols)} FROM {table} WHERE rowid = ?", (rowid,)).fetchone()
-                for col, value in zip(cols, row):
-                    if isinstance(value, bytes):
-                        try:
-                            value.decode("utf-8")
-                        except UnicodeDecodeError:
-                            raise InputError(label, f"register is damaged: {table}.{col} of row {rowid} is not "
-                                                    "valid UTF-8 text; restore it from a backup") from None
+                _require_utf8(label, table, cols, rowid, row)
         index = f" INDEXED BY {LISTING_INDEX}" if LISTING_INDEX in indexes else ""
         bad = conn.execute(f"SELECT id FROM issues{index} WHERE NOT json_valid(units_json) "
                            "OR json_type(units_json) != 'array' LIMIT 1").fetchone()
