@@ -9,6 +9,7 @@
   var timers = {};
   var chains = {};
   var saved = {};
+  var shown = -1;
 
   function show(el, items) {
     el.textContent = "";
@@ -67,7 +68,8 @@
           if (hidden) { hidden.value = data.version; }
         }
         message(data.message, !!data.message);
-        if (data.units) { apply(data.units); }
+        // Answers can arrive out of order; the server numbers them, and only a newer view is shown.
+        if (data.units && !(data.seq < shown)) { shown = data.seq; apply(data.units); }
         if (data.stale && data.value !== undefined) { input.value = data.value; saved[input.name] = data.value; }
         input.classList.toggle("stale", !!data.stale);
       })
@@ -82,8 +84,11 @@
         "; path=/; SameSite=Strict; max-age=31536000";
     });
   }
+  // What the server rendered is what it holds; anything typed before this script ran is saved now.
+  var typedEarly = [];
   Array.prototype.forEach.call(form.querySelectorAll("input[data-field]"), function (el) {
-    saved[el.name] = el.value;
+    saved[el.name] = el.defaultValue;
+    if (el.value !== el.defaultValue) { typedEarly.push(el); }
   });
   form.addEventListener("input", function (ev) {
     var input = ev.target;
@@ -98,4 +103,5 @@
     clearTimeout(timers[input.name]);
     queue(input);
   });
+  typedEarly.forEach(queue);
 })();

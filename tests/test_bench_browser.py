@@ -129,6 +129,21 @@ def test_drafts_survive_a_server_restart(page, server):
     assert page.input_value('input[name="r:3:terminals.resistance"]') == "1.7488 ohm"
 
 
+def test_a_line_typed_before_the_script_runs_is_saved_and_judged(page, server):
+    # A slow link: the page is shown and typed into before its script arrives. The script then
+    # saves what was typed (it once took the typed text for the saved text, and nothing was judged).
+    held = []
+    page.route("**/static/bench.js", lambda route: held.append(route))
+    page.goto(server.url + "/job/HL-0412", wait_until="commit")
+    page.fill('input[name="r:3:strands.B.inductance"]', "100.2 uH")
+    assert held, "the page asked for its script"
+    held[0].continue_()
+    _cell(page, 3, "strand.B.inductance").get_by_text("PASS 100.2").wait_for()
+    page.unroute("**/static/bench.js")
+    page.reload()
+    assert page.input_value('input[name="r:3:strands.B.inductance"]') == "100.2 uH"
+
+
 # ---------------------------------------------------------------- a page that fits the job
 
 def test_placeholders_are_this_jobs_own_prediction(page, server):

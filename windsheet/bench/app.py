@@ -18,6 +18,7 @@ import hmac
 import io
 import re
 import secrets
+import time
 from concurrent.futures import ThreadPoolExecutor
 from urllib.parse import urlsplit
 
@@ -286,6 +287,9 @@ def create_app(register_path, token: str | None = None, allowed_hosts=None) -> S
             pv = preview_unit(prediction, state["revision"], job_entries, serials[i], entries, order_text)
             units[str(i)] = {"cells": cell_texts(pv, rows), "summary": unit_summary(pv)}
         out["units"] = units
+        # The one worker computes views in turn: a larger number is a view that holds every earlier
+        # save. Microseconds of the clock, so a restarted server still counts upward.
+        held["seq"] = out["seq"] = max(int(time.time() * 1e6), held.get("seq", 0) + 1)
         return out
 
     # -- downloads -------------------------------------------------------------------
