@@ -1,26 +1,24 @@
-"""Page faults of a rendered sheet, found from its layout and its PDF.
+"""Page faults of a rendered sheet, found from its layout.
 
-One render gives both: WeasyPrint lays the HTML out into pages (the boxes the PDF is
-drawn from), and the same document writes the PDF.  The checks:
+WeasyPrint lays the HTML out into pages: the boxes the PDF is drawn from, so what is
+measured here is what prints (no PDF is written or read back).  The checks:
 
 * every SVG drawing's text lies inside the drawing's box, and no label is drawn over
   another or crossed by a line: text extents are measured with the font's own advance
   widths (DejaVu Sans, the font the drawings name), read with fontTools;
 * no table is wider than the text block;
-* no page is less than a fifth full, except the last (from the PDF's own text);
+* no page is less than a fifth full, except the last (the lowest text or drawing on it);
 * no figure caption sits on another page than its figure.
 """
 
 from __future__ import annotations
 
 import base64
-import io
 import re
 import subprocess
 import xml.etree.ElementTree as ET
 from functools import lru_cache
 
-import pypdf
 
 SVG = "{http://www.w3.org/2000/svg}"
 
@@ -167,13 +165,12 @@ def embedded_svgs(html: str) -> list[tuple[str, str]]:
     return out
 
 
-def layout_and_pdf(html: str):
-    """Lay the sheet out once: ``(document, pdf bytes)``."""
+def layout(html: str):
+    """Lay the sheet out once, as ``render_pdf`` does: WeasyPrint's document of pages."""
     from windsheet.sheets.sheet_pdf import TEMPLATES_DIR, _weasyprint, templates_only_fetcher
 
     wp = _weasyprint()
-    doc = wp.HTML(string=html, base_url=str(TEMPLATES_DIR) + "/", url_fetcher=templates_only_fetcher()).render()
-    return doc, doc.write_pdf()
+    return wp.HTML(string=html, base_url=str(TEMPLATES_DIR) + "/", url_fetcher=templates_only_fetcher()).render()
 
 
 def _boxes(page):
@@ -249,35 +246,38 @@ def _first_text(el) -> str:
     return re.sub(r"\s+", " ", "".join(el.itertext())).strip()[:60]
 
 
-def page_fill(pdf: bytes, top_mm: float = 22.0, bottom_mm: float = 20.0) -> list[float]:
-    """How full each page is, read from the PDF's text: the lowest line of the body over its height."""
-    reader = pypdf.PdfReader(io.BytesIO(pdf))
+def page_fill(doc) -> list[float]:
+    """How full each page is: the foot of its lowest text line or drawing over the text block's height.
+
+    Read from the laid-out boxes, not the PDF's text: a drawing's own labels sit inside its
+    box, where text read back from the PDF comes out at the wrong height (the SVG's transform).
+    """
     out = []
-    for page in reader.pages:
-        height = float(page.mediabox.height)
-        top, bottom = height - top_mm / 25.4 * 72, bottom_mm / 25.4 * 72
-        ys = []
-
-        def visit(text, cm, tm, font_dict, font_size):
-            if text.strip():
-                y = cm[5] + tm[5] * cm[3]
-                if bottom < y < top:
-                    ys.append(y)
-
-        page.extract_text(visitor_text=visit)
-        out.append((top - min(ys)) / (top - bottom) if ys else 0.0)
+    for page in doc.pages:
+        pb = page._page_box
+        top = pb.content_box_y()
+        bottom = top + pb.height
+        low = None
+        for b in pb.descendants():
+            kind = type(b).__name__
+            if (kind == "TextBox" and b.text.strip()) or "Replaced" in kind:
+                # Only the body: the running header and footer lie in the page's margins.
+                if top <= b.position_y < bottom:
+                    foot = b.position_y + b.margin_height()
+                    low = foot if low is None else max(low, foot)
+        out.append(0.0 if low is None else (min(low, bottom) - top) / (bottom - top))
     return out
 
 
-def sheet_faults(html: str, min_fill: float = 0.2) -> tuple[list[str], bytes]:
-    """Every page fault of one sheet, and the PDF it was found in."""
-    doc, pdf = layout_and_pdf(html)
+def sheet_faults(html: str, min_fill: float = 0.2) -> tuple[list[str], object]:
+    """Every page fault of one sheet, and the laid-out document it was found in."""
+    doc = layout(html)
     faults = []
     for name, svg in embedded_svgs(html):
         faults += svg_faults(svg, name)
     faults += layout_faults(doc)
-    fill = page_fill(pdf)
+    fill = page_fill(doc)
     for k, f in enumerate(fill[:-1], start=1):
         if f < min_fill:
             faults.append(f"page {k} of {len(fill)} is {f:.0%} full")
-    return faults, pdf
+    return faults, doc

@@ -22,6 +22,7 @@ from windsheet.order.document import load_order
 from windsheet.design.build import build_design
 
 from conftest import redesign, sample_orders
+from page_faults import layout
 
 SVG = "{http://www.w3.org/2000/svg}"
 
@@ -37,10 +38,29 @@ def sample_prediction(stem: str) -> dict:
     return build_design(load_order(ROOT / "samples" / f"{stem}.yaml"))
 
 
+_BOX_PAGES: dict = {}
+
+
 @lru_cache(maxsize=None)
 def sample_sheet(stem: str, paper: str = "a4") -> tuple[str, bytes]:
     html = render.render_traveller_html(sample_prediction(stem), paper=paper)
-    return html, render.render_pdf(html)
+    # Laid out once: the pagination tests read the boxes, the others the PDF drawn from them.
+    doc = layout(html)
+    _BOX_PAGES[(stem, paper)] = box_pages(doc)
+    return html, doc.write_pdf()
+
+
+def box_pages(doc) -> tuple:
+    """Each laid-out page as ``(text, runs, height)``: runs ``(y, x, text)`` of every line of text,
+    at its baseline, in points from the page's foot (the PDF's own frame), height in points."""
+    pages = []
+    for page in doc.pages:
+        runs = [(round((page.height - b.position_y - b.baseline) * 0.75, 1), round(b.position_x * 0.75, 1),
+                 normalise(b.text))
+                for b in page._page_box.descendants() if type(b).__name__ == "TextBox" and b.text.strip()]
+        runs.sort(key=lambda r: (-r[0], r[1]))
+        pages.append((" ".join(t for _, _, t in runs), runs, page.height * 0.75))
+    return tuple(pages)
 
 
 def order_yaml(tmp_path, name, text) -> Path:
@@ -643,44 +663,19 @@ def test_cli_bad_paper_is_refused(tmp_path):
     assert not (tmp_path / "x.pdf").exists()
 
 
-# --- pagination: every sample on A4 and on Letter, read back from the PDF's own text ----------
-
-_LINES: dict = {}
-
-
-def _page_lines(page) -> list[tuple[float, float, str]]:
-    """``(y, x, text)`` of every text run on a page, y in points from the bottom (read once a page)."""
-    # Keyed by the page object, kept alive with its runs: the cached sheets' pages are read by many tests.
-    hit = _LINES.get(id(page))
-    if hit is None or hit[0] is not page:
-        hit = _LINES[id(page)] = (page, _read_page_lines(page))
-    return hit[1]
-
-
-def _read_page_lines(page) -> list[tuple[float, float, str]]:
-    runs = []
-
-    def visit(text, cm, tm, font_dict, font_size):
-        if text.strip():
-            runs.append((round(cm[5] + tm[5] * cm[3], 1), round(cm[4] + tm[4] * cm[0], 1),
-                         normalise(text)))
-
-    page.extract_text(visitor_text=visit)
-    return runs
-
+# --- pagination: every sample on A4 and on Letter, read from its laid-out pages ----------------
 
 def _body_runs(page) -> list[tuple[float, float, str]]:
-    """The text runs between the running header and footer, top to bottom."""
-    height = float(page.mediabox.height)
+    """The text runs between the running header and footer of a :func:`pdf_read` page, top to bottom."""
+    _, runs, height = page
     # The page margins are 22 mm at the top and 20 mm at the bottom (print.css).
     top, bottom = height - 22 / 25.4 * 72, 20 / 25.4 * 72
-    runs = [r for r in _page_lines(page) if bottom < r[0] < top]
-    return sorted(runs, key=lambda r: (-r[0], r[1]))
+    return sorted((r for r in runs if bottom < r[0] < top), key=lambda r: (-r[0], r[1]))
 
 
 def _header_baselines(page) -> set[float]:
-    height = float(page.mediabox.height)
-    return {round(y) for y, _, _ in _page_lines(page) if y >= height - 22 / 25.4 * 72}
+    _, runs, height = page
+    return {round(y) for y, _, _ in runs if y >= height - 22 / 25.4 * 72}
 
 
 def _headings(html: str) -> set[str]:
@@ -692,9 +687,14 @@ def _headings(html: str) -> set[str]:
 
 @lru_cache(maxsize=None)
 def _sheet_pages(stem: str, paper: str):
-    html, pdf = sample_sheet(stem, paper)
-    reader = pypdf.PdfReader(io.BytesIO(pdf))
-    return html, [_body_runs(pg) for pg in reader.pages], reader
+    """A sample's sheet as laid out: its HTML, each page's body runs, and its pages."""
+    if paper == "a4":  # the A4 sheet is also read as a PDF by other tests: one layout for both
+        html, _ = sample_sheet(stem, paper)
+        pages = _BOX_PAGES[(stem, paper)]
+    else:
+        html = render.render_traveller_html(sample_prediction(stem), paper=paper)
+        pages = box_pages(layout(html))
+    return html, [_body_runs(pg) for pg in pages], pages
 
 
 PAPERS = ("a4", "letter")
@@ -750,13 +750,11 @@ FORCED_LONG_PART = FAILING_ORDER.replace('part: "Test coil"',
 @pytest.mark.parametrize("paper", PAPERS)
 def test_running_header_stays_on_one_line_even_when_forced(tmp_path, paper):
     p = build_design(load_order(order_yaml(tmp_path, "forced.yaml", FORCED_LONG_PART)))
-    pdf = render.render_pdf(render.render_traveller_html(p, paper=paper, forced=True))
-    reader = pypdf.PdfReader(io.BytesIO(pdf))
-    for k, page in enumerate(reader.pages, start=1):
+    for k, page in enumerate(box_pages(layout(render.render_traveller_html(p, paper=paper, forced=True))), start=1):
         assert len(_header_baselines(page)) == 1, f"page {k}: header on {_header_baselines(page)}"
-        assert "FORCED ISSUE" in normalise(page.extract_text())
+        assert "FORCED ISSUE" in page[0]
     for stem in SAMPLE_IDS:
-        for page in _sheet_pages(stem, paper)[2].pages:
+        for page in _sheet_pages(stem, paper)[2]:
             assert len(_header_baselines(page)) == 1, stem
 
 
