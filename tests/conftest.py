@@ -7,6 +7,25 @@ ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = ROOT / "samples"
 
 
+#: Test modules that read the same laid-out sample sheets (sheet_cache.py): one worker runs them all,
+#: so each sheet is laid out once in the run, not once per module.
+SHEET_MODULES = ("tests/test_cli_flow.py", "tests/test_page_faults.py", "tests/test_traveller.py")
+
+
+def pytest_xdist_make_scheduler(config, log):
+    if config.getoption("dist") != "loadscope":
+        return None
+    from xdist.scheduler import LoadScopeScheduling
+
+    class SheetsTogether(LoadScopeScheduling):
+        def _split_scope(self, nodeid):
+            if nodeid.startswith(SHEET_MODULES):
+                return "sample sheets"
+            return super()._split_scope(nodeid)
+
+    return SheetsTogether(config, log)
+
+
 @pytest.fixture(autouse=True)
 def _register_in_tmp(tmp_path, monkeypatch):
     # No test may touch a register in the working tree.

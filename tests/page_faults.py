@@ -269,9 +269,8 @@ def page_fill(doc) -> list[float]:
     return out
 
 
-def sheet_faults(html: str, min_fill: float = 0.2) -> tuple[list[str], object]:
-    """Every page fault of one sheet, and the laid-out document it was found in."""
-    doc = layout(html)
+def doc_faults(html: str, doc, min_fill: float = 0.2) -> list[str]:
+    """Every page fault of one sheet, from its HTML and its laid-out document."""
     faults = []
     for name, svg in embedded_svgs(html):
         faults += svg_faults(svg, name)
@@ -280,4 +279,10 @@ def sheet_faults(html: str, min_fill: float = 0.2) -> tuple[list[str], object]:
     for k, f in enumerate(fill[:-1], start=1):
         if f < min_fill:
             faults.append(f"page {k} of {len(fill)} is {f:.0%} full")
-    return faults, doc
+    return faults
+
+
+def sheet_faults(html: str, min_fill: float = 0.2) -> tuple[list[str], object]:
+    """Every page fault of one sheet, and the laid-out document it was found in."""
+    doc = layout(html)
+    return doc_faults(html, doc, min_fill), doc

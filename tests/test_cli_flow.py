@@ -42,8 +42,14 @@ def test_signoff_sheet_into_missing_folder_records_nothing(tmp_path):
     assert "signed off" not in res.stdout
 
 
-def test_demo_renders_travellers_and_signoff_sheets(tmp_path):
+def test_demo_renders_travellers_and_signoff_sheets(tmp_path, monkeypatch):
     # The one demo render of the suite (it sizes and prints every sample): every check on it is here.
+    # Its sheets are laid out through the tests' cache, so the traveller and page-fault tests read
+    # the same layouts instead of making them again (sheet_cache.py; a PDF is a function of its HTML).
+    import sheet_cache
+    from windsheet.sheets import render
+
+    monkeypatch.setattr(render, "render_pdf", sheet_cache.render_pdf)
     out = tmp_path / "demo"
     res = runner.invoke(app, ["demo", "--out", str(out)])
     assert res.exit_code == 0, res.output

@@ -2,10 +2,8 @@
 
 from __future__ import annotations
 
-import copy
 import io
 import re
-import unicodedata
 import xml.etree.ElementTree as ET
 from functools import lru_cache
 from pathlib import Path
@@ -23,6 +21,8 @@ from windsheet.design.build import build_design
 
 from conftest import redesign, sample_orders
 from page_faults import layout
+from sheet_cache import box_pages, normalise, sample_design
+from sheet_cache import sample_sheet as cached_sheet
 
 SVG = "{http://www.w3.org/2000/svg}"
 
@@ -33,34 +33,13 @@ SAMPLES = sample_orders()
 SAMPLE_IDS = [p.stem for p in SAMPLES]
 
 
-@lru_cache(maxsize=None)
-def sample_prediction(stem: str) -> dict:
-    return build_design(load_order(ROOT / "samples" / f"{stem}.yaml"))
+def sample_prediction(stem: str):
+    return sample_design(stem)
 
 
-_BOX_PAGES: dict = {}
-
-
-@lru_cache(maxsize=None)
 def sample_sheet(stem: str, paper: str = "a4") -> tuple[str, bytes]:
-    html = render.render_traveller_html(sample_prediction(stem), paper=paper)
-    # Laid out once: the pagination tests read the boxes, the others the PDF drawn from them.
-    doc = layout(html)
-    _BOX_PAGES[(stem, paper)] = box_pages(doc)
-    return html, doc.write_pdf()
-
-
-def box_pages(doc) -> tuple:
-    """Each laid-out page as ``(text, runs, height)``: runs ``(y, x, text)`` of every line of text,
-    at its baseline, in points from the page's foot (the PDF's own frame), height in points."""
-    pages = []
-    for page in doc.pages:
-        runs = [(round((page.height - b.position_y - b.baseline) * 0.75, 1), round(b.position_x * 0.75, 1),
-                 normalise(b.text))
-                for b in page._page_box.descendants() if type(b).__name__ == "TextBox" and b.text.strip()]
-        runs.sort(key=lambda r: (-r[0], r[1]))
-        pages.append((" ".join(t for _, _, t in runs), runs, page.height * 0.75))
-    return tuple(pages)
+    html, sheet = cached_sheet(stem, paper, pdf=True)
+    return html, sheet.pdf
 
 
 def order_yaml(tmp_path, name, text) -> Path:
@@ -108,11 +87,6 @@ def pdf_pages_text(pdf: bytes) -> tuple[str, ...]:
     # Cached: reading a PDF's text was half of this module's time, the same sheets read by many tests.
     reader = pypdf.PdfReader(io.BytesIO(pdf))
     return tuple(normalise(p.extract_text()) for p in reader.pages)
-
-
-def normalise(text: str) -> str:
-    # NFKC folds the micro sign and no-break spaces the sheet uses into plain forms.
-    return re.sub(r"\s+", " ", unicodedata.normalize("NFKC", text)).strip()
 
 
 def test_there_are_samples_of_every_kind():
@@ -687,14 +661,11 @@ def _headings(html: str) -> set[str]:
 
 @lru_cache(maxsize=None)
 def _sheet_pages(stem: str, paper: str):
-    """A sample's sheet as laid out: its HTML, each page's body runs, and its pages."""
-    if paper == "a4":  # the A4 sheet is also read as a PDF by other tests: one layout for both
-        html, _ = sample_sheet(stem, paper)
-        pages = _BOX_PAGES[(stem, paper)]
-    else:
-        html = render.render_traveller_html(sample_prediction(stem), paper=paper)
-        pages = box_pages(layout(html))
-    return html, [_body_runs(pg) for pg in pages], pages
+    """A sample's sheet as laid out: its HTML, each page's body runs, and its pages.
+
+    Letter is read in inches, as a shop on Letter paper prints it (the page-fault tests lay out the same)."""
+    html, sheet = cached_sheet(stem, paper, units="imperial" if paper == "letter" else None)
+    return html, [_body_runs(pg) for pg in sheet.pages], sheet.pages
 
 
 PAPERS = ("a4", "letter")
