@@ -11,7 +11,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
-from conftest import design_for_job, examples
+from conftest import SAMPLES, design_for_job, examples
 from windsheet.cli.app import app
 from windsheet.common.errors import InputError
 from windsheet.records import stored_states
@@ -181,7 +181,7 @@ def test_a_register_without_its_triggers_is_refused_in_one_line(tmp_path):
     conn.commit()
     conn.close()
     before = path.read_bytes()
-    for args in (["register"], ["register", "--issue", "samples/hl-0410-single.yaml"]):
+    for args in (["register"], ["register", "--issue", str(SAMPLES / "hl-0410-single.yaml")]):
         res = runner.invoke(app, args + ["--register", str(path)])
         assert res.exit_code == 2 and len(res.stderr.splitlines()) == 1, res.output
         assert "trigger 'job_states_stale_unit_signoffs_update' is missing" in res.stderr
@@ -244,3 +244,31 @@ def test_a_version_2_register_is_read_as_it_is_and_upgraded_by_the_first_writer_
     res = runner.invoke(app, ["register", "--register", str(path)])
     assert res.stdout.splitlines() == table_lines(listed_v3)
     assert runner.invoke(app, ["register", "--check", "--register", str(path)]).exit_code == 0
+
+
+@pytest.mark.parametrize("sql, refused", [
+    # JSON that starts with a space is still an array: the first-character test only passes the plain case.
+    ("UPDATE issues SET units_json = ' [\"s1\", \"s2\"]' WHERE id = 2", None),
+    ("UPDATE issues SET units_json = ' {}' WHERE id = 2", "issues row 2 holds no valid JSON array in units_json"),
+    ("UPDATE job_states SET tally_json = '[]' WHERE issue_id = 3",
+     "job_states row 3 holds no valid JSON object in tally_json"),
+    ("UPDATE job_states SET job = cast(x'48ff' as text) WHERE issue_id = 4", "job_states.job of row 4 is not valid UTF-8"),
+])
+def test_the_writers_check_reads_the_listed_json_and_text(tmp_path, sql, refused):
+    from windsheet.records import register_schema as schema
+
+    path = _register(tmp_path)
+    conn = sqlite3.connect(path)
+    conn.execute(sql)
+    conn.commit()
+    if refused is None:
+        schema.check_listed(conn, str(path))
+    else:
+        with pytest.raises(InputError, match=refused):
+            schema.check_listed(conn, str(path))
+    conn.close()
+    before = path.read_bytes()
+    res = runner.invoke(app, ["register", "--issue", str(SAMPLES / "hl-0410-single.yaml"), "--register", str(path)])
+    assert res.exit_code == (0 if refused is None else 2), res.output
+    if refused is not None:
+        assert len(res.stderr.splitlines()) == 1 and path.read_bytes() == before

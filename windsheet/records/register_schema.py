@@ -292,6 +292,22 @@ LISTING_READS = (
 STORED_READS = LISTING_READS[:2] + ((stored_states.TABLE, "", ("job", "state", "tally_json"), ""),)
 
 
+#: The JSON the listing reads (each issue's unit list, each stored state's serials): column, kind.
+LISTED_JSON = {"issues": ("units_json", "array"), stored_states.TABLE: ("tally_json", "object")}
+
+
+def _not_json(col: str, kind: str) -> str:
+    """An SQL test true when ``col`` holds no JSON of ``kind``: the first character decides the plain
+    case, ``json_type`` (a second parse) only a text that starts otherwise (with a space, say)."""
+    first = {"array": "[", "object": "{"}[kind]
+    return (f"(NOT json_valid({col}) OR (substr({col}, 1, 1) != '{first}' AND json_type({col}) != '{kind}'))")
+
+
+def _ascii(text) -> bool:
+    """Whether a value read as bytes (or a number, or NULL) is plain ASCII."""
+    return text is None or (text if isinstance(text, bytes) else str(text).encode()).isascii()
+
+
 def check_listed(conn: sqlite3.Connection, label: str) -> None:
     """Refuse a register whose listing would be refused: the writers' check (one line).
 
@@ -301,7 +317,7 @@ def check_listed(conn: sqlite3.Connection, label: str) -> None:
     where the listing works the states out, the sign-offs' job and revision and the
     units' serials and verdicts — and never a record's JSON: at 50,000 jobs a tenth of
     a second, where the whole check (:func:`check_text`, :func:`check_json`, every
-    page) takes seconds. A row's text is joined in SQLite and tested in Python with
+    page) takes seconds. A table's listed text is joined in SQLite and tested with
     ``bytes.isascii``; a row that is not plain ASCII is decoded column by column.
     """
     indexes = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
@@ -313,28 +329,30 @@ def check_listed(conn: sqlite3.Connection, label: str) -> None:
     try:
         for table, index, cols, plain in reads:
             source = f"{table} INDEXED BY {index}" if index else table
+            listed_json = LISTED_JSON.get(table)
+            bad_json = (_not_json(*listed_json[:2]) if listed_json else "0")
             if plain:
                 rows = conn.execute(f"SELECT rowid FROM {source} WHERE {plain}")
-                doubtful = [r[0] for r in rows]
+                doubtful, some_bad_json = [r[0] for r in rows], 0
             else:
+                # The whole table's listed text as one string, tested in C, in the same scan as its
+                # JSON: rows come into Python one by one only when some byte is not ASCII (an
+                # embedded NUL is kept, and is ASCII).
                 joined = " || ".join(f"coalesce({c}, '')" for c in cols)
-                doubtful = [r[0] for r in conn.execute(f"SELECT rowid, {joined} FROM {source}")
-                            if not (r[1] if isinstance(r[1], bytes) else str(r[1]).encode()).isascii()]
+                doubtful = []
+                text, some_bad_json = conn.execute(
+                    f"SELECT group_concat({joined}, ''), max({bad_json}) FROM {source}").fetchone()
+                if not _ascii(text):
+                    doubtful = [r[0] for r in conn.execute(f"SELECT rowid, {joined} FROM {source}")
+                                if not _ascii(r[1])]
             for rowid in doubtful:
                 row = conn.execute(f"SELECT {', '.join(cols)} FROM {table} WHERE rowid = ?", (rowid,)).fetchone()
                 _require_utf8(label, table, cols, rowid, row)
-        index = f" INDEXED BY {LISTING_INDEX}" if LISTING_INDEX in indexes else ""
-        bad = conn.execute(f"SELECT id FROM issues{index} WHERE NOT json_valid(units_json) "
-                           "OR json_type(units_json) != 'array' LIMIT 1").fetchone()
-        if bad is not None:
-            raise InputError(label, f"register is damaged: issues row {bad[0]} holds no valid JSON array "
-                                    "in units_json; restore it from a backup")
-        if stored:
-            bad = conn.execute(f"SELECT issue_id FROM {stored_states.TABLE} WHERE NOT json_valid(tally_json) "
-                               "OR json_type(tally_json) != 'object' LIMIT 1").fetchone()
-            if bad is not None:
-                raise InputError(label, f"register is damaged: {stored_states.TABLE} row {bad[0]} holds no valid "
-                                        "JSON object in tally_json; restore it from a backup")
+            if some_bad_json:
+                col, kind = listed_json
+                bad = conn.execute(f"SELECT rowid FROM {source} WHERE {bad_json} LIMIT 1").fetchone()
+                raise InputError(label, f"register is damaged: {table} row {bad[0]} holds no valid JSON {kind} "
+                                        f"in {col}; restore it from a backup")
     except sqlite3.OperationalError as exc:
         if "decode" in str(exc).lower() or "utf" in str(exc).lower():
             raise InputError(label, "register is damaged: a listed text is not valid UTF-8; "
