@@ -168,6 +168,8 @@ class Register(JobStates):
     version = SCHEMA_VERSION
     #: Lines about sheets an interrupted run left, finished on opening (see sheet_ledger).
     repairs: list = []
+    #: Opened for writing with a job lacking its stored state: the first write stores it.
+    states_incomplete = False
 
     def __init__(self, conn: sqlite3.Connection, path: Path, timeout: float):
         self.conn = conn
@@ -471,16 +473,18 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         # record a writer reads or touches is checked as it is read. A migration reads every record:
         # an older register gets the whole check first. The whole check is `register --check`.
         version = _check_contents(conn, label, whole_file=_migration_reads_records(conn))
+        states_stored = False
         if version < 2:
             schema.check_text(conn, label)
             schema.check_json(conn, label)
         else:
-            schema.check_listed(conn, label)
+            states_stored = schema.check_listed(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
         conn.execute("PRAGMA synchronous = FULL")
         conn.execute("PRAGMA foreign_keys = ON")
+        migrated = version < SCHEMA_VERSION
         version = schema.migrate(conn, version, _now(), states=lambda: _states_from_records(conn, p, timeout))
         ensure_table(conn)  # registers made before lots were recorded gain the table
         schema.ensure_listing_index(conn, version)
@@ -500,6 +504,9 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         raise
     reg = Register(conn, p, timeout)
     reg.version = version
+    # A job left without its stored state (records changed outside windsheet; a migration stores
+    # every one) is stored again by this writer's first write, in the same transaction.
+    reg.states_incomplete = version >= 3 and not states_stored and not migrated
     try:
         reg.repairs = reg.finish_sheets()
     except BaseException:

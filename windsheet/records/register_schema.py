@@ -308,7 +308,7 @@ def _ascii(text) -> bool:
     return text is None or (text if isinstance(text, bytes) else str(text).encode()).isascii()
 
 
-def check_listed(conn: sqlite3.Connection, label: str) -> None:
+def check_listed(conn: sqlite3.Connection, label: str) -> bool:
     """Refuse a register whose listing would be refused: the writers' check (one line).
 
     Reads what the listing reads, every row of it — the jobs' names, the issues'
@@ -319,6 +319,7 @@ def check_listed(conn: sqlite3.Connection, label: str) -> None:
     a second, where the whole check (:func:`check_text`, :func:`check_json`, every
     page) takes seconds. A table's listed text is joined in SQLite and tested with
     ``bytes.isascii``; a row that is not plain ASCII is decoded column by column.
+    Returns whether every job's state is stored (what it read).
     """
     indexes = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
     stored = stored_states.has_table(conn) and stored_states.complete(conn)
@@ -353,6 +354,7 @@ def check_listed(conn: sqlite3.Connection, label: str) -> None:
                 bad = conn.execute(f"SELECT rowid FROM {source} WHERE {bad_json} LIMIT 1").fetchone()
                 raise InputError(label, f"register is damaged: {table} row {bad[0]} holds no valid JSON {kind} "
                                         f"in {col}; restore it from a backup")
+        return stored
     except sqlite3.OperationalError as exc:
         if "decode" in str(exc).lower() or "utf" in str(exc).lower():
             raise InputError(label, "register is damaged: a listed text is not valid UTF-8; "

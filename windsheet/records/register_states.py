@@ -208,10 +208,12 @@ class JobStates:
         if self.version < 3:
             return
         stored_states.store(self.conn, self._states(number, live=True))
-        if not stored_states.complete(self.conn):
+        # Whether others lack theirs was seen when the register was opened (the writers' check).
+        if getattr(self, "states_incomplete", False):
             for (other,) in self.conn.execute(f"SELECT DISTINCT job FROM issues WHERE job NOT IN "
                                               f"(SELECT job FROM {stored_states.TABLE})").fetchall():
                 stored_states.store(self.conn, self._states(other, live=True))
+            self.states_incomplete = False
 
     @_reads
     def job_state(self, number: str) -> dict:
