@@ -336,14 +336,15 @@ def check_listed(conn: sqlite3.Connection, label: str) -> bool:
                 rows = conn.execute(f"SELECT rowid FROM {source} WHERE {plain}")
                 doubtful, some_bad_json = [r[0] for r in rows], 0
             else:
-                # The whole table's listed text as one string, tested in C, in the same scan as its
-                # JSON: rows come into Python one by one only when some byte is not ASCII (an
-                # embedded NUL is kept, and is ASCII).
+                # Each listed column of the whole table as one string, tested in C, in the same scan
+                # as the table's JSON: rows come into Python one by one only when some byte is not
+                # ASCII (an embedded NUL is kept, and is ASCII).
                 joined = " || ".join(f"coalesce({c}, '')" for c in cols)
                 doubtful = []
-                text, some_bad_json = conn.execute(
-                    f"SELECT group_concat({joined}, ''), max({bad_json}) FROM {source}").fetchone()
-                if not _ascii(text):
+                aggregates = ", ".join(f"group_concat({c}, '')" for c in cols)
+                *texts, some_bad_json = conn.execute(
+                    f"SELECT {aggregates}, max({bad_json}) FROM {source}").fetchone()
+                if not all(map(_ascii, texts)):
                     doubtful = [r[0] for r in conn.execute(f"SELECT rowid, {joined} FROM {source}")
                                 if not _ascii(r[1])]
             for rowid in doubtful:
