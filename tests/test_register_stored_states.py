@@ -146,6 +146,11 @@ def test_the_whole_listing_reads_no_sign_off_and_the_writers_check_none(tmp_path
         jobs = reg.list_jobs()
         reg.conn.set_trace_callback(None)
         assert rows == [job_cells(j) for j in reg._states(live=True)] and len(jobs) == 40
+        # The filters read the stored states as the records' way reads them (the bench's state filter).
+        for customer, since in (("fenwick", None), (None, "2026-01-01"), ("nobody", None), (None, "2999-01-01")):
+            assert reg._states(customer=customer, since=since) == reg._states(customer=customer, since=since,
+                                                                              live=True)
+        assert reg.list_jobs_page(2, 7, state="failed")[1] == 14  # HL-0000, -0003, … -0039: every third
         conn = reg.conn
         # Each: a count of the stored rows against the jobs, then one query (and once, whether the
         # covering index is there): a fixed number of queries whatever the register's size.
@@ -156,9 +161,12 @@ def test_the_whole_listing_reads_no_sign_off_and_the_writers_check_none(tmp_path
         schema.check_listed(conn, str(path))
         conn.set_trace_callback(None)
         assert not [q for q in seen if "signoffs" in q], seen
-        # The stored states are read newest issue first by the table's own key (no sort).
+        # The table reads one table newest issue first by its own key (no sort, no join); --json
+        # reads the issues' other columns from their covering index (SQLite's own query plans).
+        plan = [r[3] for r in conn.execute("EXPLAIN QUERY PLAN " + stored_states.TABLE_QUERY)]
+        assert plan == ["SCAN job_states"], plan
         plan = " ".join(r[3] for r in conn.execute(
-            "EXPLAIN QUERY PLAN " + stored_states.listing_query(schema.LISTING_INDEX, tally=False)))
+            "EXPLAIN QUERY PLAN " + stored_states.listing_query(schema.LISTING_INDEX)))
         assert "TEMP B-TREE" not in plan and "COVERING INDEX issues_listing" in plan, plan
 
 
@@ -171,7 +179,25 @@ def test_register_check_finds_a_stored_state_that_is_not_its_records(tmp_path):
     conn.close()
     res = runner.invoke(app, ["register", "--check", "--register", str(path)])
     assert res.exit_code == 2 and len(res.stderr.splitlines()) == 1
-    assert "stored state of job HL-0000 ('passed' at issue 1) differs from its records ('failed'" in res.stderr
+    assert ("stored state of job 'HL-0000' differs from its records (state: stored 'passed', from the records "
+            "'failed')") in res.stderr
+
+
+def test_register_check_finds_a_stored_customer_that_is_not_the_jobs(tmp_path):
+    path = _register(tmp_path)
+    conn = sqlite3.connect(path)
+    conn.execute("UPDATE job_states SET customer = 'Someone Else' WHERE job = 'HL-0002'")
+    conn.commit()
+    conn.close()
+    res = runner.invoke(app, ["register", "--check", "--register", str(path)])
+    assert res.exit_code == 2 and "job 'HL-0002' differs from its records (customer: stored 'Someone Else'" in res.stderr
+    # A job's customer changed by hand in the jobs table drops its stored row (a trigger): listed as changed.
+    conn = sqlite3.connect(path)
+    conn.execute("UPDATE jobs SET customer = 'Marlow Instruments' WHERE number = 'HL-0003'")
+    conn.commit()
+    conn.close()
+    listed = runner.invoke(app, ["register", "--register", str(path)]).stdout
+    assert "Marlow Instruments" in next(x for x in listed.splitlines() if x.startswith("HL-0003"))
 
 
 def test_a_register_without_its_triggers_is_refused_in_one_line(tmp_path):

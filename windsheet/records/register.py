@@ -23,7 +23,7 @@ from contextlib import contextmanager
 from pathlib import Path
 from typing import Optional
 
-from windsheet.common.errors import InputError
+from windsheet.common.errors import InputError, quoted
 from windsheet.records import register_schema as schema
 from windsheet.common.fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
@@ -607,14 +607,15 @@ def check_register(path=None) -> dict:
 def _check_stored_states(reg: Register) -> None:
     """Every stored job state against the state its records give (``register --check``)."""
     worked_out = {st["number"]: stored_states.row_of(st) for st in reg._states(live=True)}
-    for row in reg.conn.execute(f"SELECT issue_id, job, state, units_passed, units_total, tally_json "
-                                f"FROM {stored_states.TABLE} ORDER BY issue_id"):
+    for row in reg.conn.execute(f"SELECT {', '.join(stored_states.COLUMNS)} FROM {stored_states.TABLE} "
+                                "ORDER BY issue_id"):
         want = worked_out.get(row[1])
         if want is None or tuple(row) != want:
-            said = f"'{want[2]}' at issue {want[0]}" if want else "no issue"
-            raise InputError(reg.label, f"register is damaged: the stored state of job {row[1]} ('{row[2]}' at "
-                                        f"issue {row[0]}) differs from its records ({said}); "
-                                        "restore it from a backup")
+            col, stored, records = next(((c, a, b) for c, a, b in zip(stored_states.COLUMNS, row, want or row)
+                                         if a != b), ("issue_id", row[0], None))
+            raise InputError(reg.label, f"register is damaged: the stored state of job {quoted(row[1])} differs "
+                                        f"from its records ({col}: stored {quoted(stored)}, from the records "
+                                        f"{quoted(records)}); restore it from a backup")
 
 
 def _column_verdict(verdict: str) -> str:

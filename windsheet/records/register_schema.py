@@ -74,7 +74,7 @@ REQUIRED = {
 REQUIRED_V2 = {"issues": {"design_state"}, "unit_signoffs": {"unit_verdict"},
                "reprints": {"id", "issue_id", "printed_at"},
                "sheets": {"id", "kind", "ref_id", "path", "sha256", "staged", "state"}}
-REQUIRED_V3 = {stored_states.TABLE: {"issue_id", "job", "state", "units_passed", "units_total", "tally_json"}}
+REQUIRED_V3 = {stored_states.TABLE: set(stored_states.COLUMNS)}
 
 #: JSON columns and the JSON type each must hold.
 JSON_COLUMNS = (("issues", "predictions_json", "object"), ("issues", "units_json", "array"),
@@ -190,7 +190,7 @@ LISTED_TEXT = {
     "issues": ("job", "revision", "order_sha256", "units_json", "issued_by", "issued_at", "design_state"),
     "signoffs": ("job", "revision", "inspector", "verdict", "signed_at"),
     "unit_signoffs": ("job", "serial", "verdict", "unit_verdict", "inspector", "signed_at"),
-    stored_states.TABLE: ("job", "state", "tally_json"),
+    stored_states.TABLE: ("job", "revision", "customer", "issued_at", "design_state", "state", "tally_json"),
 }
 
 
@@ -289,7 +289,7 @@ LISTING_READS = (
 
 #: What the listing reads of a version-3 register whose every job has its stored state: the
 #: jobs, the issues' covering index and the stored states; no sign-off is read.
-STORED_READS = LISTING_READS[:2] + ((stored_states.TABLE, "", ("job", "state", "tally_json"), ""),)
+STORED_READS = LISTING_READS[:2] + ((stored_states.TABLE, "", LISTED_TEXT[stored_states.TABLE], ""),)
 
 
 #: The JSON the listing reads (each issue's unit list, each stored state's serials): column, kind.

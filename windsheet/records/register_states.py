@@ -168,8 +168,8 @@ class JobStates:
         index = schema.LISTING_INDEX if self._listing_index() else ""
         out = []
         append, loads = out.append, json.loads
-        for (job, iid, rev, customer, at, state, _, _, dstate, sha, units_json, by, part,
-             tally_json) in self.conn.execute(stored_states.listing_query(index, tally=True, where=where), args):
+        for (job, iid, rev, customer, at, state, dstate, sha, units_json, by, part,
+             tally_json) in self.conn.execute(stored_states.listing_query(index, where=where), args):
             serials, tally = loads(units_json), loads(tally_json)
             if not isinstance(serials, list):
                 raise ValueError(f"issue {iid}: units_json is not a list")
@@ -186,16 +186,15 @@ class JobStates:
     def listing_cells(self) -> list[tuple]:
         """Every job as the listing's cells (:func:`register_listing.cells`), newest first.
 
-        From the stored states one query reads what the table shows and nothing more (no
-        unit list, no JSON): 50,000 jobs in about a tenth of a second.
+        From the stored states one scan of one table reads what the table shows and nothing
+        more (no unit list, no JSON, no join): 50,000 jobs in a few hundredths of a second.
         """
         if not self._stored():
             return [job_cells(j) for j in self._states()]
-        index = schema.LISTING_INDEX if self._listing_index() else ""
         out = []
         append = out.append
         for job, iid, rev, customer, at, state, passed, total, dstate in self.conn.execute(
-                stored_states.listing_query(index, tally=False)):
+                stored_states.TABLE_QUERY):
             if dstate is None:
                 dstate = recorded_state(self.issued_record(iid))["state"]
             append(cells(job, rev, customer, at, state, passed, total, dstate))

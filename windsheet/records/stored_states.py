@@ -20,19 +20,29 @@ import sqlite3
 TABLE = "job_states"
 
 #: The table: the job's latest issue (its key, so the newest-first listing is a reverse scan),
-#: its state, the counts the listing prints and the unit serials by verdict (for --json).
+#: what the listing's table prints of it (one scan, no join), its state, the counts and the unit
+#: serials by verdict (for --json).
 TABLE_SQL = f"""
 CREATE TABLE IF NOT EXISTS {TABLE} (
     issue_id INTEGER PRIMARY KEY,
     job TEXT NOT NULL UNIQUE,
+    revision TEXT,
+    customer TEXT,
+    issued_at TEXT,
+    design_state TEXT,
     state TEXT NOT NULL CHECK (state IN ('issued', 'passed', 'failed', 'incomplete')),
     units_passed INTEGER NOT NULL,
     units_total INTEGER NOT NULL,
     tally_json TEXT NOT NULL
 )"""
 
-#: The records a job's state is worked out from; a change to any row of them drops the job's stored row.
-SOURCES = ("issues", "signoffs", "unit_signoffs")
+#: Every column, in order (what a stored row and :func:`row_of` hold).
+COLUMNS = ("issue_id", "job", "revision", "customer", "issued_at", "design_state", "state", "units_passed",
+           "units_total", "tally_json")
+
+#: The records a job's stored row is worked out from, and the column naming the job in each; a change
+#: to any row of them drops the job's stored row.
+SOURCES = (("issues", "job"), ("signoffs", "job"), ("unit_signoffs", "job"), ("jobs", "number"))
 
 
 def trigger_names() -> list[str]:
@@ -43,14 +53,14 @@ def trigger_names() -> list[str]:
     >>> trigger_names()[:2]
     ['job_states_stale_issues_insert', 'job_states_stale_issues_update']
     """
-    return [f"{TABLE}_stale_{t}_{op}" for t in SOURCES for op in ("insert", "update", "delete")]
+    return [f"{TABLE}_stale_{t}_{op}" for t, _ in SOURCES for op in ("insert", "update", "delete")]
 
 
 def triggers_sql() -> list[str]:
     """``CREATE TRIGGER`` statements: any change to a job's records deletes its stored state."""
     out = []
-    for table in SOURCES:
-        for op, jobs in (("insert", "NEW.job"), ("update", "OLD.job, NEW.job"), ("delete", "OLD.job")):
+    for table, col in SOURCES:
+        for op, jobs in (("insert", f"NEW.{col}"), ("update", f"OLD.{col}, NEW.{col}"), ("delete", f"OLD.{col}")):
             out.append(f"CREATE TRIGGER IF NOT EXISTS {TABLE}_stale_{table}_{op} AFTER {op.upper()} ON {table} "
                        f"BEGIN DELETE FROM {TABLE} WHERE job IN ({jobs}); END")
     return out
@@ -78,20 +88,23 @@ def row_of(st: dict) -> tuple:
 
     Examples
     --------
-    >>> row_of({"issue_id": 7, "number": "HL-1", "state": "issued", "units": ["a", "b"],
-    ...         "units_passed": ["a"], "units_failed": [], "units_incomplete": [], "units_not_signed": ["b"]})
-    (7, 'HL-1', 'issued', 1, 2, '{"failed":[],"incomplete":[],"not_signed":["b"],"passed":["a"]}')
+    >>> row_of({"issue_id": 7, "number": "HL-1", "revision": "A", "customer": "Fenwick",
+    ...         "issued_at": "2026-12-02T10:00:00+00:00", "design_status": {"state": "ok"}, "state": "issued",
+    ...         "units": ["a", "b"], "units_passed": ["a"], "units_failed": [], "units_incomplete": [],
+    ...         "units_not_signed": ["b"]})[2:]
+    ('A', 'Fenwick', '2026-12-02T10:00:00+00:00', 'ok', 'issued', 1, 2, '{"failed":[],"incomplete":[],"not_signed":["b"],"passed":["a"]}')
     """
     tally = {"passed": st["units_passed"], "failed": st["units_failed"], "incomplete": st["units_incomplete"],
              "not_signed": st["units_not_signed"]}
-    return (st["issue_id"], st["number"], st["state"], len(st["units_passed"]), len(st["units"]),
+    return (st["issue_id"], st["number"], st["revision"], st["customer"], st["issued_at"],
+            st["design_status"]["state"], st["state"], len(st["units_passed"]), len(st["units"]),
             json.dumps(tally, sort_keys=True, separators=(",", ":")))
 
 
 def store(conn: sqlite3.Connection, states) -> None:
     """Store jobs' states worked out from their records (inside the writer's transaction)."""
-    conn.executemany(f"INSERT OR REPLACE INTO {TABLE} (issue_id, job, state, units_passed, units_total, "
-                     "tally_json) VALUES (?, ?, ?, ?, ?, ?)", [row_of(st) for st in states])
+    conn.executemany(f"INSERT OR REPLACE INTO {TABLE} ({', '.join(COLUMNS)}) VALUES "
+                     f"({', '.join('?' * len(COLUMNS))})", [row_of(st) for st in states])
 
 
 def complete(conn: sqlite3.Connection) -> bool:
@@ -106,11 +119,15 @@ def complete(conn: sqlite3.Connection) -> bool:
     return stored == listed
 
 
-#: The listing's columns of every job, newest issue first, from the stored states: the issue's
-#: listed columns from its covering index, the customer from the jobs table.
-def listing_query(index: str, tally: bool, where: str = "") -> str:
-    extra = ", i.order_sha256, i.units_json, i.issued_by, j.part, s.tally_json" if tally else ""
-    return (f"SELECT s.job, s.issue_id, i.revision, j.customer, i.issued_at, s.state, s.units_passed, "
-            f"s.units_total, i.design_state{extra} FROM {TABLE} s "
+#: What the listing's table prints of every job, newest issue first: one reverse scan of the stored rows.
+TABLE_QUERY = (f"SELECT job, issue_id, revision, customer, issued_at, state, units_passed, units_total, "
+               f"design_state FROM {TABLE} ORDER BY issue_id DESC")
+
+
+def listing_query(index: str, where: str = "") -> str:
+    """Every job's listed facts (for ``--json`` and the filters), newest issue first: the stored
+    state and serials, the issue's other listed columns from its covering index, the job's part."""
+    return (f"SELECT s.job, s.issue_id, i.revision, j.customer, i.issued_at, s.state, i.design_state, "
+            f"i.order_sha256, i.units_json, i.issued_by, j.part, s.tally_json FROM {TABLE} s "
             f"JOIN issues i{f' INDEXED BY {index}' if index else ''} ON i.job = s.job AND i.id = s.issue_id "
             f"JOIN jobs j ON j.number = s.job {where} ORDER BY s.issue_id DESC")
