@@ -59,14 +59,14 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         from windsheet.order.reader import load_any_order
         from windsheet.design.dispatch import size_any
         from windsheet.design.qc_plan import issued_state
+        from windsheet.design.dispatch import is_transformer_design
+        from windsheet.design.issuable import check_issuable, check_transformer_issuable
         from windsheet.records.register import open_register
-        from .traveller_cmd import _sheet_functions
 
-        # A coil or a transformer order, as the traveller takes it.
+        # A coil or a transformer order, as the traveller takes it (its check, without loading the sheets).
         o = load_any_order(issue)
         p = size_any(o)
-        check_issuable, _ = _sheet_functions(p)
-        check_issuable(p, force)
+        (check_transformer_issuable if is_transformer_design(p) else check_issuable)(p, force)
         p = p.with_state(issued_state(p.state, force))
         with open_register(register, create=True) as reg:
             issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
