@@ -59,14 +59,14 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
         from windsheet.order.reader import load_any_order
         from windsheet.design.dispatch import size_any
         from windsheet.design.qc_plan import issued_state
+        from windsheet.design.dispatch import is_transformer_design
+        from windsheet.design.issuable import check_issuable, check_transformer_issuable
         from windsheet.records.register import open_register
-        from .traveller_cmd import _sheet_functions
 
-        # A coil or a transformer order, as the traveller takes it.
+        # A coil or a transformer order, as the traveller takes it (its check, without loading the sheets).
         o = load_any_order(issue)
         p = size_any(o)
-        check_issuable, _ = _sheet_functions(p)
-        check_issuable(p, force)
+        (check_transformer_issuable if is_transformer_design(p) else check_issuable)(p, force)
         p = p.with_state(issued_state(p.state, force))
         with open_register(register, create=True) as reg:
             issued, how = reg.issue_or_reprint(p, o.source.decode("utf-8", "replace"), o.sha256)
@@ -85,16 +85,17 @@ def register_cmd(job: Optional[str] = typer.Argument(None, help="A job number: s
             h = reg.job_history(job)
             typer.echo(to_json(h) if as_json else "\n".join(history_lines(h)))
             return
-        jobs = reg.list_jobs()
-    from windsheet.records.register_listing import as_csv as listing_csv, select, table_lines
+        from windsheet.records.register_listing import cells_csv, cells_table, select, select_cells
 
-    jobs = select(jobs, state, customer, since)
-    if as_json:
-        typer.echo(to_json(jobs))
-    elif as_csv:
-        typer.echo(listing_csv(jobs), nl=False)
+        if as_json:
+            typer.echo(to_json(select(reg.list_jobs(), state, customer, since)))
+            return
+        # The table and CSV read only their cells (from the stored states when the register keeps them).
+        rows = select_cells(reg.listing_cells(), state, customer, since)
+    if as_csv:
+        typer.echo(cells_csv(rows), nl=False)
     else:
-        typer.echo("\n".join(table_lines(jobs)))
+        typer.echo("\n".join(cells_table(rows)))
 
 
 def _lot_search(register, lot, as_json):

@@ -23,7 +23,7 @@ from contextlib import contextmanager
 from pathlib import Path
 from typing import Optional
 
-from windsheet.common.errors import InputError
+from windsheet.common.errors import InputError, quoted
 from windsheet.records import register_schema as schema
 from windsheet.common.fileio import require_regular_file
 from .register_schema import SCHEMA_VERSION
@@ -31,6 +31,7 @@ from .register_checks import (APPLICATION, APPLICATION_ID, _check_contents, _che
                               _disk_fault, _is_locked, _locked_error, _one_line, _read_header, _read_only_error,
                               _reads)
 from .register_states import JobStates
+from windsheet.records import stored_states
 from .sheet_ledger import finish_pending, record_pending
 from windsheet.design.state_rules import recorded_state
 from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
@@ -137,7 +138,7 @@ def _create(path: Path, label: str) -> None:
             conn.execute("PRAGMA user_version = 1")
             conn.execute("COMMIT")
             # A fresh register takes the same steps as an old one: version 1, then each migration.
-            schema.migrate(conn, 1, _now())
+            schema.migrate(conn, 1, _now(), states=list)
         finally:
             conn.close()
         with open(tmp, "rb") as fh:
@@ -167,6 +168,8 @@ class Register(JobStates):
     version = SCHEMA_VERSION
     #: Lines about sheets an interrupted run left, finished on opening (see sheet_ledger).
     repairs: list = []
+    #: Opened for writing with a job lacking its stored state: the first write stores it.
+    states_incomplete = False
 
     def __init__(self, conn: sqlite3.Connection, path: Path, timeout: float):
         self.conn = conn
@@ -273,6 +276,7 @@ class Register(JobStates):
                  _dumps(list(job.units)), job.issued_by, now, design.state.state))
             if sheet is not None:
                 record_pending(c, sheet, cur.lastrowid, now)
+            self.store_state(number)  # the job's state at its new issue, in the same transaction
             return int(cur.lastrowid), "issued"
 
     def _check_job_records(self, c, number: str) -> None:
@@ -342,6 +346,7 @@ class Register(JobStates):
                 self._insert_unit(c, signoff_id, number, unit, raw, inspector, now)
             if sheet is not None:
                 record_pending(c, sheet, signoff_id, now)
+            self.store_state(number)  # the job's state with these units, in the same transaction
             return signoff_id
 
     def mark_sheet(self, sheet_id: int, state: str) -> None:
@@ -467,18 +472,20 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         # listing reads of every row (so a register it calls damaged is never written to); each
         # record a writer reads or touches is checked as it is read. A migration reads every record:
         # an older register gets the whole check first. The whole check is `register --check`.
-        version = _check_contents(conn, label, whole_file=_needs_migration(conn))
-        if version < SCHEMA_VERSION:
+        version = _check_contents(conn, label, whole_file=_migration_reads_records(conn))
+        states_stored = False
+        if version < 2:
             schema.check_text(conn, label)
             schema.check_json(conn, label)
         else:
-            schema.check_listed(conn, label)
+            states_stored = schema.check_listed(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
         conn.execute("PRAGMA synchronous = FULL")
         conn.execute("PRAGMA foreign_keys = ON")
-        version = schema.migrate(conn, version, _now())
+        migrated = version < SCHEMA_VERSION
+        version = schema.migrate(conn, version, _now(), states=lambda: _states_from_records(conn, p, timeout))
         ensure_table(conn)  # registers made before lots were recorded gain the table
         schema.ensure_listing_index(conn, version)
     except sqlite3.OperationalError as exc:
@@ -497,6 +504,9 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         raise
     reg = Register(conn, p, timeout)
     reg.version = version
+    # A job left without its stored state (records changed outside windsheet; a migration stores
+    # every one) is stored again by this writer's first write, in the same transaction.
+    reg.states_incomplete = version >= 3 and not states_stored and not migrated
     try:
         reg.repairs = reg.finish_sheets()
     except BaseException:
@@ -505,9 +515,17 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
     return reg
 
 
-def _needs_migration(conn: sqlite3.Connection) -> bool:
-    """Whether opening for writing will migrate the register (read from its header's user_version)."""
-    return conn.execute("PRAGMA user_version").fetchone()[0] < SCHEMA_VERSION
+def _migration_reads_records(conn: sqlite3.Connection) -> bool:
+    """Whether opening for writing will migrate the register through version 2, which reads every
+    record (read from its header's user_version). Version 3's migration reads what the listing reads."""
+    return conn.execute("PRAGMA user_version").fetchone()[0] < 2
+
+
+def _states_from_records(conn: sqlite3.Connection, p: Path, timeout: float) -> list[dict]:
+    """Every job's state worked out from its records: what version 3's migration stores."""
+    reg = Register(conn, p, timeout)
+    reg.version = 2
+    return reg._states(live=True)
 
 
 def _sqlite_uri(p: Path, immutable: bool) -> str:
@@ -577,11 +595,27 @@ def check_register(path=None) -> dict:
             schema.check_json(conn, reg.label)
             counts = {t: conn.execute(f"SELECT count(*) FROM {t}").fetchone()[0]
                       for t in ("jobs", "issues", "signoffs", "unit_signoffs")}
+            if reg.version >= 3:
+                _check_stored_states(reg)
         except sqlite3.DatabaseError as exc:
             raise InputError(reg.label, f"register is damaged ({_one_line(exc)}); restore it from a backup") from None
         return {"register": reg.label, "schema_version": reg.version, **counts}
     finally:
         reg.close()
+
+
+def _check_stored_states(reg: Register) -> None:
+    """Every stored job state against the state its records give (``register --check``)."""
+    worked_out = {st["number"]: stored_states.row_of(st) for st in reg._states(live=True)}
+    for row in reg.conn.execute(f"SELECT {', '.join(stored_states.COLUMNS)} FROM {stored_states.TABLE} "
+                                "ORDER BY issue_id"):
+        want = worked_out.get(row[1])
+        if want is None or tuple(row) != want:
+            col, stored, records = next(((c, a, b) for c, a, b in zip(stored_states.COLUMNS, row, want or row)
+                                         if a != b), ("issue_id", row[0], None))
+            raise InputError(reg.label, f"register is damaged: the stored state of job {quoted(row[1])} differs "
+                                        f"from its records ({col}: stored {quoted(stored)}, from the records "
+                                        f"{quoted(records)}); restore it from a backup")
 
 
 def _column_verdict(verdict: str) -> str:

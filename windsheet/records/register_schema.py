@@ -13,6 +13,13 @@ Version 2 adds what lets the register scale and stay whole:
 A version-1 register is migrated in place the first time it is opened for
 writing, in one transaction: a crash leaves it at version 1, untouched.
 Opened read-only it is read as it is.
+
+Version 3 adds ``job_states``: each job's state kept by the writers in the same
+transaction as the records it sums, and triggers that drop a job's stored state
+whenever its records change (see :mod:`windsheet.records.stored_states`). A version-2
+register is read as it is (each state worked out from the sign-offs) and upgraded by
+the first writer: the states of every job worked out once and stored, in one
+transaction, no record touched.
 """
 
 from __future__ import annotations
@@ -21,8 +28,9 @@ import json
 import sqlite3
 
 from windsheet.common.errors import InputError
+from windsheet.records import stored_states
 
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 
 #: Added by version 2; also part of a fresh register's schema.
 V2_TABLES = """
@@ -66,10 +74,12 @@ REQUIRED = {
 REQUIRED_V2 = {"issues": {"design_state"}, "unit_signoffs": {"unit_verdict"},
                "reprints": {"id", "issue_id", "printed_at"},
                "sheets": {"id", "kind", "ref_id", "path", "sha256", "staged", "state"}}
+REQUIRED_V3 = {stored_states.TABLE: set(stored_states.COLUMNS)}
 
 #: JSON columns and the JSON type each must hold.
 JSON_COLUMNS = (("issues", "predictions_json", "object"), ("issues", "units_json", "array"),
-                ("signoffs", "result_json", "object"), ("unit_signoffs", "measurements_json", "object"))
+                ("signoffs", "result_json", "object"), ("unit_signoffs", "measurements_json", "object"),
+                (stored_states.TABLE, "tally_json", "object"))
 
 
 def design_state_of(predictions: dict) -> str:
@@ -96,9 +106,10 @@ def columns(conn: sqlite3.Connection, table: str) -> set:
 def check_structure(conn: sqlite3.Connection, version: int, label: str) -> None:
     """Refuse, in one line, a register missing a table or column its version has."""
     need = dict(REQUIRED)
-    if version >= 2:
-        for t, cols in REQUIRED_V2.items():
-            need[t] = need.get(t, set()) | cols
+    for since, added in ((2, REQUIRED_V2), (3, REQUIRED_V3)):
+        if version >= since:
+            for t, cols in added.items():
+                need[t] = need.get(t, set()) | cols
     for table, cols in need.items():
         missing = cols - columns(conn, table)
         if missing == cols:
@@ -106,6 +117,11 @@ def check_structure(conn: sqlite3.Connection, version: int, label: str) -> None:
         if missing:
             raise InputError(label, f"register is damaged: table {table!r} lacks column(s) "
                                     f"{', '.join(sorted(missing))}; restore it from a backup")
+    if version >= 3:
+        # Without its triggers a stored state could outlive a change to the records it sums.
+        gone = stored_states.missing_triggers(conn)
+        if gone:
+            raise InputError(label, f"register is damaged: trigger {gone[0]!r} is missing; restore it from a backup")
 
 
 def check_json(conn: sqlite3.Connection, label: str) -> None:
@@ -120,14 +136,17 @@ def check_json(conn: sqlite3.Connection, label: str) -> None:
     for table, col, kind in JSON_COLUMNS:
         tables.setdefault(table, []).append((col, kind))
     opens = {"object": "{", "array": "["}
+    present = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
     for table, cols in tables.items():
+        if table not in present:
+            continue
         doubt = " OR ".join(f"NOT json_valid({c}) OR substr(ltrim(substr({c}, 1, 64)), 1, 1) != '{opens[k]}'"
                             for c, k in cols)
         try:
-            for (row_id,) in conn.execute(f"SELECT id FROM {table} WHERE {doubt}"):
+            for (row_id,) in conn.execute(f"SELECT rowid FROM {table} WHERE {doubt}"):
                 for col, kind in cols:
                     ok = conn.execute(f"SELECT CASE WHEN json_valid({col}) THEN json_type({col}) = ? ELSE 0 END "
-                                      f"FROM {table} WHERE id = ?", (kind, row_id)).fetchone()[0]
+                                      f"FROM {table} WHERE rowid = ?", (kind, row_id)).fetchone()[0]
                     if not ok:
                         raise InputError(label, f"register is damaged: {table} row {row_id} holds no valid JSON "
                                                 f"{kind} in {col}; restore it from a backup")
@@ -171,6 +190,7 @@ LISTED_TEXT = {
     "issues": ("job", "revision", "order_sha256", "units_json", "issued_by", "issued_at", "design_state"),
     "signoffs": ("job", "revision", "inspector", "verdict", "signed_at"),
     "unit_signoffs": ("job", "serial", "verdict", "unit_verdict", "inspector", "signed_at"),
+    stored_states.TABLE: ("job", "revision", "customer", "issued_at", "design_state", "state", "tally_json"),
 }
 
 
@@ -208,28 +228,21 @@ def check_text(conn: sqlite3.Connection, label: str) -> None:
             conn.text_factory = old_factory
 
 
-def migrate(conn: sqlite3.Connection, version: int, now: str) -> int:
-    """Bring a register up to :data:`SCHEMA_VERSION` in one transaction; returns the new version."""
+def migrate(conn: sqlite3.Connection, version: int, now: str, *, states) -> int:
+    """Bring a register up to :data:`SCHEMA_VERSION` in one transaction; returns the new version.
+
+    ``states`` is called inside the transaction, once the version-2 columns are filled, and
+    gives every job's state worked out from its records (stored as version 3's ``job_states``).
+    No record is changed but by version 2's backfill of its two new columns.
+    """
     if version >= SCHEMA_VERSION:
         return version
     conn.execute("BEGIN IMMEDIATE")
     try:
-        for table, col, kind in V2_COLUMNS:
-            if col not in columns(conn, table):
-                conn.execute(f"ALTER TABLE {table} ADD COLUMN {col} {kind}")
-        for stmt in filter(str.strip, V2_TABLES.split(";")):
-            conn.execute(stmt)
-        # Backfill: each issue's design status from its prediction, each unit's verdict from its JSON.
-        rows = conn.execute("SELECT id, predictions_json FROM issues WHERE design_state IS NULL").fetchall()
-        for rid, pj in rows:
-            try:
-                state = design_state_of(json.loads(pj))
-            except (ValueError, TypeError):
-                state = "ok"
-            conn.execute("UPDATE issues SET design_state = ? WHERE id = ?", (state, rid))
-        conn.execute(
-            "UPDATE unit_signoffs SET unit_verdict = COALESCE(CASE WHEN json_valid(measurements_json) THEN "
-            "json_extract(measurements_json, '$.verdict') END, verdict) WHERE unit_verdict IS NULL")
+        if version < 2:
+            _to_version_2(conn)
+        stored_states.create(conn)
+        stored_states.store(conn, states())
         conn.execute("INSERT OR REPLACE INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),))
         conn.execute("INSERT OR REPLACE INTO meta VALUES ('migrated_at', ?)", (now,))
         conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
@@ -238,6 +251,25 @@ def migrate(conn: sqlite3.Connection, version: int, now: str) -> int:
         conn.execute("ROLLBACK")
         raise
     return SCHEMA_VERSION
+
+
+def _to_version_2(conn: sqlite3.Connection) -> None:
+    for table, col, kind in V2_COLUMNS:
+        if col not in columns(conn, table):
+            conn.execute(f"ALTER TABLE {table} ADD COLUMN {col} {kind}")
+    for stmt in filter(str.strip, V2_TABLES.split(";")):
+        conn.execute(stmt)
+    # Backfill: each issue's design status from its prediction, each unit's verdict from its JSON.
+    rows = conn.execute("SELECT id, predictions_json FROM issues WHERE design_state IS NULL").fetchall()
+    for rid, pj in rows:
+        try:
+            state = design_state_of(json.loads(pj))
+        except (ValueError, TypeError):
+            state = "ok"
+        conn.execute("UPDATE issues SET design_state = ? WHERE id = ?", (state, rid))
+    conn.execute(
+        "UPDATE unit_signoffs SET unit_verdict = COALESCE(CASE WHEN json_valid(measurements_json) THEN "
+        "json_extract(measurements_json, '$.verdict') END, verdict) WHERE unit_verdict IS NULL")
 
 
 #: What the listing (and the bench's job list) reads of each table, and where it is read cheaply:
@@ -255,42 +287,75 @@ LISTING_READS = (
      " OR verdict NOT IN ('pass', 'fail')"),
 )
 
+#: What the listing reads of a version-3 register whose every job has its stored state: the
+#: jobs, the issues' covering index and the stored states; no sign-off is read.
+STORED_READS = LISTING_READS[:2] + ((stored_states.TABLE, "", LISTED_TEXT[stored_states.TABLE], ""),)
 
-def check_listed(conn: sqlite3.Connection, label: str) -> None:
+
+#: The JSON the listing reads (each issue's unit list, each stored state's serials): column, kind.
+LISTED_JSON = {"issues": ("units_json", "array"), stored_states.TABLE: ("tally_json", "object")}
+
+
+def _not_json(col: str, kind: str) -> str:
+    """An SQL test true when ``col`` holds no JSON of ``kind``: the first character decides the plain
+    case, ``json_type`` (a second parse) only a text that starts otherwise (with a space, say)."""
+    first = {"array": "[", "object": "{"}[kind]
+    return (f"(NOT json_valid({col}) OR (substr({col}, 1, 1) != '{first}' AND json_type({col}) != '{kind}'))")
+
+
+def _ascii(text) -> bool:
+    """Whether a value read as bytes (or a number, or NULL) is plain ASCII."""
+    return text is None or (text if isinstance(text, bytes) else str(text).encode()).isascii()
+
+
+def check_listed(conn: sqlite3.Connection, label: str) -> bool:
     """Refuse a register whose listing would be refused: the writers' check (one line).
 
     Reads what the listing reads, every row of it — the jobs' names, the issues'
     columns in their covering index (``issues_listing``) and each issue's unit list
-    being a JSON array, the sign-offs' job and revision, the units' serials and
-    verdicts — and never a record's JSON: at 50,000 jobs a quarter of a second,
-    where the whole check (:func:`check_text`, :func:`check_json`, every page)
-    takes seconds. A row's text is joined in SQLite and tested in Python with
+    being a JSON array; then each job's stored state (version 3, every job stored) or,
+    where the listing works the states out, the sign-offs' job and revision and the
+    units' serials and verdicts — and never a record's JSON: at 50,000 jobs a tenth of
+    a second, where the whole check (:func:`check_text`, :func:`check_json`, every
+    page) takes seconds. A table's listed text is joined in SQLite and tested with
     ``bytes.isascii``; a row that is not plain ASCII is decoded column by column.
+    Returns whether every job's state is stored (what it read).
     """
     indexes = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
+    stored = stored_states.has_table(conn) and stored_states.complete(conn)
     reads = [(table, index if index in indexes else "", [c for c in wanted if c in columns(conn, table)], plain)
-             for table, index, wanted, plain in LISTING_READS]
+             for table, index, wanted, plain in (STORED_READS if stored else LISTING_READS)]
     old_factory = conn.text_factory
     conn.text_factory = bytes
     try:
         for table, index, cols, plain in reads:
             source = f"{table} INDEXED BY {index}" if index else table
+            listed_json = LISTED_JSON.get(table)
+            bad_json = (_not_json(*listed_json[:2]) if listed_json else "0")
             if plain:
                 rows = conn.execute(f"SELECT rowid FROM {source} WHERE {plain}")
-                doubtful = [r[0] for r in rows]
+                doubtful, some_bad_json = [r[0] for r in rows], 0
             else:
+                # Each listed column of the whole table as one string, tested in C, in the same scan
+                # as the table's JSON: rows come into Python one by one only when some byte is not
+                # ASCII (an embedded NUL is kept, and is ASCII).
                 joined = " || ".join(f"coalesce({c}, '')" for c in cols)
-                doubtful = [r[0] for r in conn.execute(f"SELECT rowid, {joined} FROM {source}")
-                            if not (r[1] if isinstance(r[1], bytes) else str(r[1]).encode()).isascii()]
+                doubtful = []
+                aggregates = ", ".join(f"group_concat({c}, '')" for c in cols)
+                *texts, some_bad_json = conn.execute(
+                    f"SELECT {aggregates}, max({bad_json}) FROM {source}").fetchone()
+                if not all(map(_ascii, texts)):
+                    doubtful = [r[0] for r in conn.execute(f"SELECT rowid, {joined} FROM {source}")
+                                if not _ascii(r[1])]
             for rowid in doubtful:
                 row = conn.execute(f"SELECT {', '.join(cols)} FROM {table} WHERE rowid = ?", (rowid,)).fetchone()
                 _require_utf8(label, table, cols, rowid, row)
-        index = f" INDEXED BY {LISTING_INDEX}" if LISTING_INDEX in indexes else ""
-        bad = conn.execute(f"SELECT id FROM issues{index} WHERE NOT json_valid(units_json) "
-                           "OR json_type(units_json) != 'array' LIMIT 1").fetchone()
-        if bad is not None:
-            raise InputError(label, f"register is damaged: issues row {bad[0]} holds no valid JSON array "
-                                    "in units_json; restore it from a backup")
+            if some_bad_json:
+                col, kind = listed_json
+                bad = conn.execute(f"SELECT rowid FROM {source} WHERE {bad_json} LIMIT 1").fetchone()
+                raise InputError(label, f"register is damaged: {table} row {bad[0]} holds no valid JSON {kind} "
+                                        f"in {col}; restore it from a backup")
+        return stored
     except sqlite3.OperationalError as exc:
         if "decode" in str(exc).lower() or "utf" in str(exc).lower():
             raise InputError(label, "register is damaged: a listed text is not valid UTF-8; "

@@ -11,6 +11,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from windsheet.common.errors import InputError
+from windsheet.design.issuable import check_issuable  # noqa: F401  (re-exported: scripts and tests read it here)
 # The formatters and the context builders are re-exported: scripts and tests read them here.
 from windsheet.common.fmt import eng, length, mass  # noqa: F401
 from .procedure import procedure_steps  # noqa: F401
@@ -19,23 +20,6 @@ from .sheet_pdf import (PAPER_SIZES, TEMPLATES_DIR, _page_size, _stylesheet, env
 from .signoff_sheet import SIGNOFF_SECTIONS, measured_text, signoff_context  # noqa: F401
 from .traveller_sheet import (DEFERRAL, SECTIONS, cautions, duty_rows, form_rows,  # noqa: F401
                               insulation_rows, pick_list, qc_items, traveller_context)
-
-# --- issuing -------------------------------------------------------------------------
-
-def check_issuable(design, force: bool = False) -> None:
-    """Refuse to issue a traveller whose insulation or thermal check fails, unless forced."""
-    ins = design.insulation
-    if ins is not None and ins.verdict == "fail" and not force:
-        why = "; ".join(str(r) for r in ins.reasons) or "see the insulation check"
-        raise InputError("insulation", f"insulation check fails ({why}); "
-                         "not issued — fix the order, or issue with --force")
-    thermal = design.thermal
-    if thermal is not None and thermal.verdict == "fail" and not force:
-        # Enamel run over its thermal class ages fast: as much a fail as a voltage it cannot hold.
-        raise InputError("duty.current", f"thermal check fails ({thermal.reason}); "
-                         "not issued — lower the current, use a heavier wire or a higher thermal class, "
-                         "or issue with --force")
-
 
 #: The CLI's ``--units`` words: metric; imperial (inches and °F only); both (inches and °F first, mm and °C beside).
 UNIT_SYSTEMS = ("imperial", "metric", "both")

@@ -4,16 +4,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from windsheet.common.errors import InputError
+from windsheet.design.issuable import check_transformer_issuable  # noqa: F401  (re-exported)
 
 from .sheet_pdf import TEMPLATES_DIR, _page_size, _stylesheet, environment
-
-
-def check_transformer_issuable(design, force: bool = False) -> None:
-    """Refuse to issue a transformer whose design check fails, unless forced."""
-    if design.state.state == "failing" and not force:
-        why = "; ".join(design.state.reasons) or "see the insulation between windings"
-        raise InputError("windings", f"a design check fails ({why}); not issued — fix the order, or issue with --force")
 
 
 def render_transformer_html(design, paper: str = "a4", forced: bool = False,
