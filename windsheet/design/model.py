@@ -35,6 +35,14 @@ class Part(BaseModel):
 
     model_config = ConfigDict(extra="forbid", frozen=True, defer_build=True)
 
+    @classmethod
+    def computed(cls, **values):
+        """One made from values the code just computed: not validated again, so no schema is built
+        (:func:`windsheet.design.construct.construct`; the tests hold it equal to the validated one)."""
+        from .construct import construct
+
+        return construct(cls, values)
+
 
 # --- the order as sized ----------------------------------------------------------------
 
