@@ -429,9 +429,10 @@ def _validation_to_input_error(exc: ValidationError) -> InputError:
     return InputError(path, msg)
 
 
-def parse_order(data: bytes, path: str | None = None) -> Order:
-    """Validate an order from the bytes of its YAML file."""
-    raw = read_yaml_bytes(data, "order", label=path or "order")
+def parse_order(data: bytes, path: str | None = None, raw: dict | None = None) -> Order:
+    """Validate an order from the bytes of its YAML file (``raw``: those bytes already parsed, not parsed again)."""
+    if raw is None:
+        raw = read_yaml_bytes(data, "order", label=path or "order")
     raw = {str(k): v for k, v in raw.items()}
     try:
         doc = OrderDoc.model_validate(raw)
