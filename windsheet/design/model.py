@@ -20,7 +20,9 @@ issue recorded by an earlier version is read through
 facts (connections, QC plan, design state) by the same rules as a new design.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: every annotation names a class defined above it,
+# and pydantic reads evaluated annotations at once instead of compiling ~480 strings at start-up
+# (design.model's import 44 → 27 ms).
 
 from typing import Literal, Optional, Union
 

@@ -24,7 +24,7 @@ from .units import parse_quantity
 
 
 class _M(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True, defer_build=True)
 
 
 class Job(_M):
