@@ -12,7 +12,7 @@ import warnings
 
 import pytest
 
-from conftest import sample_orders
+from conftest import sample_orders, transformer_orders
 from windsheet.design.build import build_design
 from windsheet.design.construct import as_dict, construct
 from windsheet.design.model import Design, DesignCore, Energy, LayerRow, QcLine
@@ -61,3 +61,18 @@ def test_as_dict_is_model_dump():
     d = build_design(load_order(sample_orders()[0]), remedies=False)
     for part in (d.hookup, d.winding, d.terminal, d.connections, d.qc_plan):
         assert as_dict(part) == part.model_dump()
+
+
+@pytest.mark.parametrize("path", transformer_orders(), ids=lambda p: p.stem)
+def test_constructed_transformer_design_equals_the_validated_one(path):
+    from windsheet.design.transformer_build import build_transformer
+    from windsheet.design.transformer_model import TransformerDesign
+    from windsheet.order.reader import load_any_order
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        d = build_transformer(load_any_order(path))
+        validated = TransformerDesign.model_validate(d.model_dump())
+        assert validated == d
+        assert _types(as_dict(validated)) == _types(as_dict(d))
+        assert json.dumps(validated.model_dump(mode="json")) == json.dumps(d.model_dump(mode="json"))
