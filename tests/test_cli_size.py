@@ -128,3 +128,18 @@ def test_malformed_yaml(tmp_path, text, words):
 def test_missing_file():
     res = runner.invoke(app, ["size", "no/such/order.yaml"])
     assert res.exit_code == 2 and "file not found" in res.stderr
+
+
+def test_a_list_where_a_pin_header_end_is_due_is_refused_in_one_line(tmp_path):
+    # A hypothesis run of tests/test_hardening.py found this crash: a list is not hashable,
+    # so the end's word lookup raised TypeError instead of a refusal naming the field.
+    text = (SAMPLES / "hl-0430-mains-choke.yaml").read_text(encoding="utf-8")
+    assert "pin_header: {end: start-end," in text
+    order = tmp_path / "order.yaml"
+    order.write_text(text.replace("pin_header: {end: start-end,", "pin_header: {end: [start-end],"),
+                     encoding="utf-8")
+    res = runner.invoke(app, ["size", str(order)])
+    assert res.exit_code == 2, res.output
+    assert res.exception is None or isinstance(res.exception, SystemExit)
+    line = res.stderr.strip()
+    assert "\n" not in line and "pin_header.end" in line and "start-end or finish-end" in line, line

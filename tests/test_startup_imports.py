@@ -27,15 +27,23 @@ else:
     code = 0
 watched = ["numpy", "pydantic", "scipy", "scipy.spatial", "scipy.constants", "scipy.special", "yaml",
            "typer._adapters", "windsheet.order.document", "windsheet.qc.measured", "windsheet.qc.signoff",
-           "windsheet.order.transformer", "windsheet.design.transformer_model"]
-print(json.dumps({"code": code, "loaded": [m for m in watched if m in sys.modules]}), file=sys.stderr)
+           "windsheet.order.transformer", "windsheet.design.transformer_model", "importlib.metadata", "email",
+           "rich"]
+# The design's models whose pydantic schema (validator and serializer) was built.
+model = sys.modules.get("windsheet.design.model")
+built = sorted(n for n, c in vars(model).items() if isinstance(c, type) and c.__module__ == model.__name__
+               and getattr(c, "__pydantic_complete__", False)) if model else []
+print(json.dumps({"code": code, "loaded": [m for m in watched if m in sys.modules], "built": built}),
+      file=sys.stderr)
 """
 
 
-def run(*args):
+def run(*args, built=False):
     proc = subprocess.run([sys.executable, "-c", CHILD, *map(str, args)], capture_output=True,
                           text=True, cwd=ROOT, timeout=120)
     report = json.loads(proc.stderr.strip().splitlines()[-1])
+    if built:
+        return report["code"], set(report["loaded"]), proc.stdout, report["built"]
     return report["code"], set(report["loaded"]), proc.stdout
 
 
@@ -76,3 +84,21 @@ def test_a_transformer_order_loads_its_own_models():
     code, loaded, out = run("size", ROOT / "samples" / "hl-0431-isolation-transformer.yaml")
     assert code in (0, None) and "HL-0431" in out
     assert {"windsheet.order.transformer", "windsheet.design.transformer_model"} <= loaded
+
+
+def test_size_builds_no_design_schema_and_reads_no_package_metadata():
+    code, loaded, out, built = run("size", SAMPLE, built=True)
+    assert code in (0, None) and "HL-0412" in out and "Terminals" in out  # the summary really printed
+    # The design is put together from computed values (design/construct.py): no model's schema is built.
+    assert built == [], built
+    # pydantic's plugin loader stands aside (cli/app.py), so no distribution metadata is read.
+    assert not loaded & {"importlib.metadata", "email"}, loaded
+    # typer's help formatter is for --help only.
+    assert "rich" not in loaded
+
+
+def test_size_json_builds_the_schema_it_dumps_with():
+    # The JSON needs pydantic's serializer, so the Design's schema is built there, and only there.
+    code, _, out, built = run("size", SAMPLE, "--json", built=True)
+    assert code in (0, None) and json.loads(out)["job"]["number"] == "HL-0412"
+    assert "Design" in built

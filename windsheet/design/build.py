@@ -32,6 +32,7 @@ from windsheet.order.wire_choice import resolve_wire
 from .bench_tests import bench_tests
 from .derived import complete
 from .duty_heating import DutyCurrent, ac_ratio, thermal_section, winding_heat
+from .construct import as_dict, construct
 from .model import SCHEMA, Design, DesignCore
 from .target_turns import solve_turns
 from windsheet.physics.wire import copper_mass, dc_resistance
@@ -511,12 +512,13 @@ def build_design(order: Order, today: _dt.date | None = None, remedies: bool = T
         "shorted_turn": bench["shorted_turn"],
         "ring_wave": bench["ring_wave"],
     }
-    core = DesignCore.model_validate(out)
+    # Computed here, so not validated again (design/construct.py); tests hold it equal to the validated design.
+    core = construct(DesignCore, out)
     if remedies:
         found = find_remedies(order, core, lambda changed: build_design(changed, today, remedies=False))
         ins = core.insulation
-        core = DesignCore.model_validate({**dict(core), "insulation": {
-            **ins.model_dump(), "remedies": found, "reasons": list(ins.reasons) + advice(found, ins.verdict)}})
+        core = construct(DesignCore, {**dict(core), "insulation": {
+            **as_dict(ins), "remedies": found, "reasons": list(ins.reasons) + advice(found, ins.verdict)}})
     return complete(core)
 
 

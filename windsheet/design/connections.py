@@ -95,20 +95,22 @@ def connections(hookup: dict, strand_ids, terminations=(), leads=(), terminal_Vp
             end = f"{sid}.{which}"
             lead = route_of.get(end)
             crosses = int(lead.get("beside_turns") or 0) if lead else 0
-            ends.append(StrandEnd(name=end, strand=sid, terminal=label_of.get(end), joint=joint_of.get(end),
-                                  pin=pin_of.get(end), route=lead.get("route") if lead else None,
-                                  route_text=lead_route_text(lead, pin_of) if lead else None,
-                                  crosses_turns=crosses, lead_Vpk=float(lead.get("worst_Vpk") or 0.0) if crosses else None,
-                                  sleeve_when_laid=crosses > 0))
-    joints = [Joint(ends=j, pins=sorted({pin_of[e] for e in j if e in pin_of})) for j in joins]
+            ends.append(StrandEnd.computed(name=end, strand=sid, terminal=label_of.get(end),
+                                           joint=joint_of.get(end),
+                                           pin=pin_of.get(end), route=lead.get("route") if lead else None,
+                                           route_text=lead_route_text(lead, pin_of) if lead else None,
+                                           crosses_turns=crosses,
+                                           lead_Vpk=float(lead.get("worst_Vpk") or 0.0) if crosses else None,
+                                           sleeve_when_laid=crosses > 0))
+    joints = [Joint.computed(ends=j, pins=sorted({pin_of[e] for e in j if e in pin_of})) for j in joins]
     by_node: dict = {}
     for t in terminations:
         if t.get("node") is not None:
             by_node.setdefault(t["node"], []).append(t)
-    links = [PinLink(pins=[str(t["pin"]) for t in ts], ends=[e for t in ts for e in t["ends"]])
+    links = [PinLink.computed(pins=[str(t["pin"]) for t in ts], ends=[e for t in ts for e in t["ends"]])
              for ts in by_node.values() if len(ts) > 1]
-    terminals = [TerminalLead(label=label_of[e], end=e, pin=pin_of.get(e)) for e in out_ends]
+    terminals = [TerminalLead.computed(label=label_of[e], end=e, pin=pin_of.get(e)) for e in out_ends]
     held = [e.lead_Vpk for e in ends if e.lead_Vpk is not None] + ([terminal_Vpk] if terminal_Vpk else [])
-    return Connections(ends=ends, terminals=terminals, joints=joints, linked_pins=links,
-                       sleeving_rating_Vpk=max(held) if held else None,
-                       wire_ends_per_unit=2 * len(ids), sleeving_pieces_per_unit=len(terminals) + len(joints))
+    return Connections.computed(ends=ends, terminals=terminals, joints=joints, linked_pins=links,
+                                sleeving_rating_Vpk=max(held) if held else None,
+                                wire_ends_per_unit=2 * len(ids), sleeving_pieces_per_unit=len(terminals) + len(joints))

@@ -12,6 +12,7 @@ from typing import Optional
 import math
 
 from .connections import connections
+from .construct import as_dict, construct
 from .family import family_of
 from .model import Design, DesignCore, DesignState, LayerRow
 from .qc_plan import design_state, qc_plan
@@ -20,12 +21,13 @@ from .qc_plan import design_state, qc_plan
 def complete(core: DesignCore, required: Optional[list[str]] = None,
              state: Optional[DesignState] = None) -> Design:
     """``core`` with its connections, QC plan (``required``: keep an issue's recorded list) and state."""
-    conn = connections(core.hookup.model_dump(), [s.id for s in core.strands],
-                       [t.model_dump() for t in core.terminations], [lead.model_dump() for lead in core.leads],
+    conn = connections(as_dict(core.hookup), [s.id for s in core.strands],
+                       [as_dict(t) for t in core.terminations], [as_dict(lead) for lead in core.leads],
                        terminal_Vpk=terminal_peak(core))
     plan = qc_plan(core, required)
-    key, label = family_of(core.model_dump(include={"form", "wire", "winding", "strands", "hookup"}))
-    return Design.model_validate({**dict(core), "connections": conn, "qc_plan": plan,
+    key, label = family_of(as_dict(core, include={"form", "wire", "winding", "strands", "hookup"}))
+    # Every value here was computed, not read: put together without validating (design/construct.py).
+    return construct(Design, {**dict(core), "connections": conn, "qc_plan": plan,
                                   "layer_plan": layer_plan(core),
                                   "qc_required": plan.required,
                                   "state": state or design_state(core.insulation, core.thermal),
@@ -80,7 +82,7 @@ def layer_plan(core: DesignCore) -> list[LayerRow]:
             after = "crossover"
         else:
             after = "layer-tape" if tape else None
-        rows.append(LayerRow(layer=within + 1, turns=int(turns), from_end=from_end, counter_start=start,
-                             counter_end=count, tape_after=after, margin_wraps=wraps,
-                             section=section + 1 if w.layers_per_section else None))
+        rows.append(LayerRow.computed(layer=within + 1, turns=int(turns), from_end=from_end, counter_start=start,
+                                      counter_end=count, tape_after=after, margin_wraps=wraps,
+                                      section=section + 1 if w.layers_per_section else None))
     return rows

@@ -136,8 +136,8 @@ def plan_lines(core, required: list[str]) -> list[QcLine]:
     lines = {}
 
     def add(key, label, judged, unit="", predicted=None, low=None, high=None, **kw):
-        lines[key] = QcLine(key=key, label=label, judged=judged, unit=unit, predicted=predicted,
-                            low=low, high=high, **kw)
+        lines[key] = QcLine.computed(key=key, label=label, judged=judged, unit=unit, predicted=predicted,
+                                     low=low, high=high, **kw)
 
     # One strand alone is what the terminals read; its own rows would repeat them.
     for s in core.strands if len(ids) > 1 else []:
@@ -183,7 +183,7 @@ def plan_lines(core, required: list[str]) -> list[QcLine]:
             duration_s=dur)
     add("ambient", "Ambient temperature at test", "record", "degC")
     # The record prints exactly the required lines, in their order; the optional ones follow.
-    out = [lines.get(k) or QcLine(key=k, label=k, judged="record") for k in required]
+    out = [lines.get(k) or QcLine.computed(key=k, label=k, judged="record") for k in required]
     # The ring lines are printed when the order asks for the ring test; the others are offered at the bench.
     return out + [ln.model_copy(update={"required": False, "printed": k.startswith("ring.")})
                   for k, ln in lines.items() if k not in required and _optional(k)]
@@ -248,7 +248,7 @@ def plan_required(core) -> list[str]:
 
 def qc_plan(core, required: list[str] | None = None) -> QcPlan:
     """The design's QC plan; ``required`` keeps the list an earlier issue was recorded with."""
-    return QcPlan(lines=plan_lines(core, plan_required(core) if required is None else list(required)))
+    return QcPlan.computed(lines=plan_lines(core, plan_required(core) if required is None else list(required)))
 
 
 # --- Design state ----------------------------------------------------------------
@@ -271,11 +271,11 @@ def design_state(insulation, thermal) -> DesignState:
     state, reasons = state_from_checks(insulation.verdict if insulation else None,
                                        insulation.reasons if insulation else None,
                                        thermal.verdict if thermal else None, thermal.reason if thermal else None)
-    return DesignState(state=state, reasons=reasons)
+    return DesignState.computed(state=state, reasons=reasons)
 
 
 def issued_state(state: DesignState, forced: bool) -> DesignState:
     """The state a design is issued with: a failing design issued with ``--force`` is ``forced``."""
     if forced and state.state == "failing":
-        return DesignState(state="forced", reasons=state.reasons or ["the design check fails"])
+        return DesignState.computed(state="forced", reasons=state.reasons or ["the design check fails"])
     return state

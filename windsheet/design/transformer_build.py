@@ -19,6 +19,7 @@ from windsheet.physics import transformer as tf
 from windsheet.physics.conductor_capacitance import TAPE_EPS_R
 from windsheet.physics.wire import conductor as conductor_data
 
+from .construct import as_dict, construct
 from .model import DesignState, Family, QcLine, QcPlan
 from .qc_plan import DEFAULT_MIN_INSULATION_OHM
 from .state_rules import state_from_checks
@@ -91,13 +92,14 @@ def build_transformer(order: TransformerOrder, today: _dt.date | None = None) ->
     first = windings[0]
     family_key = "|".join(("transformer", doc.form.kind, f"{len(windings)} windings",
                            str(getattr(doc.form, "material", "")), first.wire.conductor))
-    return TransformerDesign.model_validate({
+    # Computed here, so put together without validating again (design/construct.py).
+    return construct(TransformerDesign, {
         "schema": TRANSFORMER_SCHEMA,
         "job": {"number": doc.job.number, "part": doc.job.part, "customer": doc.job.customer,
                 "quantity": doc.job.quantity, "revision": doc.job.revision, "issued_by": doc.job.issued_by,
                 "issue_date": (doc.job.issue_date or today or _dt.date.today()).isoformat(),
                 "units": order.units, "notes": doc.job.notes},
-        "order_hash": order.sha256, "purpose": doc.purpose, "form": sections[0].form.model_dump(),
+        "order_hash": order.sha256, "purpose": doc.purpose, "form": as_dict(sections[0].form),
         "sheet_units": "imperial" if order.imperial else "metric",
         "frequency_Hz": doc.frequency, "ambient_C": doc.ambient,
         "tolerances": {"inductance": doc.tolerances.inductance, "resistance": doc.tolerances.resistance,

@@ -430,7 +430,7 @@ def _validation_to_input_error(exc: ValidationError) -> InputError:
 
 
 def parse_order(data: bytes, path: str | None = None, raw: dict | None = None) -> Order:
-    """Validate an order from the bytes of its YAML file (``raw``: those bytes already read as YAML)."""
+    """Validate an order from the bytes of its YAML file (``raw``: those bytes already parsed, not parsed again)."""
     if raw is None:
         raw = read_yaml_bytes(data, "order", label=path or "order")
     raw = {str(k): v for k, v in raw.items()}

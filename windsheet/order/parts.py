@@ -24,7 +24,7 @@ from .units import parse_quantity
 
 
 class _M(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True, defer_build=True)
 
 
 class Job(_M):
@@ -51,7 +51,7 @@ _HEADER_ENDS = {"start-end": "start-end", "start": "start-end", "finish-end": "f
 
 
 def _header_end(v):
-    if lowered(v) not in _HEADER_ENDS:
+    if not isinstance(v, str) or lowered(v) not in _HEADER_ENDS:  # a list is not hashable
         raise ValueError("expected start-end or finish-end")
     return _HEADER_ENDS[lowered(v)]
 
@@ -218,7 +218,7 @@ _ENDS = {"start-end": "start-end", "start": "start-end", "start-flange": "start-
 
 
 def _end(v):
-    if lowered(v) not in _ENDS:
+    if not isinstance(v, str) or lowered(v) not in _ENDS:  # a list is not hashable
         raise ValueError("expected start-end, finish-end or centre")
     return _ENDS[lowered(v)]
 

@@ -21,7 +21,7 @@ def parse_any_order(data: bytes, path: str | None = None):
         from .transformer import parse_transformer
 
         return parse_transformer({str(k): v for k, v in raw.items()}, data, path)
-    return parse_order(data, path, raw=raw)  # read once: YAML parsing is most of a small order's cost
+    return parse_order(data, path, raw)  # parsed once, above
 
 
 def load_any_order(path):
