@@ -16,6 +16,8 @@ taken from windsheet (they are its input, not what is checked).
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from scipy.spatial import cKDTree
 
@@ -37,14 +39,14 @@ class _WindingGrid(Grid):
         e = np.ones_like(X)
         for lo, hi, x_lo, x_hi in self._tapes:
             e = np.where((Y > lo) & (Y < hi) & (X > x_lo) & (X < x_hi), self._tape_eps, e)
-        dist, _ = self._tree.query(np.column_stack([X.ravel(), Y.ravel()]))
+        dist, _ = self._tree.query(np.column_stack([X.ravel(), Y.ravel()]), distance_upper_bound=self._r_ov)
         dist = dist.reshape(X.shape)
         e = np.where(dist < self._r_ov, self._eps, e)
         return np.where(dist < self._r_cu, COPPER_EPS, e)
 
 
 def winding_capacitance_per_length(z, r, potential, copper_diameter, overall_diameter, eps_r=3.5,
-                                   tapes=(), tape_eps_r=3.2, h=None, margin=None, supersample=3):
+                                   tapes=(), tape_eps_r=3.2, h=None, margin=None, supersample=6):
     """Field solution of a winding's cross-section: ``2 W' / V²`` for 1 V across the terminals. [F/m]
 
     z, r : the turns' centres [m]; potential : each turn's potential [V per V across the terminals];
@@ -55,11 +57,17 @@ def winding_capacitance_per_length(z, r, potential, copper_diameter, overall_dia
     v = np.real(np.asarray(potential))
     R, rc = overall_diameter / 2, copper_diameter / 2
     h = (R - rc) / 5 if h is None else h
+    # A whole number of steps to the overall diameter, and the first turn's centre on a node: turns
+    # a whole number of diameters apart (a row, stacked layers) then sit alike on the grid, and the
+    # solution converges steadily as the step falls instead of wandering with where the grid cuts
+    # the contacts.
+    h = overall_diameter / max(1, round(overall_diameter / h))
     margin = 1.5 * overall_diameter if margin is None else margin
-    # Shift so the grid is the same relative to every disc whatever the margin.
-    g = _WindingGrid(z.min() - R - margin, z.max() + R + margin, r.min() - R - margin,
-                     r.max() + R + margin, h, np.column_stack([z, r]), rc, R, eps_r, tapes,
-                     tape_eps_r, supersample)
+    n = math.ceil((R + margin) / h)
+    z0, r0 = z[np.argmin(z)], r[np.argmin(r)]
+    g = _WindingGrid(z0 - n * h, z0 + (math.ceil((z.max() - z0 + R + margin) / h)) * h,
+                     r0 - n * h, r0 + (math.ceil((r.max() - r0 + R + margin) / h)) * h, h,
+                     np.column_stack([z, r]), rc, R, eps_r, tapes, tape_eps_r, supersample)
     X, Y = np.meshgrid(g.x, g.y, indexing="ij")
     dist, which = g._tree.query(np.column_stack([X.ravel(), Y.ravel()]))
     inside = (dist < rc).reshape(X.shape)
