@@ -8,6 +8,7 @@ import pytest
 
 from windsheet.physics import capacitance as cap
 from windsheet.physics import conductor_capacitance as cc
+from windsheet.physics import layer_capacitance as lc
 from windsheet.physics import voltage_map as vmap
 from windsheet.physics.layout import cylinder_layout
 
@@ -247,14 +248,15 @@ LAYER_CASES = [  # copper, overall, style, tape
 
 
 @pytest.mark.parametrize("cu,ov,style,tape", LAYER_CASES)
-def test_layer_capacitance_within_ten_percent_of_a_field_solution(cu, ov, style, tape):
+def test_layer_capacitance_within_five_percent_of_a_field_solution(cu, ov, style, tape):
     step = ov + tape if style == "stacked" else ov * math.sqrt(3) / 2
-    per_pair = cc.layer_pair_capacitance_per_length(cu, ov, style, step, ov, 3.5, tape)
+    per_pair = lc.layer_pair_capacitance_per_length(cu, ov, style, step, ov, 3.5, tape)
     contacts = 2 if style == "nested" else 1
     field = fd_layer_capacitance(cu, ov, 3.5, style, tape)
-    # Independent computation (tests/laplace2d.py; converged to about 1 % at this grid): the
-    # issue's bar is 10 %.
-    assert contacts * per_pair == pytest.approx(field, rel=0.10)
+    # Independent computation (tests/laplace2d.py; at this grid within about 2.5 % of its own
+    # limit, from above: nested 0.45/0.50 mm reads 175.4, 173.3, 172.2 pF/m at 4, 2, 1 um): issue
+    # 29's bar is 5 % (the contact cells alone read 3-14 % low here).
+    assert contacts * per_pair == pytest.approx(field, rel=0.05)
 
 
 def test_old_uniform_enamel_plate_was_far_above_the_field():
@@ -273,10 +275,10 @@ def test_series_cell_closed_form_is_its_integral():
         a = 1 + x + tape / 3.2 / ov
         # Massarini & Kazimierczuk's tubes in series, integrated by quadrature (mpmath).
         quad = float(EPS0 * mpmath.quad(lambda t: 1 / (a - mpmath.cos(t)), [0, half]))
-        assert cc.flux_tube_capacitance_per_length(cu, ov, half, eps, solid=tape) == pytest.approx(
+        assert lc.flux_tube_capacitance_per_length(cu, ov, half, eps, solid=tape) == pytest.approx(
             quad, rel=1e-9)
     # The piecewise cell of the turn-to-turn model bounds the series one from above (derived).
-    assert cc.flux_tube_capacitance_per_length(cu, ov, math.pi / 6) < \
+    assert lc.flux_tube_capacitance_per_length(cu, ov, math.pi / 6) < \
         cc.turn_to_turn_capacitance_per_length(cu, ov)
 
 
@@ -286,7 +288,7 @@ def test_plate_model_is_series_plates():
     step = ov + tape
     air = step - cu * math.sqrt(math.pi) / 2 - (ov - cu) - tape
     expected = EPS0 * ov / ((ov - cu) / 3.5 + tape / 3.2 + air)
-    assert cc.layer_plate_capacitance_per_length(cu, ov, step, ov, 3.5, tape) == pytest.approx(
+    assert lc.layer_plate_capacitance_per_length(cu, ov, step, ov, 3.5, tape) == pytest.approx(
         expected, rel=1e-12)
 
 

@@ -22,6 +22,7 @@ def _size(doc, remedies=False):
 def _dc_coil(sections, **winding):
     doc = yaml.safe_load((SAMPLES / "hl-0442-sectioned-pulse-coil.yaml").read_text())
     doc["duty"] = {"voltage": "6 kV", "waveform": "dc"}
+    doc["wire"] = {"size": "0.20 mm", "grade": 2}     # the sample's wire before it took grade 3 for its edge
     doc["winding"] = {"turns": 1800, "sections": sections, "lead_length": "0 mm",
                       "leads": {"start": "through-form", "finish": "end-flange"}, **winding}
     return doc

@@ -21,8 +21,8 @@ import numpy as np
 from .layout import Layout
 from .neighbours import neighbour_pairs
 
-from .conductor_capacitance import (ENAMEL_EPS_R, TAPE_EPS_R, layer_pair_capacitance_per_length,
-                                    side_by_side_capacitance_per_length)
+from .conductor_capacitance import ENAMEL_EPS_R, TAPE_EPS_R, side_by_side_capacitance_per_length
+from .layer_capacitance import layer_pair_capacitance_per_length, side_factor_beside_layers
 
 @lru_cache(maxsize=1)
 def medhurst_table():
@@ -151,7 +151,8 @@ def pair_capacitances(layout: Layout, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R,
 
     Side pairs (and a toroid's start–finish pair across its gap): enamelled
     turns at the pair's centre spacing
-    (:func:`side_by_side_capacitance_per_length`) over the mean turn length.
+    (:func:`side_by_side_capacitance_per_length`) over the mean turn length,
+    less what the layers along the row take (:func:`side_factor_beside_layers`).
     Layer pairs that touch, or face each other straight across the tape:
     :func:`layer_pair_capacitance_per_length` over the mean turn length.
     Diagonal layer pairs that do not touch carry none of their own: the
@@ -207,6 +208,14 @@ def pair_capacitances(layout: Layout, eps_r=ENAMEL_EPS_R, tape_eps_r=TAPE_EPS_R,
     # One pass over the layer pairs (a string compare per layer was O(layers × pairs)).
     is_layer = kind == "layer"
     lower = np.minimum(layout.layer[i], layout.layer[j])[is_layer]
+    if is_layer.any() and (kind == "side").any():
+        # A layer along one side of two turns takes that side's field beyond their own cell.
+        n_lay = layout.layers
+        below = np.bincount(lower + 1, minlength=n_lay + 1)[:n_lay] > 0
+        above = np.bincount(lower, minlength=n_lay)[:n_lay] > 0
+        in_row = kind == "side"
+        beside = (below.astype(int) + above.astype(int))[layout.layer[i[in_row]]]
+        c[in_row] *= side_factor_beside_layers(d_cu, d_ov, beside, layout.layer_style, eps_r)
     sums = np.bincount(lower, weights=c[is_layer], minlength=max(layout.layers - 1, 0))
     present = np.bincount(lower, minlength=max(layout.layers - 1, 0)) > 0
     layer_C = {(lay, lay + 1): float(sums[lay]) for lay in range(layout.layers - 1) if present[lay]}
