@@ -9,7 +9,7 @@
   var timers = {};
   var chains = {};
   var saved = {};
-  var shown = -1;
+  var shown = {};
 
   function show(el, items) {
     el.textContent = "";
@@ -25,8 +25,11 @@
     var p = document.createElement("p");
     p.className = bad ? "message error" : "message"; p.textContent = text; box.appendChild(p);
   }
-  function apply(units) {
+  function apply(units, seq) {
     Object.keys(units).forEach(function (i) {
+      // Answers can arrive out of order; the server numbers its views, and a unit never shows an older one.
+      if (seq !== undefined && shown[i] !== undefined && seq < shown[i]) { return; }
+      if (seq !== undefined) { shown[i] = seq; }
       var u = units[i];
       Object.keys(u.cells).forEach(function (key) {
         var el = document.getElementById("c-" + i + "-" + key);
@@ -68,8 +71,7 @@
           if (hidden) { hidden.value = data.version; }
         }
         message(data.message, !!data.message);
-        // Answers can arrive out of order; the server numbers them, and only a newer view is shown.
-        if (data.units && !(data.seq < shown)) { shown = data.seq; apply(data.units); }
+        if (data.units) { apply(data.units, data.seq); }
         if (data.stale && data.value !== undefined) { input.value = data.value; saved[input.name] = data.value; }
         input.classList.toggle("stale", !!data.stale);
       })

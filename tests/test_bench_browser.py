@@ -144,6 +144,32 @@ def test_a_line_typed_before_the_script_runs_is_saved_and_judged(page, server):
     assert page.input_value('input[name="r:3:strands.B.inductance"]') == "100.2 uH"
 
 
+def test_a_late_answer_never_shows_over_a_newer_one(page, server):
+    # The job-wide line's answer (every unit's view, without unit 3's strand B yet) is held back
+    # until the strand's own answer has been shown; the older view must not blank the newer.
+    held = []
+
+    def hold_ambient(route):
+        if "ambient" in (route.request.post_data or "") and not held:
+            held.append((route, route.fetch()))
+        else:
+            route.continue_()
+
+    page.goto(server.url + "/job/HL-0412")
+    page.route("**/field", hold_ambient)
+    page.fill('input[name="r:job:ambient"]', "22.0 degC")
+    page.fill('input[name="r:2:strands.B.inductance"]', "100.3 uH")
+    cell = _cell(page, 2, "strand.B.inductance")
+    cell.get_by_text("PASS 100.3").wait_for()
+    assert held, "the job-wide line was posted"
+    route, answer = held[0]
+    with page.expect_response(lambda r: "ambient" in (r.request.post_data or "")):
+        route.fulfill(response=answer)
+    page.wait_for_timeout(500)  # let the page's script handle the late answer
+    assert "PASS 100.3" in cell.inner_text()
+    page.unroute("**/field")
+
+
 # ---------------------------------------------------------------- a page that fits the job
 
 def test_placeholders_are_this_jobs_own_prediction(page, server):
