@@ -143,3 +143,16 @@ def test_a_list_where_a_pin_header_end_is_due_is_refused_in_one_line(tmp_path):
     assert res.exception is None or isinstance(res.exception, SystemExit)
     line = res.stderr.strip()
     assert "\n" not in line and "pin_header.end" in line and "start-end or finish-end" in line, line
+
+
+def test_a_list_where_the_waveform_word_is_due_is_refused_in_one_line(tmp_path):
+    # The same crash as the pin header's end, in the duty's word lookup (fields.known_word serves both).
+    text = (SAMPLES / "hl-0410-single.yaml").read_text(encoding="utf-8")
+    assert "duty: {" in text
+    order = tmp_path / "order.yaml"
+    order.write_text(text.replace("duty: {", "duty: {waveform: [sine], "), encoding="utf-8")
+    res = runner.invoke(app, ["size", str(order)])
+    assert res.exit_code == 2, res.output
+    assert res.exception is None or isinstance(res.exception, SystemExit)
+    line = res.stderr.strip()
+    assert "\n" not in line and "duty.waveform" in line and "sine, dc or pulse" in line, line

@@ -20,8 +20,8 @@ from windsheet.common.fileio import read_limited
 from windsheet.common.yaml_reading import parse_yaml_bytes
 from windsheet.physics.hookup import (NAMED_HOOKUPS, STRAND_IDS, HookupError, brought_out, check_hookup, named_hookup,
                                      pin_assignment)
-from .fields import (Energy, Fraction, Frequency, Frequency0, PeakVoltage, PulseWidth, RiseTime, Temperature, lowered,
-                     quantity)
+from .fields import (Energy, Fraction, Frequency, Frequency0, PeakVoltage, PulseWidth, RiseTime, Temperature,
+                     known_word, lowered, quantity)
 # The order's parts live in .parts; those other modules take from here are named again on purpose.
 from .parts import (_M, BobbinForm, CylinderForm, Form, Job, LayerTape, LeadRoutes,  # noqa: F401
                     MarginTape, ToroidForm, Winding, WireSpec)
@@ -137,7 +137,7 @@ def duty_amplitudes(data: dict) -> dict:
     if "frequency" in data:
         freq = parse_quantity(data["frequency"], "frequency", "duty.frequency", allow_zero=True)
     given = data.get("waveform")
-    if given is not None and lowered(given) not in _DUTY_FORMS:
+    if given is not None and known_word(given, _DUTY_FORMS) is None:
         raise InputError("duty.waveform", "expected sine, dc or pulse")
     volts = read_quantity(data["voltage"], "voltage", "duty.voltage", allow_zero=True) if "voltage" in data else None
     waveform = lowered(given) if given is not None else (

@@ -76,6 +76,12 @@ def lowered(v):
     return v.strip().lower() if isinstance(v, str) else v
 
 
+def known_word(v, words):
+    """``v`` as one of ``words`` (read case-insensitively), or None: a list or mapping is no word."""
+    w = lowered(v) if isinstance(v, str) else None
+    return w if w is not None and w in words else None
+
+
 def choice(*words):
     """A field taking one of ``words``, read case-insensitively (``Cylinder`` is ``cylinder``)."""
     return Annotated[Literal[words], BeforeValidator(lowered)]

@@ -17,7 +17,7 @@ from typing import Annotated, Literal, Optional, Union
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Discriminator, Field, Tag
 
 from windsheet.common.errors import InputError
-from .fields import (Angle, Flag, Fraction, Ident, Inductance, Length, Length0, Text, Voltage, choice,
+from .fields import (Angle, Flag, Fraction, Ident, Inductance, Length, Length0, Text, Voltage, choice, known_word,
                      count_or_auto, lowered, strand_keys)
 from .limits import JOB_UNITS
 from .units import parse_quantity
@@ -51,7 +51,7 @@ _HEADER_ENDS = {"start-end": "start-end", "start": "start-end", "finish-end": "f
 
 
 def _header_end(v):
-    if not isinstance(v, str) or lowered(v) not in _HEADER_ENDS:  # a list is not hashable
+    if known_word(v, _HEADER_ENDS) is None:
         raise ValueError("expected start-end or finish-end")
     return _HEADER_ENDS[lowered(v)]
 
@@ -218,7 +218,7 @@ _ENDS = {"start-end": "start-end", "start": "start-end", "start-flange": "start-
 
 
 def _end(v):
-    if not isinstance(v, str) or lowered(v) not in _ENDS:  # a list is not hashable
+    if known_word(v, _ENDS) is None:
         raise ValueError("expected start-end, finish-end or centre")
     return _ENDS[lowered(v)]
 
