@@ -113,6 +113,14 @@ def _register(tmp_path, n=6):
     return path
 
 
+def _tamper(path, sql):
+    """One change made by hand, outside windsheet, as a shop's own script or a damaged disk would."""
+    conn = sqlite3.connect(path)
+    conn.execute(sql)
+    conn.commit()
+    conn.close()
+
+
 def test_a_change_outside_windsheet_drops_the_stored_state_and_the_listing_reads_the_records(tmp_path):
     path = _register(tmp_path)
     conn = sqlite3.connect(path)
@@ -172,11 +180,8 @@ def test_the_whole_listing_reads_no_sign_off_and_the_writers_check_none(tmp_path
 
 def test_register_check_finds_a_stored_state_that_is_not_its_records(tmp_path):
     path = _register(tmp_path)
-    conn = sqlite3.connect(path)
     # HL-0000 failed a unit; its stored state is written over as passed (no trigger watches this table).
-    conn.execute("UPDATE job_states SET state = 'passed', units_passed = 2 WHERE job = 'HL-0000'")
-    conn.commit()
-    conn.close()
+    _tamper(path, "UPDATE job_states SET state = 'passed', units_passed = 2 WHERE job = 'HL-0000'")
     res = runner.invoke(app, ["register", "--check", "--register", str(path)])
     assert res.exit_code == 2 and len(res.stderr.splitlines()) == 1
     assert ("stored state of job 'HL-0000' differs from its records (state: stored 'passed', from the records "
@@ -185,27 +190,18 @@ def test_register_check_finds_a_stored_state_that_is_not_its_records(tmp_path):
 
 def test_register_check_finds_a_stored_customer_that_is_not_the_jobs(tmp_path):
     path = _register(tmp_path)
-    conn = sqlite3.connect(path)
-    conn.execute("UPDATE job_states SET customer = 'Someone Else' WHERE job = 'HL-0002'")
-    conn.commit()
-    conn.close()
+    _tamper(path, "UPDATE job_states SET customer = 'Someone Else' WHERE job = 'HL-0002'")
     res = runner.invoke(app, ["register", "--check", "--register", str(path)])
     assert res.exit_code == 2 and "job 'HL-0002' differs from its records (customer: stored 'Someone Else'" in res.stderr
     # A job's customer changed by hand in the jobs table drops its stored row (a trigger): listed as changed.
-    conn = sqlite3.connect(path)
-    conn.execute("UPDATE jobs SET customer = 'Marlow Instruments' WHERE number = 'HL-0003'")
-    conn.commit()
-    conn.close()
+    _tamper(path, "UPDATE jobs SET customer = 'Marlow Instruments' WHERE number = 'HL-0003'")
     listed = runner.invoke(app, ["register", "--register", str(path)]).stdout
     assert "Marlow Instruments" in next(x for x in listed.splitlines() if x.startswith("HL-0003"))
 
 
 def test_a_register_without_its_triggers_is_refused_in_one_line(tmp_path):
     path = _register(tmp_path)
-    conn = sqlite3.connect(path)
-    conn.execute("DROP TRIGGER job_states_stale_unit_signoffs_update")
-    conn.commit()
-    conn.close()
+    _tamper(path, "DROP TRIGGER job_states_stale_unit_signoffs_update")
     before = path.read_bytes()
     for args in (["register"], ["register", "--issue", str(SAMPLES / "hl-0410-single.yaml")]):
         res = runner.invoke(app, args + ["--register", str(path)])
