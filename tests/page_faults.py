@@ -167,10 +167,9 @@ def embedded_svgs(html: str) -> list[tuple[str, str]]:
 
 def layout(html: str):
     """Lay the sheet out once, as ``render_pdf`` does: WeasyPrint's document of pages."""
-    from windsheet.sheets.sheet_pdf import TEMPLATES_DIR, _weasyprint, templates_only_fetcher
+    from windsheet.sheets.sheet_pdf import lay_out
 
-    wp = _weasyprint()
-    return wp.HTML(string=html, base_url=str(TEMPLATES_DIR) + "/", url_fetcher=templates_only_fetcher()).render()
+    return lay_out(html)
 
 
 def _boxes(page):

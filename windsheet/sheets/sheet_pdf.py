@@ -125,12 +125,16 @@ def templates_only_fetcher(templates_dir: Path = TEMPLATES_DIR):
     return TemplatesOnlyFetcher()
 
 
+def lay_out(html: str, templates_dir: Path = TEMPLATES_DIR):
+    """Lay a sheet's HTML out into pages with WeasyPrint: the document its PDF is drawn from."""
+    wp = _weasyprint()
+    return wp.HTML(string=html, base_url=str(Path(templates_dir).resolve()) + "/",
+                   url_fetcher=templates_only_fetcher(templates_dir)).render()
+
+
 def render_pdf(html: str, templates_dir: Path = TEMPLATES_DIR) -> bytes:
     """Render traveller HTML to PDF bytes with WeasyPrint."""
-    wp = _weasyprint()
-    doc = wp.HTML(string=html, base_url=str(Path(templates_dir).resolve()) + "/",
-                  url_fetcher=templates_only_fetcher(templates_dir))
-    return doc.write_pdf()
+    return lay_out(html, templates_dir).write_pdf()
 
 
 def _stylesheet(templates_dir: Path) -> Markup:
