@@ -102,3 +102,20 @@ def test_size_json_builds_the_schema_it_dumps_with():
     code, _, out, built = run("size", SAMPLE, "--json", built=True)
     assert code in (0, None) and json.loads(out)["job"]["number"] == "HL-0412"
     assert "Design" in built
+
+
+def test_a_run_converts_only_its_own_commands():
+    # main() hands typer only the named command's module (typer converts every registered
+    # signature on each run); help, --version and a misspelt command get the whole app.
+    from windsheet.cli.app import COMMAND_MODULES, app, app_for
+
+    def names(a):
+        return sorted(i.name or i.callback.__name__.replace("_", "-") for i in a.registered_commands)
+
+    assert sorted(COMMAND_MODULES) == names(app)
+    for name, module in COMMAND_MODULES.items():
+        one = app_for([name, "--help"])
+        assert name in names(one)
+        assert names(one) == sorted(n for n, m in COMMAND_MODULES.items() if m is module)
+    for argv in ([], ["--help"], ["--version"], ["sise"]):
+        assert app_for(argv) is app
