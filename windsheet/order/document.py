@@ -5,7 +5,6 @@ This is the only place units are read.  Every fault raises
 what was expected.
 """
 
-from __future__ import annotations
 
 import hashlib
 import math

@@ -7,7 +7,8 @@ checks into one :class:`~windsheet.order.document.Order`; units are read here, o
 field types of :mod:`windsheet.order.fields`.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations``: pydantic then reads evaluated annotations
+# instead of compiling each one from a string at start-up (as in design.model).
 
 import datetime as _dt
 import math
