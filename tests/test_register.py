@@ -157,7 +157,7 @@ def test_new_register_carries_marker_and_schema_version(tmp_path):
     header = path.read_bytes()[:100]
     # SQLite file format: application_id at offset 68, user_version at 60 (sqlite.org/fileformat.html).
     assert int.from_bytes(header[68:72], "big") == APPLICATION_ID
-    assert int.from_bytes(header[60:64], "big") == SCHEMA_VERSION == 3
+    assert int.from_bytes(header[60:64], "big") == SCHEMA_VERSION == 4
     with sqlite3.connect(path) as c:
         assert c.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
         assert dict(c.execute("SELECT key, value FROM meta"))["application"] == "windsheet-register"

@@ -130,7 +130,7 @@ def test_a_version_1_register_is_read_as_it_is_and_migrated_on_the_first_write(t
     assert path.read_bytes() == before
     assert jobs[0]["state"] == "incomplete" and jobs[0]["design_status"]["state"] == "failing"
     with R.open_register(path) as reg:
-        assert reg.version == 3
+        assert reg.version == 4
         cols = {r[1] for r in reg.conn.execute("PRAGMA table_info(unit_signoffs)")}
         assert "unit_verdict" in cols
         assert reg.conn.execute("SELECT design_state FROM issues").fetchone()[0] == "failing"
@@ -138,7 +138,7 @@ def test_a_version_1_register_is_read_as_it_is_and_migrated_on_the_first_write(t
             "incomplete", "pass"]
         # The migrated register lists the same as the old one read as it was.
         assert [(j["number"], j["state"]) for j in reg.list_jobs()] == [(j["number"], j["state"]) for j in jobs]
-    assert int.from_bytes(path.read_bytes()[60:64], "big") == 3
+    assert int.from_bytes(path.read_bytes()[60:64], "big") == 4
 
 
 # ---------------------------------------------------------------- damage

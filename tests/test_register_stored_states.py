@@ -14,7 +14,7 @@ from typer.testing import CliRunner
 from conftest import SAMPLES, design_for_job, examples
 from windsheet.cli.app import app
 from windsheet.common.errors import InputError
-from windsheet.records import stored_states
+from windsheet.records import change_count, stored_states
 from windsheet.records.register import open_register, open_register_readonly
 from windsheet.records.register_listing import cells_table, job_cells, table_lines
 
@@ -213,8 +213,9 @@ def test_a_register_without_its_triggers_is_refused_in_one_line(tmp_path):
 def _as_version_2(path):
     """The register as windsheet wrote it at schema version 2: no stored states, no triggers."""
     conn = sqlite3.connect(path, isolation_level=None)
-    for name in stored_states.trigger_names():
+    for name in stored_states.trigger_names() + change_count.trigger_names():
         conn.execute(f"DROP TRIGGER {name}")
+    conn.execute("DELETE FROM meta WHERE key IN ('changes', 'checked_changes')")
     conn.execute(f"DROP TABLE {stored_states.TABLE}")
     conn.execute("UPDATE meta SET value = '2' WHERE key = 'schema_version'")
     conn.execute("PRAGMA user_version = 2")
@@ -260,7 +261,7 @@ def test_a_version_2_register_is_read_as_it_is_and_upgraded_by_the_first_writer_
         assert reg.version == 2
     # The first writer upgrades it in one transaction: every record kept, every state stored.
     with open_register(path) as reg:
-        assert reg.version == 3 and stored_states.complete(reg.conn)
+        assert reg.version == 4 and stored_states.complete(reg.conn)
         assert reg.list_jobs() == listed_v3
     assert _records(path) == records
     res = runner.invoke(app, ["register", "--register", str(path)])

@@ -224,7 +224,7 @@ def test_register_check_on_a_whole_register_counts_what_it_checked(tmp_path):
 
     # One job, one issue, one sign-off of the sample's four units (samples/HL-0412.measured.yaml).
     assert {k: v for k, v in json.loads(res.stdout).items() if k != "register"} == {
-        "schema_version": 3, "jobs": 1, "issues": 1, "signoffs": 1, "unit_signoffs": 4}
+        "schema_version": 4, "jobs": 1, "issues": 1, "signoffs": 1, "unit_signoffs": 4}
     assert reg.read_bytes() == before
 
 

@@ -31,7 +31,7 @@ from .register_checks import (APPLICATION, APPLICATION_ID, _check_contents, _che
                               _disk_fault, _is_locked, _locked_error, _one_line, _read_header, _read_only_error,
                               _reads)
 from .register_states import JobStates
-from windsheet.records import stored_states
+from windsheet.records import change_count, stored_states
 from .sheet_ledger import finish_pending, record_pending
 from windsheet.design.state_rules import recorded_state
 from .traceability import UNIT_LOTS_SCHEMA, ensure_table, insert_unit_lots
@@ -170,6 +170,8 @@ class Register(JobStates):
     repairs: list = []
     #: Opened for writing with a job lacking its stored state: the first write stores it.
     states_incomplete = False
+    #: ``(change count,)`` at which this writer scanned every listed row (else ``None``).
+    scanned_at = None
 
     def __init__(self, conn: sqlite3.Connection, path: Path, timeout: float):
         self.conn = conn
@@ -179,6 +181,16 @@ class Register(JobStates):
 
     def close(self) -> None:
         self.conn.close()
+
+    def _check_changes(self) -> None:
+        """Inside the write lock: what the listing reads of every row, when a listed row changed
+        outside windsheet since the last writer's check (and since this one's scan on opening)."""
+        if self.version < 4 or not change_count.needs_check(self.conn):
+            return
+        now = (change_count.count(self.conn),)
+        if now != self.scanned_at:
+            schema.check_listed(self.conn, self.label)
+            self.scanned_at = now
 
     def __enter__(self):
         return self
@@ -196,7 +208,10 @@ class Register(JobStates):
                 raise _locked_error(self.label) from None
             raise _disk_fault(self.label, exc) or InputError(self.label, f"cannot write the register: {exc}") from None
         try:
+            self._check_changes()
             yield self.conn
+            if self.version >= 4:
+                change_count.mark_checked(self.conn)  # this writer's rows, and every one it checked
         except sqlite3.OperationalError as exc:
             self._rollback()
             fault = _disk_fault(self.label, exc)
@@ -474,17 +489,23 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         # an older register gets the whole check first. The whole check is `register --check`.
         version = _check_contents(conn, label, whole_file=_migration_reads_records(conn))
         states_stored = False
+        scanned_at = None
         if version < 2:
             schema.check_text(conn, label)
             schema.check_json(conn, label)
+        elif version >= 4 and not change_count.needs_check(conn):
+            # Nothing but windsheet's writers, who write only what they checked, changed a listed
+            # row since the last writer's check (change_count): nothing to scan.
+            states_stored = stored_states.complete(conn)
         else:
+            scanned_at = (change_count.count(conn),)  # read before the scan
             states_stored = schema.check_listed(conn, label)
         mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(label, f"register could not switch to WAL journaling (got {mode})")
         conn.execute("PRAGMA synchronous = FULL")
         conn.execute("PRAGMA foreign_keys = ON")
-        migrated = version < SCHEMA_VERSION
+        states_migrated = version < 3  # the migration stores every job's state
         version = schema.migrate(conn, version, _now(), states=lambda: _states_from_records(conn, p, timeout))
         ensure_table(conn)  # registers made before lots were recorded gain the table
         schema.ensure_listing_index(conn, version)
@@ -504,9 +525,10 @@ def open_register(path=None, timeout: float = DEFAULT_TIMEOUT_S, create: bool = 
         raise
     reg = Register(conn, p, timeout)
     reg.version = version
+    reg.scanned_at = scanned_at
     # A job left without its stored state (records changed outside windsheet; a migration stores
     # every one) is stored again by this writer's first write, in the same transaction.
-    reg.states_incomplete = version >= 3 and not states_stored and not migrated
+    reg.states_incomplete = version >= 3 and not states_stored and not states_migrated
     try:
         reg.repairs = reg.finish_sheets()
     except BaseException:

@@ -20,6 +20,12 @@ whenever its records change (see :mod:`windsheet.records.stored_states`). A vers
 register is read as it is (each state worked out from the sign-offs) and upgraded by
 the first writer: the states of every job worked out once and stored, in one
 transaction, no record touched.
+
+Version 4 adds a count of the changes to the listed tables, raised by triggers, and the
+count at which a writer last saw every listed row checked (see
+:mod:`windsheet.records.change_count`): a writer scans what the listing reads only
+when a change was made outside windsheet since. An older register gets the whole
+check from its first writer, which then adds the triggers.
 """
 
 from __future__ import annotations
@@ -28,9 +34,9 @@ import json
 import sqlite3
 
 from windsheet.common.errors import InputError
-from windsheet.records import stored_states
+from windsheet.records import change_count, stored_states
 
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
 
 #: Added by version 2; also part of a fresh register's schema.
 V2_TABLES = """
@@ -117,11 +123,12 @@ def check_structure(conn: sqlite3.Connection, version: int, label: str) -> None:
         if missing:
             raise InputError(label, f"register is damaged: table {table!r} lacks column(s) "
                                     f"{', '.join(sorted(missing))}; restore it from a backup")
-    if version >= 3:
-        # Without its triggers a stored state could outlive a change to the records it sums.
-        gone = stored_states.missing_triggers(conn)
-        if gone:
-            raise InputError(label, f"register is damaged: trigger {gone[0]!r} is missing; restore it from a backup")
+    # Without its triggers a stored state could outlive a change to the records it sums (3), and a
+    # change made outside windsheet could escape the next writer's check (4).
+    gone = ((stored_states.missing_triggers(conn) if version >= 3 else [])
+            + (change_count.missing_triggers(conn) if version >= 4 else []))
+    if gone:
+        raise InputError(label, f"register is damaged: trigger {gone[0]!r} is missing; restore it from a backup")
 
 
 def check_json(conn: sqlite3.Connection, label: str) -> None:
@@ -241,8 +248,10 @@ def migrate(conn: sqlite3.Connection, version: int, now: str, *, states) -> int:
     try:
         if version < 2:
             _to_version_2(conn)
-        stored_states.create(conn)
-        stored_states.store(conn, states())
+        if version < 3:
+            stored_states.create(conn)
+            stored_states.store(conn, states())
+        change_count.create(conn)  # after the opening writer's whole check of what the listing reads
         conn.execute("INSERT OR REPLACE INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),))
         conn.execute("INSERT OR REPLACE INTO meta VALUES ('migrated_at', ?)", (now,))
         conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
