@@ -15,7 +15,7 @@ import math
 import numpy as np
 
 from .constants import EPSILON_0 as EPS0
-from .conductor_capacitance import (CELL_HALF_ANGLE, ENAMEL_EPS_R, TAPE_EPS_R, _enamel_log_ratio,
+from .conductor_capacitance import (CELL_HALF_ANGLE, ENAMEL_EPS_R, TAPE_EPS_R, enamel_log_ratio,
                                     turn_to_turn_capacitance_per_length)
 
 
@@ -77,7 +77,7 @@ def flux_tube_capacitance_per_length(copper_diameter, overall_diameter, half_ang
     92.0
     """
     R = overall_diameter / 2.0
-    a = (1.0 + float(_enamel_log_ratio(copper_diameter, overall_diameter)) / eps_r
+    a = (1.0 + float(enamel_log_ratio(copper_diameter, overall_diameter)) / eps_r
          + (solid / solid_eps_r + air_gap) / (2.0 * R))
     root = math.sqrt(a * a - 1.0)
     return EPS0 * 2.0 / root * math.atan(math.sqrt((a + 1.0) / (a - 1.0)) * math.tan(half_angle / 2.0))
@@ -218,7 +218,7 @@ def layer_cell_capacitance_per_length(copper_diameter, overall_diameter, layer_s
     """
     own, neighbour, sides = LAYER_ARCS[layer_style]
     R = overall_diameter / 2.0
-    a = (1.0 + float(_enamel_log_ratio(copper_diameter, overall_diameter)) / eps_r
+    a = (1.0 + float(enamel_log_ratio(copper_diameter, overall_diameter)) / eps_r
          + solid / solid_eps_r / (2.0 * R))
     f_own, f_next = _tube_angle_integral(a, own), _tube_angle_integral(a, neighbour)
     return EPS0 * (f_own + arc_weight * 0.5 * sides * (f_next - f_own))
@@ -272,7 +272,7 @@ def side_factor_beside_layers(copper_diameter, overall_diameter, layers_beside, 
     >>> [round(float(f), 3) for f in side_factor_beside_layers(0.315e-3, 0.349e-3, np.array([0, 1, 2]))]
     [1.0, 0.836, 0.739]
     """
-    a = 1.0 + float(_enamel_log_ratio(copper_diameter, overall_diameter)) / eps_r
+    a = 1.0 + float(enamel_log_ratio(copper_diameter, overall_diameter)) / eps_r
     open_side = _tube_angle_integral(a, math.pi / 2)
     layer_side = _tube_angle_integral(a, CELL_HALF_ANGLE[layer_style])
     n = np.asarray(layers_beside)
