@@ -13,9 +13,7 @@ the stored energy, ``C' = 2 W' / V²``, ``W' = ½ ε0 Σ_edges ε_e Δφ²``.
 from __future__ import annotations
 
 import numpy as np
-from scipy.interpolate import RegularGridInterpolator
-from scipy.sparse import coo_matrix
-from scipy.sparse.linalg import spsolve
+# scipy is imported where it is used: a test worker that never solves a field never pays for it.
 
 EPS0 = 8.8541878128e-12  # CODATA 2018 (memory)
 
@@ -93,6 +91,9 @@ class Grid:
         rows = np.concatenate(rows + [np.arange(nx * ny)])
         cols = np.concatenate(cols + [np.arange(nx * ny)])
         vals = np.concatenate(vals + [diag])
+        from scipy.sparse import coo_matrix
+        from scipy.sparse.linalg import spsolve
+
         A = coo_matrix((vals, (rows, cols)), shape=(nx * ny, nx * ny)).tocsr()
         fixed = self.fixed.ravel()
         known = ~np.isnan(fixed)
@@ -113,6 +114,8 @@ class Grid:
 
     def at(self, x, y):
         """Potential interpolated (bilinear) at points."""
+        from scipy.interpolate import RegularGridInterpolator
+
         f = RegularGridInterpolator((self.x, self.y), self.phi)
         return f(np.column_stack([np.ravel(x), np.ravel(y)])).reshape(np.shape(x))
 

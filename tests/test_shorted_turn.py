@@ -15,9 +15,6 @@ import math
 
 import numpy as np
 import pytest
-from scipy.integrate import solve_ivp
-from scipy.signal import find_peaks
-from scipy.special import ellipe, ellipk
 
 from windsheet.design.build import build_design
 from windsheet.order.document import parse_order
@@ -41,6 +38,8 @@ test: {{frequency: {test}{ring}}}
 
 
 def maxwell(r1, r2, z):
+    from scipy.special import ellipe, ellipk  # here, not at the top: collection stays light
+
     # DLMF §19.34 / Maxwell art. 701; scipy's ellipk takes m = k².
     m = 4 * r1 * r2 / ((r1 + r2) ** 2 + z ** 2)
     k = np.sqrt(m)
@@ -155,6 +154,7 @@ test: {frequency: 1 kHz}
 
 def _ring_of(t, v):
     """Frequency and successive-peak ratio of a sampled ring, from its positive peaks."""
+    from scipy.signal import find_peaks
     peaks, _ = find_peaks(v)
     peaks = peaks[2:8]
     times, heights = t[peaks], v[peaks]
@@ -162,6 +162,7 @@ def _ring_of(t, v):
 
 
 def test_ring_wave_matches_scipy_ode_of_the_series_rlc():
+    from scipy.integrate import solve_ivp
     d = build_design(order(test="1 kHz", ring=", ring_capacitor: 10 nF"), remedies=False)
     rw = d.ring_wave
     L, R, C = rw.inductance_H, rw.resistance_ac_ohm, rw.capacitor_F + rw.winding_capacitance_F
@@ -177,6 +178,7 @@ def test_ring_wave_matches_scipy_ode_of_the_series_rlc():
 def coupled_ring(d, k, f_ring, strands=1, capacitor=None):
     """Ring frequency and peak ratio of the winding (series, all turns) with turn k shorted (None: no short),
     by scipy's integration of the coupled circuit; resistances at ``f_ring``'s AC ratio."""
+    from scipy.integrate import solve_ivp
     ratio = _ac_ratio(d, f_ring)
     r, z, strand, a = geometry(d, strands)
     M = turn_matrix(r, z, a)
