@@ -14,27 +14,28 @@ import pytest
 ROOT = Path(__file__).resolve().parents[1]
 SAMPLE = ROOT / "samples" / "hl-0412-bifilar-aiding.yaml"
 
-# Runs the CLI in this process, then reports which of the watched modules it loaded.
+# Runs the CLI as the console entry does, and at exit (the entry leaves through the exit handlers)
+# reports which of the watched modules it loaded.
 CHILD = """
-import json, sys
+import atexit, json, sys
 sys.argv = ["windsheet", *sys.argv[1:]]
 from windsheet.cli.app import main
-try:
-    main()
-except SystemExit as e:
-    code = e.code
-else:
-    code = 0
-watched = ["numpy", "pydantic", "scipy", "scipy.spatial", "scipy.constants", "scipy.special", "yaml",
-           "typer._adapters", "windsheet.order.document", "windsheet.qc.measured", "windsheet.qc.signoff",
-           "windsheet.order.transformer", "windsheet.design.transformer_model", "importlib.metadata", "email",
-           "rich"]
-# The design's models whose pydantic schema (validator and serializer) was built.
-model = sys.modules.get("windsheet.design.model")
-built = sorted(n for n, c in vars(model).items() if isinstance(c, type) and c.__module__ == model.__name__
-               and getattr(c, "__pydantic_complete__", False)) if model else []
-print(json.dumps({"code": code, "loaded": [m for m in watched if m in sys.modules], "built": built}),
-      file=sys.stderr)
+
+
+def report():
+    watched = ["numpy", "pydantic", "scipy", "scipy.spatial", "scipy.constants", "scipy.special", "yaml",
+               "typer._adapters", "windsheet.order.document", "windsheet.qc.measured", "windsheet.qc.signoff",
+               "windsheet.order.transformer", "windsheet.design.transformer_model", "importlib.metadata", "email",
+               "rich"]
+    # The design's models whose pydantic schema (validator and serializer) was built.
+    model = sys.modules.get("windsheet.design.model")
+    built = sorted(n for n, c in vars(model).items() if isinstance(c, type) and c.__module__ == model.__name__
+                   and getattr(c, "__pydantic_complete__", False)) if model else []
+    print(json.dumps({"loaded": [m for m in watched if m in sys.modules], "built": built}), file=sys.stderr)
+
+
+atexit.register(report)
+main()
 """
 
 
@@ -43,8 +44,8 @@ def run(*args, built=False):
                           text=True, cwd=ROOT, timeout=120)
     report = json.loads(proc.stderr.strip().splitlines()[-1])
     if built:
-        return report["code"], set(report["loaded"]), proc.stdout, report["built"]
-    return report["code"], set(report["loaded"]), proc.stdout
+        return proc.returncode, set(report["loaded"]), proc.stdout, report["built"]
+    return proc.returncode, set(report["loaded"]), proc.stdout
 
 
 @pytest.fixture(scope="module")
@@ -119,3 +120,36 @@ def test_a_run_converts_only_its_own_commands():
         assert names(one) == sorted(n for n, m in COMMAND_MODULES.items() if m is module)
     for argv in ([], ["--help"], ["--version"], ["sise"]):
         assert app_for(argv) is app
+
+
+# The console entry with an exit handler and an object whose teardown would show on stderr.
+LEAVE = """
+import atexit, sys
+marker = sys.argv[1]
+atexit.register(lambda: open(marker, "w").write("ran"))
+class Loud:
+    def __del__(self):
+        sys.stderr.write("torn down\\n")
+kept = Loud()
+sys.argv = ["windsheet", *sys.argv[2:]]
+from windsheet.cli.app import main
+main()
+"""
+
+
+@pytest.mark.parametrize("args, status", [(("wires",), 0), (("size", "missing.yaml"), 2),
+                                          (("size", str(SAMPLE), "--json"), 0)])
+def test_a_command_leaves_without_teardown_keeping_its_status_output_and_exit_handlers(tmp_path, args, status):
+    # cli/app.leave: os._exit after the exit handlers and a flush; the subprocess is the point.
+    from typer.testing import CliRunner
+
+    from windsheet.cli.app import app
+
+    marker = tmp_path / "atexit"
+    proc = subprocess.run([sys.executable, "-c", LEAVE, str(marker), *args], capture_output=True, text=True,
+                          cwd=ROOT, timeout=120)
+    assert proc.returncode == status, proc.stderr
+    assert marker.read_text() == "ran"
+    assert "torn down" not in proc.stderr  # the interpreter was not torn down
+    same = CliRunner().invoke(app, list(args))
+    assert (proc.stdout, proc.stderr) == (same.stdout, same.stderr)  # every line, through real pipes

@@ -76,7 +76,41 @@ def main():  # console-script entry point
     os.environ.setdefault("PYDANTIC_DISABLE_PLUGINS", "__all__")
     if os.environ["PYDANTIC_DISABLE_PLUGINS"] == "__all__":
         _no_pydantic_plugins()
-    app_for(sys.argv[1:])()
+    try:
+        app_for(sys.argv[1:])()
+    except SystemExit as exc:
+        leave(exc.code)
+    leave(0)
+
+
+def leave(code) -> None:
+    """Exit with ``code`` without tearing the interpreter down.
+
+    Freeing every module and object at exit takes 50–80 ms once numpy and pydantic are
+    loaded: a fifth of a short command, for nothing anyone sees. The exit handlers still
+    run (the PDF worker's close, temporary folders, logging) and both streams are flushed
+    first. A non-integer status, another thread still running, or a stream that cannot be
+    flushed (a closed pipe) leaves the usual way, with Python's own handling.
+    """
+    import atexit
+    import os
+    import sys
+
+    if code is None:
+        code = 0
+    if not isinstance(code, int) or isinstance(code, bool):
+        raise SystemExit(code)
+    threading = sys.modules.get("threading")
+    if threading is not None and any(t.is_alive() and not t.daemon and t is not threading.main_thread()
+                                     for t in threading.enumerate()):
+        raise SystemExit(code)
+    atexit._run_exitfuncs()  # CPython's own exit-handler runner (unlisted, stable since 3.0)
+    try:
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except (OSError, ValueError):
+        raise SystemExit(code) from None
+    os._exit(code & 0xFF)
 
 
 def _no_pydantic_plugins() -> None:
