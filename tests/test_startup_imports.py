@@ -153,3 +153,13 @@ def test_a_command_leaves_without_teardown_keeping_its_status_output_and_exit_ha
     assert "torn down" not in proc.stderr  # the interpreter was not torn down
     same = CliRunner().invoke(app, list(args))
     assert (proc.stdout, proc.stderr) == (same.stdout, same.stderr)  # every line, through real pipes
+
+
+@pytest.mark.skipif(not Path("/dev/full").exists(), reason="needs Linux's /dev/full")
+def test_output_that_cannot_be_written_is_one_line_not_a_traceback():
+    # A full disk behind standard output (Linux's /dev/full answers every write with ENOSPC).
+    with open("/dev/full", "w") as full:
+        proc = subprocess.run([sys.executable, "-m", "windsheet.cli", "wires"], stdout=full, stderr=subprocess.PIPE,
+                              text=True, cwd=ROOT, timeout=120)
+    assert proc.returncode == 1
+    assert proc.stderr == "windsheet: cannot write the output: No space left on device\n"

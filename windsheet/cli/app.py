@@ -80,7 +80,35 @@ def main():  # console-script entry point
         app_for(sys.argv[1:])()
     except SystemExit as exc:
         leave(exc.code)
+    except OSError as exc:
+        leave(output_fault(exc))
     leave(0)
+
+
+#: A write to standard output that fails for these is the output's fault, not a bug.
+_OUTPUT_ERRNOS = frozenset({"EPIPE", "ENOSPC", "EIO", "EDQUOT", "EFBIG"})
+
+
+def output_fault(exc: OSError) -> int:
+    """Standard output that cannot be written: one line on stderr (none for a reader that went
+    away, as ``head`` does), status 1; anything else is re-raised as the bug it is."""
+    import errno
+    import os
+    import sys
+
+    if exc.filename is not None or errno.errorcode.get(exc.errno) not in _OUTPUT_ERRNOS:
+        raise exc
+    try:
+        # Nothing more reaches the closed or full output, and Python's own flush at exit stays quiet.
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
+    if not isinstance(exc, BrokenPipeError):
+        try:
+            sys.stderr.write(f"windsheet: cannot write the output: {exc.strerror}\n")
+        except (OSError, ValueError):
+            pass
+    return 1
 
 
 def leave(code) -> None:
@@ -104,12 +132,17 @@ def leave(code) -> None:
     if threading is not None and any(t.is_alive() and not t.daemon and t is not threading.main_thread()
                                      for t in threading.enumerate()):
         raise SystemExit(code)
+    try:
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except (OSError, ValueError):
+        raise SystemExit(code) from None  # before the handlers, so they run once, Python's way
     atexit._run_exitfuncs()  # CPython's own exit-handler runner (unlisted, stable since 3.0)
     try:
         sys.stdout.flush()
         sys.stderr.flush()
     except (OSError, ValueError):
-        raise SystemExit(code) from None
+        code = code or 120  # what Python itself exits with when it cannot flush at exit
     os._exit(code & 0xFF)
 
 
