@@ -8,6 +8,7 @@ import shutil
 import subprocess
 import sys
 from pathlib import Path
+from types import SimpleNamespace
 
 import yaml
 from typer.testing import CliRunner
@@ -25,9 +26,17 @@ BIFILAR = SAMPLES / "hl-0412-bifilar-aiding.yaml"
 runner = CliRunner()
 
 
-def _cli(*args, stdin: bytes | None = None, cwd=None):
+def _cli_process(*args, stdin: bytes | None = None, cwd=None):
+    """The command in a real process: where the process is the point (a binary PDF on a real
+    standard output, a batch that starts worker processes)."""
     return subprocess.run([sys.executable, "-m", "windsheet.cli", *map(str, args)], input=stdin,
                           capture_output=True, cwd=cwd, timeout=300)
+
+
+def _cli(*args, stdin: bytes | None = None):
+    """The command in process (typer's runner): exit status, stdout and stderr as bytes."""
+    res = runner.invoke(app, [str(a) for a in args], input=stdin)
+    return SimpleNamespace(returncode=res.exit_code, stdout=res.stdout_bytes, stderr=res.stderr_bytes)
 
 
 def test_short_help_and_version():
@@ -49,7 +58,7 @@ def test_size_reads_standard_input():
 
 def test_traveller_to_standard_output_and_formats_by_extension(tmp_path):
     reg = tmp_path / "r.db"
-    res = _cli("traveller", SINGLE, "-o", "-", "--register", reg)
+    res = _cli_process("traveller", SINGLE, "-o", "-", "--register", reg)
     assert res.returncode == 0 and res.stdout[:5] == b"%PDF-", res.stderr
     assert not (tmp_path / "-").exists() and not (Path.cwd() / "-").exists()
     res = _cli("traveller", SINGLE, "-o", tmp_path / "t.html", "--register", reg)
@@ -109,7 +118,8 @@ def test_traveller_batch_writes_each_and_names_the_refused(tmp_path):
     shutil.copy(BIFILAR, folder / "b.yaml")
     (folder / "c.yaml").write_text("job: [", encoding="utf-8")
     out = tmp_path / "sheets"
-    res = _cli("traveller", folder, "-o", out, "--format", "html", "--jobs", "2", "--register", tmp_path / "r.db")
+    res = _cli_process("traveller", folder, "-o", out, "--format", "html", "--jobs", "2", "--register",
+                       tmp_path / "r.db")
     assert res.returncode == 1
     assert sorted(p.name for p in out.iterdir()) == ["a.html", "b.html"]
     assert "c.yaml" in res.stderr.decode().splitlines()[-1]
