@@ -54,27 +54,28 @@ def create(conn: sqlite3.Connection) -> None:
     mark_checked(conn)
 
 
-def count(conn: sqlite3.Connection) -> Optional[int]:
-    """The register's change count now (``None`` when its row is gone)."""
-    row = conn.execute("SELECT value FROM meta WHERE key = ?", (COUNT_KEY,)).fetchone()
+def _meta_count(conn: sqlite3.Connection, key: str) -> Optional[int]:
+    row = conn.execute("SELECT value FROM meta WHERE key = ?", (key,)).fetchone()
     try:
         return int(row[0]) if row is not None else None
     except (TypeError, ValueError):
         return None
+
+
+def count(conn: sqlite3.Connection) -> Optional[int]:
+    """The register's change count now (``None`` when its row is gone)."""
+    return _meta_count(conn, COUNT_KEY)
 
 
 def checked(conn: sqlite3.Connection) -> Optional[int]:
     """The change count at which every listed row was last known checked (``None``: never)."""
-    row = conn.execute("SELECT value FROM meta WHERE key = ?", (CHECKED_KEY,)).fetchone()
-    try:
-        return int(row[0]) if row is not None else None
-    except (TypeError, ValueError):
-        return None
+    return _meta_count(conn, CHECKED_KEY)
 
 
-def needs_check(conn: sqlite3.Connection) -> bool:
-    """Whether a row may have changed since a writer last saw every listed row checked."""
-    now = count(conn)
+def needs_check(conn: sqlite3.Connection, now: Optional[int] = None) -> bool:
+    """Whether a row may have changed since a writer last saw every listed row checked
+    (``now``: the count, when the caller has just read it)."""
+    now = count(conn) if now is None else now
     return now is None or now != checked(conn)
 
 

@@ -185,12 +185,12 @@ class Register(JobStates):
     def _check_changes(self) -> None:
         """Inside the write lock: what the listing reads of every row, when a listed row changed
         outside windsheet since the last writer's check (and since this one's scan on opening)."""
-        if self.version < 4 or not change_count.needs_check(self.conn):
+        if self.version < 4:
             return
-        now = (change_count.count(self.conn),)
-        if now != self.scanned_at:
+        now = change_count.count(self.conn)
+        if change_count.needs_check(self.conn, now) and (now,) != self.scanned_at:
             schema.check_listed(self.conn, self.label)
-            self.scanned_at = now
+            self.scanned_at = (now,)
 
     def __enter__(self):
         return self
