@@ -12,7 +12,7 @@ from functools import lru_cache
 from pathlib import Path
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
@@ -210,6 +210,9 @@ def test_text_that_is_not_utf8_is_damage(tmp_path):
 
 @settings(max_examples=examples(25), deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(offsets=st.lists(st.integers(100, 40_000), min_size=1, max_size=6), byte=st.integers(0, 255))
+# Found on a clean run: a zeroed byte in the second page, which the listing reads past but --issue's
+# write meets (a traceback before the writers' transaction said "damaged" in one line).
+@example(offsets=[4097], byte=0)
 def test_random_damage_is_refused_or_read_never_a_traceback(tmp_path_factory, offsets, byte):
     tmp = tmp_path_factory.mktemp("damage")
     path = _issued_register(tmp)

@@ -218,6 +218,11 @@ class Register(JobStates):
             if fault is None:
                 raise
             raise fault from None
+        except sqlite3.DatabaseError as exc:
+            # A page the write itself meets is damaged (the writers' check reads only what the listing
+            # reads, and only after a change made outside windsheet): rolled back, refused in one line.
+            self._rollback()
+            raise self._damaged(exc) from None
         except BaseException:
             self._rollback()
             raise
@@ -228,12 +233,19 @@ class Register(JobStates):
             if _is_locked(exc):
                 raise _locked_error(self.label) from None
             raise _disk_fault(self.label, exc) or InputError(self.label, f"cannot write the register: {exc}") from None
+        except sqlite3.DatabaseError as exc:
+            self._rollback()
+            raise self._damaged(exc) from None
+
+    def _damaged(self, exc: sqlite3.DatabaseError) -> InputError:
+        return _disk_fault(self.label, exc) or InputError(
+            self.label, f"register is damaged ({_one_line(exc)}); restore it from a backup")
 
     def _rollback(self) -> None:
         # SQLite may have rolled back already (a full disk does that); nothing is half-written either way.
         try:
             self.conn.execute("ROLLBACK")
-        except sqlite3.OperationalError:
+        except sqlite3.DatabaseError:
             pass
 
     # -- issue -------------------------------------------------------------------------
